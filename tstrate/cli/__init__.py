@@ -1,0 +1,1 @@
+"""Command-line interface. Thin: parse, call the library, print or write."""

@@ -1,0 +1,67 @@
+"""Entry point of the ``tstrate`` command.
+
+Each subcommand lives in its own module under ``tstrate.cli`` and exposes
+``HELP`` (one line), ``add_arguments(parser)`` and ``run(args) -> int``.
+Subcommand modules import heavy packages inside ``run`` only, so that
+``tstrate --help`` starts fast.
+"""
+
+from __future__ import annotations
+
+import argparse
+import importlib
+import logging
+import sys
+
+from tstrate.errors import InputError
+
+#: subcommand name -> module (in the order shown by --help)
+SUBCOMMANDS: dict[str, str] = {
+}
+
+
+def build_parser() -> argparse.ArgumentParser:
+    from tstrate import __version__
+
+    parser = argparse.ArgumentParser(
+        prog="tstrate",
+        description="Rate constants from the stationary points of a reaction.",
+    )
+    parser.add_argument("--version", action="version", version=f"tstrate {__version__}")
+    parser.add_argument("--traceback", action="store_true",
+                        help="show the full Python traceback on errors (for developers)")
+    parser.add_argument("-v", "--verbose", action="store_true", help="log progress messages")
+    sub = parser.add_subparsers(dest="command", metavar="COMMAND")
+    for name, modname in SUBCOMMANDS.items():
+        mod = importlib.import_module(modname)
+        p = sub.add_parser(name, help=mod.HELP, description=getattr(mod, "DESCRIPTION", mod.HELP),
+                           formatter_class=argparse.RawDescriptionHelpFormatter)
+        p.add_argument("--traceback", action="store_true", default=argparse.SUPPRESS,
+                       help="show the full Python traceback on errors")
+        mod.add_arguments(p)
+        p.set_defaults(_run=mod.run)
+    return parser
+
+
+def main(argv: list[str] | None = None) -> int:
+    parser = build_parser()
+    args = parser.parse_args(argv)
+    logging.basicConfig(level=logging.INFO if args.verbose else logging.WARNING,
+                        format="tstrate: %(levelname)s: %(message)s")
+    if not getattr(args, "_run", None):
+        parser.print_help()
+        return 2
+    try:
+        return int(args._run(args) or 0)
+    except InputError as exc:
+        if args.traceback:
+            raise
+        print(f"tstrate {args.command}: error: {exc}", file=sys.stderr)
+        return 2
+    except KeyboardInterrupt:
+        print(f"tstrate {args.command}: interrupted", file=sys.stderr)
+        return 130
+
+
+if __name__ == "__main__":  # pragma: no cover
+    sys.exit(main())
