@@ -4,14 +4,12 @@ from __future__ import annotations
 
 import json
 import math
-import os
 import sys
-import tempfile
 from pathlib import Path
 
 import numpy as np
 
-from tstrate.errors import InputError
+from tstrate.io.files import atomic_write_bytes, atomic_write_text  # noqa: F401 (re-export)
 
 
 def to_jsonable(obj):
@@ -40,30 +38,6 @@ def to_jsonable(obj):
 def print_json(obj) -> None:
     json.dump(to_jsonable(obj), sys.stdout, indent=2)
     sys.stdout.write("\n")
-
-
-def atomic_write_bytes(path: str | os.PathLike, data: bytes) -> None:
-    """Write ``data`` to ``path`` through a temporary file and a rename."""
-    path = Path(path)
-    try:
-        path.parent.mkdir(parents=True, exist_ok=True)
-        fd, tmp = tempfile.mkstemp(dir=path.parent, prefix=f".{path.name}.", suffix=".part")
-    except OSError as exc:
-        raise InputError(f"cannot write here: {exc.strerror}", file=str(path)) from None
-    try:
-        with os.fdopen(fd, "wb") as fh:
-            fh.write(data)
-        os.replace(tmp, path)
-    except BaseException:
-        try:
-            os.unlink(tmp)
-        except OSError:
-            pass
-        raise
-
-
-def atomic_write_text(path, text: str) -> None:
-    atomic_write_bytes(path, text.encode("utf-8"))
 
 
 def format_table(header: list[str], rows: list[list], floatfmt: str = "{:.5g}") -> str:

@@ -1,0 +1,405 @@
+"""Species files (TOML, tstrate's own format): read, validate, build, write.
+
+A complete example, with every key (only ``name``, ``charge``,
+``multiplicity``, ``geometry`` and one of ``frequencies_cm1`` / ``[hessian]``
+are required)::
+
+    name = "H2CO3"
+    charge = 0
+    multiplicity = 1
+    kind = "minimum"                  # or "transition_state"
+    geometry = '''
+    C   0.000  0.000  0.000
+    O   ...
+    '''                               # or a path to any file ASE reads, e.g. "h2co3.xyz"
+    frequencies_cm1 = [ ... ]         # 3N-6 (3N-5 linear); imaginary as negative numbers
+    frequency_scale = 1.0             # multiplies every wavenumber before use
+    energy = { value = -264.39, unit = "hartree" }       # geometry-level energy
+    single_point = { value = -264.12, unit = "hartree", method = "CCSD(T)/CBS" }
+    symmetry_number = 2               # optional: overrides detection from the geometry
+    optical_isomers = 1               # optional: overrides detection from the geometry
+    linear = false                    # optional: overrides detection from the geometry
+    allow_imaginary_below_cm1 = 0     # minima: small imaginary modes tolerated (treated as real)
+    isotopes = { 3 = 2 }              # 1-based atom index -> mass number (needs [hessian])
+    masses_amu = [ ... ]              # optional: every atom's mass [u]; default most common isotope
+    lennard_jones = { sigma_A = 4.0, epsilon_K = 300.0 }  # for falloff
+
+    [[electronic_levels]]             # optional; default one level, degeneracy = multiplicity
+    energy_cm1 = 0.0
+    degeneracy = 1
+
+    [hessian]                         # optional Cartesian Hessian (3N x 3N, nested or flat)
+    unit = "hartree/bohr2"            # hartree/bohr2, eV/A2, kJ/mol/A2, kcal/mol/A2, J/m2
+    values = [[...], ...]
+
+    [provenance]                      # free-form strings
+    method = "GFN2-xTB"
+    source = "..."
+"""
+
+from __future__ import annotations
+
+import logging
+import math
+from pathlib import Path
+
+import numpy as np
+
+from tstrate.errors import InputError
+from tstrate.io.tables import Table, load_toml
+from tstrate.model import ElectronicLevel, Species
+from tstrate.physics import symmetry as sym
+from tstrate.physics.vibrations import (HESSIAN_UNITS_J_PER_M2, default_masses_amu,
+                                        expected_mode_count, isotope_mass_amu, vibrational_analysis)
+from tstrate.units import energy_to_J_per_mol
+
+log = logging.getLogger(__name__)
+
+#: closest approach of two nuclei accepted in a geometry [Angstrom]
+MIN_DISTANCE_A = 0.4
+
+KNOWN_KEYS = {"name", "charge", "multiplicity", "kind", "geometry", "frequencies_cm1",
+              "frequency_scale", "energy", "single_point", "symmetry_number", "optical_isomers",
+              "linear", "allow_imaginary_below_cm1", "isotopes", "masses_amu", "lennard_jones",
+              "electronic_levels", "hessian", "provenance"}
+
+
+# ---- geometry ---------------------------------------------------------------------
+
+def parse_xyz_body(text: str, *, file=None, field="geometry") -> tuple[list[str], np.ndarray]:
+    """Parse lines ``Symbol x y z`` [Angstrom]; blank lines are skipped."""
+    symbols, coords = [], []
+    for lineno, line in enumerate(text.strip().splitlines(), 1):
+        parts = line.split()
+        if not parts:
+            continue
+        if len(parts) != 4:
+            raise InputError(f"line {lineno}: expected 'Symbol x y z', got {line.strip()!r}"[:200],
+                             file=file, field=field)
+        try:
+            xyz = [float(p) for p in parts[1:]]
+        except ValueError:
+            raise InputError(f"line {lineno}: coordinates are not numbers: {line.strip()!r}"[:200],
+                             file=file, field=field) from None
+        symbols.append(parts[0])
+        coords.append(xyz)
+    if not symbols:
+        raise InputError("no atoms", file=file, field=field)
+    return symbols, np.array(coords, dtype=float)
+
+
+def read_geometry(value: str, base: Path | None, *, file=None, field="geometry"):
+    """Inline XYZ body (contains a line break) or a path to a file ASE reads."""
+    if "\n" in value.strip() or len(value.split()) == 4:
+        return parse_xyz_body(value, file=file, field=field)
+    path = Path(value)
+    if base is not None and not path.is_absolute():
+        path = base / path
+    if not path.exists():
+        raise InputError(f"geometry file {str(path)!r} does not exist", file=file, field=field)
+    import ase.io
+
+    try:
+        atoms = ase.io.read(str(path))
+    except Exception as exc:  # ASE raises many kinds for unreadable files
+        raise InputError(f"ASE cannot read geometry file {str(path)!r}: {exc}"[:300],
+                         file=file, field=field) from None
+    return list(atoms.get_chemical_symbols()), np.array(atoms.positions, dtype=float)
+
+
+def _check_geometry(symbols, positions, *, file, field="geometry"):
+    from ase.data import atomic_numbers
+
+    for i, s in enumerate(symbols):
+        if s not in atomic_numbers or s == "X":
+            raise InputError(f"unknown element {s!r} (atom {i + 1})", file=file, field=field)
+    if not np.all(np.isfinite(positions)):
+        raise InputError("coordinates hold NaN or infinite values", file=file, field=field)
+    if len(symbols) > 1:
+        d = np.linalg.norm(positions[:, None] - positions[None, :], axis=2)
+        d[np.diag_indices_from(d)] = np.inf
+        i, j = np.unravel_index(np.argmin(d), d.shape)
+        if d[i, j] < MIN_DISTANCE_A:
+            raise InputError(f"atoms {i + 1} and {j + 1} overlap ({d[i, j]:.3f} Angstrom apart)",
+                             file=file, field=field, hint="check the units (Angstrom expected)")
+
+
+# ---- building a species -----------------------------------------------------------
+
+def build_species(name: str, symbols, positions_A, *, charge: int = 0, multiplicity: int = 1,
+                  kind: str = "minimum", frequencies_cm1=None, hessian_J_per_m2=None,
+                  energy_J_per_mol: float | None = None, geometry_energy_J_per_mol: float | None = None,
+                  frequency_scale: float = 1.0, symmetry_number: int | None = None,
+                  optical_isomers: int | None = None, linear: bool | None = None,
+                  masses_amu=None, isotopes: dict[int, int] | None = None,
+                  electronic_levels=(), allow_imaginary_below_cm1: float = 0.0,
+                  lennard_jones=None, provenance: dict | None = None, source: str | None = None,
+                  symmetry_tolerance_A: float = sym.DEFAULT_TOLERANCE_A) -> Species:
+    """Validate inputs and build a :class:`Species` (the one path from files and from Python).
+
+    ``isotopes`` maps 0-based atom indices to mass numbers. When a Hessian is
+    given the frequencies are computed from it with the final masses; when both
+    are given the listed frequencies are only checked for count.
+    """
+    file = source
+    symbols = [str(s) for s in symbols]
+    positions = np.array(positions_A, dtype=float).reshape(-1, 3)
+    if len(symbols) != len(positions):
+        raise InputError(f"{len(symbols)} symbols but {len(positions)} positions", file=file,
+                         field="geometry")
+    _check_geometry(symbols, positions, file=file)
+    if kind not in ("minimum", "transition_state"):
+        raise InputError(f"unknown kind {kind!r}", file=file, field="kind",
+                         hint="use 'minimum' or 'transition_state'")
+    if int(multiplicity) < 1:
+        raise InputError("multiplicity must be 1 or more", file=file, field="multiplicity")
+    if not (frequency_scale > 0 and math.isfinite(frequency_scale)):
+        raise InputError("frequency scale factor must be positive", file=file, field="frequency_scale")
+
+    masses = (default_masses_amu(symbols) if masses_amu is None
+              else np.array(masses_amu, dtype=float))
+    for idx, mass_number in (isotopes or {}).items():
+        if not 0 <= idx < len(symbols):
+            raise InputError(f"atom {idx + 1} does not exist ({len(symbols)} atoms)", file=file,
+                             field="isotopes")
+        try:
+            masses[idx] = isotope_mass_amu(symbols[idx], mass_number)
+        except InputError as exc:
+            raise exc.located(file=file, field="isotopes") from None
+
+    is_lin = sym.is_linear(positions, masses, symmetry_tolerance_A) if linear is None else bool(linear)
+    nmodes = expected_mode_count(len(symbols), is_lin)
+
+    if hessian_J_per_m2 is not None:
+        try:
+            nm = vibrational_analysis(hessian_J_per_m2, positions, masses, is_lin)
+        except InputError as exc:
+            raise exc.located(file=file, field="hessian") from None
+        computed = nm.frequencies_cm1
+        if frequencies_cm1 is not None and len(frequencies_cm1) != len(computed):
+            raise InputError(f"{len(frequencies_cm1)} frequencies listed but the Hessian gives "
+                             f"{len(computed)}", file=file, field="frequencies_cm1")
+        freqs = computed
+    elif frequencies_cm1 is not None:
+        if isotopes:
+            raise InputError("isotopes need a Hessian to recompute the frequencies", file=file,
+                             field="isotopes", hint="add a [hessian] table")
+        freqs = np.array(frequencies_cm1, dtype=float)
+    else:
+        raise InputError("give frequencies_cm1 or a [hessian]", file=file, field="frequencies_cm1")
+    if not np.all(np.isfinite(freqs)):
+        raise InputError("frequencies hold NaN or infinite values", file=file, field="frequencies_cm1")
+    if len(freqs) != nmodes:
+        shape = "atom" if len(symbols) == 1 else ("linear" if is_lin else "nonlinear")
+        raise InputError(f"{len(freqs)} frequencies for a {shape} species of {len(symbols)} atoms; "
+                         f"expected {nmodes}", file=file, field="frequencies_cm1")
+    freqs = np.sort(freqs)
+
+    imag = freqs[freqs < 0]
+    if kind == "transition_state":
+        if len(imag) != 1:
+            raise InputError(f"a transition state needs exactly one imaginary frequency, found "
+                             f"{len(imag)}", file=file, field="frequencies_cm1",
+                             hint="imaginary frequencies are written as negative numbers")
+    elif len(imag):
+        too_big = imag[-imag > allow_imaginary_below_cm1]
+        if len(too_big):
+            raise InputError(f"a minimum with imaginary frequency {too_big[0]:.1f} cm-1", file=file,
+                             field="frequencies_cm1",
+                             hint="set allow_imaginary_below_cm1 to tolerate small ones, or kind = "
+                                  "'transition_state'")
+        log.warning("%s: %d small imaginary frequencies treated as real", name, len(imag))
+        freqs = np.sort(np.abs(freqs))
+
+    if symmetry_number is None:
+        symmetry_number = sym.symmetry_number(symbols, positions, masses, symmetry_tolerance_A)
+    elif int(symmetry_number) < 1:
+        raise InputError("symmetry number must be 1 or more", file=file, field="symmetry_number")
+    if optical_isomers is None:
+        optical_isomers = sym.optical_isomers(symbols, positions, masses, symmetry_tolerance_A)
+    elif int(optical_isomers) < 1:
+        raise InputError("number of optical isomers must be 1 or more", file=file,
+                         field="optical_isomers")
+
+    levels = tuple(electronic_levels)
+    for lv in levels:
+        if lv.degeneracy < 1 or lv.energy_cm1 < 0:
+            raise InputError("electronic levels need degeneracy >= 1 and energy >= 0", file=file,
+                             field="electronic_levels")
+    if levels and min(lv.energy_cm1 for lv in levels) != 0.0:
+        raise InputError("the lowest electronic level must be at 0 cm-1", file=file,
+                         field="electronic_levels")
+
+    hess = None if hessian_J_per_m2 is None else np.array(hessian_J_per_m2, dtype=float)
+    return Species(
+        name=name, symbols=tuple(symbols), positions_A=positions, masses_amu=masses,
+        charge=int(charge), multiplicity=int(multiplicity),
+        energy_J_per_mol=energy_J_per_mol, frequencies_cm1=freqs, frequency_scale=float(frequency_scale),
+        kind=kind, symmetry_number=int(symmetry_number), optical_isomers=int(optical_isomers),
+        linear=is_lin, electronic_levels=levels, hessian_J_per_m2=hess,
+        geometry_energy_J_per_mol=geometry_energy_J_per_mol, provenance=dict(provenance or {}),
+        source=source, lennard_jones=lennard_jones,
+    )
+
+
+def species_from_atoms(atoms, name: str | None = None, **kwargs) -> Species:
+    """Build a species from an ASE ``Atoms`` (its masses are kept; other fields as keywords)."""
+    kwargs.setdefault("masses_amu", atoms.get_masses())
+    return build_species(name or atoms.get_chemical_formula(), atoms.get_chemical_symbols(),
+                         atoms.positions, **kwargs)
+
+
+# ---- reading ----------------------------------------------------------------------
+
+def read_species(path: str | Path, *, name: str | None = None) -> Species:
+    """Read and validate one species file. ``name`` overrides the file's ``name``."""
+    path = Path(path)
+    file = str(path)
+    t = Table(load_toml(path), file)
+    fname = t.get("name", str)
+    symbols, positions = read_geometry(t.get("geometry", str), path.parent, file=file)
+
+    energy = t.quantity("energy", energy_to_J_per_mol, None)
+    single = None
+    if "single_point" in t:
+        sp = t.table("single_point")
+        single = energy_to_J_per_mol(sp.get("value", float), sp.get("unit", str), file=file,
+                                     field="single_point.unit")
+        method = sp.get("method", str, None)
+        sp.reject_unknown()
+    else:
+        method = None
+
+    hess = None
+    if "hessian" in t:
+        ht = t.table("hessian")
+        unit = ht.get("unit", str)
+        if unit not in HESSIAN_UNITS_J_PER_M2:
+            raise ht.error("unit", f"unknown Hessian unit {unit!r}",
+                           hint="use one of " + ", ".join(HESSIAN_UNITS_J_PER_M2))
+        raw = ht.get("values", list)
+        try:
+            arr = np.array(raw, dtype=float)
+        except (TypeError, ValueError):
+            raise ht.error("values", "Hessian values must be numbers in a flat or nested list") from None
+        n3 = 3 * len(symbols)
+        if arr.size != n3 * n3:
+            raise ht.error("values", f"Hessian has {arr.size} values; {len(symbols)} atoms need "
+                           f"{n3} x {n3} = {n3 * n3}")
+        if not np.all(np.isfinite(arr)):
+            raise ht.error("values", "Hessian holds NaN or infinite values")
+        hess = arr.reshape(n3, n3) * HESSIAN_UNITS_J_PER_M2[unit]
+        ht.reject_unknown()
+
+    isotopes = {}
+    if "isotopes" in t:
+        it = t.table("isotopes")
+        for key in list(it.data):
+            try:
+                idx = int(key) - 1
+            except ValueError:
+                raise it.error(key, "isotope keys are 1-based atom numbers") from None
+            isotopes[idx] = it.get(key, int)
+
+    levels = []
+    for lt in t.tables("electronic_levels"):
+        levels.append(ElectronicLevel(lt.get("energy_cm1", float), lt.get("degeneracy", int)))
+        lt.reject_unknown()
+
+    lj = None
+    if "lennard_jones" in t:
+        lt = t.table("lennard_jones")
+        lj = (lt.get("sigma_A", float), lt.get("epsilon_K", float))
+        if lj[0] <= 0 or lj[1] <= 0:
+            raise lt.error(None, "sigma_A and epsilon_K must be positive")
+        lt.reject_unknown()
+
+    provenance = {}
+    if "provenance" in t:
+        provenance = {k: str(v) for k, v in t.get("provenance", dict).items()}
+    if method:
+        provenance.setdefault("single_point_method", method)
+
+    freqs = t.number_list("frequencies_cm1", None)
+    masses = t.number_list("masses_amu", None)
+    if masses is not None and (len(masses) != len(symbols) or min(masses) <= 0):
+        raise t.error("masses_amu", f"expected {len(symbols)} positive masses, got {len(masses)}")
+    linear = t.get("linear", bool, None)
+    t.reject_unknown(KNOWN_KEYS)
+    return build_species(
+        name or fname, symbols, positions,
+        charge=t.get("charge", int), multiplicity=t.get("multiplicity", int),
+        kind=t.get("kind", str, "minimum"), frequencies_cm1=freqs, hessian_J_per_m2=hess,
+        energy_J_per_mol=single if single is not None else energy,
+        geometry_energy_J_per_mol=energy,
+        frequency_scale=t.get("frequency_scale", float, 1.0),
+        symmetry_number=t.get("symmetry_number", int, None),
+        optical_isomers=t.get("optical_isomers", int, None), linear=linear,
+        masses_amu=masses, isotopes=isotopes, electronic_levels=levels,
+        allow_imaginary_below_cm1=t.get("allow_imaginary_below_cm1", float, 0.0),
+        lennard_jones=lj, provenance=provenance, source=file,
+    )
+
+
+# ---- writing ----------------------------------------------------------------------
+
+def _toml_str(s: str) -> str:
+    return '"' + s.replace("\\", "\\\\").replace('"', '\\"').replace("\n", "\\n") + '"'
+
+
+def species_to_toml(species: Species, *, include_hessian: bool = True,
+                    energy_unit: str = "hartree") -> str:
+    """A species file's text for ``species`` (energies written in ``energy_unit``)."""
+    from tstrate.units import energy_from_J_per_mol
+
+    lines = [f"name = {_toml_str(species.name)}", f"charge = {species.charge}",
+             f"multiplicity = {species.multiplicity}", f"kind = {_toml_str(species.kind)}",
+             "geometry = '''"]
+    lines += [f"{s:<2} {x:14.8f} {y:14.8f} {z:14.8f}" for s, (x, y, z) in
+              zip(species.symbols, species.positions_A)]
+    lines.append("'''")
+    lines.append("frequencies_cm1 = [" + ", ".join(f"{f:.2f}" for f in species.frequencies_cm1) + "]")
+    if species.frequency_scale != 1.0:
+        lines.append(f"frequency_scale = {species.frequency_scale!r}")
+    geo_e = species.geometry_energy_J_per_mol
+    if geo_e is None:
+        geo_e = species.energy_J_per_mol
+    if geo_e is not None:
+        lines.append(f"energy = {{ value = {energy_from_J_per_mol(geo_e, energy_unit)!r}, "
+                     f"unit = {_toml_str(energy_unit)} }}")
+    if (species.energy_J_per_mol is not None and species.geometry_energy_J_per_mol is not None
+            and species.energy_J_per_mol != species.geometry_energy_J_per_mol):
+        lines.append(f"single_point = {{ value = "
+                     f"{energy_from_J_per_mol(species.energy_J_per_mol, energy_unit)!r}, "
+                     f"unit = {_toml_str(energy_unit)} }}")
+    if not np.allclose(species.masses_amu, default_masses_amu(species.symbols), rtol=0, atol=1e-6):
+        lines.append("masses_amu = [" + ", ".join(f"{m!r}" for m in species.masses_amu) + "]")
+    lines.append(f"symmetry_number = {species.symmetry_number}")
+    lines.append(f"optical_isomers = {species.optical_isomers}")
+    if species.lennard_jones:
+        lines.append(f"lennard_jones = {{ sigma_A = {species.lennard_jones[0]!r}, "
+                     f"epsilon_K = {species.lennard_jones[1]!r} }}")
+    for lv in species.electronic_levels:
+        lines += ["", "[[electronic_levels]]", f"energy_cm1 = {lv.energy_cm1!r}",
+                  f"degeneracy = {lv.degeneracy}"]
+    if species.provenance:
+        lines += ["", "[provenance]"]
+        lines += [f"{k} = {_toml_str(str(v))}" for k, v in species.provenance.items()]
+    if include_hessian and species.hessian_J_per_m2 is not None:
+        h = species.hessian_J_per_m2 / HESSIAN_UNITS_J_PER_M2["hartree/bohr2"]
+        lines += ["", "[hessian]", 'unit = "hartree/bohr2"', "values = ["]
+        lines += ["  [" + ", ".join(f"{v:.10e}" for v in row) + "]," for row in h]
+        lines.append("]")
+    return "\n".join(lines) + "\n"
+
+
+def write_species(species: Species, path: str | Path, *, overwrite: bool = False, **kwargs) -> Path:
+    """Write a species file atomically; refuses to replace an existing file unless ``overwrite``."""
+    from tstrate.io.files import atomic_write_text
+
+    path = Path(path)
+    if path.exists() and not overwrite:
+        raise InputError("file exists; refusing to overwrite it", file=str(path),
+                         hint="choose another name or pass overwrite")
+    atomic_write_text(path, species_to_toml(species, **kwargs))
+    return path

@@ -1,0 +1,137 @@
+"""Typed access to parsed TOML tables, with errors that name the file and key.
+
+Every reader goes through :class:`Table`, so a wrong type, a missing key or a
+key nobody knows is reported the same way everywhere: one line with the file,
+the dotted key and what was expected.
+"""
+
+from __future__ import annotations
+
+import math
+import tomllib
+from pathlib import Path
+from typing import Any
+
+from tstrate.errors import InputError
+
+_MISSING = object()
+
+_TYPE_NAMES = {int: "an integer", float: "a number", str: "a string", bool: "true or false",
+               list: "a list", dict: "a table"}
+
+
+def load_toml(path: str | Path) -> dict:
+    """Parse a TOML file; a missing file or a syntax error is an InputError."""
+    path = Path(path)
+    try:
+        with open(path, "rb") as fh:
+            return tomllib.load(fh)
+    except FileNotFoundError:
+        raise InputError("file does not exist", file=str(path)) from None
+    except IsADirectoryError:
+        raise InputError("is a folder, not a file", file=str(path)) from None
+    except tomllib.TOMLDecodeError as exc:
+        raise InputError(f"not valid TOML: {exc}", file=str(path)) from None
+    except UnicodeDecodeError:
+        raise InputError("not a text file (TOML expected)", file=str(path)) from None
+
+
+class Table:
+    """A TOML table with its file and key prefix, for typed lookups."""
+
+    def __init__(self, data: dict, file: str | Path | None, prefix: str = ""):
+        if not isinstance(data, dict):
+            raise InputError("expected a table", file=str(file) if file else None, field=prefix or None)
+        self.data = data
+        self.file = str(file) if file is not None else None
+        self.prefix = prefix
+        self._used: set[str] = set()
+
+    def key(self, name: str) -> str:
+        return f"{self.prefix}.{name}" if self.prefix else name
+
+    def error(self, name: str | None, problem: str, hint: str | None = None) -> InputError:
+        return InputError(problem, file=self.file, field=self.key(name) if name else (self.prefix or None),
+                          hint=hint)
+
+    def __contains__(self, name: str) -> bool:
+        return name in self.data
+
+    def get(self, name: str, kind: type | tuple, default: Any = _MISSING) -> Any:
+        """The value of ``name`` checked against ``kind`` (int accepted where float is)."""
+        self._used.add(name)
+        if name not in self.data:
+            if default is _MISSING:
+                raise self.error(name, "missing required key")
+            return default
+        value = self.data[name]
+        kinds = kind if isinstance(kind, tuple) else (kind,)
+        if float in kinds and isinstance(value, int) and not isinstance(value, bool):
+            value = float(value)
+        if isinstance(value, bool) and bool not in kinds:
+            ok = False
+        else:
+            ok = isinstance(value, kinds)
+        if not ok:
+            want = " or ".join(_TYPE_NAMES.get(k, k.__name__) for k in kinds)
+            raise self.error(name, f"expected {want}, got {type(value).__name__} {value!r}"[:200])
+        if isinstance(value, float) and not math.isfinite(value):
+            raise self.error(name, "value is NaN or infinite")
+        return value
+
+    def number_list(self, name: str, default: Any = _MISSING, *, min_length: int = 0) -> list[float] | Any:
+        """A list of finite numbers."""
+        value = self.get(name, list, default)
+        if value is default and default is not _MISSING:
+            return default
+        out = []
+        for i, v in enumerate(value):
+            if isinstance(v, bool) or not isinstance(v, (int, float)):
+                raise self.error(f"{name}[{i}]", f"expected a number, got {v!r}"[:200])
+            if not math.isfinite(v):
+                raise self.error(f"{name}[{i}]", "value is NaN or infinite")
+            out.append(float(v))
+        if len(out) < min_length:
+            raise self.error(name, f"expected at least {min_length} values, got {len(out)}")
+        return out
+
+    def string_list(self, name: str, default: Any = _MISSING) -> list[str] | Any:
+        value = self.get(name, list, default)
+        if value is default and default is not _MISSING:
+            return default
+        for i, v in enumerate(value):
+            if not isinstance(v, str):
+                raise self.error(f"{name}[{i}]", f"expected a string, got {v!r}"[:200])
+        return list(value)
+
+    def table(self, name: str, default: Any = _MISSING) -> "Table | Any":
+        value = self.get(name, dict, default)
+        if value is default and default is not _MISSING:
+            return default
+        return Table(value, self.file, self.key(name))
+
+    def tables(self, name: str) -> list["Table"]:
+        """An array of tables (``[[name]]``); empty when absent."""
+        value = self.get(name, list, [])
+        out = []
+        for i, v in enumerate(value):
+            if not isinstance(v, dict):
+                raise self.error(f"{name}[{i}]", "expected a table")
+            out.append(Table(v, self.file, f"{self.key(name)}[{i}]"))
+        return out
+
+    def reject_unknown(self, known: set[str] | None = None) -> None:
+        """Raise on keys that no reader asked for (typos should not pass silently)."""
+        known = self._used if known is None else known | self._used
+        extra = sorted(set(self.data) - known)
+        if extra:
+            raise self.error(extra[0], "unknown key", hint="check the spelling against the documentation")
+
+    def quantity(self, name: str, convert, default: Any = _MISSING):
+        """A ``{ value = ..., unit = "..." }`` table converted by ``convert(value, unit, file=, field=)``."""
+        sub = self.table(name, default)
+        if sub is default and default is not _MISSING:
+            return default
+        value = sub.get("value", float)
+        unit = sub.get("unit", str)
+        return convert(value, unit, file=self.file, field=self.key(name) + ".unit")

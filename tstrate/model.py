@@ -1,0 +1,143 @@
+"""Small immutable records: species (a stationary point) and its parts.
+
+Units are SI except where the field name says otherwise (``_A`` for
+Angstrom, ``_amu`` for unified atomic mass units, ``_cm1`` for wavenumbers).
+Molar energies are in J/mol.
+"""
+
+from __future__ import annotations
+
+from collections import Counter
+from dataclasses import dataclass, field, replace
+from typing import Literal
+
+import numpy as np
+
+from tstrate.units import AMU
+
+Kind = Literal["minimum", "transition_state"]
+
+
+@dataclass(frozen=True)
+class ElectronicLevel:
+    """One electronic level: energy above the ground level [cm^-1] and degeneracy."""
+
+    energy_cm1: float
+    degeneracy: int
+
+
+@dataclass(frozen=True)
+class Species:
+    """One stationary point with everything thermochemistry and rates need.
+
+    Fields
+    ------
+    name: label used in studies.
+    symbols: element symbols, one per atom.
+    positions_A: (N, 3) Cartesian coordinates [Angstrom].
+    masses_amu: (N,) atomic masses [u] (isotopes already applied).
+    charge: total charge [e].
+    multiplicity: spin multiplicity 2S+1.
+    energy_J_per_mol: electronic energy used for barriers and reaction energies
+        [J/mol]: the high-level single point when given, else the geometry-level
+        energy; None when the file gives none (thermochemistry still works).
+    frequencies_cm1: (3N-6 or 3N-5,) unscaled harmonic wavenumbers [cm^-1];
+        imaginary ones are negative.
+    frequency_scale: factor applied to all wavenumbers before use (1.0 = none).
+    kind: "minimum" or "transition_state".
+    symmetry_number: external rotational symmetry number sigma.
+    optical_isomers: number of optical isomers (2 for a chiral structure).
+    linear: whether the geometry is linear.
+    electronic_levels: levels including the ground level at 0 cm^-1.
+    hessian_J_per_m2: (3N, 3N) Cartesian Hessian [J/m^2] if known.
+    geometry_energy_J_per_mol: energy at the geometry's own level [J/mol] if known.
+    provenance: free-form strings (method, source, program, ...).
+    source: the file the species was read from, if any.
+    lennard_jones: collision parameters (sigma [Angstrom], epsilon/k_B [K]) for falloff, if given.
+    """
+
+    name: str
+    symbols: tuple[str, ...]
+    positions_A: np.ndarray
+    masses_amu: np.ndarray
+    charge: int
+    multiplicity: int
+    energy_J_per_mol: float | None
+    frequencies_cm1: np.ndarray
+    frequency_scale: float = 1.0
+    kind: Kind = "minimum"
+    symmetry_number: int = 1
+    optical_isomers: int = 1
+    linear: bool = False
+    electronic_levels: tuple[ElectronicLevel, ...] = ()
+    hessian_J_per_m2: np.ndarray | None = None
+    geometry_energy_J_per_mol: float | None = None
+    provenance: dict = field(default_factory=dict)
+    source: str | None = None
+    lennard_jones: tuple[float, float] | None = None  # (sigma [Angstrom], epsilon/k_B [K])
+
+    # ---- derived quantities -------------------------------------------------
+    @property
+    def natoms(self) -> int:
+        return len(self.symbols)
+
+    @property
+    def is_atom(self) -> bool:
+        return self.natoms == 1
+
+    @property
+    def mass_kg(self) -> float:
+        """Total mass [kg]."""
+        return float(np.sum(self.masses_amu)) * AMU
+
+    @property
+    def atom_counts(self) -> Counter:
+        """Element symbol -> count (used for balance checks)."""
+        return Counter(self.symbols)
+
+    @property
+    def formula(self) -> str:
+        """Hill-order formula, e.g. CH2O3."""
+        c = self.atom_counts
+        order = (["C", "H"] + sorted(k for k in c if k not in ("C", "H"))) if "C" in c else sorted(c)
+        return "".join(f"{el}{c[el] if c[el] > 1 else ''}" for el in order if el in c)
+
+    @property
+    def scaled_frequencies_cm1(self) -> np.ndarray:
+        """All wavenumbers times ``frequency_scale`` [cm^-1] (imaginary stay negative)."""
+        return np.asarray(self.frequencies_cm1, dtype=float) * self.frequency_scale
+
+    @property
+    def real_frequencies_cm1(self) -> np.ndarray:
+        """Scaled real (positive) wavenumbers [cm^-1]; the vibrational modes used in Q_vib."""
+        f = self.scaled_frequencies_cm1
+        return f[f > 0]
+
+    @property
+    def imaginary_frequencies_cm1(self) -> np.ndarray:
+        """Magnitudes of the scaled imaginary wavenumbers [cm^-1]."""
+        f = self.scaled_frequencies_cm1
+        return -f[f < 0]
+
+    @property
+    def imaginary_frequency_cm1(self) -> float:
+        """The magnitude of the one imaginary wavenumber of a transition state [cm^-1]."""
+        imag = self.imaginary_frequencies_cm1
+        if len(imag) != 1:
+            raise ValueError(f"{self.name} has {len(imag)} imaginary frequencies, not 1")
+        return float(imag[0])
+
+    @property
+    def levels(self) -> tuple[ElectronicLevel, ...]:
+        """Electronic levels, defaulting to one level of degeneracy = multiplicity."""
+        return self.electronic_levels or (ElectronicLevel(0.0, self.multiplicity),)
+
+    def moments_of_inertia_kg_m2(self) -> np.ndarray:
+        """Principal moments of inertia [kg m^2], ascending."""
+        from tstrate.physics.symmetry import principal_moments
+
+        return principal_moments(self.positions_A, self.masses_amu)
+
+    def with_changes(self, **changes) -> "Species":
+        """A copy with some fields replaced (records are immutable)."""
+        return replace(self, **changes)

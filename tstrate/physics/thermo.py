@@ -1,0 +1,262 @@
+"""Ideal-gas partition functions and thermodynamic functions, vectorised over T.
+
+Model: ideal-gas translation, classical rigid rotor (atom, linear, nonlinear)
+with the external symmetry number and optical isomers, harmonic oscillators
+(partition function referenced to the zero-point level, ZPE reported apart),
+and discrete electronic levels. Quasi-harmonic options for low modes:
+
+- ``"grimme"``: Grimme's quasi-rigid-rotor-harmonic-oscillator entropy,
+  S = w S_HO + (1 - w) S_free-rotor with w = 1/(1 + (nu0/nu)^4) (S. Grimme,
+  Chem. Eur. J. 18, 9955 (2012)); enthalpy and heat capacity stay harmonic.
+- ``"truhlar"``: every real mode below the cut-off is raised to the cut-off
+  (R. F. Ribeiro, A. V. Marenich, C. J. Cramer, D. G. Truhlar, J. Phys.
+  Chem. B 115, 14556 (2011)); applies to all functions except the ZPE,
+  which keeps the true wavenumbers.
+
+Imaginary modes are never part of the vibrational partition function (the
+reaction coordinate of a transition state is left out).
+
+Conventions: molar quantities per mole of molecules; standard state 1 bar
+for translation unless a pressure is given; ``ln_q_per_volume`` gives the
+translational partition function per unit volume [m^-3] for concentration
+standard states and rate constants.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+from typing import Literal
+
+import numpy as np
+
+from tstrate.errors import InputError
+from tstrate.model import Species
+from tstrate.units import CM1_J, H, K_B, N_A, P_STANDARD, R
+
+#: Grimme's average moment of inertia for the free-rotor entropy [kg m^2] (Grimme 2012)
+GRIMME_B_AV_KG_M2 = 1e-44
+
+
+@dataclass(frozen=True)
+class LowModes:
+    """How low real vibrational modes are treated.
+
+    method: "harmonic" (none), "grimme" (entropy interpolation) or "truhlar" (raise to cut-off).
+    cutoff_cm1: nu0 of Grimme's damping function, or the Truhlar floor [cm^-1]. 100 cm^-1 is
+        the value both papers use.
+    """
+
+    method: Literal["harmonic", "grimme", "truhlar"] = "harmonic"
+    cutoff_cm1: float = 100.0
+
+    def __post_init__(self):
+        if self.method not in ("harmonic", "grimme", "truhlar"):
+            raise InputError(f"unknown low-mode treatment {self.method!r}",
+                             field="low_modes", hint="use harmonic, grimme or truhlar")
+        if not self.cutoff_cm1 > 0:
+            raise InputError("low-mode cut-off must be positive", field="low_modes.cutoff_cm1")
+
+
+HARMONIC = LowModes()
+
+
+def _temperatures(temperature_K) -> np.ndarray:
+    t = np.atleast_1d(np.asarray(temperature_K, dtype=float))
+    if not np.all(np.isfinite(t)) or np.any(t <= 0):
+        raise InputError("temperatures must be positive and finite", field="temperature_K")
+    return t
+
+
+# ---- per-degree-of-freedom pieces (all dimensionless, shape (T,)) -------------
+
+def translational(mass_kg: float, T: np.ndarray, pressure_Pa: float | None = P_STANDARD):
+    """ln q, U/RT, S/R, Cv/R of translation.
+
+    With ``pressure_Pa`` the partition function is that of the volume kT/p
+    (molar standard state at that pressure; S includes the 1/N! term).
+    With ``pressure_Pa=None``, ln q is per unit volume [ln(m^-3)] and S is not defined (NaN).
+    """
+    ln_qv = 1.5 * np.log(2 * np.pi * mass_kg * K_B * T / H**2)
+    if pressure_Pa is None:
+        return ln_qv, np.full_like(T, 1.5), np.full_like(T, np.nan), np.full_like(T, 1.5)
+    ln_q = ln_qv + np.log(K_B * T / pressure_Pa)
+    return ln_q, np.full_like(T, 1.5), ln_q + 2.5, np.full_like(T, 1.5)
+
+
+def rotational(moments_kg_m2, symmetry_number: int, linear: bool, T: np.ndarray):
+    """ln q, U/RT, S/R, Cv/R of a classical rigid rotor (zero for an atom)."""
+    zero = np.zeros_like(T)
+    if linear:
+        i = float(np.max(moments_kg_m2))
+        ln_q = np.log(8 * np.pi**2 * i * K_B * T / (symmetry_number * H**2))
+        return ln_q, zero + 1.0, ln_q + 1.0, zero + 1.0
+    moments = np.asarray(moments_kg_m2, dtype=float)
+    if np.all(moments == 0):
+        return zero, zero, zero, zero
+    ln_q = (0.5 * np.log(np.pi) - np.log(symmetry_number)
+            + 1.5 * np.log(8 * np.pi**2 * K_B * T / H**2) + 0.5 * np.sum(np.log(moments)))
+    return ln_q, zero + 1.5, ln_q + 1.5, zero + 1.5
+
+
+def harmonic_oscillators(freqs_cm1, T: np.ndarray):
+    """ln q (from the zero-point level), U/RT (thermal part), S/R, Cv/R of harmonic modes.
+
+    Returns arrays of shape (T, M) so callers can combine per mode.
+    """
+    nu = np.asarray(freqs_cm1, dtype=float)[None, :]
+    x = nu * CM1_J / (K_B * T[:, None])
+    em = -np.expm1(-x)  # 1 - exp(-x), accurate for small x
+    ln_q = -np.log(em)
+    u = x * np.exp(-x) / em  # x / (e^x - 1) without overflow
+    s = u + ln_q
+    cv = x**2 * np.exp(-x) / em**2
+    return ln_q, u, s, cv
+
+
+def free_rotor_entropy(freqs_cm1, T: np.ndarray, b_av_kg_m2: float = GRIMME_B_AV_KG_M2):
+    """S/R of Grimme's free rotor replacing a mode of the given wavenumber, shape (T, M)."""
+    nu_hz = np.asarray(freqs_cm1, dtype=float)[None, :] * CM1_J / H
+    mu = H / (8 * np.pi**2 * nu_hz)
+    mu_eff = mu * b_av_kg_m2 / (mu + b_av_kg_m2)
+    return 0.5 + np.log(np.sqrt(8 * np.pi**3 * mu_eff * K_B * T[:, None] / H**2))
+
+
+def electronic(levels, T: np.ndarray):
+    """ln q, U/RT, S/R, Cv/R of discrete electronic levels (energies from the ground level)."""
+    e = np.array([lv.energy_cm1 for lv in levels], dtype=float)[None, :] * CM1_J
+    g = np.array([lv.degeneracy for lv in levels], dtype=float)[None, :]
+    x = e / (K_B * T[:, None])
+    w = g * np.exp(-(x - x.min(axis=1, keepdims=True)))
+    z = w.sum(axis=1)
+    ln_q = np.log(z) - x.min(axis=1)
+    p = w / z[:, None]
+    u = (p * x).sum(axis=1)
+    cv = (p * x**2).sum(axis=1) - u**2
+    return ln_q, u, ln_q + u, cv
+
+
+# ---- whole species ------------------------------------------------------------
+
+@dataclass(frozen=True)
+class Thermo:
+    """Thermochemistry of one species on a temperature grid.
+
+    All arrays have the shape of ``temperature_K``. Molar quantities, standard
+    pressure ``pressure_Pa`` (1 bar unless stated).
+
+    temperature_K: temperatures [K].
+    zpe_J_per_mol: harmonic zero-point energy [J/mol] (real modes only).
+    energy_J_per_mol: electronic energy of the species [J/mol], or None when unknown.
+    enthalpy_increment_J_per_mol: H(T) - H(0) [J/mol].
+    entropy_J_per_mol_K: S(T) [J/(mol K)].
+    heat_capacity_J_per_mol_K: Cp(T) [J/(mol K)].
+    ln_q: dict of ln partition functions by part ("translational", "rotational",
+        "vibrational", "electronic"), the vibrational one from the zero-point level.
+    """
+
+    species: str
+    temperature_K: np.ndarray
+    pressure_Pa: float
+    zpe_J_per_mol: float
+    energy_J_per_mol: float | None
+    enthalpy_increment_J_per_mol: np.ndarray
+    entropy_J_per_mol_K: np.ndarray
+    heat_capacity_J_per_mol_K: np.ndarray
+    ln_q: dict
+
+    @property
+    def gibbs_increment_J_per_mol(self) -> np.ndarray:
+        """G(T) - H(0) = [H(T) - H(0)] - T S(T) [J/mol]."""
+        return self.enthalpy_increment_J_per_mol - self.temperature_K * self.entropy_J_per_mol_K
+
+    @property
+    def enthalpy_J_per_mol(self) -> np.ndarray:
+        """H(T) = E + ZPE + [H(T) - H(0)] [J/mol] (needs the electronic energy)."""
+        return self._base() + self.enthalpy_increment_J_per_mol
+
+    @property
+    def gibbs_J_per_mol(self) -> np.ndarray:
+        """G(T) = E + ZPE + [G(T) - H(0)] [J/mol] (needs the electronic energy)."""
+        return self._base() + self.gibbs_increment_J_per_mol
+
+    def _base(self) -> float:
+        if self.energy_J_per_mol is None:
+            raise InputError(f"species {self.species} has no electronic energy", field="energy")
+        return self.energy_J_per_mol + self.zpe_J_per_mol
+
+    @property
+    def ln_q_total(self) -> np.ndarray:
+        """ln of the total partition function (translation in the standard volume kT/p)."""
+        return sum(self.ln_q.values())
+
+
+def zero_point_energy_J_per_mol(species: Species) -> float:
+    """Harmonic ZPE of the real (scaled) modes [J/mol]."""
+    return float(0.5 * np.sum(species.real_frequencies_cm1) * CM1_J * N_A)
+
+
+def _vibrational_parts(freqs: np.ndarray, T: np.ndarray, low_modes: LowModes):
+    if freqs.size == 0:
+        z = np.zeros_like(T)
+        return z, z, z, z
+    if low_modes.method == "truhlar":
+        freqs = np.maximum(freqs, low_modes.cutoff_cm1)
+    ln_q, u, s, cv = harmonic_oscillators(freqs, T)
+    if low_modes.method == "grimme":
+        w = 1.0 / (1.0 + (low_modes.cutoff_cm1 / freqs[None, :]) ** 4)
+        s = w * s + (1 - w) * free_rotor_entropy(freqs, T)
+        ln_q = s - u  # keeps G = H - TS consistent with the interpolated entropy
+    return ln_q.sum(axis=1), u.sum(axis=1), s.sum(axis=1), cv.sum(axis=1)
+
+
+def thermochemistry(species: Species, temperature_K, *, low_modes: LowModes = HARMONIC,
+                    pressure_Pa: float = P_STANDARD) -> Thermo:
+    """Partition functions and H, S, Cp, G of one species on a temperature grid.
+
+    Parameters
+    ----------
+    species: the stationary point (its imaginary mode, if any, is left out).
+    temperature_K: scalar or array of temperatures [K].
+    low_modes: quasi-harmonic treatment of low real modes.
+    pressure_Pa: standard pressure of the translational part [Pa], 1 bar by default.
+    """
+    T = _temperatures(temperature_K)
+    parts = {
+        "translational": translational(species.mass_kg, T, pressure_Pa),
+        "rotational": (rotational(species.moments_of_inertia_kg_m2(), species.symmetry_number,
+                                  species.linear, T)
+                       if not species.is_atom else tuple(np.zeros_like(T) for _ in range(4))),
+        "vibrational": _vibrational_parts(species.real_frequencies_cm1, T, low_modes),
+        "electronic": electronic(species.levels, T),
+    }
+    ln_q = {k: v[0] for k, v in parts.items()}
+    if species.optical_isomers > 1:
+        ln_q["rotational"] = ln_q["rotational"] + np.log(species.optical_isomers)
+    u = sum(v[1] for v in parts.values())
+    s = sum(v[2] for v in parts.values()) + np.log(species.optical_isomers)
+    cv = sum(v[3] for v in parts.values())
+    return Thermo(
+        species=species.name,
+        temperature_K=T,
+        pressure_Pa=float(pressure_Pa),
+        zpe_J_per_mol=zero_point_energy_J_per_mol(species),
+        energy_J_per_mol=species.energy_J_per_mol,
+        enthalpy_increment_J_per_mol=(u + 1.0) * R * T,  # + RT: H = U + pV
+        entropy_J_per_mol_K=s * R,
+        heat_capacity_J_per_mol_K=(cv + 1.0) * R,  # Cp = Cv + R
+        ln_q=ln_q,
+    )
+
+
+def ln_partition_function_per_volume(species: Species, temperature_K, *,
+                                     low_modes: LowModes = HARMONIC) -> np.ndarray:
+    """ln of the molecular partition function per unit volume [ln(m^-3)].
+
+    Vibrations from the zero-point level; electronic from the ground level.
+    This is the q/V that enters equilibrium constants in concentration units
+    and transition-state theory.
+    """
+    T = _temperatures(temperature_K)
+    th = thermochemistry(species, T, low_modes=low_modes)
+    ln_qv_trans = translational(species.mass_kg, T, None)[0]
+    return th.ln_q_total - th.ln_q["translational"] + ln_qv_trans
