@@ -17,6 +17,8 @@ from tstrate.errors import InputError
 
 #: subcommand name -> module (in the order shown by --help)
 SUBCOMMANDS: dict[str, str] = {
+    "thermo": "tstrate.cli.thermo",
+    "rates": "tstrate.cli.rates",
 }
 
 
@@ -58,6 +60,11 @@ def main(argv: list[str] | None = None) -> int:
             raise
         print(f"tstrate {args.command}: error: {exc}", file=sys.stderr)
         return 2
+    except BrokenPipeError:  # e.g. piped into `head`
+        import os
+
+        os.dup2(os.open(os.devnull, os.O_WRONLY), sys.stdout.fileno())
+        return 0
     except KeyboardInterrupt:
         print(f"tstrate {args.command}: interrupted", file=sys.stderr)
         return 130

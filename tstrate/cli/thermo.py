@@ -1,0 +1,84 @@
+"""``tstrate thermo``: thermochemistry of species files."""
+
+from __future__ import annotations
+
+HELP = "thermochemistry (S, Cp, H(T)-H(0), G, ZPE) of species files at 1 bar"
+DESCRIPTION = """\
+Ideal-gas thermochemistry of one or more species files: rigid rotor, harmonic
+oscillator (with optional quasi-harmonic treatment of low modes) and electronic
+levels, standard state 1 bar.
+
+JSON output (--json): one object with a list "species"; each entry has name,
+formula, kind, symmetry_number, optical_isomers, linear, frequencies_cm1
+(scaled, imaginary negative), zpe_kJ_per_mol, and arrays over temperature_K:
+entropy_J_per_mol_K, heat_capacity_J_per_mol_K, enthalpy_increment_kJ_per_mol
+(H(T)-H(0)), gibbs_increment_kJ_per_mol (G(T)-H(0)); plus standard_pressure_bar
+and low_modes.
+"""
+
+DEFAULT_TEMPERATURES_K = [298.15]
+
+
+def add_arguments(parser) -> None:
+    parser.add_argument("files", nargs="+", metavar="FILE", help="species files (TOML)")
+    parser.add_argument("--temperature", "-T", nargs="+", type=float, metavar="K",
+                        default=DEFAULT_TEMPERATURES_K,
+                        help="temperatures in K (default 298.15)")
+    parser.add_argument("--low-modes", choices=["harmonic", "grimme", "truhlar"], default="harmonic",
+                        help="treatment of low real modes (default harmonic)")
+    parser.add_argument("--low-mode-cutoff-cm1", type=float, default=100.0, metavar="CM1",
+                        help="cut-off wavenumber of the low-mode treatment in cm-1 (default 100)")
+    parser.add_argument("--json", action="store_true", help="machine-readable output on stdout")
+
+
+def compute(files, temperatures_K, low_modes):
+    """Read the files and return one record per species (plain numbers, units in the keys)."""
+    from tstrate.io.species import read_species
+    from tstrate.physics.thermo import thermochemistry
+
+    out = []
+    for f in files:
+        sp = read_species(f)
+        th = thermochemistry(sp, temperatures_K, low_modes=low_modes)
+        out.append({
+            "name": sp.name,
+            "file": str(f),
+            "formula": sp.formula,
+            "kind": sp.kind,
+            "symmetry_number": sp.symmetry_number,
+            "optical_isomers": sp.optical_isomers,
+            "linear": sp.linear,
+            "frequencies_cm1": sp.scaled_frequencies_cm1,
+            "zpe_kJ_per_mol": th.zpe_J_per_mol / 1e3,
+            "temperature_K": th.temperature_K,
+            "entropy_J_per_mol_K": th.entropy_J_per_mol_K,
+            "heat_capacity_J_per_mol_K": th.heat_capacity_J_per_mol_K,
+            "enthalpy_increment_kJ_per_mol": th.enthalpy_increment_J_per_mol / 1e3,
+            "gibbs_increment_kJ_per_mol": th.gibbs_increment_J_per_mol / 1e3,
+        })
+    return out
+
+
+def run(args) -> int:
+    from tstrate.cli.common import format_table, print_json
+    from tstrate.physics.thermo import LowModes
+
+    low = LowModes(args.low_modes, args.low_mode_cutoff_cm1)
+    records = compute(args.files, args.temperature, low)
+    if args.json:
+        print_json({"standard_pressure_bar": 1.0, "low_modes": {"method": low.method,
+                                                               "cutoff_cm1": low.cutoff_cm1},
+                    "species": records})
+        return 0
+    for rec in records:
+        print(f"{rec['name']} ({rec['formula']}, {rec['kind']}): symmetry number "
+              f"{rec['symmetry_number']}, optical isomers {rec['optical_isomers']}, "
+              f"{'linear' if rec['linear'] else 'nonlinear'}, ZPE {rec['zpe_kJ_per_mol']:.2f} kJ/mol")
+        rows = [[t, s, cp, h, g] for t, s, cp, h, g in zip(
+            rec["temperature_K"], rec["entropy_J_per_mol_K"], rec["heat_capacity_J_per_mol_K"],
+            rec["enthalpy_increment_kJ_per_mol"], rec["gibbs_increment_kJ_per_mol"])]
+        print(format_table(["T/K", "S/(J mol-1 K-1)", "Cp/(J mol-1 K-1)", "[H(T)-H(0)]/(kJ mol-1)",
+                            "[G(T)-H(0)]/(kJ mol-1)"], rows, "{:.2f}"))
+        print()
+    print(f"Standard state 1 bar; low modes: {low.method}. Estimates bounded by the input data.")
+    return 0

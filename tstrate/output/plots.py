@@ -1,0 +1,86 @@
+"""Matplotlib figures built from results. Functions return a Figure; saving is separate.
+
+matplotlib is imported inside the functions (with the non-interactive Agg
+backend) so that importing tstrate stays fast.
+"""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import numpy as np
+
+
+def _plt():
+    import matplotlib
+
+    matplotlib.use("Agg")
+    import matplotlib.pyplot as plt
+
+    return plt
+
+
+def arrhenius_figure(records: list[dict], title: str | None = None):
+    """log10 k against 1000/T, one colour per channel; dashed without tunnelling.
+
+    ``records`` are channel records from :func:`tstrate.output.records.channel_rates_record`.
+    Channels of different molecularity get separate panels (their units differ).
+    """
+    plt = _plt()
+    orders = sorted({r["order"] for r in records})
+    fig, axes = plt.subplots(1, len(orders), figsize=(5.2 * len(orders), 4.2), squeeze=False)
+    for ax, order in zip(axes[0], orders):
+        for i, r in enumerate(x for x in records if x["order"] == order):
+            colour = f"C{i}"
+            inv_t = 1000.0 / np.asarray(r["temperature_K"])
+            ax.plot(inv_t, np.log10(r["rate_constant"]), "-", color=colour,
+                    label=f"{r['name']} ({r['tunnelling']})")
+            if r["tunnelling"] != "none":
+                ax.plot(inv_t, np.log10(r["rate_constant_no_tunnelling"]), "--", color=colour,
+                        label=f"{r['name']} (no tunnelling)")
+            unit = r["rate_constant_unit"]
+        ax.set_xlabel("1000 / T  [K$^{-1}$]")
+        ax.set_ylabel(f"log$_{{10}}$ (k / {unit})")
+        ax.grid(alpha=0.3)
+        ax.legend(fontsize=8)
+        top = ax.secondary_xaxis("top", functions=(lambda x: 1000.0 / np.maximum(x, 1e-9),
+                                                    lambda t: 1000.0 / np.maximum(t, 1e-9)))
+        top.set_xticks(_nice_temperatures(ax.get_xlim()))
+        top.set_xlabel("T  [K]")
+    if title:
+        fig.suptitle(title)
+    fig.tight_layout()
+    return fig
+
+
+def _nice_temperatures(inv_limits) -> list[float]:
+    """A few round temperatures [K] inside an axis range given in 1000/T."""
+    lo, hi = sorted(1000.0 / max(v, 1e-9) for v in inv_limits)
+    candidates = [50, 100, 150, 200, 250, 300, 400, 500, 700, 1000, 1500, 2000, 3000]
+    inside = [t for t in candidates if lo <= t <= hi]
+    # keep ticks at least 8 % of the axis apart
+    span = abs(inv_limits[1] - inv_limits[0]) or 1.0
+    kept: list[float] = []
+    for t in sorted(inside):
+        if all(abs(1000.0 / t - 1000.0 / k) > 0.08 * span for k in kept):
+            kept.append(t)
+    return kept
+
+
+def save_figure(fig, path, formats=None) -> list[Path]:
+    """Save ``fig`` atomically to ``path`` (its suffix) or to each of ``formats`` beside it."""
+    import io
+
+    from tstrate.io.files import atomic_write_bytes
+
+    path = Path(path)
+    fmts = formats or [path.suffix.lstrip(".") or "png"]
+    written = []
+    for fmt in fmts:
+        target = path.with_suffix("." + fmt)
+        buf = io.BytesIO()
+        fig.savefig(buf, format=fmt, dpi=150)
+        atomic_write_bytes(target, buf.getvalue())
+        written.append(target)
+    _plt().close(fig)
+    return written

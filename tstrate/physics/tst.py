@@ -1,0 +1,230 @@
+"""Canonical transition-state theory (Eyring) with tunnelling, detailed balance
+and activation quantities.
+
+For a channel with n reactants, in SI per molecule,
+
+    k(T) = kappa(T) L (k_B T / h) (q_TS/V) / prod_i (q_i/V) exp(-dE0 / k_B T)
+
+with q/V the partition functions per unit volume (vibrations from their zero-
+point levels, the imaginary mode left out), dE0 the zero-point-corrected
+barrier from the separated reactants, and L = 1 unless the user overrides the
+reaction-path degeneracy (the default count is already inside the rotational
+symmetry numbers and optical isomers: L_sym = prod sigma_R n_TS / (sigma_TS
+prod n_R), reported for information). Everything is combined as logarithms,
+so 50 K and 3000 K work alike. Units: s^-1 (n = 1), m^3 s^-1 (n = 2), m^6 s^-1
+(n = 3).
+
+Channels through a pre-reactive complex C (reactants <=> C -> TS): in the
+high-pressure limit the complex is in equilibrium with the reactants and
+k_eff = K_c k_uni = the expression above (the complex cancels) times a
+tunnelling factor computed for the unimolecular step: the Eckart forward
+barrier is measured from the complex (V1 = E0_TS - E0_C) and the reverse one
+from the products (V2 = E0_TS - E0_P); the energy floor of the tunnelling
+integral is the separated reactants by default (no tunnelling below the
+entrance asymptote, since a weakly bound complex at low pressure is not
+stabilised), or the complex itself when the channel says
+``tunnelling_floor = "complex"``. Wigner needs only the frequency;
+Skodje-Truhlar uses the same V1 and V2.
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass
+
+import numpy as np
+
+from tstrate.errors import InputError
+from tstrate.model import Channel, Species
+from tstrate.physics import tunnelling
+from tstrate.physics.thermo import HARMONIC, LowModes, ln_partition_function_per_volume, thermochemistry
+from tstrate.units import H, K_B, N_A, P_STANDARD, R
+
+
+def zpe_level_J_per_mol(species: Species) -> float:
+    """Electronic energy plus harmonic ZPE [J/mol]."""
+    from tstrate.physics.thermo import zero_point_energy_J_per_mol
+
+    if species.energy_J_per_mol is None:
+        raise InputError(f"species {species.name!r} has no electronic energy", file=species.source,
+                         field="energy")
+    return species.energy_J_per_mol + zero_point_energy_J_per_mol(species)
+
+
+def _sum_ln_qv(species_list, T, low_modes) -> np.ndarray:
+    return sum(ln_partition_function_per_volume(s, T, low_modes=low_modes) for s in species_list)
+
+
+def symmetry_degeneracy(reactants, ts: Species) -> float:
+    """Reaction-path degeneracy implied by the symmetry numbers and optical isomers."""
+    num = np.prod([s.symmetry_number for s in reactants]) * ts.optical_isomers
+    den = ts.symmetry_number * np.prod([s.optical_isomers for s in reactants])
+    return float(num / den)
+
+
+def ln_equilibrium_constant(reactants, products, T, low_modes: LowModes = HARMONIC) -> np.ndarray:
+    """ln Kc of reactants <=> products, Kc in (m^-3)^(n_P - n_R) per molecule."""
+    d_e0 = sum(zpe_level_J_per_mol(s) for s in products) - sum(zpe_level_J_per_mol(s) for s in reactants)
+    return (_sum_ln_qv(products, T, low_modes) - _sum_ln_qv(reactants, T, low_modes)
+            - d_e0 / (R * T))
+
+
+def kp_from_kc(ln_kc: np.ndarray, delta_n: int, T: np.ndarray) -> np.ndarray:
+    """ln Kp (dimensionless, 1 bar standard state) from ln Kc (molecule m^-3 units)."""
+    return ln_kc + delta_n * np.log(K_B * T / P_STANDARD)
+
+
+@dataclass(frozen=True)
+class ChannelRates:
+    """TST results of one channel on a temperature grid (SI per molecule).
+
+    order: number of reactants; rate constants in s^-1, m^3 s^-1 or m^6 s^-1.
+    k: rate constant with tunnelling; k_classical: without (kappa = 1).
+    kappa: tunnelling factor.
+    k_reverse: reverse rate constant by detailed balance, SI for the products' count.
+    ln_kc: ln of the equilibrium constant reactants <=> products (molecule m^-3 units).
+    ln_kp: ln of the dimensionless Kp at 1 bar.
+    barrier_classical_J_per_mol, barrier_zpe_J_per_mol: TS above the separated reactants.
+    barrier_from_complex_*: TS above the complex (None without a complex).
+    reaction_energy_zpe_J_per_mol: products minus reactants, ZPE-corrected.
+    eckart_V1_J_per_mol, eckart_V2_J_per_mol, energy_floor_J_per_mol: the barrier
+        heights and floor the tunnelling model used (V1 from the complex when there is one).
+    delta_H/S/G: activation enthalpy [J/mol], entropy [J/(mol K)], Gibbs energy [J/mol]
+        at 1 bar standard state.
+    degeneracy: the reaction-path degeneracy in effect (the user's override, else the
+        symmetry-number count).
+    symmetry_degeneracy: the degeneracy the symmetry numbers imply.
+    """
+
+    channel: str
+    order: int
+    temperature_K: np.ndarray
+    k: np.ndarray
+    k_classical: np.ndarray
+    kappa: np.ndarray
+    k_reverse: np.ndarray
+    reverse_order: int
+    ln_kc: np.ndarray
+    ln_kp: np.ndarray
+    barrier_classical_J_per_mol: float
+    barrier_zpe_J_per_mol: float
+    barrier_from_complex_classical_J_per_mol: float | None
+    barrier_from_complex_zpe_J_per_mol: float | None
+    reaction_energy_zpe_J_per_mol: float
+    imaginary_frequency_cm1: float
+    tunnelling: str
+    eckart_V1_J_per_mol: float
+    eckart_V2_J_per_mol: float
+    energy_floor_J_per_mol: float
+    delta_H_J_per_mol: np.ndarray
+    delta_S_J_per_mol_K: np.ndarray
+    delta_G_J_per_mol: np.ndarray
+    degeneracy: float
+    symmetry_degeneracy: float
+
+
+def channel_rates(channel: Channel, species: dict, temperature_K, *,
+                  low_modes: LowModes = HARMONIC) -> ChannelRates:
+    """Canonical TST k(T) of one channel, with tunnelling, reverse rate and activation quantities."""
+    T = np.atleast_1d(np.asarray(temperature_K, dtype=float))
+    if np.any(T <= 0) or not np.all(np.isfinite(T)):
+        raise InputError("temperatures must be positive and finite", field="temperature_K")
+    reac = [species[n] for n in channel.reactants]
+    prod = [species[n] for n in channel.products]
+    ts = species[channel.transition_state]
+    cx = species[channel.complex] if channel.complex else None
+    if len(ts.imaginary_frequencies_cm1) != 1:
+        raise InputError(f"transition state {ts.name!r} has {len(ts.imaginary_frequencies_cm1)} "
+                         "imaginary frequencies; exactly one is needed", file=ts.source,
+                         field="frequencies_cm1")
+
+    e0_r = sum(zpe_level_J_per_mol(s) for s in reac)
+    e0_p = sum(zpe_level_J_per_mol(s) for s in prod)
+    e0_ts = zpe_level_J_per_mol(ts)
+    el_r = sum(s.energy_J_per_mol for s in reac)
+    barrier_zpe = e0_ts - e0_r
+    barrier_cl = ts.energy_J_per_mol - el_r
+
+    # tunnelling barrier heights, measured from the lower well on the entrance side
+    if cx is not None:
+        e0_c = zpe_level_J_per_mol(cx)
+        v1 = e0_ts - e0_c
+        floor = max(0.0, e0_r - e0_c) if channel.tunnelling_floor == "reactants" else 0.0
+        b_cx_zpe, b_cx_cl = v1, ts.energy_J_per_mol - cx.energy_J_per_mol
+    else:
+        v1 = barrier_zpe
+        floor = 0.0
+        b_cx_zpe = b_cx_cl = None
+    v2 = e0_ts - e0_p
+    imag = ts.imaginary_frequency_cm1
+    if channel.tunnelling == "none":
+        ln_kappa = np.zeros_like(T)
+    else:
+        if channel.tunnelling in ("eckart", "skodje-truhlar") and (v1 <= 0 or v2 < 0):
+            side = "forward" if v1 <= 0 else "reverse"
+            raise InputError(
+                f"channel {channel.name!r}: {side} ZPE-corrected barrier is "
+                f"{(v1 if v1 <= 0 else v2) / 1e3:.2f} kJ/mol; {channel.tunnelling} needs V1 > 0 and V2 >= 0",
+                field="tunnelling", hint="add the pre-reactive complex, or use wigner or none")
+        try:
+            ln_kappa = tunnelling.log_kappa(channel.tunnelling, T, imag, v1, v2,
+                                            energy_floor=max(floor, max(0.0, v1 - v2)))
+        except InputError as exc:
+            raise exc.located(field=f"channel {channel.name}") from None
+
+    ln_q_ratio = (ln_partition_function_per_volume(ts, T, low_modes=low_modes)
+                  - _sum_ln_qv(reac, T, low_modes))
+    sym_deg = symmetry_degeneracy(reac, ts)
+    degeneracy = 1.0 if channel.degeneracy is None else channel.degeneracy / sym_deg
+    ln_k_cl = np.log(K_B * T / H) + ln_q_ratio - barrier_zpe / (R * T) + np.log(degeneracy)
+    ln_k = ln_k_cl + ln_kappa
+
+    ln_kc = ln_equilibrium_constant(reac, prod, T, low_modes)
+    ln_kp = kp_from_kc(ln_kc, len(prod) - len(reac), T)
+
+    # activation quantities, 1 bar standard state: k = (kT/h) (c0)^(1-n) exp(-dG/RT), c0 = p0/kT
+    th_ts = thermochemistry(ts, T, low_modes=low_modes)
+    th_r = [thermochemistry(s, T, low_modes=low_modes) for s in reac]
+    d_h = (e0_ts + th_ts.enthalpy_increment_J_per_mol
+           - sum(e + t.enthalpy_increment_J_per_mol for e, t in
+                 zip([zpe_level_J_per_mol(s) for s in reac], th_r)))
+    n = len(reac)
+    ln_c0 = np.log(P_STANDARD / (K_B * T))
+    d_g = -R * T * (ln_k_cl - np.log(K_B * T / H) + (n - 1) * ln_c0)
+    d_s = (d_h - d_g) / T
+
+    return ChannelRates(
+        channel=channel.name, order=n, temperature_K=T,
+        k=np.exp(ln_k), k_classical=np.exp(ln_k_cl), kappa=np.exp(ln_kappa),
+        k_reverse=np.exp(ln_k - ln_kc), reverse_order=len(prod),
+        ln_kc=ln_kc, ln_kp=ln_kp,
+        barrier_classical_J_per_mol=float(barrier_cl), barrier_zpe_J_per_mol=float(barrier_zpe),
+        barrier_from_complex_classical_J_per_mol=None if b_cx_cl is None else float(b_cx_cl),
+        barrier_from_complex_zpe_J_per_mol=None if b_cx_zpe is None else float(b_cx_zpe),
+        reaction_energy_zpe_J_per_mol=float(e0_p - e0_r), imaginary_frequency_cm1=float(imag),
+        tunnelling=channel.tunnelling, eckart_V1_J_per_mol=float(v1), eckart_V2_J_per_mol=float(v2),
+        energy_floor_J_per_mol=float(floor),
+        delta_H_J_per_mol=d_h, delta_S_J_per_mol_K=d_s, delta_G_J_per_mol=d_g,
+        degeneracy=sym_deg if channel.degeneracy is None else float(channel.degeneracy),
+        symmetry_degeneracy=sym_deg,
+    )
+
+
+def study_rates(study, *, low_modes: LowModes = HARMONIC, temperature_K=None) -> list[ChannelRates]:
+    """TST results for every channel of a study (at its temperatures unless given)."""
+    T = study.conditions.temperature_K if temperature_K is None else temperature_K
+    out = []
+    for ch in study.channels:
+        try:
+            out.append(channel_rates(ch, study.species, T, low_modes=low_modes))
+        except InputError as exc:
+            raise exc.located(file=study.file, field=f"channel {ch.name}") from None
+    return out
+
+
+def ln_eyring_factor(T) -> np.ndarray:
+    """ln(k_B T / h) [ln s^-1]."""
+    return np.log(K_B * np.asarray(T, dtype=float) / H)
+
+
+__all__ = ["ChannelRates", "channel_rates", "study_rates", "ln_equilibrium_constant", "kp_from_kc",
+           "symmetry_degeneracy", "zpe_level_J_per_mol", "ln_eyring_factor", "N_A"]
