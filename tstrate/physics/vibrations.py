@@ -39,8 +39,12 @@ def isotope_mass_amu(symbol: str, mass_number: int | None = None) -> float:
     ``mass_number=None`` gives the most common isotope (the convention of
     quantum-chemistry frequency calculations).
     """
+    from ase.data import atomic_numbers
     from rdkit import Chem
 
+    # RDKit dumps a C++ stack trace on stderr for unknown symbols: screen them out first
+    if symbol not in atomic_numbers or atomic_numbers[symbol] < 1:
+        raise InputError(f"unknown element {symbol!r}")
     table = Chem.GetPeriodicTable()
     try:
         z = table.GetAtomicNumber(symbol)
