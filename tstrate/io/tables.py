@@ -134,4 +134,5 @@ class Table:
             return default
         value = sub.get("value", float)
         unit = sub.get("unit", str)
+        sub.reject_unknown()
         return convert(value, unit, file=self.file, field=self.key(name) + ".unit")
