@@ -39,8 +39,10 @@ are required)::
 
 from __future__ import annotations
 
+import json
 import logging
 import math
+import re
 from pathlib import Path
 
 import numpy as np
@@ -54,6 +56,8 @@ from tstrate.physics.vibrations import (HESSIAN_UNITS_J_PER_M2, default_masses_a
 from tstrate.units import energy_to_J_per_mol
 
 log = logging.getLogger(__name__)
+
+_BARE_KEY = re.compile(r"[A-Za-z0-9_-]+")
 
 #: closest approach of two nuclei accepted in a geometry [Angstrom]
 MIN_DISTANCE_A = 0.4
@@ -344,7 +348,17 @@ def read_species(path: str | Path, *, name: str | None = None) -> Species:
 # ---- writing ----------------------------------------------------------------------
 
 def _toml_str(s: str) -> str:
-    return '"' + s.replace("\\", "\\\\").replace('"', '\\"').replace("\n", "\\n") + '"'
+    # JSON string escapes (\\ \" \n \t \uXXXX for control characters) are valid TOML
+    return json.dumps(str(s), ensure_ascii=False)
+
+
+def _toml_num(x) -> str:
+    """A float as TOML (numpy scalars would print as np.float64(...))."""
+    return repr(float(x))
+
+
+def _toml_key(k: str) -> str:
+    return k if _BARE_KEY.fullmatch(k) else _toml_str(k)
 
 
 def species_to_toml(species: Species, *, include_hessian: bool = True,
@@ -358,33 +372,44 @@ def species_to_toml(species: Species, *, include_hessian: bool = True,
     lines += [f"{s:<2} {x:14.8f} {y:14.8f} {z:14.8f}" for s, (x, y, z) in
               zip(species.symbols, species.positions_A)]
     lines.append("'''")
-    lines.append("frequencies_cm1 = [" + ", ".join(f"{f:.2f}" for f in species.frequencies_cm1) + "]")
+    lines.append("frequencies_cm1 = [" + ", ".join(_toml_num(f) for f in species.frequencies_cm1)
+                 + "]")
     if species.frequency_scale != 1.0:
-        lines.append(f"frequency_scale = {species.frequency_scale!r}")
+        lines.append(f"frequency_scale = {_toml_num(species.frequency_scale)}")
     geo_e = species.geometry_energy_J_per_mol
     if geo_e is None:
         geo_e = species.energy_J_per_mol
     if geo_e is not None:
-        lines.append(f"energy = {{ value = {energy_from_J_per_mol(geo_e, energy_unit)!r}, "
+        lines.append(f"energy = {{ value = {_toml_num(energy_from_J_per_mol(geo_e, energy_unit))}, "
                      f"unit = {_toml_str(energy_unit)} }}")
     if (species.energy_J_per_mol is not None and species.geometry_energy_J_per_mol is not None
             and species.energy_J_per_mol != species.geometry_energy_J_per_mol):
         lines.append(f"single_point = {{ value = "
-                     f"{energy_from_J_per_mol(species.energy_J_per_mol, energy_unit)!r}, "
+                     f"{_toml_num(energy_from_J_per_mol(species.energy_J_per_mol, energy_unit))}, "
                      f"unit = {_toml_str(energy_unit)} }}")
     if not np.allclose(species.masses_amu, default_masses_amu(species.symbols), rtol=0, atol=1e-6):
-        lines.append("masses_amu = [" + ", ".join(f"{m!r}" for m in species.masses_amu) + "]")
+        lines.append("masses_amu = [" + ", ".join(_toml_num(m) for m in species.masses_amu) + "]")
     lines.append(f"symmetry_number = {species.symmetry_number}")
     lines.append(f"optical_isomers = {species.optical_isomers}")
+    lines.append(f"linear = {'true' if species.linear else 'false'}")
+    if include_hessian and species.hessian_J_per_m2 is not None and species.kind == "minimum":
+        # small imaginary modes tolerated when the species was built come back from the Hessian
+        from tstrate.physics.vibrations import vibrational_analysis
+
+        nm = vibrational_analysis(species.hessian_J_per_m2, species.positions_A, species.masses_amu,
+                                  species.linear)
+        if nm.imaginary_count:
+            worst = float(-nm.frequencies_cm1.min())
+            lines.append(f"allow_imaginary_below_cm1 = {math.floor(worst * 10) / 10 + 0.1:.1f}")
     if species.lennard_jones:
-        lines.append(f"lennard_jones = {{ sigma_A = {species.lennard_jones[0]!r}, "
-                     f"epsilon_K = {species.lennard_jones[1]!r} }}")
+        lines.append(f"lennard_jones = {{ sigma_A = {_toml_num(species.lennard_jones[0])}, "
+                     f"epsilon_K = {_toml_num(species.lennard_jones[1])} }}")
     for lv in species.electronic_levels:
-        lines += ["", "[[electronic_levels]]", f"energy_cm1 = {lv.energy_cm1!r}",
+        lines += ["", "[[electronic_levels]]", f"energy_cm1 = {_toml_num(lv.energy_cm1)}",
                   f"degeneracy = {lv.degeneracy}"]
     if species.provenance:
         lines += ["", "[provenance]"]
-        lines += [f"{k} = {_toml_str(str(v))}" for k, v in species.provenance.items()]
+        lines += [f"{_toml_key(k)} = {_toml_str(str(v))}" for k, v in species.provenance.items()]
     if include_hessian and species.hessian_J_per_m2 is not None:
         h = species.hessian_J_per_m2 / HESSIAN_UNITS_J_PER_M2["hartree/bohr2"]
         lines += ["", "[hessian]", 'unit = "hartree/bohr2"', "values = ["]
