@@ -10,8 +10,24 @@ from tstrate.units import DEFAULT_RATE_UNIT, rate_from_SI
 
 
 def rate_unit(order: int, rate_units: dict | None = None) -> str:
-    """The output unit for a rate constant of ``order`` (study override or the trade default)."""
+    """The output unit for a rate constant of ``order`` (study override or the trade default).
+
+    Orders above 3 (only reverse rate constants of channels with four or more
+    products) have no entry in the unit tables; they are given per molecule in
+    cm^(3(n-1)) molecule^-(n-1) s^-1.
+    """
+    if order not in DEFAULT_RATE_UNIT:
+        return f"cm{3 * (order - 1)} molecule-{order - 1} s-1"
     return (rate_units or {}).get(order, DEFAULT_RATE_UNIT[order])
+
+
+def _rate_in(k_SI, order: int, unit: str):
+    """Rate constant from SI per molecule to ``unit`` (from :func:`rate_unit`)."""
+    if order not in DEFAULT_RATE_UNIT:
+        import numpy as np
+
+        return np.asarray(k_SI, dtype=float) * 1e6 ** (order - 1)  # m^3 -> cm^3 per extra molecule
+    return rate_from_SI(k_SI, order, unit)
 
 
 def channel_rates_record(cr, rate_units: dict | None = None) -> dict:
@@ -28,7 +44,7 @@ def channel_rates_record(cr, rate_units: dict | None = None) -> dict:
         "rate_constant_unit": unit,
         "kappa": cr.kappa,
         "tunnelling": cr.tunnelling,
-        "reverse_rate_constant": rate_from_SI(cr.k_reverse, cr.reverse_order, runit),
+        "reverse_rate_constant": _rate_in(cr.k_reverse, cr.reverse_order, runit),
         "reverse_rate_constant_unit": runit,
         "ln_Kc": cr.ln_kc,
         "Kc_unit": f"(molecule cm-3)^{cr.reverse_order - cr.order}",
