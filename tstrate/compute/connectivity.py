@@ -1,0 +1,74 @@
+"""Bonding graphs from covalent radii, for checking what a saddle point connects.
+
+Two atoms are bonded when their distance is below ``scale`` times the sum of
+their covalent radii (B. Cordero et al., Dalton Trans. 2008, 2832, as tabulated
+by ASE's ``natural_cutoffs``). The default scale 1.2 is common practice: it
+keeps every covalent bond of a minimum (O-H 0.97 A against a sum of radii of
+0.97 A) and leaves out hydrogen bonds (1.7-2.0 A).
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+#: covalent-radius multiplier for a bond
+BOND_SCALE = 1.2
+
+Bonds = frozenset  # of (i, j) pairs with i < j, 0-based
+
+
+def bonds(symbols, positions_A, scale: float = BOND_SCALE) -> frozenset:
+    """Set of bonded atom pairs (i, j), i < j, 0-based."""
+    from ase import Atoms
+    from ase.neighborlist import natural_cutoffs
+
+    atoms = Atoms(list(symbols), positions=np.asarray(positions_A, dtype=float))
+    radii = np.array(natural_cutoffs(atoms, mult=scale))
+    x = atoms.positions
+    d = np.linalg.norm(x[:, None] - x[None, :], axis=2)
+    i, j = np.nonzero(np.triu(d < radii[:, None] + radii[None, :], k=1))
+    return frozenset(zip(i.tolist(), j.tolist()))
+
+
+def fragments(natoms: int, bond_set) -> list[list[int]]:
+    """Connected components (molecules) of a bonding graph, each a sorted atom list."""
+    parent = list(range(natoms))
+
+    def find(a):
+        while parent[a] != a:
+            parent[a] = parent[parent[a]]
+            a = parent[a]
+        return a
+
+    for i, j in bond_set:
+        parent[find(i)] = find(j)
+    groups: dict[int, list[int]] = {}
+    for a in range(natoms):
+        groups.setdefault(find(a), []).append(a)
+    return sorted(groups.values())
+
+
+def describe_changes(symbols, before, after) -> str:
+    """Human-readable bond changes from ``before`` to ``after`` (1-based atom labels)."""
+    def lab(p):
+        i, j = p
+        return f"{symbols[i]}{i + 1}-{symbols[j]}{j + 1}"
+
+    formed = sorted(set(after) - set(before))
+    broken = sorted(set(before) - set(after))
+    parts = []
+    if formed:
+        parts.append("formed " + ", ".join(lab(p) for p in formed))
+    if broken:
+        parts.append("broken " + ", ".join(lab(p) for p in broken))
+    return "; ".join(parts) or "no bond change"
+
+
+def edit_bonds(bond_set, *, form=(), break_=()) -> frozenset:
+    """A bonding graph with some pairs added and some removed (pairs in any order)."""
+    out = set(bond_set)
+    for i, j in break_:
+        out.discard((min(i, j), max(i, j)))
+    for i, j in form:
+        out.add((min(i, j), max(i, j)))
+    return frozenset(out)
