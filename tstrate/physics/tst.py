@@ -159,17 +159,22 @@ def channel_rates(channel: Channel, species: dict, temperature_K, *,
     if channel.tunnelling == "none":
         ln_kappa = np.zeros_like(T)
     else:
-        if channel.tunnelling in ("eckart", "skodje-truhlar") and (v1 <= 0 or v2 < 0):
+        # Eckart needs both barriers positive; Skodje-Truhlar accepts V2 = 0
+        v2_bad = (v2 <= 0) if channel.tunnelling == "eckart" else (v2 < 0)
+        if channel.tunnelling in ("eckart", "skodje-truhlar") and (v1 <= 0 or v2_bad):
             side = "forward" if v1 <= 0 else "reverse"
+            need = "V1 > 0 and V2 > 0" if channel.tunnelling == "eckart" else "V1 > 0 and V2 >= 0"
             raise InputError(
                 f"channel {channel.name!r}: {side} ZPE-corrected barrier is "
-                f"{(v1 if v1 <= 0 else v2) / 1e3:.2f} kJ/mol; {channel.tunnelling} needs V1 > 0 and V2 >= 0",
+                f"{(v1 if v1 <= 0 else v2) / 1e3:.2f} kJ/mol; {channel.tunnelling} needs {need}",
                 field="tunnelling", hint="add the pre-reactive complex, or use wigner or none")
         try:
             ln_kappa = tunnelling.log_kappa(channel.tunnelling, T, imag, v1, v2,
                                             energy_floor=max(floor, max(0.0, v1 - v2)))
         except InputError as exc:
-            raise exc.located(field=f"channel {channel.name}") from None
+            # the tunnelling module names its own arguments; the user's key is the channel's tunnelling
+            raise InputError(f"channel {channel.name!r}: {exc.problem}", field="tunnelling",
+                             hint=exc.hint) from None
 
     ln_q_ratio = (ln_partition_function_per_volume(ts, T, low_modes=low_modes)
                   - _sum_ln_qv(reac, T, low_modes))
@@ -212,12 +217,19 @@ def channel_rates(channel: Channel, species: dict, temperature_K, *,
 def study_rates(study, *, low_modes: LowModes = HARMONIC, temperature_K=None) -> list[ChannelRates]:
     """TST results for every channel of a study (at its temperatures unless given)."""
     T = study.conditions.temperature_K if temperature_K is None else temperature_K
+    T = np.atleast_1d(np.asarray(T, dtype=float))
+    if T.size == 0 or np.any(T <= 0) or not np.all(np.isfinite(T)):
+        raise InputError("temperatures must be positive and finite", field="temperature_K")
     out = []
-    for ch in study.channels:
+    for i, ch in enumerate(study.channels):
         try:
             out.append(channel_rates(ch, study.species, T, low_modes=low_modes))
         except InputError as exc:
-            raise exc.located(file=study.file, field=f"channel {ch.name}") from None
+            if exc.file is not None:  # a species file's own mistake (e.g. no energy)
+                raise
+            # a problem of the channel: name the study file and the channel's key in it
+            field = f"channel[{i}]" + (f".{exc.field}" if exc.field else "")
+            raise InputError(exc.problem, file=study.file, field=field, hint=exc.hint) from None
     return out
 
 
