@@ -31,18 +31,20 @@ def add_arguments(parser) -> None:
 
 
 def compute(study_path, temperatures=None, low_modes="harmonic"):
+    from tstrate.errors import InputError
     from tstrate.io.study import read_study
     from tstrate.output.records import channel_rates_record
     from tstrate.physics.thermo import LowModes
     from tstrate.physics.tst import study_rates
 
     study = read_study(study_path)
+    if not study.channels:
+        raise InputError("the study has no [[channel]] to compute", file=study.file, field="channel")
     if temperatures is not None:
         import numpy as np
 
-        if np.any(np.asarray(temperatures) <= 0):
-            from tstrate.errors import InputError
-
+        t = np.asarray(temperatures, dtype=float)
+        if np.any(t <= 0) or not np.all(np.isfinite(t)):
             raise InputError("temperatures must be positive (kelvin)", field="--temperature")
     results = study_rates(study, low_modes=LowModes(low_modes), temperature_K=temperatures)
     return study, [channel_rates_record(r, study.conditions.rate_units) for r in results]
@@ -51,11 +53,16 @@ def compute(study_path, temperatures=None, low_modes="harmonic"):
 def run(args) -> int:
     from tstrate.cli.common import format_table, print_json
 
+    written = []
+    if args.plot:
+        from tstrate.output.plots import plot_format
+
+        plot_format(args.plot)  # an unwritable format fails before any work
     study, records = compute(args.study, args.temperature, args.low_modes)
     if args.plot:
         from tstrate.output.plots import arrhenius_figure, save_figure
 
-        save_figure(arrhenius_figure(records, study.title), args.plot)
+        written = save_figure(arrhenius_figure(records, study.title), args.plot)
     if args.json:
         print_json({"study": study.file, "title": study.title,
                     "temperature_K": records[0]["temperature_K"] if records else [],
@@ -72,8 +79,8 @@ def run(args) -> int:
             r["delta_G_activation_kJ_per_mol"])]
         print(format_table(["T/K", f"k/({r['rate_constant_unit']})", "kappa", "k(no tunnelling)",
                             "dG‡/(kJ mol-1)"], rows, "{:.4g}"))
-    if args.plot:
-        print(f"\nplot written to {args.plot}")
+    for path in written:
+        print(f"\nplot written to {path}")
     print("\nEstimates bounded by the electronic-structure inputs; check against experiment and "
           "evaluated data before use.")
     return 0

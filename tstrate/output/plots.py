@@ -67,17 +67,40 @@ def _nice_temperatures(inv_limits) -> list[float]:
     return kept
 
 
+def plot_format(path) -> str:
+    """The file format ``path`` asks for: its suffix, or ``png`` without one.
+
+    Raises InputError (naming the file) when matplotlib cannot write that format,
+    so that callers can check an output name before doing any work.
+    """
+    from matplotlib.backend_bases import FigureCanvasBase
+
+    from tstrate.errors import InputError
+
+    fmt = Path(path).suffix.lstrip(".").lower() or "png"
+    supported = FigureCanvasBase.get_supported_filetypes()
+    if fmt not in supported:
+        raise InputError(f"cannot write a plot in format {fmt!r}", file=str(path),
+                         hint="use a suffix such as .png, .svg or .pdf")
+    return fmt
+
+
 def save_figure(fig, path, formats=None) -> list[Path]:
-    """Save ``fig`` atomically to ``path`` (its suffix) or to each of ``formats`` beside it."""
+    """Save ``fig`` atomically to ``path`` (its suffix) or to each of ``formats`` beside it.
+
+    Returns the paths written (a path without a suffix gets ``.png``).
+    """
     import io
 
     from tstrate.io.files import atomic_write_bytes
 
     path = Path(path)
-    fmts = formats or [path.suffix.lstrip(".") or "png"]
+    if formats:
+        targets = [(fmt, path.with_suffix("." + fmt)) for fmt in formats]
+    else:  # the name as given (a name without a suffix gets .png)
+        targets = [(plot_format(path), path if path.suffix else path.with_suffix(".png"))]
     written = []
-    for fmt in fmts:
-        target = path.with_suffix("." + fmt)
+    for fmt, target in targets:
         buf = io.BytesIO()
         fig.savefig(buf, format=fmt, dpi=150)
         atomic_write_bytes(target, buf.getvalue())
