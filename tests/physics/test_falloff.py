@@ -1,0 +1,175 @@
+"""Falloff: strong-collision limits, Troe against Cantera, JPL termolecular form, Troe fit."""
+
+import math
+
+import numpy as np
+import pytest
+from scipy.constants import k as kB, physical_constants
+
+from tstrate.errors import InputError
+from tstrate.physics.collisions import bath_gas, pair_collision_rate_m3_s, LennardJones
+from tstrate.physics.falloff import (fit_troe, high_pressure_limit, jpl_termolecular_rate,
+                                     lindemann_hinshelwood, low_pressure_limit, number_density_from,
+                                     strong_collision_falloff, thermal_distribution, troe_center_broadening,
+                                     troe_rate)
+from tstrate.physics.rrkm import rrkm_rate
+from tstrate.physics.states import CM1_J_PER_MOL
+from tstrate.units import RATE_UNITS
+
+# Invented demo wavenumbers (cm-1) and barrier for carbonic acid -> CO2 + H2O (see test_rrkm.py).
+H2CO3_CM1 = [3640, 3630, 1830, 1450, 1380, 1180, 1010, 790, 670, 580, 550, 220]
+TS_CM1 = [3700, 2600, 1900, 1400, 1150, 940, 800, 650, 560, 480, 300]
+BARRIER_J_PER_MOL = 15000 * CM1_J_PER_MOL
+
+
+@pytest.fixture(scope="module")
+def rate():
+    return rrkm_rate(H2CO3_CM1, TS_CM1, BARRIER_J_PER_MOL, grain_cm1=10.0,
+                     energy_above_barrier_J_per_mol=30000 * CM1_J_PER_MOL)
+
+
+@pytest.fixture(scope="module")
+def z_co2():
+    # demo LJ parameters for H2CO3 (invented, labelled): 4.4 Angstrom, 400 K; CO2 bath (GRI-Mech 3.0)
+    molecule = LennardJones("H2CO3", 4.4, 400.0, "invented demo values", formula="H2CO3")
+    return lambda t: pair_collision_rate_m3_s(t, molecule, bath_gas("CO2"))
+
+
+def test_strong_collision_limits_and_monotonicity(rate, z_co2):
+    t = np.array([200.0, 300.0, 600.0])
+    m = np.logspace(10, 34, 49)                               # m^-3, far below to far above falloff
+    res = strong_collision_falloff(rate, t, m, collision_rate_m3_s=z_co2(t), collision_efficiency=0.3)
+    k = res.rate_per_s
+    np.testing.assert_allclose(res.high_pressure_per_s, high_pressure_limit(rate, t), rtol=1e-12)
+    np.testing.assert_allclose(res.low_pressure_m3_s, low_pressure_limit(rate, t, z_co2(t), 0.3), rtol=1e-12)
+    # high-pressure end: omega >> k(E) over the populated grains
+    np.testing.assert_allclose(k[:, -1], res.high_pressure_per_s, rtol=1e-3)
+    # low-pressure end: k -> k0 [M]
+    np.testing.assert_allclose(k[:, 0], res.low_pressure_m3_s * m[0], rtol=1e-3)
+    # monotone in [M] and below both limits (the strong-collision curve lies under Lindemann's)
+    assert np.all(np.diff(k, axis=1) > 0)
+    lh = lindemann_hinshelwood(res.low_pressure_m3_s[:, None], res.high_pressure_per_s[:, None], m[None, :])
+    assert np.all(k <= lh * (1 + 1e-12))
+
+
+def test_thermal_distribution_is_normalised_and_safe_at_low_t(rate):
+    f = thermal_distribution(rate.reactant, [50.0, 300.0, 3000.0])
+    np.testing.assert_allclose(f.sum(axis=1), 1.0)
+    assert np.all(np.isfinite(f))
+
+
+def test_lindemann_form():
+    assert lindemann_hinshelwood(2.0, 6.0, 1.0) == pytest.approx(1.5)   # 6*2/(6+2)
+
+
+CANTERA_YAML = """
+units: {length: m, time: s, quantity: molec, activation-energy: K}
+phases:
+- name: gas
+  thermo: ideal-gas
+  elements: [C, H, O, N]
+  species: [H2CO3, CO2, H2O, N2]
+  kinetics: gas
+  reactions: all
+  state: {T: 300.0, P: 1 atm}
+species:
+- name: H2CO3
+  composition: {C: 1, H: 2, O: 3}
+  thermo: {model: constant-cp, T0: 298.15 K, h0: -600 kJ/mol, s0: 280 J/mol/K, cp0: 80 J/mol/K}
+- name: CO2
+  composition: {C: 1, O: 2}
+  thermo: {model: constant-cp, T0: 298.15 K, h0: -393.5 kJ/mol, s0: 213.8 J/mol/K, cp0: 37 J/mol/K}
+- name: H2O
+  composition: {H: 2, O: 1}
+  thermo: {model: constant-cp, T0: 298.15 K, h0: -241.8 kJ/mol, s0: 188.8 J/mol/K, cp0: 33.6 J/mol/K}
+- name: N2
+  composition: {N: 2}
+  thermo: {model: constant-cp, T0: 298.15 K, h0: 0 kJ/mol, s0: 191.6 J/mol/K, cp0: 29.1 J/mol/K}
+reactions:
+- equation: H2CO3 (+M) => CO2 + H2O (+M)
+  type: falloff
+  low-P-rate-constant: {A: 1.0e-7, b: -3.0, Ea: 13000.0}
+  high-P-rate-constant: {A: 1.0e13, b: 0.0, Ea: 15000.0}
+  Troe: {A: 0.35, T3: 250.0, T1: 1800.0%s}
+"""
+
+
+@pytest.mark.parametrize("with_t2", [False, True], ids=["Troe-3", "Troe-4"])
+def test_troe_against_cantera(with_t2):
+    ct = pytest.importorskip("cantera")
+    t2 = 3500.0 if with_t2 else None
+    gas = ct.Solution(yaml=CANTERA_YAML % (", T2: 3500.0" if with_t2 else ""))
+    for t in (200.0, 300.0, 600.0, 1000.0):
+        for p in (1.0, 1e2, 1e4, 1e6, 1e8):                    # Pa; P_r crosses 1 at each T
+            gas.TPX = t, p, "N2:1"
+            m = p / (kB * t)
+            k0 = 1.0e-7 * t**-3.0 * math.exp(-13000.0 / t)     # m^3 molecule^-1 s^-1
+            kinf = 1.0e13 * math.exp(-15000.0 / t)             # s^-1
+            ours = troe_rate(k0, kinf, m, t, 0.35, 250.0, 1800.0, t2)
+            assert ours == pytest.approx(gas.forward_rate_constants[0], rel=1e-6)
+
+
+def test_jpl_oh_so2_at_298_k_and_1_atm():
+    # OH + SO2 + M -> HOSO2: JPL Publication 19-5 (Burkholder et al. 2019), Table 2-1 entry I4:
+    # k0(300) = 2.9e-31 cm6 molecule-2 s-1, n = 4.1; kinf(300) = 1.7e-12 cm3 molecule-1 s-1, m = -0.2;
+    # Fc = 0.6. Checked with the search tool against a note quoting Table 2-1 I4 and mechanism codes
+    # that use these numbers with the 300 K reference (k0 ~ (T/300)^-4.1, kinf ~ (T/300)^+0.2).
+    # By hand at 298 K, 1 atm: [M] = 101325/(1.380649e-23*298) = 2.4627e25 m-3 = 2.4627e19 cm-3;
+    # k0 = 2.9e-31*(298/300)^-4.1 = 2.9806e-31; k0[M] = 7.3405e-12 s-1;
+    # kinf = 1.7e-12*(298/300)^0.2 = 1.6977e-12; ratio = 4.3237, log10 = 0.63586,
+    # exponent 1/(1+0.63586^2) = 0.71209; 0.6^0.71209 = 0.69506;
+    # k = 7.3405e-12/(1+4.3237) * 0.69506 = 1.37883e-12 * 0.69506 = 9.58e-13 cm3 molecule-1 s-1.
+    cm6 = RATE_UNITS["cm6 molecule-2 s-1"][1]
+    cm3 = RATE_UNITS["cm3 molecule-1 s-1"][1]
+    m = number_density_from(1.0, "atm", 298.0)
+    k = jpl_termolecular_rate(298.0, m, 2.9e-31 / cm6, 4.1, 1.7e-12 / cm3, -0.2, Fc=0.6)
+    assert float(k) * cm3 == pytest.approx(9.58e-13, rel=5e-4)
+
+
+def test_number_density_conversions():
+    # Loschmidt constant n0 (273.15 K, 101.325 kPa), CODATA via scipy
+    n0 = physical_constants["Loschmidt constant (273.15 K, 101.325 kPa)"][0]
+    assert number_density_from(1.0, "atm", 273.15) == pytest.approx(n0, rel=1e-9)
+    assert number_density_from(760.0, "Torr", 273.15) == pytest.approx(n0, rel=1e-9)
+    assert number_density_from(1.01325, "bar", 273.15) == pytest.approx(n0, rel=1e-9)
+    assert number_density_from(2.5e19, "molecule cm-3") == pytest.approx(2.5e25)
+    with pytest.raises(InputError, match="temperature is needed"):
+        number_density_from(1.0, "bar")
+    with pytest.raises(InputError, match="unknown pressure unit"):
+        number_density_from(1.0, "psi", 300.0)
+
+
+@pytest.mark.parametrize("params", [(0.4, 400.0, 2500.0, None), (0.6, 200.0, 1500.0, 4000.0)],
+                         ids=["3-parameter", "4-parameter"])
+def test_troe_fit_recovers_exact_synthetic_parameters(params):
+    a, t3, t1, t2 = params
+    t = np.linspace(200.0, 1500.0, 12)
+    m = np.logspace(20, 28, 15)
+    k0 = 1e-16 * (t / 300.0) ** -3
+    kinf = 1e5 * np.exp(-1000.0 / t)
+    k = troe_rate(k0[:, None], kinf[:, None], m[None, :], t[:, None], a, t3, t1, t2)
+    fit = fit_troe(t, m, k, k0, kinf, fit_T2=t2 is not None)
+    assert fit.a == pytest.approx(a, rel=1e-4)
+    assert fit.T3_K == pytest.approx(t3, rel=1e-4)
+    assert fit.T1_K == pytest.approx(t1, rel=1e-4)
+    if t2 is not None:
+        assert fit.T2_K == pytest.approx(t2, rel=1e-4)
+    assert fit.max_relative_deviation < 1e-6
+    assert fit.rms_relative_deviation <= fit.max_relative_deviation
+
+
+def test_troe_fit_of_a_computed_falloff_curve(rate, z_co2):
+    # the strong-collision curve is not exactly Troe-shaped: the fit reports how far off it is
+    t = np.linspace(200.0, 400.0, 5)
+    m = np.logspace(18, 30, 13)
+    res = strong_collision_falloff(rate, t, m, collision_rate_m3_s=z_co2(t), collision_efficiency=1.0)
+    fit = fit_troe(t, m, res.rate_per_s, res.low_pressure_m3_s, res.high_pressure_per_s)
+    assert 0 <= fit.a <= 1
+    assert fit.max_relative_deviation < 0.1
+    fc = troe_center_broadening(t, fit.a, fit.T3_K, fit.T1_K)
+    assert np.all((fc > 0) & (fc <= 1))
+
+
+def test_fit_rejects_bad_grid():
+    with pytest.raises(InputError, match="shape"):
+        fit_troe([300.0], [1e24, 1e25], np.ones((2, 2)), [1.0], [1.0])

@@ -1,0 +1,139 @@
+"""Energised molecules: the fraction that reacts before collisions take the energy away.
+
+A molecule receives an excitation energy (a photon, or the energy released
+by forming it) on top of its mean thermal vibrational energy. It then
+reacts with k(E) or is deactivated by collisions:
+
+* Stern-Volmer competition (strong collisions scaled by beta_c):
+  phi = k(E) / (k(E) + beta_c Z [M]);
+* stepwise deactivation: each collision removes <dE>_down, and
+  phi = 1 - prod_i (1 - k(E_i) / (k(E_i) + Z [M])) over E_i = E - i <dE>_down
+  while E_i >= E0 (Robinson and Holbrook, *Unimolecular Reactions*, Wiley
+  1972, ch. 8, cascade model).
+
+Energies in J/mol from the zero-point level of the parent, rates s^-1,
+Z in m^3 s^-1, [M] in m^-3. Results are vectorised over [M].
+"""
+
+from __future__ import annotations
+
+import math
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from tstrate.errors import InputError
+from tstrate.physics.rrkm import MicrocanonicalRate
+from tstrate.physics.states import CM1_J_PER_MOL, _as_positive_array
+from tstrate.units import C, H, N_A, R, energy_to_J_per_mol
+
+
+def photon_energy_J_per_mol(*, wavelength_nm: float | None = None, wavenumber_cm1: float | None = None,
+                            energy: float | None = None, unit: str | None = None) -> float:
+    """Molar energy [J/mol] of one excitation, from exactly one of a wavelength [nm], a wavenumber
+    [cm^-1] or an energy with its unit (any unit of :data:`tstrate.units.ENERGY_UNITS_J_PER_MOL`)."""
+    given = [x is not None for x in (wavelength_nm, wavenumber_cm1, energy)]
+    if sum(given) != 1:
+        raise InputError("give exactly one of wavelength_nm, wavenumber_cm1 or energy (with unit)",
+                         field="excitation")
+    if wavelength_nm is not None:
+        if not wavelength_nm > 0:
+            raise InputError(f"wavelength must be positive, got {wavelength_nm!r}", field="wavelength_nm")
+        return H * C / (wavelength_nm * 1e-9) * N_A
+    if wavenumber_cm1 is not None:
+        if not wavenumber_cm1 > 0:
+            raise InputError(f"wavenumber must be positive, got {wavenumber_cm1!r}", field="wavenumber_cm1")
+        return wavenumber_cm1 * CM1_J_PER_MOL
+    if unit is None:
+        raise InputError("an energy needs its unit", field="unit")
+    value = energy_to_J_per_mol(energy, unit, field="energy")
+    if not value > 0:
+        raise InputError(f"excitation energy must be positive, got {energy!r} {unit}", field="energy")
+    return float(value)
+
+
+def mean_vibrational_energy_J_per_mol(frequencies_cm1, temperature_K):
+    """Mean thermal vibrational energy above the zero-point level [J/mol] of harmonic oscillators:
+    sum_i N_A h c nu_i / (exp(h c nu_i / kT) - 1); vectorised over temperature."""
+    nu = _as_positive_array(frequencies_cm1, "frequencies_cm1") * CM1_J_PER_MOL
+    t = np.asarray(temperature_K, dtype=float)
+    x = nu / (R * t[..., None])
+    return (nu / np.expm1(x)).sum(axis=-1)
+
+
+@dataclass(frozen=True)
+class ActivationYield:
+    """Fraction of energised molecules that react.
+
+    energy_J_per_mol: total energy from the parent's zero-point level [J/mol];
+    rate_per_s: k(E) there [s^-1]; number_density_m3 (n_M) [m^-3];
+    fraction (n_M) dimensionless; below_threshold: True when the energy is under
+    the barrier (fraction 0 by definition, no tunnelling counted).
+    """
+
+    energy_J_per_mol: float
+    rate_per_s: float
+    number_density_m3: np.ndarray = field(repr=False)
+    fraction: np.ndarray = field(repr=False)
+    below_threshold: bool
+
+
+def _densities(number_density_m3) -> np.ndarray:
+    m = np.atleast_1d(np.asarray(number_density_m3, dtype=float))
+    if m.ndim != 1 or np.any(~np.isfinite(m)) or np.any(m < 0):
+        raise InputError("number densities must be non-negative numbers in m^-3", field="number_density_m3")
+    return m
+
+
+def _rate_at(rate: MicrocanonicalRate, energy: float) -> float:
+    e = rate.energies_J_per_mol
+    if energy > e[-1]:
+        raise InputError(f"energy {energy:.6g} J/mol lies beyond the k(E) grid (ends at {e[-1]:.6g} J/mol)",
+                         field="energy", hint="extend the grid above the barrier")
+    return float(np.interp(energy, e, rate.rate_per_s))
+
+
+def stern_volmer_yield(rate: MicrocanonicalRate, energy_J_per_mol: float, number_density_m3, *,
+                       collision_rate_m3_s: float, collision_efficiency: float = 1.0) -> ActivationYield:
+    """phi = k(E) / (k(E) + beta_c Z [M]) at one energy (k(E) interpolated linearly on the grain)."""
+    m = _densities(number_density_m3)
+    energy = float(energy_J_per_mol)
+    if energy < rate.barrier_J_per_mol:
+        return ActivationYield(energy, 0.0, m, np.zeros_like(m), True)
+    k = _rate_at(rate, energy)
+    omega = collision_efficiency * collision_rate_m3_s * m
+    return ActivationYield(energy, k, m, k / (k + omega), False)
+
+
+def stepwise_yield(rate: MicrocanonicalRate, energy_J_per_mol: float, number_density_m3, *,
+                   collision_rate_m3_s: float, energy_down_J_per_mol: float) -> ActivationYield:
+    """phi = 1 - prod_i (1 - k(E_i)/(k(E_i) + Z[M])), E_i = E - i <dE>_down, while E_i >= E0.
+
+    Every collision (rate Z[M], no efficiency factor: the step size carries
+    the inefficiency) removes ``energy_down_J_per_mol`` [J/mol].
+    """
+    m = _densities(number_density_m3)
+    energy = float(energy_J_per_mol)
+    step = float(energy_down_J_per_mol)
+    if not (math.isfinite(step) and step > 0):
+        raise InputError(f"<dE>down must be positive, got {energy_down_J_per_mol!r}", field="energy_down")
+    e0 = rate.barrier_J_per_mol
+    if energy < e0:
+        return ActivationYield(energy, 0.0, m, np.zeros_like(m), True)
+    n_steps = int(math.floor((energy - e0) / step + 1e-9)) + 1   # E_i = E0 within rounding counts
+    levels = energy - step * np.arange(n_steps)
+    k = np.array([_rate_at(rate, e) for e in levels])
+    omega = collision_rate_m3_s * m
+    with np.errstate(divide="ignore", invalid="ignore"):
+        log_survive = np.where(omega[:, None] > 0,
+                               np.log(omega[:, None]) - np.log(omega[:, None] + k[None, :]), 0.0)
+    survive = np.exp(log_survive.sum(axis=1))
+    survive = np.where(omega > 0, survive, 0.0 if k[0] > 0 else 1.0)
+    return ActivationYield(energy, float(k[0]), m, 1.0 - survive, False)
+
+
+def excitation_energy_J_per_mol(frequencies_cm1, temperature_K: float, **excitation) -> float:
+    """Energy of the energised parent [J/mol]: the excitation (keywords of
+    :func:`photon_energy_J_per_mol`) plus the parent's mean thermal vibrational energy at T."""
+    return photon_energy_J_per_mol(**excitation) + float(
+        mean_vibrational_energy_J_per_mol(frequencies_cm1, float(temperature_K)))
