@@ -173,3 +173,15 @@ def test_troe_fit_of_a_computed_falloff_curve(rate, z_co2):
 def test_fit_rejects_bad_grid():
     with pytest.raises(InputError, match="shape"):
         fit_troe([300.0], [1e24, 1e25], np.ones((2, 2)), [1.0], [1.0])
+
+
+def test_fixed_pressures_give_a_number_density_per_temperature(rate, z_co2):
+    t = np.array([200.0, 300.0])
+    p = np.array([10.0, 1e3, 1e5])                                  # Pa
+    m = number_density_from(p[None, :], "Pa", t[:, None])            # (n_T, n_P)
+    grid = strong_collision_falloff(rate, t, m, collision_rate_m3_s=z_co2(t)).rate_per_s
+    for i, ti in enumerate(t):
+        one = strong_collision_falloff(rate, [ti], p / (kB * ti), collision_rate_m3_s=z_co2(ti)).rate_per_s[0]
+        np.testing.assert_allclose(grid[i], one, rtol=1e-12)
+    with pytest.raises(InputError, match="shape"):
+        strong_collision_falloff(rate, t, np.ones((3, 2)), collision_rate_m3_s=1e-16)

@@ -55,10 +55,13 @@ def photon_energy_J_per_mol(*, wavelength_nm: float | None = None, wavenumber_cm
 def mean_vibrational_energy_J_per_mol(frequencies_cm1, temperature_K):
     """Mean thermal vibrational energy above the zero-point level [J/mol] of harmonic oscillators:
     sum_i N_A h c nu_i / (exp(h c nu_i / kT) - 1); vectorised over temperature."""
-    nu = _as_positive_array(frequencies_cm1, "frequencies_cm1") * CM1_J_PER_MOL
+    from tstrate.physics.thermo import harmonic_oscillators
+
+    nu = _as_positive_array(frequencies_cm1, "frequencies_cm1")
     t = np.asarray(temperature_K, dtype=float)
-    x = nu / (R * t[..., None])
-    return (nu / np.expm1(x)).sum(axis=-1)
+    _, u_over_rt, _, _ = harmonic_oscillators(nu, np.atleast_1d(t))   # thermal U/RT per mode
+    energy = R * np.atleast_1d(t) * u_over_rt.sum(axis=1)
+    return energy.reshape(t.shape)
 
 
 @dataclass(frozen=True)
