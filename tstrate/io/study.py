@@ -47,7 +47,7 @@ from tstrate.model import TUNNELLING_MODELS, Channel, Conditions, Study
 from tstrate.units import PRESSURE_UNITS_PA, RATE_UNITS
 
 #: top-level section -> "module:function" that reads it (called with (table, study) -> object)
-SECTION_READERS: dict[str, str] = {}
+SECTION_READERS: dict[str, str] = {"comparison": "tstrate.io.comparisons:read_comparisons"}
 
 CORE_KEYS = {"title", "species", "conditions", "channel"}
 CONDITION_KEYS = {"temperature_K", "pressure_bar", "pressure_Pa", "pressure_Torr",
