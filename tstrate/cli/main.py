@@ -19,6 +19,7 @@ from tstrate.errors import InputError
 SUBCOMMANDS: dict[str, str] = {
     "thermo": "tstrate.cli.thermo",
     "rates": "tstrate.cli.rates",
+    "compute": "tstrate.cli.compute",
 }
 
 

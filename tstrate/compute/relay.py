@@ -12,7 +12,8 @@ K. R. Liedl, Angew. Chem. Int. Ed. 39, 891 (2000).)
 The ring is laid out in a plane: the carbonic acid frame, then the water
 oxygens on a circular arc from O1 to O2 with equal O...O spacings, each
 transferring hydrogen on its O...O edge. The pre-reactive complex has the
-hydrogens on their donors (O-H 0.98 A, O...O 2.70 A); the saddle-point guess
+hydrogens on their donors (O-H 0.98 A, O...O 2.70 A; bare, H1 sits syn to O2
+with a C-O-H angle of 108 degrees); the saddle-point guess
 has them half way (O...O 2.45 A) and the C-O2 bond stretched. Free water
 hydrogens point out of the ring plane, alternating up and down.
 
@@ -116,6 +117,17 @@ def relay_geometry(n_waters: int, stage: str = "complex"):
     for donor, acceptor in zip(chain[:-1], chain[1:]):
         frac = 0.5 if guess else _R_OH_A / np.linalg.norm(acceptor - donor)
         hyd.append(donor + frac * (acceptor - donor))
+    if n_waters == 0 and not guess:
+        # bare acid: a four-membered ring cannot hold H1 on the O1...O2 line; put it
+        # syn to O2 with an ordinary C-O1-H1 angle of 108 degrees instead
+        u = (c - o1) / np.linalg.norm(c - o1)
+        cands = []
+        for sgn in (1.0, -1.0):
+            a = sgn * math.radians(108.0)
+            rot = np.array([[math.cos(a), -math.sin(a), 0.0], [math.sin(a), math.cos(a), 0.0],
+                            [0.0, 0.0, 1.0]])
+            cands.append(o1 + _R_OH_A * rot @ u)
+        hyd[0] = min(cands, key=lambda p: np.linalg.norm(p - o2))
     # H2 on O2, in plane, syn to the carbonyl (C-O2-H 108 degrees, away from the ring)
     ang = math.radians(90.0 - math.degrees(half) - 180.0 + 108.0)
     h2 = o2 + _R_OH_A * np.array([math.cos(ang), math.sin(ang), 0.0])

@@ -25,6 +25,7 @@ Route
 from __future__ import annotations
 
 import logging
+import warnings
 from dataclasses import dataclass, field
 
 import numpy as np
@@ -140,7 +141,9 @@ def neb_guess(reactant, product, settings: Settings, *, images: int = 7, charge:
     rng = np.random.default_rng(settings.seed)
     for img in band[1:-1]:
         img.positions = img.positions + rng.normal(scale=5 * SYMMETRY_BREAK_A, size=img.positions.shape)
-    idpp_interpolate(band, traj=None, log=None)
+    with warnings.catch_warnings():  # ASE's IDPP builds its own band with the default method
+        warnings.filterwarnings("ignore", message="The default method has changed")
+        idpp_interpolate(band, traj=None, log=None)
     opt = FIRE(neb, logfile=None)
     with progress_bar(max_steps, "NEB", progress) as bar:
         for _ in opt.irun(fmax=fmax_eV_per_A, steps=max_steps):

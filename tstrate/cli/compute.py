@@ -1,0 +1,339 @@
+"""``tstrate compute``: stationary points by GFN2-xTB, and species from quantum-chemistry outputs."""
+
+from __future__ import annotations
+
+import argparse
+import os
+import shlex
+import sys
+from pathlib import Path
+
+from tstrate.errors import InputError
+
+HELP = "make species files: GFN2-xTB minima, saddle points, water relays; read QC outputs"
+DESCRIPTION = """\
+Make species files by the semi-empirical route (GFN2-xTB through tblite and ASE)
+or from the output of a quantum-chemistry program.
+
+  minimum   optimise a SMILES (lowest of several conformers) or a geometry; Hessian
+  saddle    transition state from a guess, or from reactant + product (NEB, then Sella);
+            verified by minimising both ways along the imaginary mode
+  relay     carbonic acid decomposition assisted by 0, 1 or 2 water molecules:
+            the pre-reactive ring complex and the relay transition state
+  read      species from an output file cclib parses (or a geometry ASE reads),
+            optionally with a separate high-level single-point energy
+
+Results are cached by a hash of their inputs (folder: --cache-dir, else $TSTRATE_CACHE,
+else ~/.cache/tstrate), so a rerun is instant. Existing files are never replaced
+without --force; input files never.
+"""
+
+
+def _common(p: argparse.ArgumentParser, *, semi_empirical: bool = True) -> None:
+    p.add_argument("--traceback", action="store_true", default=argparse.SUPPRESS,
+                   help="show the full Python traceback on errors")
+    p.add_argument("--json", action="store_true", help="print a JSON summary instead of text")
+    p.add_argument("--force", action="store_true", help="replace existing output files")
+    if not semi_empirical:
+        return
+    p.add_argument("--charge", type=int, default=None, help="total charge (default: from the "
+                   "SMILES, else 0)")
+    p.add_argument("--multiplicity", type=int, default=None,
+                   help="spin multiplicity 2S+1 (default: from the SMILES, else 1)")
+    p.add_argument("--fmax", type=float, default=5e-4, metavar="EV_PER_A",
+                   help="convergence: largest force [eV/Angstrom] (default 5e-4)")
+    p.add_argument("--max-steps", type=int, default=1000, help="optimiser step limit (default 1000)")
+    p.add_argument("--seed", type=int, default=20240611, help="random seed (default 20240611)")
+    p.add_argument("--cache-dir", default=None, help="cache folder (default $TSTRATE_CACHE or "
+                   "~/.cache/tstrate)")
+    p.add_argument("--no-cache", action="store_true", help="neither read nor write the cache")
+    p.add_argument("--quiet", action="store_true", help="no progress bar")
+    p.add_argument("--work-dir", default=".", help="folder for geometries of failed "
+                   "optimisations (default: here)")
+
+
+def add_arguments(parser: argparse.ArgumentParser) -> None:
+    sub = parser.add_subparsers(dest="compute_command", metavar="ACTION", required=True)
+
+    p = sub.add_parser("minimum", help="GFN2-xTB minimum from a SMILES or a geometry file",
+                       description="Optimise a minimum (lowest of several conformers from a SMILES) "
+                                   "and compute its Hessian by finite differences.")
+    src = p.add_mutually_exclusive_group(required=True)
+    src.add_argument("--smiles", help="SMILES string (hydrogens are added)")
+    src.add_argument("--geometry", help="any geometry file ASE reads (last frame)")
+    p.add_argument("--name", required=True, help="species name")
+    p.add_argument("-o", "--output", help="species file to write (.toml)")
+    p.add_argument("--conformers", type=int, default=10, help="conformers embedded from a "
+                   "SMILES (default 10)")
+    _common(p)
+
+    p = sub.add_parser("saddle", help="GFN2-xTB transition state from a guess or from reactant "
+                       "and product", description="Find, characterise and verify a saddle point.")
+    p.add_argument("--guess", help="guess geometry (any file ASE reads)")
+    p.add_argument("--reactant", help="reactant geometry (same atom order as the product)")
+    p.add_argument("--product", help="product geometry (same atom order as the reactant)")
+    p.add_argument("--name", required=True, help="name of the transition state")
+    p.add_argument("-o", "--output", help="species file of the transition state (.toml)")
+    p.add_argument("--reactant-output", help="species file of the reactant-side minimum")
+    p.add_argument("--product-output", help="species file of the product-side minimum")
+    p.add_argument("--neb-images", type=int, default=7, help="interior NEB images (default 7)")
+    p.add_argument("--retries", type=int, default=3,
+                   help="re-searches to remove extra imaginary modes (default 3)")
+    p.add_argument("--cartesian", action="store_true",
+                   help="let Sella work in Cartesian instead of internal coordinates")
+    _common(p)
+
+    p = sub.add_parser("relay", help="water-relay transition state of H2CO3 -> CO2 + H2O",
+                       description="Build the ring of carbonic acid and 0, 1 or 2 waters, optimise "
+                                   "the pre-reactive complex, and find the relay saddle point.")
+    p.add_argument("--waters", type=int, choices=(0, 1, 2), required=True,
+                   help="relay waters: 0 (bare four-centre TS), 1 (six-membered ring), 2 (eight)")
+    p.add_argument("--name", help="name of the transition state")
+    p.add_argument("--complex-name", help="name of the pre-reactive complex")
+    p.add_argument("-o", "--output", help="species file of the transition state (.toml)")
+    p.add_argument("--complex-output", help="species file of the pre-reactive complex")
+    p.add_argument("--product-output", help="species file of the product-side complex")
+    _common(p)
+
+    p = sub.add_parser("read", help="species from a quantum-chemistry output or geometry file",
+                       description="Read geometry, energy, frequencies and Hessian through cclib "
+                                   "(or a geometry through ASE) and make a species file.")
+    p.add_argument("file", metavar="OUTPUT", help="output file (cclib) or geometry file (ASE)")
+    p.add_argument("--name", help="species name (default: the file's stem)")
+    p.add_argument("--single-point", metavar="'VALUE UNIT'|FILE",
+                   help="high-level energy overriding the file's, e.g. '-264.12 hartree', or an "
+                        "output file whose last energy is used")
+    p.add_argument("--hessian", help="plain-number Hessian file [hartree/bohr^2] (xtb's 'hessian')")
+    p.add_argument("--kind", choices=("minimum", "transition_state"),
+                   help="default: from the count of imaginary modes")
+    p.add_argument("--charge", type=int, default=None, help="total charge (default: the file's)")
+    p.add_argument("--multiplicity", type=int, default=None, help="multiplicity (default: the "
+                   "file's)")
+    p.add_argument("--scale", type=float, default=1.0, help="frequency scale factor (default 1)")
+    p.add_argument("-o", "--output", help="species file to write (.toml)")
+    _common(p, semi_empirical=False)
+
+
+# ---- helpers ----------------------------------------------------------------------
+
+def _command_line(args) -> str:
+    if Path(sys.argv[0]).name == "tstrate":
+        return "tstrate " + shlex.join(sys.argv[1:])
+    skip = {"_run", "command", "compute_command", "traceback", "verbose"}
+    parts = ["tstrate", "compute", args.compute_command]
+    for key, value in vars(args).items():
+        if key in skip or value is None or value is False:
+            continue
+        if key == "file":
+            parts.append(str(value))
+            continue
+        flag = "--" + key.replace("_", "-")
+        parts += [flag] if value is True else [flag, str(value)]
+    return shlex.join(parts)
+
+
+def _outputs(args, inputs, *names) -> list[Path | None]:
+    """Output paths, refusing existing files without --force and input files always."""
+    outs = []
+    ins = {Path(p).resolve() for p in inputs if p}
+    for n in names:
+        value = getattr(args, n, None)
+        if not value:
+            outs.append(None)
+            continue
+        path = Path(value)
+        flag = "--" + n.replace("_", "-")
+        if path.resolve() in ins:
+            raise InputError("refusing to overwrite an input file", file=str(path), field=flag)
+        if path.exists() and not args.force:
+            raise InputError("file exists; refusing to overwrite it", file=str(path), field=flag,
+                             hint="pass --force to replace it")
+        outs.append(path)
+    if len({p.resolve() for p in outs if p}) < len([p for p in outs if p]):
+        raise InputError("two outputs name the same file", field="output")
+    return outs
+
+
+def _settings(args, **extra):
+    from tstrate.compute.engine import Settings
+
+    kw = dict(fmax_eV_per_A=args.fmax, max_steps=args.max_steps, seed=args.seed)
+    kw.update(extra)
+    return Settings(**kw)
+
+
+def _cache(args):
+    from tstrate.compute.cache import Cache
+
+    return Cache(args.cache_dir, enabled=not args.no_cache)
+
+
+def _progress(args) -> bool:
+    return not args.quiet and sys.stderr.isatty()
+
+
+def _geometry(path: str, flag: str):
+    from tstrate.compute.minima import read_geometry_file
+
+    try:
+        return read_geometry_file(path)
+    except InputError as exc:
+        raise exc.located(field=flag) from None
+
+
+def _species_summary(sp) -> dict:
+    return {"name": sp.name, "formula": sp.formula, "kind": sp.kind,
+            "energy_hartree": None if sp.energy_J_per_mol is None else
+            sp.energy_J_per_mol / _hartree_J_per_mol(),
+            "frequencies_cm1": [round(float(f), 2) for f in sp.frequencies_cm1],
+            "symmetry_number": sp.symmetry_number, "linear": sp.linear,
+            "has_hessian": sp.hessian_J_per_m2 is not None}
+
+
+def _hartree_J_per_mol() -> float:
+    from tstrate.units import ENERGY_UNITS_J_PER_MOL
+
+    return ENERGY_UNITS_J_PER_MOL["hartree"]
+
+
+def _write(species, path) -> None:
+    from tstrate.io.species import write_species
+
+    if path is not None:
+        write_species(species, path, overwrite=True)
+
+
+def _print_text(lines: list[str]) -> None:
+    print("\n".join(lines))
+
+
+def _describe(sp, path) -> str:
+    freqs = ", ".join(f"{f:.0f}" for f in sp.frequencies_cm1[:6])
+    more = " ..." if len(sp.frequencies_cm1) > 6 else ""
+    energy = ("no energy" if sp.energy_J_per_mol is None
+              else f"E = {sp.energy_J_per_mol / _hartree_J_per_mol():.8f} hartree")
+    where = f" -> {path}" if path else ""
+    return f"{sp.name} ({sp.formula}, {sp.kind}): {energy}; modes [cm-1] {freqs}{more}{where}"
+
+
+# ---- actions ----------------------------------------------------------------------
+
+def _run_minimum(args) -> int:
+    from tstrate.compute.minima import compute_minimum
+
+    (out,) = _outputs(args, [args.geometry], "output")
+    settings = _settings(args, n_conformers=args.conformers)
+    atoms = _geometry(args.geometry, "--geometry") if args.geometry else None
+    res = compute_minimum(name=args.name, smiles=args.smiles, atoms=atoms, charge=args.charge,
+                          multiplicity=args.multiplicity, settings=settings, cache=_cache(args),
+                          progress=_progress(args), work_dir=args.work_dir,
+                          command=_command_line(args), source=args.geometry)
+    _write(res.species, out)
+    if args.json:
+        from tstrate.cli.common import print_json
+
+        print_json({"species": _species_summary(res.species), "output": out,
+                    "conformer_energies_kJ_per_mol": [e / 1e3 for e in
+                                                      res.conformer_energies_J_per_mol],
+                    "gradient_calls_hessian": res.gradient_calls_hessian,
+                    "from_cache": res.from_cache})
+    else:
+        _print_text([_describe(res.species, out)] + (["(from cache)"] if res.from_cache else []))
+    return 0
+
+
+def _saddle_text(res, outs) -> list[str]:
+    s = res.summary()
+    return [
+        _describe(res.ts, outs[0]), _describe(res.reactant, outs[1]),
+        _describe(res.product, outs[2]),
+        f"imaginary frequency {s['imaginary_frequency_cm1']:.0f}i cm-1; {s['bond_changes']}",
+        f"barrier {s['barrier_kJ_per_mol']:.2f} kJ/mol classical, "
+        f"{s['barrier_zpe_kJ_per_mol']:.2f} kJ/mol with zero-point energies; reverse "
+        f"{s['reverse_barrier_kJ_per_mol']:.2f} / {s['reverse_barrier_zpe_kJ_per_mol']:.2f} kJ/mol",
+    ] + (["(from cache)"] if res.from_cache else [])
+
+
+def _run_saddle(args) -> int:
+    from tstrate.compute.saddle import find_saddle
+
+    if not args.guess and not (args.reactant and args.product):
+        raise InputError("give --guess, or both --reactant and --product", field="--guess")
+    if bool(args.reactant) != bool(args.product) and not args.guess:
+        raise InputError("--reactant and --product go together", field="--product")
+    outs = _outputs(args, [args.guess, args.reactant, args.product], "output",
+                    "reactant_output", "product_output")
+    res = find_saddle(
+        name=args.name,
+        guess=_geometry(args.guess, "--guess") if args.guess else None,
+        reactant=_geometry(args.reactant, "--reactant") if args.reactant else None,
+        product=_geometry(args.product, "--product") if args.product else None,
+        charge=args.charge or 0, multiplicity=args.multiplicity or 1,
+        settings=_settings(args), neb_images=args.neb_images, max_retries=args.retries,
+        internal=not args.cartesian, cache=_cache(args), progress=_progress(args),
+        work_dir=args.work_dir, command=_command_line(args))
+    for sp, path in zip((res.ts, res.reactant, res.product), outs):
+        _write(sp, path)
+    if args.json:
+        from tstrate.cli.common import print_json
+
+        print_json(res.summary() | {"outputs": outs,
+                                    "species": [_species_summary(s) for s in
+                                                (res.ts, res.reactant, res.product)]})
+    else:
+        _print_text(_saddle_text(res, outs))
+    return 0
+
+
+def _run_relay(args) -> int:
+    from tstrate.compute.relay import find_relay
+
+    outs = _outputs(args, [], "output", "complex_output", "product_output")
+    res = find_relay(args.waters, name=args.name, complex_name=args.complex_name,
+                     settings=_settings(args), cache=_cache(args), progress=_progress(args),
+                     work_dir=args.work_dir, command=_command_line(args))
+    sad = res.saddle
+    for sp, path in zip((sad.ts, res.complex.species, sad.product), outs):
+        _write(sp, path)
+    summary = sad.summary() | {
+        "complex": res.complex.species.name,
+        "barrier_from_complex_kJ_per_mol": res.barrier_J_per_mol / 1e3,
+        "barrier_zpe_from_complex_kJ_per_mol": res.barrier_zpe_J_per_mol / 1e3,
+        "outputs": outs}
+    if args.json:
+        from tstrate.cli.common import print_json
+
+        print_json(summary)
+    else:
+        _print_text([_describe(res.complex.species, outs[1])] + _saddle_text(sad, [outs[0], None,
+                                                                                    outs[2]])
+                    + [f"barrier from the pre-reactive complex {res.barrier_J_per_mol / 1e3:.2f} "
+                       f"kJ/mol classical, {res.barrier_zpe_J_per_mol / 1e3:.2f} kJ/mol with "
+                       "zero-point energies"])
+    return 0
+
+
+def _run_read(args) -> int:
+    from tstrate.io.qcout import read_output
+
+    inputs = [args.file, args.hessian]
+    if args.single_point and os.path.exists(args.single_point):
+        inputs.append(args.single_point)
+    (out,) = _outputs(args, inputs, "output")
+    sp = read_output(args.file, name=args.name, kind=args.kind, charge=args.charge,
+                     multiplicity=args.multiplicity, single_point=args.single_point,
+                     hessian_file=args.hessian, frequency_scale=args.scale)
+    sp = sp.with_changes(provenance=sp.provenance | {"command": _command_line(args)})
+    _write(sp, out)
+    if args.json:
+        from tstrate.cli.common import print_json
+
+        print_json({"species": _species_summary(sp), "output": out})
+    else:
+        _print_text([_describe(sp, out)])
+    return 0
+
+
+def run(args) -> int:
+    return {"minimum": _run_minimum, "saddle": _run_saddle, "relay": _run_relay,
+            "read": _run_read}[args.compute_command](args)
