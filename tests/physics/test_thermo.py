@@ -2,8 +2,10 @@
 
 Sources of the check values (each one also named beside the value):
 - CODATA Key Values for Thermodynamics (Cox, Wagman and Medvedev 1989), S(298.15 K, 1 bar)
-  and H(298.15 K) - H(0); values checked with the `search` tool against copies of the
-  CODATA table (codata.info) and secondary sources, except where marked "from memory".
+  and H(298.15 K) - H(0). Checked with the `search` tool: the atoms' rows in a copy of the
+  table itself (codata.info), the molecules' entropies in public files and pages quoting the
+  table (NIST WebBook for N2); values marked "from memory" could not be checked. The quoted
+  uncertainties are from memory.
 - NIST-JANAF Thermochemical Tables (Chase 1998) through the Shomate fits the NIST
   Chemistry WebBook gives for them ("Chase, 1998"), coefficients checked with `search`.
 - ase.thermochemistry.IdealGasThermo (reference library) on identical inputs.
@@ -40,11 +42,11 @@ def reference_species():
 
 # CODATA Key Values (Cox, Wagman and Medvedev 1989): S(298.15 K, 1 bar) [J/(mol K)]
 CODATA_S298 = {
-    "h2o": 188.835,  # +- 0.010; checked (codata.info table, quoted in secondary sources)
-    "co2": 213.785,  # +- 0.010; checked
-    "so2": 248.223,  # +- 0.050; checked (secondary source quoting CODATA)
+    "h2o": 188.835,  # +- 0.010; checked (a data file quoting the codata.info table)
+    "co2": 213.785,  # +- 0.010; checked (same file)
+    "so2": 248.223,  # +- 0.050; checked (a data file quoting it next to NIST values)
     "n2": 191.609,   # +- 0.004; checked (NIST WebBook: "CODATA Review value")
-    "o2": 205.152,   # +- 0.005; checked
+    "o2": 205.152,   # +- 0.005; checked (same file as H2O)
 }
 
 
