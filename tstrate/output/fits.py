@@ -1,0 +1,840 @@
+"""Fitted parameters of a whole study: Arrhenius forms per channel, NASA polynomials per species.
+
+This is the step between tstrate's own numbers and the files kinetics software
+loads (see :mod:`tstrate.output.mechanism`).
+
+Channels
+--------
+For every channel the TST rate constant *with tunnelling* at the study's
+temperatures is fitted to the two-parameter Arrhenius form (Arrhenius,
+Z. Phys. Chem. 4, 226 (1889)) and to the modified, three-parameter form
+k = A (T/T0)^n exp(-Ea/RT) (Kooij, Z. Phys. Chem. 12, 155 (1893)) with
+:func:`tstrate.physics.fitting.fit_arrhenius`. The max and RMS relative
+deviation of k and the fitted range are kept; a deviation above
+``max_deviation`` (5 % by default) yields a warning that suggests split
+ranges, and ``split=True`` (automatic break) or ``split=<break in K>`` adds a
+two-range fit. The mechanism file uses one expression per channel
+(``mechanism_form``, the modified form by default); split fits are reported
+in the JSON only, since a single elementary reaction cannot hold two ranges.
+
+Falloff channels take Troe parameters as plain data (:class:`TroeData`:
+k0 and k_inf as Arrhenius expressions, a, T***, T*, optional T**; Troe,
+Ber. Bunsenges. Phys. Chem. 87, 161 (1983)), so they can come from tstrate's
+falloff module or from anywhere else.
+
+Species
+-------
+Reactants, products and pre-reactive complexes of the channels get two-range
+NASA 7-coefficient polynomials (McBride, Gordon and Reno, NASA TM-4513, 1993)
+fitted by :func:`tstrate.physics.fitting.fit_nasa7` to tstrate's own ideal-gas
+thermochemistry (same low-mode treatment as the rates) on a grid from 200 K
+to 3000 K with the common temperature at 1000 K. When the study's
+temperatures go below 200 K (cold atmospheres: 100-150 K) the low range is
+extended down to the lowest study temperature (rounded down to 10 K); when
+they go above 3000 K the high range is extended up. When the fit at 1000 K
+errs by more than 0.1 % (polyatomics whose low modes make Cp rise steeply
+between 200 and 700 K, and any wide low range) the common temperature is
+moved to the value among 400-1200 K (50 K steps) that gives the smallest
+largest error; Cantera reads a separate common temperature per species.
+The fit errors (max relative error of Cp and S, of H measured against
+max(|H|, RT), and the absolute H error) over the whole range and at the
+study temperatures are stored with each species and written to the JSON.
+Typical largest errors over 200-3000 K: 0.06 % (H2O), 0.1-0.2 % (O2, CO2),
+0.2-0.3 % (H2CO3; Cp at the low end or at the common temperature), with H
+and S within 0.05 %; down to 100 K a six-atom molecule reaches about 1 % in
+Cp, since two quartic ranges cannot follow Cp from 100 to 3000 K (give
+``nasa_range_K=(100, 1000)`` when only cold temperatures matter).
+Transition states are not species of a mechanism and get no polynomial.
+
+Enthalpy zero
+-------------
+Quantum-chemistry energies are huge (H2CO3 near -264 hartree, about
+-6.9e8 J/mol) and their zero depends on the method. Exported enthalpies are
+therefore shifted by per-element offsets: species i with atom counts n_ij
+gets
+
+    H_export,i(T) = E_i + ZPE_i + [H_i(T) - H_i(0)] - sum_j n_ij c_j,
+
+with c_j (J/mol per atom of element j) the least-squares solution of
+sum_j n_ij c_j ~ E_i + ZPE_i over the exported study species (minimum-norm
+when the atom counts are linearly dependent). Because every channel balances
+atoms, the shift cancels in every reaction enthalpy, Gibbs energy and
+equilibrium constant, while the exported enthalpies become small (of the
+size of the reaction energies). They are *not* enthalpies of formation. The
+offsets are stored in :attr:`StudyFits.element_offsets_J_per_mol` and written
+into the JSON and mechanism files. Each channel's ln Kc from the polynomials
+is compared with tstrate's ``ln_kc`` at the fitted temperatures
+(:attr:`ChannelFit.max_abs_ln_kc_error`).
+
+A bath-gas species needed by a falloff reaction but not part of the study
+(N2, CO2, O2, ... from ``molecules/reference``, or a noble-gas atom) has its
+own enthalpy zero H(0) = 0: it only serves as a collision partner.
+
+Units: SI inside (rate constants per molecule, J/mol, K); the JSON from
+:func:`fits_to_json` carries the unit in every key.
+"""
+
+from __future__ import annotations
+
+import datetime as _dt
+import math
+from dataclasses import dataclass, field
+from pathlib import Path
+from typing import Mapping
+
+import numpy as np
+
+from tstrate.errors import InputError
+from tstrate.physics.fitting import (MAX_DEVIATION_DEFAULT, T0_DEFAULT_K, ArrheniusFit, Nasa7Fit,
+                                     SplitArrheniusFit, fit_arrhenius, fit_arrhenius_split,
+                                     fit_nasa7)
+from tstrate.physics.thermo import HARMONIC, LowModes, thermochemistry
+from tstrate.units import K_B, P_STANDARD, R, rate_from_SI
+
+#: Default NASA fit range [K] and common temperature [K].
+NASA_RANGE_DEFAULT_K = (200.0, 3000.0)
+NASA_T_MID_DEFAULT_K = 1000.0
+#: Grid points per NASA range (plus the study temperatures inside the range).
+_NASA_POINTS_PER_RANGE = 120
+#: Above these fit errors a species gets a warning (fractions).
+NASA_WARN_REL_ERROR = 1e-3
+#: Above this |ln Kc(NASA) - ln Kc(tstrate)| a channel gets a warning.
+KC_WARN_LN_ERROR = 0.01
+#: Noble gases that can be built as bath-gas atoms without a species file.
+_NOBLE_GASES = ("He", "Ne", "Ar", "Kr", "Xe")
+#: Element order for formulas and element lists (the rest follows alphabetically).
+_ELEMENT_FIRST = ("C", "H")
+
+
+def element_order(elements) -> list[str]:
+    """Elements in Hill order (C, H, then alphabetical)."""
+    els = set(elements)
+    return [e for e in _ELEMENT_FIRST if e in els] + sorted(els - set(_ELEMENT_FIRST))
+
+
+# ============================================================================
+# records
+# ============================================================================
+
+@dataclass(frozen=True)
+class TroeData:
+    """Troe falloff parameters of one channel, as plain data.
+
+    k0: low-pressure limit as an Arrhenius expression, SI per molecule with
+        ``order`` = channel order + 1 (m^3 s^-1 for a unimolecular channel:
+        k = k0 [M] at low pressure, [M] in m^-3).
+    kinf: high-pressure limit, SI per molecule of the channel's order.
+    a: Troe's a (dimensionless); T3_K = T***, T1_K = T*, T2_K = T** [K]
+        (None: the exp(-T**/T) term is left out). F_cent = (1-a) exp(-T/T***)
+        + a exp(-T/T*) + exp(-T**/T) (Troe 1983).
+    max_rel_deviation, rms_rel_deviation: quality of the Troe fit against the
+        underlying k(T, [M]) (fractions), if known.
+    bath_gas: the collision partner the parameters were computed for, if known.
+    source: free text (e.g. "RRKM strong-collision falloff, tstrate").
+    """
+
+    k0: ArrheniusFit
+    kinf: ArrheniusFit
+    a: float
+    T3_K: float
+    T1_K: float
+    T2_K: float | None = None
+    max_rel_deviation: float | None = None
+    rms_rel_deviation: float | None = None
+    bath_gas: str | None = None
+    source: str | None = None
+
+    def __post_init__(self):
+        for name in ("k0", "kinf"):
+            if not isinstance(getattr(self, name), ArrheniusFit):
+                raise InputError(f"Troe {name} must be an Arrhenius expression", field=f"troe.{name}",
+                                 hint="use arrhenius_expression(A_SI, n, Ea_J_per_mol, order=...)")
+        if self.k0.order != self.kinf.order + 1:
+            raise InputError(f"Troe k0 has order {self.k0.order} but k_inf has order "
+                             f"{self.kinf.order}; k0 needs one order more", field="troe.k0")
+        if not math.isfinite(self.a):
+            raise InputError("Troe a must be finite", field="troe.a")
+        for name in ("T3_K", "T1_K") + (("T2_K",) if self.T2_K is not None else ()):
+            v = getattr(self, name)
+            if not (math.isfinite(v) and v > 0):
+                raise InputError(f"Troe {name} must be positive, got {v!r}", field=f"troe.{name}")
+
+    @classmethod
+    def from_parts(cls, k0, kinf, params, *, bath_gas: str | None = None,
+                   source: str | None = None) -> "TroeData":
+        """Build from Arrhenius expressions and any object or mapping holding the Troe parameters.
+
+        ``params`` may be the falloff module's fit result (attributes ``a``,
+        ``T3_K``, ``T1_K``, ``T2_K``, ``max_relative_deviation``,
+        ``rms_relative_deviation``) or a mapping with the same keys.
+        """
+        def get(key, default=None):
+            if isinstance(params, Mapping):
+                return params.get(key, default)
+            return getattr(params, key, default)
+
+        t2 = get("T2_K")
+        dev = get("max_relative_deviation", get("max_rel_deviation"))
+        rms = get("rms_relative_deviation", get("rms_rel_deviation"))
+        return cls(k0=k0, kinf=kinf, a=float(get("a")), T3_K=float(get("T3_K")),
+                   T1_K=float(get("T1_K")), T2_K=None if t2 is None else float(t2),
+                   max_rel_deviation=None if dev is None else float(dev),
+                   rms_rel_deviation=None if rms is None else float(rms),
+                   bath_gas=bath_gas, source=source)
+
+
+def arrhenius_expression(A_SI: float, n: float, Ea_J_per_mol: float, *, order: int,
+                         T0_K: float = T0_DEFAULT_K) -> ArrheniusFit:
+    """An Arrhenius expression k = A (T/T0)^n exp(-Ea/RT) given directly (not fitted).
+
+    A_SI in SI per molecule for ``order`` (s^-1, m^3 s^-1, m^6 s^-1), Ea in
+    J/mol, T0 in K. Range and deviations are NaN (unknown).
+    """
+    if order not in (1, 2, 3):
+        raise InputError(f"reaction order must be 1, 2 or 3, got {order!r}", field="order")
+    if not (math.isfinite(A_SI) and A_SI > 0):
+        raise InputError(f"pre-exponential factor must be positive, got {A_SI!r}", field="A")
+    if not (math.isfinite(n) and math.isfinite(Ea_J_per_mol)):
+        raise InputError("n and Ea must be finite", field="Ea_J_per_mol")
+    nan = float("nan")
+    return ArrheniusFit(A=float(A_SI), n=float(n), Ea_J_per_mol=float(Ea_J_per_mol),
+                        T0_K=float(T0_K), order=int(order), modified=n != 0.0, Tmin_K=nan,
+                        Tmax_K=nan, max_rel_deviation=nan, rms_rel_deviation=nan, n_points=0)
+
+
+@dataclass(frozen=True)
+class SpeciesFit:
+    """NASA polynomial of one exported species and its enthalpy zero.
+
+    name: the study's species name; formula, composition (element -> count).
+    role: "reactant/product", "complex" or "bath gas".
+    source: species file, or a description for built-in species.
+    nasa7: the two-range fit (enthalpy on the exported scale, J/mol; 1 bar).
+    energy_J_per_mol: electronic energy on the study's scale [J/mol].
+    zpe_J_per_mol: harmonic zero-point energy [J/mol].
+    enthalpy_offset_J_per_mol: sum_j n_j c_j subtracted from E + ZPE [J/mol].
+    h0_exported_J_per_mol: E + ZPE - offset, the exported H(0 K) [J/mol].
+    note: a remark (e.g. the bath gas's own zero), or None.
+    errors_at_extra: max relative errors {"cp", "h", "s"} of the polynomials at the
+        study temperatures (H against max(|H|, RT)), or None.
+    """
+
+    name: str
+    formula: str
+    composition: dict
+    role: str
+    source: str | None
+    nasa7: Nasa7Fit
+    energy_J_per_mol: float
+    zpe_J_per_mol: float
+    enthalpy_offset_J_per_mol: float
+    h0_exported_J_per_mol: float
+    note: str | None = None
+    errors_at_extra: dict | None = None
+
+
+@dataclass(frozen=True)
+class ChannelFit:
+    """Fitted expressions of one channel.
+
+    temperature_K, k_SI: the data fitted (TST with tunnelling, SI per molecule).
+    arrhenius, modified: two- and three-parameter fits over all temperatures.
+    split: two-range fit when asked, else None.
+    mechanism_form: "modified" or "arrhenius": the expression written to mechanisms.
+    max_abs_ln_kc_error: max |ln Kc from the NASA polynomials - tstrate's ln Kc|
+        over the fitted temperatures (dimensionless).
+    troe: falloff parameters, or None.
+    warnings: sentences about the fits.
+    """
+
+    name: str
+    reactants: tuple[str, ...]
+    products: tuple[str, ...]
+    order: int
+    reverse_order: int
+    temperature_K: np.ndarray
+    k_SI: np.ndarray
+    arrhenius: ArrheniusFit
+    modified: ArrheniusFit
+    split: SplitArrheniusFit | None
+    mechanism_form: str
+    max_abs_ln_kc_error: float
+    troe: TroeData | None = None
+    warnings: tuple[str, ...] = ()
+
+    @property
+    def expression(self) -> ArrheniusFit:
+        """The single expression used in mechanism files."""
+        return self.modified if self.mechanism_form == "modified" else self.arrhenius
+
+    @property
+    def equation(self) -> str:
+        """Human-readable equation with tstrate's species names."""
+        return f"{' + '.join(self.reactants)} <=> {' + '.join(self.products)}"
+
+
+@dataclass(frozen=True)
+class StudyFits:
+    """Everything fitted for one study, ready for export.
+
+    study_file, title: where the numbers come from.
+    temperature_K: the temperatures the rate constants were fitted over [K].
+    low_modes: low-mode treatment used for rates and thermochemistry.
+    species: exported species (reactants, products, complexes, bath gas).
+    channels: one ChannelFit per channel, in study order.
+    element_offsets_J_per_mol: element -> c_j [J/mol per atom] (see module docstring).
+    bath_gas: name of the bath-gas species in ``species`` used by falloff reactions, or None.
+    warnings: study-level warnings (channel warnings are kept with the channels).
+    created: UTC time stamp (ISO 8601); version: tstrate version.
+    """
+
+    study_file: str | None
+    title: str
+    temperature_K: np.ndarray
+    low_modes: LowModes
+    species: tuple[SpeciesFit, ...]
+    channels: tuple[ChannelFit, ...]
+    element_offsets_J_per_mol: dict
+    bath_gas: str | None = None
+    warnings: tuple[str, ...] = ()
+    created: str = ""
+    version: str = ""
+    input_files: tuple[str, ...] = field(default=())
+
+    def species_fit(self, name: str) -> SpeciesFit:
+        for s in self.species:
+            if s.name == name:
+                return s
+        raise KeyError(name)
+
+    def channel_fit(self, name: str) -> ChannelFit:
+        for c in self.channels:
+            if c.name == name:
+                return c
+        raise KeyError(name)
+
+    @property
+    def elements(self) -> list[str]:
+        """All elements of the exported species (Hill order)."""
+        return element_order({e for s in self.species for e in s.composition})
+
+
+# ============================================================================
+# NASA polynomials and the enthalpy zero
+# ============================================================================
+
+def nasa_range(study_temperature_K=None, *, range_K=NASA_RANGE_DEFAULT_K) -> tuple[float, float]:
+    """NASA fit range [K]: ``range_K`` widened to cover the study temperatures.
+
+    The low end is rounded down to 10 K, the high end up to 100 K.
+    """
+    try:
+        lo, hi = (float(x) for x in range_K)
+    except (TypeError, ValueError):
+        raise InputError(f"NASA range must be two temperatures, got {range_K!r}",
+                         field="nasa_range_K") from None
+    if not (0 < lo < hi and math.isfinite(hi)):
+        raise InputError(f"NASA range must be two increasing positive temperatures, got {range_K!r}",
+                         field="nasa_range_K")
+    T_study = np.array([]) if study_temperature_K is None else np.atleast_1d(
+        np.asarray(study_temperature_K, dtype=float))
+    if T_study.size:
+        lo = min(lo, math.floor(T_study.min() / 10.0) * 10.0 or float(T_study.min()))
+        hi = max(hi, math.ceil(T_study.max() / 100.0) * 100.0)
+    return lo, hi
+
+
+def nasa_grid(lo_K: float, hi_K: float, T_mid_K: float, extra_K=()) -> np.ndarray:
+    """Fit grid [K]: evenly spaced points in each range plus ``extra_K`` inside [lo, hi]."""
+    extra = np.atleast_1d(np.asarray(extra_K, dtype=float))
+    extra = extra[(extra >= lo_K) & (extra <= hi_K)]
+    return np.unique(np.concatenate([np.linspace(lo_K, T_mid_K, _NASA_POINTS_PER_RANGE),
+                                     np.linspace(T_mid_K, hi_K, _NASA_POINTS_PER_RANGE), extra]))
+
+
+def midpoint_candidates(lo_K: float, hi_K: float) -> list[float]:
+    """Common temperatures [K] tried when the fit chooses the midpoint: 400-1200 K in 50 K
+    steps, kept at least 100 K inside the range (else the geometric middle)."""
+    cands = [float(t) for t in np.arange(400.0, 1200.0 + 1.0, 50.0)
+             if lo_K + 100.0 <= t <= hi_K - 100.0]
+    return cands or [float(round(math.sqrt(lo_K * hi_K), -1))]
+
+
+def element_offsets(species_list) -> dict[str, float]:
+    """Per-element offsets c_j [J/mol] with sum_j n_ij c_j ~ E_i + ZPE_i in least squares.
+
+    ``species_list`` holds Species with electronic energies. The minimum-norm
+    solution is taken when the atom counts are linearly dependent; any
+    solution leaves every atom-balanced reaction energy unchanged.
+    """
+    from tstrate.physics.tst import zpe_level_J_per_mol
+
+    species_list = list(species_list)
+    if not species_list:
+        return {}
+    elements = element_order({e for s in species_list for e in s.atom_counts})
+    counts = np.array([[s.atom_counts.get(e, 0) for e in elements] for s in species_list], dtype=float)
+    e0 = np.array([zpe_level_J_per_mol(s) for s in species_list])
+    # centre the target for conditioning; the constant is carried by the atom counts
+    scale = max(1.0, float(np.max(np.abs(e0))))
+    coef, *_ = np.linalg.lstsq(counts, e0 / scale, rcond=None)
+    return {e: float(c * scale) for e, c in zip(elements, coef)}
+
+
+def _offset(species, offsets: Mapping[str, float]) -> float:
+    return float(sum(n * offsets[e] for e, n in species.atom_counts.items()))
+
+
+def _check_energy(species) -> None:
+    if species.energy_J_per_mol is None:
+        raise InputError(f"species {species.name!r} has no electronic energy, so its enthalpy "
+                         "cannot be exported", file=species.source, field="energy",
+                         hint="add energy = { value = ..., unit = \"hartree\" } to the species file")
+
+
+def _worst(nasa: Nasa7Fit) -> float:
+    return max(nasa.max_rel_error_cp, nasa.max_rel_error_h, nasa.max_rel_error_s)
+
+
+def fit_species_nasa(species, T_range_K, T_mid_K: float | None = NASA_T_MID_DEFAULT_K, *,
+                     adjust_mid: bool = True, extra_K=(), low_modes: LowModes = HARMONIC,
+                     offset_J_per_mol: float = 0.0, role: str = "reactant/product",
+                     note: str | None = None, h0_J_per_mol: float | None = None) -> SpeciesFit:
+    """NASA fit of one species' thermochemistry over ``T_range_K`` = (Tmin, Tmax) [K].
+
+    ``T_mid_K`` is the common temperature [K]. When it is None, not at least
+    100 K inside the range, or (with ``adjust_mid``) the fit at it has a
+    relative error above :data:`NASA_WARN_REL_ERROR`, the candidates of
+    :func:`midpoint_candidates` are tried too and the one with the smallest
+    largest relative error of Cp, H and S is kept. ``extra_K`` are
+    temperatures [K] added to the grid (e.g. the study's; the errors over
+    them are in ``errors_at_extra``). The fitted enthalpy is E + ZPE -
+    ``offset_J_per_mol`` + [H(T) - H(0)] [J/mol], or ``h0_J_per_mol`` +
+    [H(T) - H(0)] when that is given (bath gas with its own zero).
+    """
+    _check_energy(species)
+    lo, hi = (float(x) for x in T_range_K)
+
+    def fit_at(mid):
+        grid = nasa_grid(lo, hi, mid, extra_K)
+        th = thermochemistry(species, grid, low_modes=low_modes)
+        h0 = (species.energy_J_per_mol + th.zpe_J_per_mol - offset_J_per_mol
+              if h0_J_per_mol is None else float(h0_J_per_mol))
+        try:
+            nasa = fit_nasa7(th.temperature_K, th.heat_capacity_J_per_mol_K,
+                             h0 + th.enthalpy_increment_J_per_mol, th.entropy_J_per_mol_K,
+                             T_mid_K=mid)
+        except InputError as exc:
+            raise exc.located(file=species.source, field=f"species {species.name}") from None
+        return nasa, h0, th.zpe_J_per_mol
+
+    fixed_ok = T_mid_K is not None and lo + 100.0 <= float(T_mid_K) <= hi - 100.0
+    tried = []
+    if fixed_ok:
+        tried.append(fit_at(float(T_mid_K)))
+    if not fixed_ok or (adjust_mid and _worst(tried[0][0]) > NASA_WARN_REL_ERROR):
+        tried += [fit_at(m) for m in midpoint_candidates(lo, hi)
+                  if not (fixed_ok and m == float(T_mid_K))]
+    nasa, h0, zpe = min(tried, key=lambda t: _worst(t[0]))
+    if h0_J_per_mol is not None:
+        offset_J_per_mol = species.energy_J_per_mol + zpe - h0
+    extra = np.atleast_1d(np.asarray(extra_K, dtype=float))
+    extra = extra[(extra >= lo) & (extra <= hi)]
+    errors_at_extra = _nasa_errors(species, nasa, h0, extra, low_modes) if extra.size else None
+    counts = species.atom_counts
+    return SpeciesFit(name=species.name, formula=species.formula,
+                      composition={e: int(counts[e]) for e in element_order(counts)}, role=role,
+                      source=species.source, nasa7=nasa,
+                      energy_J_per_mol=float(species.energy_J_per_mol), zpe_J_per_mol=float(zpe),
+                      enthalpy_offset_J_per_mol=float(offset_J_per_mol),
+                      h0_exported_J_per_mol=float(h0), note=note, errors_at_extra=errors_at_extra)
+
+
+def _nasa_errors(species, nasa: Nasa7Fit, h0: float, T, low_modes) -> dict:
+    """Max relative errors of Cp, H (against max(|H|, RT)) and S at temperatures T [K]."""
+    th = thermochemistry(species, T, low_modes=low_modes)
+    h = h0 + th.enthalpy_increment_J_per_mol
+    return {
+        "cp": float(np.max(np.abs(nasa.cp_J_per_mol_K(T) / th.heat_capacity_J_per_mol_K - 1))),
+        "h": float(np.max(np.abs(nasa.h_J_per_mol(T) - h) / np.maximum(np.abs(h), R * T))),
+        "s": float(np.max(np.abs(nasa.s_J_per_mol_K(T) / th.entropy_J_per_mol_K - 1))),
+    }
+
+
+def ln_kc_from_nasa(reactant_fits, product_fits, temperature_K) -> np.ndarray:
+    """ln Kc [molecule m^-3 units] of reactants <=> products from NASA polynomials.
+
+    ln Kc = -dG/RT + dn ln(p0 / k_B T), p0 = 1 bar, dn = n_products - n_reactants.
+    """
+    T = np.asarray(temperature_K, dtype=float)
+    dg = (sum(np.asarray(f.nasa7.g_J_per_mol(T)) for f in product_fits)
+          - sum(np.asarray(f.nasa7.g_J_per_mol(T)) for f in reactant_fits))
+    dn = len(product_fits) - len(reactant_fits)
+    return -dg / (R * T) + dn * np.log(P_STANDARD / (K_B * T))
+
+
+# ============================================================================
+# bath gas
+# ============================================================================
+
+def default_reference_dir() -> Path:
+    """``molecules/reference`` of the source tree (experimental reference species)."""
+    return Path(__file__).resolve().parents[2] / "molecules" / "reference"
+
+
+def _bath_species(name: str, reference_dir: Path | None):
+    """A Species for a bath gas that is not in the study, or None when unknown."""
+    from tstrate.io.species import build_species, read_species
+
+    ref = Path(reference_dir) if reference_dir is not None else default_reference_dir()
+    path = ref / f"{name.lower()}.toml"
+    if path.is_file():
+        return read_species(path, name=name)
+    for gas in _NOBLE_GASES:
+        if name.lower() == gas.lower():
+            return build_species(gas, [gas], [[0.0, 0.0, 0.0]], frequencies_cm1=[], energy_J_per_mol=0.0,
+                                 source=f"built-in {gas} atom (ideal-gas translation only)",
+                                 provenance={"method": "ideal-gas atom"})
+    return None
+
+
+# ============================================================================
+# the whole study
+# ============================================================================
+
+def _fit_channel(cr, ch, *, max_deviation, T0_K, split, mechanism_form, troe, file):
+    T, k = cr.temperature_K, cr.k
+    where = dict(file=file, field=f"channel {ch.name}")
+    if np.unique(T).size < 3:
+        raise InputError(f"{np.unique(T).size} temperature(s) given; the modified Arrhenius fit "
+                         "needs at least 3", hint="add temperatures to [conditions]", **where)
+    try:
+        arr = fit_arrhenius(T, k, order=cr.order, modified=False, T0_K=T0_K,
+                            max_deviation=max_deviation)
+        mod = fit_arrhenius(T, k, order=cr.order, modified=True, T0_K=T0_K,
+                            max_deviation=max_deviation)
+        sp = None
+        if split is not False and split is not None:
+            sp = fit_arrhenius_split(T, k, order=cr.order, modified=mechanism_form == "modified",
+                                     T0_K=T0_K, max_deviation=max_deviation,
+                                     break_K=None if split is True else float(split))
+    except InputError as exc:
+        raise exc.located(**where) from None
+    warnings = [f"channel {ch.name}: {w}" for w in (arr.warning, mod.warning) if w]
+    if sp is not None:
+        warnings += [f"channel {ch.name} split fit ({side} range): {f.warning}"
+                     for side, f in (("low", sp.low), ("high", sp.high)) if f.warning]
+    if troe is not None and troe.kinf.order != cr.order:
+        raise InputError(f"Troe k_inf has order {troe.kinf.order} but the channel has "
+                         f"{cr.order} reactant(s)", **where)
+    return dict(name=ch.name, reactants=tuple(ch.reactants), products=tuple(ch.products),
+                order=cr.order, reverse_order=cr.reverse_order, temperature_K=T, k_SI=k,
+                arrhenius=arr, modified=mod, split=sp, mechanism_form=mechanism_form,
+                troe=troe), warnings
+
+
+def fit_study(study, *, temperature_K=None, low_modes: LowModes = HARMONIC,
+              max_deviation: float = MAX_DEVIATION_DEFAULT, T0_K: float = T0_DEFAULT_K,
+              split: bool | float = False, mechanism_form: str = "modified",
+              nasa_range_K=NASA_RANGE_DEFAULT_K, nasa_T_mid_K: float | None = NASA_T_MID_DEFAULT_K,
+              nasa_adjust_mid: bool = True,
+              troe: Mapping[str, TroeData] | None = None, bath_gas: str | None = None,
+              reference_dir=None) -> StudyFits:
+    """Fit every channel's k(T) and every exported species' thermochemistry.
+
+    Parameters
+    ----------
+    study: a :class:`tstrate.model.Study`.
+    temperature_K: temperatures [K] to fit k(T) over (default: the study's).
+    low_modes: low-mode treatment for rates and thermochemistry.
+    max_deviation: warning threshold of the max relative deviation of k (fraction).
+    T0_K: reference temperature of the modified Arrhenius form [K].
+    split: False (no split fit), True (break searched) or a break temperature [K].
+    mechanism_form: "modified" (default) or "arrhenius": the expression for mechanisms.
+    nasa_range_K, nasa_T_mid_K: NASA range and common temperature [K]; the range is
+        widened to the study temperatures (:func:`nasa_range`).
+    nasa_adjust_mid: let the fit move the common temperature when the fit at
+        ``nasa_T_mid_K`` errs by more than 0.1 % (see :func:`fit_species_nasa`).
+    troe: channel name -> :class:`TroeData` for falloff channels.
+    bath_gas: collision partner of falloff reactions (default: the study's
+        ``bath_gas``); added as a species when it is not one already.
+    reference_dir: folder of reference species files for the bath gas
+        (default ``molecules/reference`` of the source tree).
+    """
+    import tstrate
+    from tstrate.physics.tst import study_rates
+
+    if mechanism_form not in ("modified", "arrhenius"):
+        raise InputError(f"unknown mechanism form {mechanism_form!r}", field="mechanism_form",
+                         hint="use modified or arrhenius")
+    if not (isinstance(max_deviation, (int, float)) and max_deviation > 0):
+        raise InputError(f"max_deviation must be a positive fraction, got {max_deviation!r}",
+                         field="max_deviation")
+    troe = dict(troe or {})
+    names = {ch.name for ch in study.channels}
+    for key in troe:
+        if key not in names:
+            raise InputError(f"Troe data given for unknown channel {key!r}", file=study.file,
+                             field="troe", hint="channels: " + ", ".join(sorted(names)))
+    if not study.channels:
+        raise InputError("the study has no channels to fit", file=study.file, field="channel")
+
+    # ---- species: reactants/products, then complexes (study order of appearance)
+    roles: dict[str, str] = {}
+    for ch in study.channels:
+        for n in (*ch.reactants, *ch.products):
+            roles.setdefault(n, "reactant/product")
+    for ch in study.channels:
+        if ch.complex:
+            roles.setdefault(ch.complex, "complex")
+    exported = [study.species[n] for n in roles]
+    for sp in exported:
+        _check_energy(sp)
+
+    rates = study_rates(study, low_modes=low_modes, temperature_K=temperature_K)
+    T_fit = rates[0].temperature_K
+    lo, hi = nasa_range(T_fit, range_K=nasa_range_K)
+    nasa_kw = dict(T_range_K=(lo, hi), T_mid_K=nasa_T_mid_K, adjust_mid=nasa_adjust_mid,
+                   extra_K=T_fit, low_modes=low_modes)
+    offsets = element_offsets(exported)
+    species_fits = [fit_species_nasa(sp, **nasa_kw,
+                                     offset_J_per_mol=_offset(sp, offsets), role=roles[sp.name])
+                    for sp in exported]
+
+    # ---- bath gas for falloff reactions
+    study_warnings: list[str] = []
+    bath_name = None
+    if troe:
+        bath_name = bath_gas or study.conditions.bath_gas or next(
+            (t.bath_gas for t in troe.values() if t.bath_gas), None)
+        if bath_name is None:
+            study_warnings.append("falloff reactions are written with the generic collider M and "
+                                  "no bath gas is named; set the mixture composition yourself")
+        elif bath_name in roles:
+            pass
+        elif bath_name in study.species:
+            sp = study.species[bath_name]
+            _check_energy(sp)
+            if set(sp.atom_counts) - set(offsets):
+                study_warnings.append(f"bath gas {bath_name!r} holds elements no other species has; "
+                                      "its enthalpy zero is arbitrary")
+                offsets.update({e: 0.0 for e in sp.atom_counts if e not in offsets})
+            species_fits.append(fit_species_nasa(sp, **nasa_kw,
+                                                 offset_J_per_mol=_offset(sp, offsets),
+                                                 role="bath gas"))
+        else:
+            sp = _bath_species(bath_name, reference_dir)
+            if sp is None:
+                study_warnings.append(
+                    f"bath gas {bath_name!r} is neither a study species nor a reference species; "
+                    "falloff reactions use the generic collider M and the mechanism holds no "
+                    "bath-gas species (add one to the study to include it)")
+                bath_name = None
+            else:
+                shared = sorted(set(sp.atom_counts) & set(offsets))
+                note = ("bath gas from reference data: its enthalpy zero is its own, H(0 K) = 0, "
+                        "not the study's scale; it only serves as collision partner")
+                if shared:
+                    study_warnings.append(
+                        f"bath gas {bath_name!r} shares elements ({', '.join(shared)}) with the "
+                        "study species but is not on the study's energy scale; do not let it react")
+                species_fits.append(fit_species_nasa(sp, **nasa_kw,
+                                                     role="bath gas", note=note, h0_J_per_mol=0.0))
+
+    by_name = {f.name: f for f in species_fits}
+    for f in species_fits:
+        n = f.nasa7
+        worst = max(n.max_rel_error_cp, n.max_rel_error_h, n.max_rel_error_s)
+        if worst > NASA_WARN_REL_ERROR:
+            study_warnings.append(f"species {f.name}: NASA fit error up to {100 * worst:.2f} % "
+                                  f"over {n.Tmin_K:g}-{n.Tmax_K:g} K")
+
+    # ---- channels
+    channel_fits = []
+    for cr, ch in zip(rates, study.channels):
+        kwargs, warnings = _fit_channel(cr, ch, max_deviation=max_deviation, T0_K=T0_K, split=split,
+                                        mechanism_form=mechanism_form, troe=troe.get(ch.name),
+                                        file=study.file)
+        ln_kc = ln_kc_from_nasa([by_name[n] for n in ch.reactants],
+                                [by_name[n] for n in ch.products], cr.temperature_K)
+        kc_err = float(np.max(np.abs(ln_kc - cr.ln_kc)))
+        if kc_err > KC_WARN_LN_ERROR:
+            warnings.append(f"channel {ch.name}: Kc from the NASA polynomials differs from "
+                            f"tstrate's by up to {100 * math.expm1(kc_err):.2f} %")
+        channel_fits.append(ChannelFit(max_abs_ln_kc_error=kc_err, warnings=tuple(warnings),
+                                       **kwargs))
+
+    inputs = tuple(str(p) for p in ([study.file] if study.file else [])
+                   + list(study.species_files.values()))
+    return StudyFits(
+        study_file=study.file, title=study.title, temperature_K=T_fit, low_modes=low_modes,
+        species=tuple(species_fits), channels=tuple(channel_fits),
+        element_offsets_J_per_mol=offsets, bath_gas=bath_name, warnings=tuple(study_warnings),
+        created=_dt.datetime.now(_dt.timezone.utc).replace(microsecond=0).isoformat(),
+        version=getattr(tstrate, "__version__", "unknown"), input_files=inputs)
+
+
+# ============================================================================
+# JSON
+# ============================================================================
+
+def _pct(x):
+    return None if x is None or not math.isfinite(x) else 100.0 * float(x)
+
+
+def arrhenius_record(fit: ArrheniusFit, unit: str | None = None) -> dict:
+    """One Arrhenius expression with units in the keys.
+
+    ``A`` is given in ``A_unit`` (default: the trade's unit for the order,
+    e.g. cm3 molecule-1 s-1) and in SI per molecule (``A_SI``).
+    """
+    unit = unit or None
+    a_unit = unit if unit is not None else {1: "s-1", 2: "cm3 molecule-1 s-1",
+                                            3: "cm6 molecule-2 s-1"}[fit.order]
+    return {
+        "form": "modified Arrhenius k = A (T/T0)^n exp(-Ea/RT)" if fit.modified
+        else "Arrhenius k = A exp(-Ea/RT)",
+        "A": float(rate_from_SI(fit.A, fit.order, a_unit)),
+        "A_unit": a_unit,
+        "A_SI": fit.A,
+        "A_SI_unit": {1: "s-1", 2: "m3 molecule-1 s-1", 3: "m6 molecule-2 s-1"}[fit.order],
+        "n": fit.n,
+        "T0_K": fit.T0_K,
+        "Ea_kJ_per_mol": fit.Ea_J_per_mol / 1e3,
+        "Ea_over_R_K": fit.Ea_over_R_K,
+        "order": fit.order,
+        "Tmin_K": fit.Tmin_K,
+        "Tmax_K": fit.Tmax_K,
+        "n_points": fit.n_points,
+        "max_deviation_percent": _pct(fit.max_rel_deviation),
+        "rms_deviation_percent": _pct(fit.rms_rel_deviation),
+        "warning": fit.warning,
+    }
+
+
+def _troe_record(t: TroeData, rate_units) -> dict:
+    return {
+        "k0_low_pressure": arrhenius_record(t.k0, (rate_units or {}).get(t.k0.order)),
+        "kinf_high_pressure": arrhenius_record(t.kinf, (rate_units or {}).get(t.kinf.order)),
+        "a": t.a,
+        "T3_K": t.T3_K,
+        "T1_K": t.T1_K,
+        "T2_K": t.T2_K,
+        "Fcent_formula": "(1-a) exp(-T/T3) + a exp(-T/T1) + exp(-T2/T) (last term only with T2)",
+        "fit_max_deviation_percent": _pct(t.max_rel_deviation),
+        "fit_rms_deviation_percent": _pct(t.rms_rel_deviation),
+        "bath_gas": t.bath_gas,
+        "source": t.source,
+    }
+
+
+def _nasa_record(n: Nasa7Fit) -> dict:
+    return {
+        "form": "Cp/R = a1 + a2 T + a3 T^2 + a4 T^3 + a5 T^4; H/RT = a1 + a2 T/2 + a3 T^2/3 "
+                "+ a4 T^3/4 + a5 T^4/5 + a6/T; S/R = a1 ln T + a2 T + a3 T^2/2 + a4 T^3/3 "
+                "+ a5 T^4/4 + a7 (T in K)",
+        "Tmin_K": n.Tmin_K,
+        "Tmid_K": n.Tmid_K,
+        "Tmax_K": n.Tmax_K,
+        "low_range_coefficients": list(n.low),
+        "high_range_coefficients": list(n.high),
+        "reference_pressure_Pa": P_STANDARD,
+        "max_error_cp_percent": _pct(n.max_rel_error_cp),
+        "max_error_h_percent_of_max_abs_H_or_RT": _pct(n.max_rel_error_h),
+        "max_abs_error_h_J_per_mol": n.max_abs_error_h_J_per_mol,
+        "max_error_s_percent": _pct(n.max_rel_error_s),
+        "n_points": n.n_points,
+    }
+
+
+def fits_to_json(fits: StudyFits, rate_units: Mapping[int, str] | None = None) -> dict:
+    """A JSON-ready dict of everything in ``fits`` (units in every key).
+
+    ``rate_units`` maps order -> unit of A (default the trade's units,
+    s-1 / cm3 molecule-1 s-1 / cm6 molecule-2 s-1); A is also given in SI.
+    """
+    from tstrate.cli.common import to_jsonable
+
+    units = dict(rate_units or {})
+    channels = []
+    for c in fits.channels:
+        u = units.get(c.order)
+        entry = {
+            "name": c.name,
+            "equation": c.equation,
+            "reactants": list(c.reactants),
+            "products": list(c.products),
+            "order": c.order,
+            "reverse_order": c.reverse_order,
+            "fitted_temperature_range_K": [float(c.temperature_K.min()), float(c.temperature_K.max())],
+            "fitted_temperatures_K": c.temperature_K,
+            "rate_constant_data_SI": c.k_SI,
+            "rate_constant_data_SI_unit": {1: "s-1", 2: "m3 molecule-1 s-1",
+                                           3: "m6 molecule-2 s-1"}[c.order],
+            "includes_tunnelling": True,
+            "arrhenius": arrhenius_record(c.arrhenius, u),
+            "modified_arrhenius": arrhenius_record(c.modified, u),
+            "split": None if c.split is None else {
+                "break_K": c.split.break_K,
+                "jump_at_break_percent": _pct(c.split.jump_at_break),
+                "max_deviation_percent": _pct(c.split.max_rel_deviation),
+                "low": arrhenius_record(c.split.low, u),
+                "high": arrhenius_record(c.split.high, u),
+            },
+            "mechanism_expression": "modified_arrhenius" if c.mechanism_form == "modified"
+            else "arrhenius",
+            "Kc_check_max_abs_ln_difference": c.max_abs_ln_kc_error,
+            "falloff_troe": None if c.troe is None else _troe_record(c.troe, units),
+            "warnings": list(c.warnings),
+        }
+        channels.append(entry)
+    species = []
+    for s in fits.species:
+        species.append({
+            "name": s.name,
+            "formula": s.formula,
+            "composition": s.composition,
+            "role": s.role,
+            "source": s.source,
+            "electronic_energy_J_per_mol": s.energy_J_per_mol,
+            "zpe_J_per_mol": s.zpe_J_per_mol,
+            "enthalpy_offset_J_per_mol": s.enthalpy_offset_J_per_mol,
+            "H0K_exported_J_per_mol": s.h0_exported_J_per_mol,
+            "H298_exported_kJ_per_mol": float(s.nasa7.h_J_per_mol(298.15)) / 1e3
+            if s.nasa7.Tmin_K <= 298.15 <= s.nasa7.Tmax_K else None,
+            "nasa7": _nasa_record(s.nasa7),
+            "nasa7_errors_at_fitted_temperatures_percent": None if s.errors_at_extra is None
+            else {"cp": _pct(s.errors_at_extra["cp"]),
+                  "h_of_max_abs_H_or_RT": _pct(s.errors_at_extra["h"]),
+                  "s": _pct(s.errors_at_extra["s"])},
+            "note": s.note,
+        })
+    out = {
+        "study": fits.study_file,
+        "title": fits.title,
+        "created_utc": fits.created,
+        "tstrate_version": fits.version,
+        "caution": "estimates from transition-state theory on computed stationary points; "
+                   "check them against measurements before relying on them",
+        "low_modes": {"method": fits.low_modes.method, "cutoff_cm1": fits.low_modes.cutoff_cm1},
+        "fitted_temperatures_K": fits.temperature_K,
+        "enthalpy_zero": {
+            "description": "H_export = E + ZPE + [H(T) - H(0)] - sum_j n_j c_j with per-element "
+                           "offsets c_j (least squares over the exported study species); "
+                           "reaction energies and Kc are unchanged; values are not enthalpies "
+                           "of formation",
+            "element_offsets_J_per_mol": fits.element_offsets_J_per_mol,
+        },
+        "standard_state": "1 bar (NASA polynomials); rate constants per molecule",
+        "bath_gas": fits.bath_gas,
+        "species": species,
+        "channels": channels,
+        "warnings": list(fits.warnings) + [w for c in fits.channels for w in c.warnings],
+    }
+    return to_jsonable(out)
+
+
+__all__ = ["TroeData", "SpeciesFit", "ChannelFit", "StudyFits", "fit_study", "fits_to_json",
+           "arrhenius_expression", "arrhenius_record", "element_offsets", "fit_species_nasa",
+           "ln_kc_from_nasa", "nasa_grid", "nasa_range", "midpoint_candidates", "element_order", "default_reference_dir",
+           "NASA_RANGE_DEFAULT_K", "NASA_T_MID_DEFAULT_K"]

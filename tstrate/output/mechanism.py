@@ -1,0 +1,297 @@
+"""Mechanism files in Cantera's YAML input format (an open format read by a general-purpose
+kinetics library), written from :class:`tstrate.output.fits.StudyFits`.
+
+What the file holds
+-------------------
+- a header comment: source study, date, tstrate version, the caution that the
+  numbers are estimates, the units, the enthalpy zero, renamed species and
+  the fit warnings;
+- ``units: {length: cm, time: s, quantity: molec, activation-energy: K}``:
+  pre-exponential factors in molecule-cm-s units (s^-1, cm^3 molecule^-1 s^-1,
+  cm^6 molecule^-2 s^-1; low-pressure limits one order higher) and activation
+  energies as Ea/R in K, the conventions of atmospheric kinetics tables;
+- one phase of kind ``ideal-gas`` with all elements and species, gas kinetics
+  and all reactions;
+- the species with their fitted NASA 7-coefficient polynomials
+  (``reference-pressure`` 1 bar, the standard state tstrate uses);
+- one reversible reaction (``<=>``) per channel, so Cantera computes the
+  reverse rate constant from the polynomials: ``type: elementary`` with the
+  channel's fitted (modified) Arrhenius expression, or ``type: falloff`` with
+  ``(+M)``, low- and high-pressure limits and ``Troe`` parameters when Troe
+  data were given. Cantera's form is k = A T^b exp(-Ea/RT) with T in K, so the
+  modified Arrhenius A (T/T0)^n becomes A T0^-n T^n.
+
+``type: elementary`` is written explicitly: without it Cantera would read a
+channel such as ``H2CO3 + H2O <=> CO2 + 2 H2O`` (one species on both sides,
+three products) as a three-body reaction.
+
+Falloff reactions use the generic collider M with all efficiencies 1: the
+Troe k0 belongs to the study's bath gas, which is added as a species (see
+:mod:`tstrate.output.fits`), so a mixture of that bath gas reproduces it;
+other colliders count as if they were the bath gas (a limitation).
+
+Species names: Cantera reads species names out of the equation strings, so
+names with spaces, ``+``, ``=``, ``<``, ``>``, non-ASCII characters, a
+leading digit, or the reserved ``M`` are written under a safe name (listed in
+the header and returned by :func:`cantera_names`).
+
+The YAML is written by hand (flow-style mappings and lists, quoted strings);
+Cantera is not needed to write it.
+"""
+
+from __future__ import annotations
+
+import json
+import math
+import re
+from collections import Counter
+from pathlib import Path
+
+from tstrate.errors import InputError
+from tstrate.io.files import atomic_write_text
+from tstrate.output.tables import check_not_input
+from tstrate.units import P_STANDARD, rate_from_SI
+
+#: The units block of every file written here.
+UNITS_LINE = "units: {length: cm, time: s, quantity: molec, activation-energy: K}"
+CAUTION = ("CAUTION: these rate constants and thermochemical data are estimates from "
+           "transition-state theory on computed stationary points, not measurements; check "
+           "them against experiments before relying on them.")
+
+_UNSAFE = re.compile(r"[^A-Za-z0-9_\-.*'()\[\]]")
+_RESERVED = {"M"}
+
+
+# ============================================================================
+# names and numbers
+# ============================================================================
+
+def _safe(name: str) -> str:
+    safe = _UNSAFE.sub("_", name.replace("(+", "_"))
+    if not _balanced(safe):
+        safe = safe.replace("(", "_").replace(")", "_")
+    if not safe or safe[0].isdigit() or safe[0] in "-.(":
+        safe = "S_" + safe
+    if safe in _RESERVED:
+        safe = safe + "_"
+    return safe
+
+
+def cantera_names(names) -> dict[str, str]:
+    """tstrate species name -> a unique name Cantera can read in equations.
+
+    Names that are safe already keep themselves; the others get unsafe
+    characters replaced by ``_`` (``S_`` in front of a leading digit, ``_``
+    after the reserved ``M``) and a numeric suffix when that clashes.
+    """
+    names = list(dict.fromkeys(names))
+    out = {n: n for n in names if _safe(n) == n}
+    used = set(out)
+    for name in names:
+        if name in out:
+            continue
+        base = _safe(name)
+        safe, i = base, 2
+        while safe in used:
+            safe = f"{base}_{i}"
+            i += 1
+        used.add(safe)
+        out[name] = safe
+    return {n: out[n] for n in names}
+
+
+def _balanced(s: str) -> bool:
+    depth = 0
+    for ch in s:
+        depth += {"(": 1, ")": -1}.get(ch, 0)
+        if depth < 0:
+            return False
+    return depth == 0
+
+
+def _num(x) -> str:
+    """A float as a YAML number (always with a decimal point)."""
+    x = float(x)
+    if not math.isfinite(x):
+        raise InputError(f"cannot write the non-finite number {x!r} to a mechanism file",
+                         field="mechanism")
+    s = repr(x)
+    mant, _, exp = s.partition("e")
+    if "." not in mant:
+        mant += ".0"
+    return mant + ("e" + exp if exp else "")
+
+
+def _q(s: str) -> str:
+    """A YAML double-quoted string (JSON escapes are valid YAML escapes)."""
+    return json.dumps(str(s), ensure_ascii=True)
+
+
+def _side(names, cn) -> str:
+    counts = Counter(names)
+    parts = []
+    for n in dict.fromkeys(names):
+        c = counts[n]
+        parts.append(f"{c} {cn[n]}" if c > 1 else cn[n])
+    return " + ".join(parts)
+
+
+def _arrhenius_flow(fit, order: int) -> str:
+    """Cantera rate mapping: A in molec-cm-s units, b = n, Ea as Ea/R in K."""
+    a = float(rate_from_SI(fit.A, order)) * fit.T0_K ** (-fit.n)
+    return f"{{A: {_num(a)}, b: {_num(fit.n)}, Ea: {_num(fit.Ea_over_R_K)}}}"
+
+
+# ============================================================================
+# text
+# ============================================================================
+
+def _header(fits, cn) -> list[str]:
+    lines = [
+        f"# Mechanism in Cantera's YAML format, written by tstrate {fits.version} on {fits.created}",
+        f"# Source study: {fits.study_file or '(built in Python)'}",
+        f"# Title: {fits.title}",
+        "#",
+        f"# {CAUTION}",
+        "#",
+        "# Units: A in s-1 (unimolecular), cm3 molecule-1 s-1 (bimolecular), cm6 molecule-2 s-1",
+        "# (termolecular; falloff low-pressure limits one order higher); b is the temperature",
+        "# exponent with T in K (k = A T^b exp(-Ea/RT)); Ea is given as Ea/R in K.",
+        "# Rate constants are TST with tunnelling, fitted over "
+        f"{float(min(fits.temperature_K)):g}-{float(max(fits.temperature_K)):g} K; "
+        "reverse rates follow from the",
+        "# NASA polynomials (reversible reactions).",
+        "# Thermochemistry: NASA 7-coefficient polynomials fitted to tstrate's ideal-gas "
+        f"thermochemistry (low modes: {fits.low_modes.method}),",
+        "# standard state 1 bar.",
+        "# Enthalpy zero: H = E + ZPE + [H(T) - H(0)] - sum_j n_j c_j with per-element offsets "
+        "c_j [J/mol per atom]:",
+        "#   " + ", ".join(f"{e}: {_num(c)}" for e, c in fits.element_offsets_J_per_mol.items()),
+        "# (reaction energies and equilibrium constants are unchanged; these are not enthalpies "
+        "of formation).",
+    ]
+    renamed = [(n, c) for n, c in cn.items() if n != c]
+    if renamed:
+        lines.append("# Species renamed for Cantera: "
+                     + "; ".join(f"{n!r} -> {c!r}" for n, c in renamed))
+    warnings = list(fits.warnings) + [w for c in fits.channels for w in c.warnings]
+    if warnings:
+        lines.append("# Warnings:")
+        lines += [f"#   - {w}" for w in warnings]
+    return [ln.replace("\n", " ") for ln in lines]
+
+
+def _species_block(s, cn) -> list[str]:
+    n = s.nasa7
+    comp = ", ".join(f"{e}: {c}" for e, c in s.composition.items())
+    note = f"tstrate species {s.name} ({s.role}); source: {s.source}"
+    if s.note:
+        note += f"; {s.note}"
+    note += (f"; fit errors: Cp {100 * n.max_rel_error_cp:.3f} %, "
+             f"H {n.max_abs_error_h_J_per_mol:.3g} J/mol, S {100 * n.max_rel_error_s:.3f} %")
+    return [
+        f"- name: {_q(cn[s.name])}",
+        f"  composition: {{{comp}}}",
+        "  thermo:",
+        "    model: NASA7",
+        f"    reference-pressure: {_num(P_STANDARD)}",
+        f"    temperature-ranges: [{_num(n.Tmin_K)}, {_num(n.Tmid_K)}, {_num(n.Tmax_K)}]",
+        "    data:",
+        "    - [" + ", ".join(_num(a) for a in n.low) + "]",
+        "    - [" + ", ".join(_num(a) for a in n.high) + "]",
+        f"  note: {_q(note)}",
+    ]
+
+
+def _reaction_block(c, cn, duplicate: bool) -> list[str]:
+    lhs, rhs = _side(c.reactants, cn), _side(c.products, cn)
+    if c.troe is None:
+        e = c.expression
+        note = (f"channel {c.name}; {'modified ' if e.modified else ''}Arrhenius fit over "
+                f"{e.Tmin_K:g}-{e.Tmax_K:g} K, max deviation {100 * e.max_rel_deviation:.2f} %")
+        lines = [f"- equation: {_q(f'{lhs} <=> {rhs}')}",
+                 "  type: elementary",
+                 f"  rate-constant: {_arrhenius_flow(e, c.order)}"]
+    else:
+        t = c.troe
+        if c.order + 1 > 3:
+            raise InputError(f"channel {c.name!r}: a falloff reaction with {c.order} reactants "
+                             "would need a low-pressure limit of order 4", field="troe")
+        troe = f"A: {_num(t.a)}, T3: {_num(t.T3_K)}, T1: {_num(t.T1_K)}"
+        if t.T2_K is not None:
+            troe += f", T2: {_num(t.T2_K)}"
+        note = f"channel {c.name}; Troe falloff"
+        if t.max_rel_deviation is not None and math.isfinite(t.max_rel_deviation):
+            note += f", fit max deviation {100 * t.max_rel_deviation:.2f} %"
+        if t.bath_gas:
+            note += f", computed for bath gas {t.bath_gas}"
+        if t.source:
+            note += f"; {t.source}"
+        lines = [f"- equation: {_q(f'{lhs} (+M) <=> {rhs} (+M)')}",
+                 "  type: falloff",
+                 f"  low-P-rate-constant: {_arrhenius_flow(t.k0, t.k0.order)}",
+                 f"  high-P-rate-constant: {_arrhenius_flow(t.kinf, t.kinf.order)}",
+                 f"  Troe: {{{troe}}}"]
+    if duplicate:
+        lines.append("  duplicate: true")
+    lines.append(f"  note: {_q(note)}")
+    return lines
+
+
+def _duplicates(channels) -> set[str]:
+    """Channels sharing stoichiometry (either direction) and reaction type with another."""
+    keys: dict = {}
+    for c in channels:
+        r, p = tuple(sorted(c.reactants)), tuple(sorted(c.products))
+        key = (frozenset([r, p]) if r != p else frozenset([r]), c.troe is None)
+        keys.setdefault(key, []).append(c.name)
+    return {n for names in keys.values() if len(names) > 1 for n in names}
+
+
+def mechanism_yaml(fits, *, phase_name: str = "gas") -> str:
+    """The text of a Cantera YAML mechanism for ``fits`` (see the module docstring)."""
+    cn = cantera_names([s.name for s in fits.species])
+    dups = _duplicates(fits.channels)
+    elements = fits.elements
+    t_state = min(max(298.15, min(s.nasa7.Tmin_K for s in fits.species)),
+                  max(s.nasa7.Tmax_K for s in fits.species))
+    lines = _header(fits, cn)
+    lines += [
+        "",
+        "generator: tstrate",
+        f"date: {_q(fits.created)}",
+        "",
+        UNITS_LINE,
+        "",
+        "phases:",
+        f"- name: {_q(phase_name)}",
+        "  thermo: ideal-gas",
+        "  elements: [" + ", ".join(_q(e) for e in elements) + "]",
+        "  species: [" + ", ".join(_q(cn[s.name]) for s in fits.species) + "]",
+        "  kinetics: gas",
+        "  reactions: all",
+        f"  state: {{T: {_num(t_state)}, P: {_num(P_STANDARD)}}}",
+        "",
+        "species:",
+    ]
+    for s in fits.species:
+        lines += _species_block(s, cn)
+    lines += ["", "reactions:"]
+    for c in fits.channels:
+        lines += _reaction_block(c, cn, c.name in dups)
+    return "\n".join(lines) + "\n"
+
+
+def write_mechanism(fits, path, *, phase_name: str = "gas") -> Path:
+    """Write :func:`mechanism_yaml` to ``path`` atomically; never over an input file.
+
+    Raises InputError when ``path`` is one of the study's input files or the
+    folder cannot be written. Returns the path written.
+    """
+    path = Path(path)
+    check_not_input(path, fits.input_files)
+    atomic_write_text(path, mechanism_yaml(fits, phase_name=phase_name))
+    return path
+
+
+__all__ = ["mechanism_yaml", "write_mechanism", "cantera_names", "UNITS_LINE", "CAUTION"]
