@@ -405,3 +405,54 @@ def test_bad_nasa_range(carbonic):
     with pytest.raises(InputError, match="NASA range"):
         fit_study(carbonic, nasa_range_K=(3000.0, 200.0))
     assert math.isfinite(fit_study(carbonic, nasa_range_K=(150.0, 1500.0)).species[0].nasa7.Tmax_K)
+
+
+# ----------------------------------------------------------------------------- complexes, bath
+
+COMPLEX_TOML = '''# invented numbers for tests: H2CO3...H2O pre-reactive complex
+name = "H2CO3_H2O"
+charge = 0
+multiplicity = 1
+geometry = """
+C   0.000000   0.000000  0.000000
+O   0.000000   1.210000  0.000000
+O   1.160000  -0.670000  0.000000
+O  -1.160000  -0.670000  0.000000
+H   1.857879   0.003695  0.000000
+H  -1.857879   0.003695  0.000000
+O   3.300000   1.200000  0.000000
+H   3.800000   1.700000  0.600000
+H   3.700000   0.350000  0.000000
+"""
+frequencies_cm1 = [60.0, 90.0, 130.0, 170.0, 220.0, 300.0, 530.0, 560.0, 600.0, 680.0, 800.0,
+                   990.0, 1200.0, 1350.0, 1490.0, 1600.0, 1850.0, 3600.0, 3700.0, 3795.0, 3800.0]
+energy = { value = -340.9100, unit = "hartree" }
+'''
+
+
+def test_complex_and_study_bath_gas_are_exported(tmp_path):
+    """A pre-reactive complex gets a NASA fit (role "complex"); a bath gas that is a study
+    species outside every channel is exported on the study's scale, its own element (N) set
+    so that its H(0 K) = 0."""
+    folder = tmp_path / "carbonic"
+    shutil.copytree(CARBONIC.parent, folder)
+    (folder / "complex.toml").write_text(COMPLEX_TOML)
+    shutil.copy(REFERENCE / "n2.toml", folder / "n2.toml")
+    text = (folder / "study.toml").read_text()
+    text = text.replace('H2O = "h2o.toml"', 'H2O = "h2o.toml"\nH2CO3_H2O = "complex.toml"\nN2 = "n2.toml"')
+    text = text.replace('bath_gas = "CO2"', 'bath_gas = "N2"')
+    text = text.replace('products = ["CO2", "H2O", "H2O"]',
+                        'products = ["CO2", "H2O", "H2O"]\ncomplex = "H2CO3_H2O"')
+    (folder / "study.toml").write_text(text)
+    study = read_study(folder / "study.toml")
+    base = fit_study(study)
+    cx = base.species_fit("H2CO3_H2O")
+    assert cx.role == "complex" and cx.composition == {"C": 1, "H": 4, "O": 4}
+    assert "N2" not in [s.name for s in base.species]        # no falloff: no bath gas needed
+    troe = TroeData(k0=arrhenius_expression(1e-16, -3.0, 1.5e5, order=2),
+                    kinf=base.channel_fit("bare").modified, a=0.6, T3_K=300.0, T1_K=3000.0)
+    fits = fit_study(study, troe={"bare": troe})
+    n2 = fits.species_fit("N2")
+    assert n2.role == "bath gas" and fits.bath_gas == "N2"
+    assert n2.h0_exported_J_per_mol == pytest.approx(0.0, abs=1e-6)
+    assert fits.element_offsets_J_per_mol["N"] != 0.0

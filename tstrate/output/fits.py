@@ -68,7 +68,10 @@ is compared with tstrate's ``ln_kc`` at the fitted temperatures
 
 A bath-gas species needed by a falloff reaction but not part of the study
 (N2, CO2, O2, ... from ``molecules/reference``, or a noble-gas atom) has its
-own enthalpy zero H(0) = 0: it only serves as a collision partner.
+own enthalpy zero H(0) = 0: it only serves as a collision partner (a
+warning says so when it shares elements with the study's species). A bath
+gas listed among the study's species but in no channel is exported on the
+study's scale; elements only it holds get offsets that make its H(0) = 0.
 
 Units: SI inside (rate constants per molecule, J/mol, K); the JSON from
 :func:`fits_to_json` carries the unit in every key.
@@ -375,7 +378,7 @@ def element_offsets(species_list) -> dict[str, float]:
     elements = element_order({e for s in species_list for e in s.atom_counts})
     counts = np.array([[s.atom_counts.get(e, 0) for e in elements] for s in species_list], dtype=float)
     e0 = np.array([zpe_level_J_per_mol(s) for s in species_list])
-    # centre the target for conditioning; the constant is carried by the atom counts
+    # scale the target to order one for the solver; the result is scaled back
     scale = max(1.0, float(np.max(np.abs(e0))))
     coef, *_ = np.linalg.lstsq(counts, e0 / scale, rcond=None)
     return {e: float(c * scale) for e, c in zip(elements, coef)}
@@ -615,10 +618,14 @@ def fit_study(study, *, temperature_K=None, low_modes: LowModes = HARMONIC,
         elif bath_name in study.species:
             sp = study.species[bath_name]
             _check_energy(sp)
-            if set(sp.atom_counts) - set(offsets):
-                study_warnings.append(f"bath gas {bath_name!r} holds elements no other species has; "
-                                      "its enthalpy zero is arbitrary")
-                offsets.update({e: 0.0 for e in sp.atom_counts if e not in offsets})
+            new = [e for e in element_order(sp.atom_counts) if e not in offsets]
+            if new:
+                # elements only the bath gas has: their offsets give it H(0 K) = 0
+                from tstrate.physics.tst import zpe_level_J_per_mol
+
+                rest = zpe_level_J_per_mol(sp) - _offset(sp, {**offsets, **{e: 0.0 for e in new}})
+                offsets.update({e: 0.0 for e in new})
+                offsets[new[0]] = rest / sp.atom_counts[new[0]]
             species_fits.append(fit_species_nasa(sp, **nasa_kw,
                                                  offset_J_per_mol=_offset(sp, offsets),
                                                  role="bath gas"))
@@ -688,9 +695,7 @@ def arrhenius_record(fit: ArrheniusFit, unit: str | None = None) -> dict:
     ``A`` is given in ``A_unit`` (default: the trade's unit for the order,
     e.g. cm3 molecule-1 s-1) and in SI per molecule (``A_SI``).
     """
-    unit = unit or None
-    a_unit = unit if unit is not None else {1: "s-1", 2: "cm3 molecule-1 s-1",
-                                            3: "cm6 molecule-2 s-1"}[fit.order]
+    a_unit = unit or {1: "s-1", 2: "cm3 molecule-1 s-1", 3: "cm6 molecule-2 s-1"}[fit.order]
     return {
         "form": "modified Arrhenius k = A (T/T0)^n exp(-Ea/RT)" if fit.modified
         else "Arrhenius k = A exp(-Ea/RT)",
