@@ -151,3 +151,13 @@ def test_unwritable_folder(rates, tmp_path):
 def test_safe_file_stem():
     assert tables.safe_file_stem("H2CO3 + H2O / 2") == "H2CO3___H2O___2"
     assert tables.safe_file_stem("..") == "unnamed"
+
+
+def test_reverse_of_four_products_has_a_unit(rates):
+    """H2CO3 + 2 H2O <=> CO2 + 3 H2O has a fourth-order reverse rate constant: m^9 -> cm^9."""
+    import dataclasses
+
+    four = dataclasses.replace(rates[1], reverse_order=4)
+    header, rows = _read_csv(tables.rates_csv_text(four))
+    assert header[5] == "k_reverse [cm9 molecule-3 s-1]"
+    assert float(rows[0][5]) == pytest.approx(four.k_reverse[0] * 1e18, rel=1e-14)

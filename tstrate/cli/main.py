@@ -20,6 +20,7 @@ SUBCOMMANDS: dict[str, str] = {
     "thermo": "tstrate.cli.thermo",
     "rates": "tstrate.cli.rates",
     "compute": "tstrate.cli.compute",
+    "tunnel": "tstrate.cli.tunnel",
 }
 
 

@@ -1,0 +1,506 @@
+"""Tunnelling corrections to transition-state-theory rate constants.
+
+The correction ``kappa(T)`` multiplies a canonical TST rate constant. Three
+one-dimensional models are provided, all vectorised over temperature arrays:
+
+* :func:`wigner` -- the leading quantum correction for a parabolic barrier
+  top (E. Wigner, Z. Phys. Chem. B 19, 203 (1932)).
+* :func:`skodje_truhlar` -- a truncated parabolic barrier, closed form of
+  R. T. Skodje and D. G. Truhlar, J. Phys. Chem. 85, 624 (1981).
+* :func:`eckart` -- the unsymmetrical Eckart barrier (C. Eckart, Phys. Rev. 35,
+  1303 (1930)), fitted to the imaginary frequency and the forward and reverse
+  barriers as in H. S. Johnston and J. Heicklen, J. Phys. Chem. 66, 532 (1962),
+  with the thermal average done numerically.
+
+Units and conventions
+---------------------
+Temperatures in K; molar energies in J/mol; the imaginary frequency of the
+transition state is given as its magnitude, a positive wavenumber in cm^-1.
+``V1`` is the forward barrier and ``V2`` the reverse barrier (both measured
+from the transition state down to the reactant and product asymptotes, and
+normally zero-point corrected). Energies ``E`` of the transmission probability
+are measured from the reactant asymptote, so the product asymptote lies at
+``V1 - V2``.
+
+The Eckart barrier
+------------------
+The potential along the reaction coordinate ``x`` [m] is
+
+    V(x) = A y/(1+y) + B y/(1+y)^2,     y = exp(2 pi x / L),
+
+with ``A = V1 - V2`` and ``B = (sqrt(V1) + sqrt(V2))^2`` so that the maximum
+is ``V1`` above the reactants and ``V2`` above the products; the length ``L``
+(for a given effective mass) is fixed by the curvature at the top, i.e. by the
+imaginary frequency. With ``alpha_i = 2 pi V_i / (h c nu)`` and ``nu`` the
+imaginary wavenumber, the exact transmission probability is
+
+    P(E) = [cosh(p + q) - cosh(p - q)] / [cosh(p + q) + cosh(w)]
+         = 2 sinh(p) sinh(q) / [cosh(p + q) + cosh(w)],
+
+    p = 2 alpha_1 sqrt(E/V1) / (1 + sqrt(alpha_1/alpha_2))     (= 2 pi a),
+    q = 2 alpha_1 sqrt((E - V1 + V2)/V1) / (1 + sqrt(alpha_1/alpha_2))  (= 2 pi b),
+    w = 2 sqrt(alpha_1 alpha_2 - pi^2/4)                       (= 2 pi d).
+
+When ``4 alpha_1 alpha_2 / pi^2 < 1`` (a small barrier for its curvature)
+``w`` is imaginary and ``cosh(w)`` becomes ``cos(|w|)``; the denominator is
+then evaluated as ``2 sinh^2((p+q)/2) + 2 cos^2(|w|/2)``, a sum of
+non-negative terms. Everything is done with log-sinh/log-cosh so that nothing
+overflows for the large arguments that broad, high barriers produce.
+
+Below the higher of the two asymptotes one side of the barrier is closed
+(``p`` or ``q`` is imaginary) and nothing is transmitted: ``P(E) = 0`` for
+``E < max(0, V1 - V2)``, so energies below that make no contribution.
+
+The thermal tunnelling factor is
+
+    kappa(T) = exp(V1/RT)/(RT) * integral_{E0}^{inf} P(E) exp(-E/RT) dE.
+
+The lower limit ``E0`` (the energy floor) is by default ``max(0, V1 - V2)``,
+the higher asymptote measured from the reactants: tunnelling is counted only at
+energies where both sides are open. A caller may raise the floor, for example
+for a bimolecular channel that passes through a pre-reactive complex: then
+``V1`` and ``V2`` are measured from the complex and the product side of the
+barrier, and the floor is the energy of the separated reactants above the
+complex, since only energies the reactants can bring in count. A floor below
+``max(0, V1 - V2)`` changes nothing (``P`` is zero there). With a floor above
+the default, kappa may be below 1 (less than the classical flux is counted).
+
+Kappa is not always above 1. Above-barrier reflection lowers it where the
+barrier is small for its curvature (``alpha_1`` or ``alpha_2`` below about 5)
+or where ``kT`` exceeds ``h c nu`` and the barrier is strongly asymmetric;
+in our scans of the Eckart form kappa stayed >= 1 whenever both
+``alpha_i >= 5`` and ``T <= h c nu / k`` (with the default floor). With the
+default floor kappa is the same for the forward and the reverse direction
+(microscopic reversibility: ``P`` is the same from both sides).
+
+The integral is evaluated for all temperatures at once, in numpy: the
+substitution ``E = E0 + s^2`` removes the square-root behaviour at threshold;
+two levels of uniform search grids find the window where the log-integrand is
+within ``exp(-50)`` of its peak and a third locates the peak; the window is
+split at the peak and at the barrier top, and each piece gets composite
+Gauss-Legendre panels that halve in width towards both of its ends (so that
+the sharp rise of ``P`` at the top of a broad barrier is resolved); the sum is
+taken with log-sum-exp. The result agrees with adaptive quadrature
+(``scipy.integrate.quad``) to better than 1e-9 relative (see
+tests/physics/test_tunnelling.py and benchmarks/bench_tunnelling.py).
+"""
+
+from __future__ import annotations
+
+import functools
+import math
+
+import numpy as np
+from scipy.special import logsumexp
+
+from tstrate.errors import InputError
+from tstrate.units import CM1_J, N_A, R
+
+#: Names accepted by :func:`kappa` and :func:`log_kappa`.
+MODELS: tuple[str, ...] = ("none", "wigner", "skodje-truhlar", "eckart")
+
+# Quadrature layout of the Eckart thermal average (see module docstring).
+_SEARCH_POINTS = 65      # points per search level
+_SEARCH_LEVELS = 2       # refinements of the window
+_WINDOW_LOG_DROP = 50.0  # window = where log-integrand > peak - this
+_UPPER_RT = 60.0         # integrate up to max(V1, E0) + this * RT
+_GRADING_LEVELS = 10     # panels halve this many times towards each end of a sub-interval
+_GL_NODES = 8            # Gauss-Legendre nodes per panel
+
+
+# --------------------------------------------------------------------------
+# validation
+# --------------------------------------------------------------------------
+
+def _temperatures(temperature_K) -> np.ndarray:
+    T = np.asarray(temperature_K, dtype=float)
+    if T.size == 0:
+        raise InputError("no temperature given", field="temperature_K")
+    if not np.all(np.isfinite(T)) or np.any(T <= 0.0):
+        bad = T[~(np.isfinite(T) & (T > 0.0))].ravel()[0]
+        raise InputError(f"temperature must be a positive finite number of kelvin, got {bad}",
+                         field="temperature_K")
+    return T
+
+
+def _imag_freq(imag_freq_cm1) -> float:
+    if np.ndim(imag_freq_cm1) != 0:
+        raise InputError("the imaginary frequency must be a single number",
+                         field="imaginary_frequency_cm1")
+    nu = float(imag_freq_cm1)
+    if not math.isfinite(nu) or nu <= 0.0:
+        raise InputError(f"imaginary frequency must be a positive wavenumber, got {nu} cm^-1",
+                         field="imaginary_frequency_cm1",
+                         hint="give the magnitude of the imaginary frequency, e.g. 1500 for 1500i")
+    return nu
+
+
+def _barrier(value, field: str, *, strictly_positive: bool) -> float:
+    if np.ndim(value) != 0:
+        raise InputError("the barrier must be a single number", field=field)
+    v = float(value)
+    if not math.isfinite(v):
+        raise InputError(f"barrier must be finite, got {v}", field=field)
+    if strictly_positive and v <= 0.0:
+        raise InputError(f"barrier must be positive for an Eckart barrier, got {v} J/mol",
+                         field=field,
+                         hint="the Eckart shape needs a barrier above both asymptotes")
+    if v < 0.0:
+        raise InputError(f"barrier must not be negative, got {v} J/mol", field=field)
+    return v
+
+
+def _floor(energy_floor, V1: float, V2: float) -> float:
+    """Effective lower limit of the thermal average [J/mol] (see module docstring)."""
+    threshold = max(0.0, V1 - V2)
+    if energy_floor is None:
+        return threshold
+    if np.ndim(energy_floor) != 0 or not math.isfinite(float(energy_floor)):
+        raise InputError("energy floor must be a single finite number",
+                         field="energy_floor")
+    return max(float(energy_floor), threshold)
+
+
+def _barrier_energy(imag_freq_cm1: float) -> float:
+    """h c nu of the imaginary mode [J/mol]."""
+    return imag_freq_cm1 * CM1_J * N_A
+
+
+# --------------------------------------------------------------------------
+# Wigner
+# --------------------------------------------------------------------------
+
+def wigner(temperature_K, imag_freq_cm1) -> np.ndarray:
+    """Wigner tunnelling factor, ``1 + (h c nu / k T)^2 / 24`` (dimensionless).
+
+    Wigner, Z. Phys. Chem. B 19, 203 (1932). ``temperature_K`` [K] may be an
+    array; ``imag_freq_cm1`` is the magnitude of the imaginary wavenumber
+    [cm^-1]. Returns an array of the shape of ``temperature_K``.
+    """
+    T = _temperatures(temperature_K)
+    nu = _imag_freq(imag_freq_cm1)
+    u = _barrier_energy(nu) / (R * T)
+    return 1.0 + u * u / 24.0
+
+
+# --------------------------------------------------------------------------
+# Skodje-Truhlar
+# --------------------------------------------------------------------------
+
+def _pi_over_sin_minus_inv(x: np.ndarray, eps: np.ndarray) -> np.ndarray:
+    """``pi/sin(pi x) - 1/eps`` with ``eps = 1 - x`` in (0, 1], accurate as eps -> 0.
+
+    ``sin(pi x) = sin(pi eps)``; for small ``eps`` the difference is formed
+    from the Taylor series of ``z/sin z - 1`` at ``z = pi eps`` to avoid
+    cancellation, otherwise directly (with ``sin(pi x)``, which is exact
+    also for small ``x``).
+    """
+    z = np.pi * eps
+    small = z < 0.1
+    zs = np.where(small, z, 0.0)
+    # z/sin z - 1 = z^2/6 + 7 z^4/360 + 31 z^6/15120 + 127 z^8/604800 + O(z^10)
+    # (Taylor series of z/sin z, from memory; checked against the direct form in the tests)
+    z2 = zs * zs
+    series = z2 * (1 / 6 + z2 * (7 / 360 + z2 * (31 / 15120 + z2 * (127 / 604800))))
+    with np.errstate(divide="ignore", invalid="ignore"):
+        out_small = series / np.where(small, eps, 1.0)
+        out_big = np.pi / np.sin(np.pi * np.where(small, 0.5, x)) - 1.0 / np.where(small, 1.0, eps)
+    return np.where(small, out_small, out_big)
+
+
+def _skodje_truhlar_log(beta: np.ndarray, alpha: float, D: float) -> np.ndarray:
+    """log kappa of Skodje-Truhlar for ``beta = 1/RT`` [mol/J], ``alpha`` [mol/J], depth ``D`` [J/mol]."""
+    out = np.empty_like(beta)
+    low = beta < alpha          # high temperature branch
+    high = beta > alpha         # low temperature (deep tunnelling) branch
+    equal = ~(low | high)
+    if np.any(low):
+        x = beta[low] / alpha
+        eps = 1.0 - x
+        # kappa = (pi x)/sin(pi x) - x/(1-x) exp(-(alpha-beta) D)
+        #       = x [pi/sin(pi eps) - 1/eps] + x/eps * (1 - exp(-alpha eps D))
+        first = x * _pi_over_sin_minus_inv(x, eps)
+        second = x / eps * -np.expm1(-alpha * eps * D)
+        with np.errstate(divide="ignore"):
+            out[low] = np.log(first + second)
+    if np.any(high):
+        b = beta[high]
+        z = (b - alpha) * D
+        # kappa = beta/(beta-alpha) (exp(z) - 1), in logs: z + log(1 - exp(-z))
+        with np.errstate(divide="ignore"):
+            log_expm1 = np.where(z > 30.0, z + np.log1p(-np.exp(-np.minimum(z, 700.0))),
+                                 np.log(np.expm1(np.minimum(z, 30.0))))
+            out[high] = np.log(b) - np.log(b - alpha) + log_expm1
+    if np.any(equal):
+        # common limit of both branches at beta == alpha: kappa = alpha D
+        with np.errstate(divide="ignore"):
+            out[equal] = np.log(alpha * D)
+    return out
+
+
+def skodje_truhlar_log(temperature_K, imag_freq_cm1, forward_barrier_J_per_mol,
+                       reverse_barrier_J_per_mol, energy_floor_J_per_mol=None) -> np.ndarray:
+    """Natural log of :func:`skodje_truhlar` (never overflows)."""
+    T = _temperatures(temperature_K)
+    nu = _imag_freq(imag_freq_cm1)
+    V1 = _barrier(forward_barrier_J_per_mol, "forward_barrier", strictly_positive=False)
+    V2 = _barrier(reverse_barrier_J_per_mol, "reverse_barrier", strictly_positive=False)
+    floor = _floor(energy_floor_J_per_mol, V1, V2)
+    if floor > V1:
+        raise InputError(f"energy floor {floor} J/mol lies above the barrier top {V1} J/mol",
+                         field="energy_floor",
+                         hint="the Skodje-Truhlar form needs a floor at or below the barrier")
+    alpha = 2.0 * np.pi / _barrier_energy(nu)
+    beta = 1.0 / (R * T.ravel())
+    return _skodje_truhlar_log(beta, alpha, V1 - floor).reshape(T.shape)
+
+
+def skodje_truhlar(temperature_K, imag_freq_cm1, forward_barrier_J_per_mol,
+                   reverse_barrier_J_per_mol, energy_floor_J_per_mol=None) -> np.ndarray:
+    """Skodje-Truhlar tunnelling factor of a truncated parabolic barrier (dimensionless).
+
+    R. T. Skodje and D. G. Truhlar, J. Phys. Chem. 85, 624 (1981). With
+    ``alpha = 2 pi / (h c nu)`` and ``beta = 1/RT`` (both per J/mol),
+    ``V0`` the forward barrier and ``V`` the lower end of the energy range
+    (0 for an exoergic direction, the endoergicity ``V1 - V2`` for an
+    endoergic one, or ``energy_floor_J_per_mol`` if that is higher):
+
+    * ``beta <= alpha``: ``kappa = (beta pi/alpha)/sin(beta pi/alpha)
+      - beta/(alpha - beta) exp[(beta - alpha)(V0 - V)]``
+    * ``beta > alpha``: ``kappa = beta/(beta - alpha) {exp[(beta - alpha)(V0 - V)] - 1}``
+
+    At ``beta == alpha`` both give ``alpha (V0 - V)``; the form used here is
+    rearranged so that it stays accurate next to that point. Temperatures [K]
+    may be an array; barriers in J/mol (non-negative); the imaginary wavenumber
+    [cm^-1] is given as its positive magnitude. Values too large for a float
+    come back as ``inf``; use :func:`skodje_truhlar_log` for those.
+    """
+    log_k = skodje_truhlar_log(temperature_K, imag_freq_cm1, forward_barrier_J_per_mol,
+                               reverse_barrier_J_per_mol, energy_floor_J_per_mol)
+    with np.errstate(over="ignore"):
+        return np.exp(log_k)
+
+
+# --------------------------------------------------------------------------
+# Eckart
+# --------------------------------------------------------------------------
+
+def _log_sinh(x: np.ndarray) -> np.ndarray:
+    """log(sinh x) for x >= 0 (-inf at 0)."""
+    with np.errstate(divide="ignore"):
+        return x - math.log(2.0) + np.log(-np.expm1(-2.0 * x))
+
+
+def _log_cosh(x: np.ndarray) -> np.ndarray:
+    ax = np.abs(x)
+    return ax - math.log(2.0) + np.log1p(np.exp(-2.0 * ax))
+
+
+def _eckart_log_p(E: np.ndarray, E_minus_A: np.ndarray, V1: float, V2: float,
+                  barrier_energy: float) -> np.ndarray:
+    """log P(E) of the Eckart barrier; ``E`` and ``E - (V1 - V2)`` given separately [J/mol].
+
+    Separate arguments let callers form ``E - (V1 - V2)`` without cancellation.
+    Returns -inf where either side is closed.
+    """
+    c = 2.0 * np.pi / barrier_energy                        # [mol/J]
+    k = 2.0 * c / (1.0 / math.sqrt(V1) + 1.0 / math.sqrt(V2))  # [(mol/J)^(1/2)]
+    open_ = (E > 0.0) & (E_minus_A > 0.0)
+    p = k * np.sqrt(np.where(open_, E, 1.0))
+    q = k * np.sqrt(np.where(open_, E_minus_A, 1.0))
+    u = p + q
+    log_num = math.log(2.0) + _log_sinh(p) + _log_sinh(q)
+    w2 = 4.0 * c * c * V1 * V2 - np.pi ** 2                  # (2 pi d)^2
+    if w2 >= 0.0:
+        w = math.sqrt(w2)
+        # cosh u + cosh w = 2 cosh((u+w)/2) cosh((u-w)/2)
+        log_den = math.log(2.0) + _log_cosh(0.5 * (u + w)) + _log_cosh(0.5 * (u - w))
+    else:
+        y = math.sqrt(-w2)
+        # cosh u + cos y = 2 sinh^2(u/2) + 2 cos^2(y/2), both terms >= 0
+        cos_half = math.cos(0.5 * y)
+        log_cos2 = 2.0 * math.log(abs(cos_half)) if cos_half != 0.0 else -np.inf
+        log_den = math.log(2.0) + np.logaddexp(2.0 * _log_sinh(0.5 * u), log_cos2)
+    log_p = np.minimum(log_num - log_den, 0.0)
+    return np.where(open_, log_p, -np.inf)
+
+
+def eckart_log_transmission(energy_J_per_mol, imag_freq_cm1, V1, V2) -> np.ndarray:
+    """Natural log of :func:`eckart_transmission` (-inf where nothing is transmitted)."""
+    nu = _imag_freq(imag_freq_cm1)
+    V1 = _barrier(V1, "forward_barrier", strictly_positive=True)
+    V2 = _barrier(V2, "reverse_barrier", strictly_positive=True)
+    E = np.asarray(energy_J_per_mol, dtype=float)
+    return _eckart_log_p(E, E - (V1 - V2), V1, V2, _barrier_energy(nu))
+
+
+def eckart_transmission(energy_J_per_mol, imag_freq_cm1, V1, V2) -> np.ndarray:
+    """Transmission probability P(E) through an unsymmetrical Eckart barrier.
+
+    Eckart, Phys. Rev. 35, 1303 (1930); parameters from the imaginary frequency
+    and the barriers as in Johnston and Heicklen, J. Phys. Chem. 66, 532 (1962);
+    formula in the module docstring.
+
+    Parameters
+    ----------
+    energy_J_per_mol:
+        Energy [J/mol] measured from the reactant asymptote (array allowed).
+    imag_freq_cm1:
+        Magnitude of the imaginary wavenumber of the transition state [cm^-1].
+    V1, V2:
+        Forward and reverse barriers [J/mol], both > 0.
+
+    Returns
+    -------
+    P(E) in [0, 1], zero below the higher asymptote ``max(0, V1 - V2)``.
+    """
+    return np.exp(eckart_log_transmission(energy_J_per_mol, imag_freq_cm1, V1, V2))
+
+
+@functools.lru_cache(maxsize=None)
+def _graded_gauss_legendre() -> tuple[np.ndarray, np.ndarray]:
+    """Composite Gauss-Legendre nodes and weights on [0, 1], panels graded towards both ends.
+
+    Panel edges halve in width towards 0 and 1, so that the smallest panels are
+    ``1/(2 (2^M - 1))`` of the interval: features at the ends of a
+    sub-interval (the integrand peak, the barrier top) are resolved even when
+    they are a thousand times narrower than the interval.
+    """
+    M = _GRADING_LEVELS
+    half = 0.5 * (2.0 ** np.arange(M + 1) - 1.0) / (2.0 ** M - 1.0)
+    edges = np.concatenate([half, 1.0 - half[::-1][1:]])
+    x, w = np.polynomial.legendre.leggauss(_GL_NODES)
+    h = 0.5 * np.diff(edges)
+    mid = 0.5 * (edges[:-1] + edges[1:])
+    t = (mid[:, None] + h[:, None] * x[None, :]).ravel()
+    wt = (h[:, None] * w[None, :]).ravel()
+    return t, wt
+
+
+def _zoom(log_integrand, lo: np.ndarray, hi: np.ndarray, *, window: bool):
+    """One search level on a uniform grid between ``lo`` and ``hi`` (per row).
+
+    Returns ``(new_lo, new_hi, s_at_max)``: with ``window`` the new bounds
+    enclose the region where the log-integrand is within ``_WINDOW_LOG_DROP``
+    of its maximum (widened by one grid step), otherwise the two grid steps
+    around the maximum; ``s_at_max`` is the grid point of the maximum.
+    """
+    n = _SEARCH_POINTS
+    rows = np.arange(lo.size)
+    grid = np.linspace(0.0, 1.0, n)
+    s = lo[:, None] + (hi - lo)[:, None] * grid[None, :]
+    g = log_integrand(s)
+    if window:
+        inside = g > np.max(g, axis=1, keepdims=True) - _WINDOW_LOG_DROP
+        first = np.argmax(inside, axis=1)
+        last = n - 1 - np.argmax(inside[:, ::-1], axis=1)
+    else:
+        first = last = np.argmax(g, axis=1)
+    return s[rows, np.maximum(first - 1, 0)], s[rows, np.minimum(last + 1, n - 1)], \
+        s[rows, np.argmax(g, axis=1)]
+
+
+def _eckart_log_kappa(beta: np.ndarray, barrier_energy: float, V1: float, V2: float,
+                      E0: float) -> np.ndarray:
+    """log kappa for 1-D ``beta = 1/RT`` [mol/J]; ``E0`` >= max(0, V1 - V2) [J/mol]."""
+    A = V1 - V2
+    b = beta[:, None]
+    log_b = np.log(b)
+
+    def log_integrand(s: np.ndarray) -> np.ndarray:
+        # integrand in s, E = E0 + s^2:  2 s beta exp(beta (V1 - E)) P(E)
+        s2 = s * s
+        E = E0 + s2
+        log_p = _eckart_log_p(E, (E0 - A) + s2, V1, V2, barrier_energy)
+        with np.errstate(divide="ignore"):
+            log_2s = np.log(2.0 * s)
+        return log_p + log_b - b * (E - V1) + log_2s
+
+    top = max(V1, E0)
+    lo = np.zeros_like(beta)
+    hi = np.sqrt(top + _UPPER_RT / beta - E0)
+    for _ in range(_SEARCH_LEVELS):
+        lo, hi, peak = _zoom(log_integrand, lo, hi, window=True)
+    peak = _zoom(log_integrand, np.maximum(lo, peak - (hi - lo) / (_SEARCH_POINTS - 1)),
+                 np.minimum(hi, peak + (hi - lo) / (_SEARCH_POINTS - 1)), window=False)[2]
+    # sub-intervals split at the peak and at the barrier top, graded towards each end
+    s_top = np.clip(math.sqrt(max(V1 - E0, 0.0)), lo, hi)
+    cuts = np.stack([lo, np.minimum(peak, s_top), np.maximum(peak, s_top), hi], axis=1)
+    t, wt = _graded_gauss_legendre()
+    a = cuts[:, :-1, None]
+    width = np.diff(cuts, axis=1)[:, :, None]
+    s = (a + width * t[None, None, :]).reshape(beta.size, -1)
+    with np.errstate(divide="ignore"):
+        log_w = np.log(width * wt[None, None, :]).reshape(beta.size, -1)
+    return logsumexp(log_integrand(s) + log_w, axis=1)
+
+
+def eckart_log(temperature_K, imag_freq_cm1, V1, V2, energy_floor_J_per_mol=None) -> np.ndarray:
+    """Natural log of :func:`eckart` (never overflows)."""
+    T = _temperatures(temperature_K)
+    nu = _imag_freq(imag_freq_cm1)
+    V1 = _barrier(V1, "forward_barrier", strictly_positive=True)
+    V2 = _barrier(V2, "reverse_barrier", strictly_positive=True)
+    E0 = _floor(energy_floor_J_per_mol, V1, V2)
+    beta = 1.0 / (R * T.ravel())
+    return _eckart_log_kappa(beta, _barrier_energy(nu), V1, V2, E0).reshape(T.shape)
+
+
+def eckart(temperature_K, imag_freq_cm1, V1, V2, energy_floor_J_per_mol=None) -> np.ndarray:
+    """Eckart tunnelling factor ``kappa(T)`` (dimensionless).
+
+    ``kappa = exp(V1/RT)/(RT) * integral_{E0}^{inf} P(E) exp(-E/RT) dE`` with
+    ``P`` from :func:`eckart_transmission`.
+
+    Parameters
+    ----------
+    temperature_K:
+        Temperature(s) [K], any array shape.
+    imag_freq_cm1:
+        Magnitude of the imaginary wavenumber [cm^-1].
+    V1, V2:
+        Forward and reverse barriers [J/mol], zero-point corrected, both > 0.
+    energy_floor_J_per_mol:
+        Lower limit ``E0`` of the energy integral, measured from the reactant
+        asymptote of the barrier [J/mol]. Default (None): ``max(0, V1 - V2)``.
+        A lower value is raised to that (nothing is transmitted below it).
+
+    Values too large for a float come back as ``inf``; use :func:`eckart_log`.
+    """
+    log_k = eckart_log(temperature_K, imag_freq_cm1, V1, V2, energy_floor_J_per_mol)
+    with np.errstate(over="ignore"):
+        return np.exp(log_k)
+
+
+# --------------------------------------------------------------------------
+# dispatch
+# --------------------------------------------------------------------------
+
+def log_kappa(model: str, temperature_K, imag_freq_cm1, V1, V2, energy_floor=None) -> np.ndarray:
+    """Natural log of the tunnelling factor of ``model`` (one of :data:`MODELS`).
+
+    ``temperature_K`` [K], ``imag_freq_cm1`` [cm^-1, positive magnitude],
+    ``V1``/``V2`` forward/reverse barriers [J/mol], ``energy_floor`` [J/mol]
+    (Skodje-Truhlar and Eckart only; see the module docstring).
+    """
+    if model == "none":
+        return np.zeros_like(_temperatures(temperature_K))
+    if model == "wigner":
+        return np.log(wigner(temperature_K, imag_freq_cm1))
+    if model == "skodje-truhlar":
+        return skodje_truhlar_log(temperature_K, imag_freq_cm1, V1, V2, energy_floor)
+    if model == "eckart":
+        return eckart_log(temperature_K, imag_freq_cm1, V1, V2, energy_floor)
+    raise InputError(f"unknown tunnelling model {model!r}", field="tunnelling",
+                     hint="use one of " + ", ".join(MODELS))
+
+
+def kappa(model: str, temperature_K, imag_freq_cm1, V1, V2, energy_floor=None) -> np.ndarray:
+    """Tunnelling factor of ``model`` in {"none", "wigner", "skodje-truhlar", "eckart"}.
+
+    Arguments and units as in :func:`log_kappa`; returns an array of the shape
+    of ``temperature_K`` (``inf`` where the value exceeds the float range).
+    """
+    log_k = log_kappa(model, temperature_K, imag_freq_cm1, V1, V2, energy_floor)
+    with np.errstate(over="ignore"):
+        return np.exp(log_k)
