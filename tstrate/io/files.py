@@ -23,6 +23,7 @@ def atomic_write_bytes(path: str | os.PathLike, data: bytes) -> None:
     try:
         with os.fdopen(fd, "wb") as fh:
             fh.write(data)
+        os.chmod(tmp, 0o666 & ~_umask())  # mkstemp makes 0600; give the usual permissions
         os.replace(tmp, path)
     except BaseException:
         try:
@@ -34,3 +35,9 @@ def atomic_write_bytes(path: str | os.PathLike, data: bytes) -> None:
 
 def atomic_write_text(path, text: str) -> None:
     atomic_write_bytes(path, text.encode("utf-8"))
+
+
+def _umask() -> int:
+    mask = os.umask(0)
+    os.umask(mask)
+    return mask

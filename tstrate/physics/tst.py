@@ -22,8 +22,14 @@ barrier is measured from the complex (V1 = E0_TS - E0_C) and the reverse one
 from the products (V2 = E0_TS - E0_P); the energy floor of the tunnelling
 integral is the separated reactants by default (no tunnelling below the
 entrance asymptote, since a weakly bound complex at low pressure is not
-stabilised), or the complex itself when the channel says
-``tunnelling_floor = "complex"``. Wigner needs only the frequency;
+stabilised) but never above the barrier top (a submerged transition state,
+below the separated reactants, keeps all of its over-the-barrier flux: the
+floor then sits at the top and only the tunnelling below it is dropped), or
+the complex itself when the channel says ``tunnelling_floor = "complex"``.
+
+Identical reactants (H2CO3 + H2O + H2O) get no 1/2 factor: k is defined by
+-d[first reactant]/dt = k prod_i [reactant_i], and the symmetry numbers carry
+the counting. Wigner needs only the frequency;
 Skodje-Truhlar uses the same V1 and V2.
 """
 
@@ -148,7 +154,9 @@ def channel_rates(channel: Channel, species: dict, temperature_K, *,
     if cx is not None:
         e0_c = zpe_level_J_per_mol(cx)
         v1 = e0_ts - e0_c
-        floor = max(0.0, e0_r - e0_c) if channel.tunnelling_floor == "reactants" else 0.0
+        # never above the barrier top: a submerged TS keeps its over-the-barrier flux
+        floor = (min(max(0.0, e0_r - e0_c), v1) if channel.tunnelling_floor == "reactants"
+                 else 0.0)
         b_cx_zpe, b_cx_cl = v1, ts.energy_J_per_mol - cx.energy_J_per_mol
     else:
         v1 = barrier_zpe
