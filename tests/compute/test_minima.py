@@ -114,3 +114,17 @@ def test_bad_settings():
         Settings(method="PM7")
     with pytest.raises(InputError, match="step limit"):
         Settings(max_steps=0)
+
+
+def test_failed_scf_is_an_input_error(tmp_path):
+    """An SCF allowed a single iteration cannot converge: the failure becomes an InputError."""
+    from ase import Atoms
+
+    from tstrate.compute.engine import minimise, with_calculator
+
+    atoms = with_calculator(Atoms("H2", positions=[[0, 0, 0], [0, 0, 0.7]]), Settings())
+    atoms.calc.set(max_iterations=1)
+    with pytest.raises(InputError, match=r"calculation failed during the minimisation of h2.*"
+                                         r"h2\.failed\.xyz"):
+        minimise(atoms, Settings(), label="h2", work_dir=tmp_path)
+    assert (tmp_path / "h2.failed.xyz").exists()

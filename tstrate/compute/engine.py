@@ -251,6 +251,30 @@ def _not_converged(atoms, label: str, what: str, steps: int, fmax: float, work_d
                       hint="raise the step limit or start from a better geometry")
 
 
+class _scf_failure_is_input_error:
+    """Turn a failed electronic-structure calculation inside an optimisation into an InputError
+    (the geometry reached is kept in ``<label>.failed.xyz``): it comes from the geometry given."""
+
+    def __init__(self, atoms, label, what, work_dir):
+        self.atoms, self.label, self.what, self.work_dir = atoms, label, what, work_dir
+
+    def __enter__(self):
+        return self
+
+    def __exit__(self, exc_type, exc, tb):
+        from ase.calculators.calculator import CalculationFailed
+
+        if exc_type is None or not issubclass(exc_type, CalculationFailed):
+            return False
+        safe = "".join(c if c.isalnum() or c in "-_." else "_" for c in self.label) or "geometry"
+        path = Path(self.work_dir or ".") / f"{safe}.failed.xyz"
+        write_xyz(path, self.atoms, f"{self.label}: geometry where the calculation failed")
+        raise InputError(f"the GFN2-xTB calculation failed during the {self.what} of {self.label} "
+                         f"({exc}); geometry kept in {path}",
+                         hint="check the geometry (atoms too close?), charge and multiplicity") \
+            from None
+
+
 def minimise(atoms, settings: Settings, *, label: str, fmax: float | None = None,
              max_steps: int | None = None, work_dir=None, must_converge: bool = True) -> int:
     """Minimise ``atoms`` in place with ASE's BFGS; returns the number of steps.
@@ -263,7 +287,8 @@ def minimise(atoms, settings: Settings, *, label: str, fmax: float | None = None
     fmax = settings.fmax_eV_per_A if fmax is None else fmax
     steps = settings.max_steps if max_steps is None else max_steps
     opt = BFGS(atoms, logfile=None, maxstep=0.2)
-    converged = bool(opt.run(fmax=fmax, steps=steps))
+    with _scf_failure_is_input_error(atoms, label, "minimisation", work_dir):
+        converged = bool(opt.run(fmax=fmax, steps=steps))
     if not converged and must_converge:
         raise _not_converged(atoms, label, "minimisation", steps, fmax, work_dir)
     return int(opt.nsteps)
@@ -281,7 +306,8 @@ def saddle_optimise(atoms, settings: Settings, *, label: str, internal: bool = T
     except ImportError:
         raise InputError("saddle searches need sella", hint="pip install 'tstrate[compute]'") from None
     opt = Sella(atoms, order=1, internal=internal, logfile=None, trajectory=None)
-    converged = bool(opt.run(fmax=settings.fmax_eV_per_A, steps=settings.max_steps))
+    with _scf_failure_is_input_error(atoms, label, "saddle search", work_dir):
+        converged = bool(opt.run(fmax=settings.fmax_eV_per_A, steps=settings.max_steps))
     if not converged:
         raise _not_converged(atoms, label, "saddle search", settings.max_steps,
                              settings.fmax_eV_per_A, work_dir)
