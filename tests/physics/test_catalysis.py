@@ -296,13 +296,18 @@ def test_activation_gibbs_energy_splits_into_complex_and_unimolecular_step(study
 
 
 def test_energy_profile_levels(study):
-    comp = _comparison([("one_water", 1), ("two_water", 2)], _per_cm3(1e15))
+    comp = _comparison([("one_water", 1), ("two_water", 2), ("via_dimer", 2, True)], _per_cm3(1e15),
+                       dimer="H2O_dimer")
     res = compare_routes(comp, study.species, study.channels, [200.0])
-    bare, one, two = res.profiles
+    bare, one, two, dimer = res.profiles
     assert [lv.role for lv in bare.levels] == ["reactants", "ts", "products"]
     assert [lv.role for lv in one.levels] == ["reactants", "complex", "ts", "products"]
-    for prof, row in zip(res.profiles, res.barriers):
-        assert prof.levels[0].energy_J_per_mol == 0.0
+    # one zero for all routes: H2CO3 + 2 H2O at infinity; the dimer route starts at the dimer's D0
+    assert dimer.levels[0].energy_J_per_mol == pytest.approx(res.dimer_equilibrium.delta_E0_J_per_mol, rel=1e-12)
+    assert [lv.energy_J_per_mol for lv in dimer.levels[1:]] == pytest.approx(
+        [lv.energy_J_per_mol for lv in two.levels[1:]], rel=1e-12)
+    for prof, row in zip(res.profiles[:3], res.barriers[:3]):
+        assert prof.levels[0].energy_J_per_mol == pytest.approx(0.0, abs=1e-6)
         ts = next(lv for lv in prof.levels if lv.role == "ts")
         assert ts.energy_J_per_mol == pytest.approx(row.zpe_from_reactants_J_per_mol, rel=1e-12)
         # products = bare products + the catalysts: the same level on every route

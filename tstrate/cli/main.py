@@ -19,6 +19,7 @@ from tstrate.errors import InputError
 SUBCOMMANDS: dict[str, str] = {
     "thermo": "tstrate.cli.thermo",
     "rates": "tstrate.cli.rates",
+    "compare": "tstrate.cli.compare",
     "compute": "tstrate.cli.compute",
     "tunnel": "tstrate.cli.tunnel",
 }

@@ -417,7 +417,9 @@ class ProfileLevel:
 
     role: "reactants", "complex", "ts" or "products".
     label: species names (joined with " + ").
-    energy_J_per_mol: ZPE-corrected energy relative to the route's separated reactants [J/mol].
+    energy_J_per_mol: ZPE-corrected energy [J/mol] relative to the profile's zero (by default the
+        route's separated reactants; in a comparison, the substrate with its catalyst monomers at
+        infinity).
     """
 
     role: str
@@ -434,14 +436,20 @@ class RouteProfile:
     levels: tuple[ProfileLevel, ...]
 
 
-def route_profile(channel: Channel, species: Mapping[str, Species], kind: str = "") -> RouteProfile:
-    """ZPE-corrected energies of reactants, complex, TS and products relative to the reactants.
+def route_profile(channel: Channel, species: Mapping[str, Species], kind: str = "",
+                  zero_J_per_mol: float | None = None) -> RouteProfile:
+    """ZPE-corrected energies of reactants, complex, TS and products along one route [J/mol].
 
-    The zero is the channel's separated reactants (for an assisted route: the substrate with its
-    catalysts at infinity), so every route of a comparison shares the same zero.
+    ``zero_J_per_mol`` is the ZPE-corrected energy taken as zero; default the channel's separated
+    reactants. :func:`compare_routes` uses the substrate plus the route's catalyst *monomers* at
+    infinity, so that every route of a comparison shares one zero (a dimer route then starts at
+    the dimer's binding energy).
     """
     e0_r = sum(zpe_level_J_per_mol(species[n]) for n in channel.reactants)
-    levels = [ProfileLevel("reactants", " + ".join(channel.reactants), 0.0)]
+    if zero_J_per_mol is None:
+        zero_J_per_mol = e0_r
+    levels = [ProfileLevel("reactants", " + ".join(channel.reactants), e0_r - zero_J_per_mol)]
+    e0_r = zero_J_per_mol
     if channel.complex:
         levels.append(ProfileLevel("complex", channel.complex,
                                    zpe_level_J_per_mol(species[channel.complex]) - e0_r))
@@ -464,7 +472,8 @@ class ComparisonResult:
     routes: the bare route first, then the assisted ones in file order.
     free_substrate_fraction: (A, T) fraction of the substrate not held in the complexes.
     barriers: one row per route, same order.
-    profiles: one energy profile per route, same order.
+    profiles: one energy profile per route, same order, all relative to the substrate plus the
+        catalyst monomers at infinity.
     """
 
     comparison: Comparison
@@ -650,7 +659,10 @@ def compare_routes(comparison: Comparison, species: Mapping[str, Species], chann
     free = 1.0 / (1.0 + bound)
 
     barriers = tuple(_barrier_row(r, chans[r.channel], species, T, low_modes) for r in routes)
-    profiles = tuple(route_profile(chans[r.channel], species, r.kind) for r in routes)
+    zero_s = zpe_level_J_per_mol(species[comparison.substrate])
+    zero_x = zpe_level_J_per_mol(species[comparison.catalyst])
+    profiles = tuple(route_profile(chans[r.channel], species, r.kind,
+                                   zero_J_per_mol=zero_s + r.catalyst_power * zero_x) for r in routes)
     for r in routes:
         if r.complex_per_free_substrate is not None and np.nanmax(r.complex_per_free_substrate) > 0.1:
             log.info("comparison %s: complex %s holds up to %.3g substrate per free substrate; "

@@ -1,0 +1,255 @@
+"""``tstrate compare``: bare against catalysed routes of a study's [[comparison]] sections."""
+
+from __future__ import annotations
+
+HELP = "compare bare and catalysed routes (one or two catalyst molecules, or the dimer)"
+DESCRIPTION = """\
+For every [[comparison]] of a study file: the pseudo-first-order loss rate of
+the substrate by the bare route (k_uni) and by each assisted route (k2 [X],
+k3 [X]^2, or k2' [X2] with the dimer from 2 X <=> X2), their ratios to the
+bare route, the catalyst abundance at which each route overtakes the bare one,
+the temperature ranges where it does at the given abundances, the
+complex-formation equilibrium constants and a barrier table. Rate constants
+are canonical TST in the high-pressure limit, per free substrate molecule.
+
+JSON output (--json): one object with "study", "title" and a list
+"comparisons" with one entry per comparison and abundance (a scenario). Each
+has name, abundance (kind, value, unit, label, phase, total_pressure_Pa,
+text), reference, substrate, catalyst, catalyst_dimer, temperature_K,
+catalyst_number_density_per_cm3, dimer_number_density_per_cm3,
+dimer_Kp_per_bar, free_substrate_fraction, barriers (per channel:
+barrier_classical_kJ_per_mol, barrier_zpe_kJ_per_mol,
+barrier_from_complex_classical_kJ_per_mol, barrier_from_complex_zpe_kJ_per_mol,
+complex_binding_zpe_kJ_per_mol, delta_G_activation_kJ_per_mol (1 bar),
+delta_G_activation_from_complex_kJ_per_mol) and routes (per channel: kind,
+catalyst_power, rate_constant with rate_constant_unit, complex, complex_Kc with
+complex_Kc_unit, complex_Kp with complex_Kp_unit, k_unimolecular_from_complex_per_s,
+complex_per_free_substrate, pseudo_first_order_per_s, ratio_to_bare,
+crossover_number_density_per_cm3, crossover_in_given_unit with
+crossover_given_unit, faster_than_bare_K: a list of {low_K, high_K,
+low_at_grid_edge, high_at_grid_edge}). Arrays run over temperature_K.
+
+With --plot DIR: for each comparison, an energy profile, the ratio against
+temperature and the ratio against the catalyst abundance, as PNG and SVG.
+"""
+
+
+def add_arguments(parser) -> None:
+    parser.add_argument("study", metavar="STUDY", help="study file (TOML) with [[comparison]] sections")
+    parser.add_argument("--low-modes", choices=["harmonic", "grimme", "truhlar"], default="harmonic",
+                        help="treatment of low real modes (default harmonic)")
+    parser.add_argument("--json", action="store_true", help="machine-readable output on stdout")
+    parser.add_argument("--plot", metavar="DIR",
+                        help="write the figures of each comparison into DIR (PNG and SVG)")
+
+
+def _slug(text: str) -> str:
+    import re
+
+    return re.sub(r"[^A-Za-z0-9]+", "_", text).strip("_").lower() or "comparison"
+
+
+def _kc_unit(delta_n: int) -> str:
+    n = -delta_n
+    return "cm3 molecule-1" if n == 1 else f"cm{3 * n} molecule-{n}"
+
+
+def scenario_records(result, rate_units=None) -> list[dict]:
+    """One plain record per abundance of a comparison result (units in the keys)."""
+    import numpy as np
+
+    from tstrate.output.records import rate_unit
+    from tstrate.units import rate_from_SI
+
+    comp = result.comparison
+    T = result.temperature_K
+    kj = 1e-3
+    barriers = []
+    for b in result.barriers:
+        barriers.append({
+            "channel": b.channel, "kind": b.kind,
+            "barrier_classical_kJ_per_mol": b.classical_from_reactants_J_per_mol * kj,
+            "barrier_zpe_kJ_per_mol": b.zpe_from_reactants_J_per_mol * kj,
+            "barrier_from_complex_classical_kJ_per_mol": _opt(b.classical_from_complex_J_per_mol, kj),
+            "barrier_from_complex_zpe_kJ_per_mol": _opt(b.zpe_from_complex_J_per_mol, kj),
+            "complex_binding_zpe_kJ_per_mol": _opt(b.complex_binding_zpe_J_per_mol, kj),
+            "reaction_energy_zpe_kJ_per_mol": b.reaction_energy_zpe_J_per_mol * kj,
+            "delta_G_activation_kJ_per_mol": b.delta_G_activation_J_per_mol * kj,
+            "delta_G_activation_from_complex_kJ_per_mol": _opt(b.delta_G_activation_from_complex_J_per_mol, kj),
+        })
+    out = []
+    for a, ab in enumerate(comp.abundances):
+        routes = []
+        for r in result.routes:
+            unit = rate_unit(r.order, rate_units)
+            ceq = r.complex_equilibrium
+            rec = {
+                "channel": r.channel, "kind": r.kind, "catalyst_power": r.catalyst_power,
+                "order": r.order,
+                "rate_constant": rate_from_SI(r.rates.k, r.order, unit),
+                "rate_constant_unit": unit,
+                "complex": r.complex,
+                "complex_Kc": None if ceq is None else np.exp(ceq.ln_Kc - ceq.delta_n * np.log(1e6)),
+                "complex_Kc_unit": None if ceq is None else _kc_unit(ceq.delta_n),
+                "complex_Kp": None if ceq is None else np.exp(ceq.ln_Kp),
+                "complex_Kp_unit": None if ceq is None else f"bar^{ceq.delta_n} (1 bar standard state)",
+                "k_unimolecular_from_complex_per_s": r.k_unimolecular_from_complex_per_s,
+                "complex_per_free_substrate": (None if r.complex_per_free_substrate is None
+                                               else r.complex_per_free_substrate[a]),
+                "pseudo_first_order_per_s": r.pseudo_first_order_per_s[a],
+                "ratio_to_bare": r.ratio_to_bare[a],
+            }
+            if r.catalyst_power:
+                rec["crossover_number_density_per_cm3"] = r.crossover_catalyst_m3 * 1e-6
+                given = result.crossover_in_given_unit(r, a)
+                unit_given = ab.unit
+                if ab.kind == "number_density_m3":
+                    given, unit_given = given * 1e-6, "molecule cm-3"
+                rec["crossover_in_given_unit"] = given
+                rec["crossover_given_unit"] = unit_given
+                rec["faster_than_bare_K"] = [
+                    {"low_K": x.low_K, "high_K": x.high_K, "low_at_grid_edge": x.low_at_grid_edge,
+                     "high_at_grid_edge": x.high_at_grid_edge} for x in r.faster_ranges[a]]
+            routes.append(rec)
+        value, unit = ab.value, ab.unit
+        if ab.kind == "number_density_m3":
+            value, unit = value * 1e-6, "molecule cm-3"
+        out.append({
+            "name": comp.name,
+            "description": comp.description,
+            "abundance": {"kind": ab.kind, "value": value, "unit": unit, "label": ab.label,
+                          "phase": ab.abundance.phase if ab.kind == "relative_humidity_percent" else None,
+                          "total_pressure_Pa": ab.total_pressure_Pa, "text": ab.describe()},
+            "reference": comp.reference, "substrate": comp.substrate, "catalyst": comp.catalyst,
+            "catalyst_dimer": comp.catalyst_dimer,
+            "temperature_K": T,
+            "catalyst_number_density_per_cm3": result.catalyst_m3[a] * 1e-6,
+            "dimer_number_density_per_cm3": None if result.dimer_m3 is None else result.dimer_m3[a] * 1e-6,
+            "dimer_Kp_per_bar": (None if result.dimer_equilibrium is None
+                                 else np.exp(result.dimer_equilibrium.ln_Kp)),
+            "free_substrate_fraction": result.free_substrate_fraction[a],
+            "routes": routes,
+            "barriers": barriers,
+            "rate_model": "canonical TST, high-pressure limit; pseudo-first-order rates per free substrate",
+        })
+    return out
+
+
+def _opt(v, factor):
+    return None if v is None else v * factor
+
+
+def compute(study_path, low_modes="harmonic"):
+    from tstrate.errors import InputError
+    from tstrate.io.study import read_study
+    from tstrate.physics.catalysis import study_comparisons
+    from tstrate.physics.thermo import LowModes
+
+    study = read_study(study_path)
+    if not study.sections.get("comparison"):
+        raise InputError("the study has no [[comparison]] section", file=study.file,
+                         hint="add one, see the documentation of tstrate.io.comparisons")
+    return study, study_comparisons(study, low_modes=LowModes(low_modes))
+
+
+def write_plots(results, directory) -> list:
+    """Write the figures of every comparison into ``directory`` (PNG and SVG); returns the paths."""
+    from pathlib import Path
+
+    from tstrate.output.compare_plots import comparison_figures
+    from tstrate.output.plots import save_figure
+
+    directory = Path(directory)
+    written = []
+    for res in results:
+        stem = _slug(res.comparison.name)
+        for suffix, fig in comparison_figures(res).items():
+            written += save_figure(fig, directory / f"{stem}_{suffix}.png", formats=["png", "svg"])
+    return written
+
+
+def _print_scenario(rec) -> None:
+    from tstrate.cli.common import format_table
+
+    print(f"\n== {rec['name']}: {rec['abundance']['text']}")
+    routes = rec["routes"]
+    header = ["T/K", f"[{rec['catalyst']}]/cm-3"] + [f"k'({r['channel']})/s-1" for r in routes]
+    header += [f"{r['channel']}/bare" for r in routes[1:]]
+    rows = []
+    for i, t in enumerate(rec["temperature_K"]):
+        row = [f"{t:g}", f"{rec['catalyst_number_density_per_cm3'][i]:.3g}"]
+        row += [f"{r['pseudo_first_order_per_s'][i]:.3g}" for r in routes]
+        row += [f"{r['ratio_to_bare'][i]:.3g}" for r in routes[1:]]
+        rows.append(row)
+    print(format_table(header, rows))
+    print(f"\ncrossover abundance (route = bare), {rec['catalyst']} molecule cm-3"
+          + ("" if rec["abundance"]["kind"] == "number_density_m3"
+             else f" and {routes[1]['crossover_given_unit']}") + ":")
+    header = ["T/K"] + [r["channel"] for r in routes[1:]]
+    rows = []
+    for i, t in enumerate(rec["temperature_K"]):
+        row = [f"{t:g}"]
+        for r in routes[1:]:
+            text = f"{r['crossover_number_density_per_cm3'][i]:.3g}"
+            if rec["abundance"]["kind"] != "number_density_m3":
+                text += f" ({r['crossover_in_given_unit'][i]:.3g})"
+            row.append(text)
+        rows.append(row)
+    print(format_table(header, rows))
+    for r in routes[1:]:
+        ranges = r["faster_than_bare_K"]
+        if not ranges:
+            text = "never, on this temperature grid"
+        else:
+            parts = []
+            for x in ranges:
+                if x["low_at_grid_edge"] and x["high_at_grid_edge"]:
+                    parts.append(f"over the whole grid, {x['low_K']:g}-{x['high_K']:g} K")
+                    continue
+                lo = f"{x['low_K']:.1f} K" + (" (grid start)" if x["low_at_grid_edge"] else "")
+                hi = f"{x['high_K']:.1f} K" + (" (grid end)" if x["high_at_grid_edge"] else "")
+                parts.append(f"{lo} to {hi}")
+            text = "; ".join(parts)
+        print(f"{r['channel']} faster than bare: {text}")
+
+
+def _print_barriers(rec) -> None:
+    from tstrate.cli.common import format_table
+
+    def f(v):
+        return "-" if v is None else f"{v:.1f}"
+
+    print(f"\n== {rec['name']}: barriers (kJ/mol; from the separated reactants and from the complex)")
+    rows = [[b["channel"], f(b["barrier_classical_kJ_per_mol"]), f(b["barrier_zpe_kJ_per_mol"]),
+             f(b["barrier_from_complex_classical_kJ_per_mol"]), f(b["barrier_from_complex_zpe_kJ_per_mol"]),
+             f(b["complex_binding_zpe_kJ_per_mol"])] for b in rec["barriers"]]
+    print(format_table(["channel", "classical", "ZPE", "classical(cx)", "ZPE(cx)", "complex"], rows))
+    T = rec["temperature_K"]
+    header = ["T/K"] + [f"dG‡({b['channel']})" for b in rec["barriers"]]
+    rows = [[f"{t:g}"] + [f"{b['delta_G_activation_kJ_per_mol'][i]:.1f}" for b in rec["barriers"]]
+            for i, t in enumerate(T)]
+    print("\nactivation Gibbs energy from the separated reactants, 1 bar standard state (kJ/mol):")
+    print(format_table(header, rows))
+
+
+def run(args) -> int:
+    from tstrate.cli.common import print_json
+
+    study, results = compute(args.study, args.low_modes)
+    records = [rec for res in results for rec in scenario_records(res, study.conditions.rate_units)]
+    written = write_plots(results, args.plot) if args.plot else []
+    if args.json:
+        print_json({"study": study.file, "title": study.title, "comparisons": records})
+        return 0
+    print(study.title)
+    shown = set()
+    for rec in records:
+        if rec["name"] not in shown:
+            shown.add(rec["name"])
+            _print_barriers(rec)
+        _print_scenario(rec)
+    if written:
+        print(f"\n{len(written)} plot files written to {args.plot}")
+    print("\nHigh-pressure-limit TST rates per free substrate molecule; estimates bounded by the "
+          "electronic-structure inputs.")
+    return 0
