@@ -173,15 +173,20 @@ def _print_scenario(rec) -> None:
 
     print(f"\n== {rec['name']}: {rec['abundance']['text']}")
     routes = rec["routes"]
-    header = ["T/K", f"[{rec['catalyst']}]/cm-3"] + [f"k'({r['channel']})/s-1" for r in routes]
-    header += [f"{r['channel']}/bare" for r in routes[1:]]
+    dimer = rec["dimer_number_density_per_cm3"]
+    header = ["T/K", f"[{rec['catalyst']}]/cm-3"] + ([f"[{rec['catalyst_dimer']}]/cm-3"] if dimer is not None else [])
+    header += [f"k'({r['channel']})/s-1" for r in routes] + [f"{r['channel']}/bare" for r in routes[1:]]
     rows = []
     for i, t in enumerate(rec["temperature_K"]):
         row = [f"{t:g}", f"{rec['catalyst_number_density_per_cm3'][i]:.3g}"]
+        row += [f"{dimer[i]:.3g}"] if dimer is not None else []
         row += [f"{r['pseudo_first_order_per_s'][i]:.3g}" for r in routes]
         row += [f"{r['ratio_to_bare'][i]:.3g}" for r in routes[1:]]
         rows.append(row)
     print(format_table(header, rows))
+    free = rec["free_substrate_fraction"]
+    print(f"free {rec['substrate']} (not held in the complexes): {min(free):.3g} to {max(free):.3g} "
+          "of the total; rates above are per free molecule")
     print(f"\ncrossover abundance (route = bare), {rec['catalyst']} molecule cm-3"
           + ("" if rec["abundance"]["kind"] == "number_density_m3"
              else f" and {routes[1]['crossover_given_unit']}") + ":")
