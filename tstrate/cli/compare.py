@@ -49,96 +49,6 @@ def _slug(text: str) -> str:
     return re.sub(r"[^A-Za-z0-9]+", "_", text).strip("_").lower() or "comparison"
 
 
-def _kc_unit(delta_n: int) -> str:
-    n = -delta_n
-    return "cm3 molecule-1" if n == 1 else f"cm{3 * n} molecule-{n}"
-
-
-def scenario_records(result, rate_units=None) -> list[dict]:
-    """One plain record per abundance of a comparison result (units in the keys)."""
-    import numpy as np
-
-    from tstrate.output.records import rate_unit
-    from tstrate.units import rate_from_SI
-
-    comp = result.comparison
-    T = result.temperature_K
-    kj = 1e-3
-    barriers = []
-    for b in result.barriers:
-        barriers.append({
-            "channel": b.channel, "kind": b.kind,
-            "barrier_classical_kJ_per_mol": b.classical_from_reactants_J_per_mol * kj,
-            "barrier_zpe_kJ_per_mol": b.zpe_from_reactants_J_per_mol * kj,
-            "barrier_from_complex_classical_kJ_per_mol": _opt(b.classical_from_complex_J_per_mol, kj),
-            "barrier_from_complex_zpe_kJ_per_mol": _opt(b.zpe_from_complex_J_per_mol, kj),
-            "complex_binding_zpe_kJ_per_mol": _opt(b.complex_binding_zpe_J_per_mol, kj),
-            "reaction_energy_zpe_kJ_per_mol": b.reaction_energy_zpe_J_per_mol * kj,
-            "delta_G_activation_kJ_per_mol": b.delta_G_activation_J_per_mol * kj,
-            "delta_G_activation_from_complex_kJ_per_mol": _opt(b.delta_G_activation_from_complex_J_per_mol, kj),
-        })
-    out = []
-    for a, ab in enumerate(comp.abundances):
-        routes = []
-        for r in result.routes:
-            unit = rate_unit(r.order, rate_units)
-            ceq = r.complex_equilibrium
-            rec = {
-                "channel": r.channel, "kind": r.kind, "catalyst_power": r.catalyst_power,
-                "order": r.order,
-                "rate_constant": rate_from_SI(r.rates.k, r.order, unit),
-                "rate_constant_unit": unit,
-                "complex": r.complex,
-                "complex_Kc": None if ceq is None else np.exp(ceq.ln_Kc - ceq.delta_n * np.log(1e6)),
-                "complex_Kc_unit": None if ceq is None else _kc_unit(ceq.delta_n),
-                "complex_Kp": None if ceq is None else np.exp(ceq.ln_Kp),
-                "complex_Kp_unit": None if ceq is None else f"bar^{ceq.delta_n} (1 bar standard state)",
-                "k_unimolecular_from_complex_per_s": r.k_unimolecular_from_complex_per_s,
-                "complex_per_free_substrate": (None if r.complex_per_free_substrate is None
-                                               else r.complex_per_free_substrate[a]),
-                "pseudo_first_order_per_s": r.pseudo_first_order_per_s[a],
-                "ratio_to_bare": r.ratio_to_bare[a],
-            }
-            if r.catalyst_power:
-                rec["crossover_number_density_per_cm3"] = r.crossover_catalyst_m3 * 1e-6
-                given = result.crossover_in_given_unit(r, a)
-                unit_given = ab.unit
-                if ab.kind == "number_density_m3":
-                    given, unit_given = given * 1e-6, "molecule cm-3"
-                rec["crossover_in_given_unit"] = given
-                rec["crossover_given_unit"] = unit_given
-                rec["faster_than_bare_K"] = [
-                    {"low_K": x.low_K, "high_K": x.high_K, "low_at_grid_edge": x.low_at_grid_edge,
-                     "high_at_grid_edge": x.high_at_grid_edge} for x in r.faster_ranges[a]]
-            routes.append(rec)
-        value, unit = ab.value, ab.unit
-        if ab.kind == "number_density_m3":
-            value, unit = value * 1e-6, "molecule cm-3"
-        out.append({
-            "name": comp.name,
-            "description": comp.description,
-            "abundance": {"kind": ab.kind, "value": value, "unit": unit, "label": ab.label,
-                          "phase": ab.abundance.phase if ab.kind == "relative_humidity_percent" else None,
-                          "total_pressure_Pa": ab.total_pressure_Pa, "text": ab.describe()},
-            "reference": comp.reference, "substrate": comp.substrate, "catalyst": comp.catalyst,
-            "catalyst_dimer": comp.catalyst_dimer,
-            "temperature_K": T,
-            "catalyst_number_density_per_cm3": result.catalyst_m3[a] * 1e-6,
-            "dimer_number_density_per_cm3": None if result.dimer_m3 is None else result.dimer_m3[a] * 1e-6,
-            "dimer_Kp_per_bar": (None if result.dimer_equilibrium is None
-                                 else np.exp(result.dimer_equilibrium.ln_Kp)),
-            "free_substrate_fraction": result.free_substrate_fraction[a],
-            "routes": routes,
-            "barriers": barriers,
-            "rate_model": "canonical TST, high-pressure limit; pseudo-first-order rates per free substrate",
-        })
-    return out
-
-
-def _opt(v, factor):
-    return None if v is None else v * factor
-
-
 def compute(study_path, low_modes="harmonic"):
     from tstrate.errors import InputError
     from tstrate.io.study import read_study
@@ -241,7 +151,9 @@ def run(args) -> int:
     from tstrate.cli.common import print_json
 
     study, results = compute(args.study, args.low_modes)
-    records = [rec for res in results for rec in scenario_records(res, study.conditions.rate_units)]
+    from tstrate.output.compare_records import comparison_records
+
+    records = comparison_records(results, study.conditions.rate_units)
     written = write_plots(results, args.plot) if args.plot else []
     if args.json:
         print_json({"study": study.file, "title": study.title, "comparisons": records})

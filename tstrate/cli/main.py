@@ -17,8 +17,11 @@ from tstrate.errors import InputError
 
 #: subcommand name -> module (in the order shown by --help)
 SUBCOMMANDS: dict[str, str] = {
+    "run": "tstrate.cli.run",
     "thermo": "tstrate.cli.thermo",
     "rates": "tstrate.cli.rates",
+    "falloff": "tstrate.cli.falloff",
+    "excite": "tstrate.cli.excite",
     "compare": "tstrate.cli.compare",
     "compute": "tstrate.cli.compute",
     "tunnel": "tstrate.cli.tunnel",

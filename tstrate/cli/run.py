@@ -1,0 +1,90 @@
+"""``tstrate run``: the main job - everything a study asks for, written to one folder."""
+
+from __future__ import annotations
+
+HELP = "compute everything a study asks for and write mechanism, fits, tables, plots and a report"
+DESCRIPTION = """\
+Reads a study, computes thermochemistry, rate constants (with tunnelling),
+catalysed-route comparisons, falloff and energised-molecule yields where the
+study asks for them, fits Arrhenius/Troe/NASA parameters, and writes an output
+folder with mechanism.yaml (Cantera format), fits.json, fits.csv, results.json,
+inputs.json (input files with SHA-256 hashes), tables/*.csv, plots/*.png|svg,
+report.md and report.html (self-contained).
+
+Without --output the folder is tstrate-output/<study name>, or a new
+<name>-2, -3, ... when that exists. An explicit --output that exists is
+replaced only with --force. Outputs are written atomically: an interrupted run
+leaves nothing half-written. Inputs are never overwritten.
+
+With --json, a summary (output folder, files, fitted expressions, warnings) is
+printed on stdout.
+"""
+
+
+def add_arguments(parser) -> None:
+    parser.add_argument("study", metavar="STUDY", help="study file (TOML)")
+    parser.add_argument("--output", "-o", metavar="DIR",
+                        help="output folder (default tstrate-output/<study name>, never reused)")
+    parser.add_argument("--force", action="store_true", help="replace an existing --output folder")
+    parser.add_argument("--low-modes", choices=["harmonic", "grimme", "truhlar"], default="harmonic",
+                        help="treatment of low real modes (default harmonic)")
+    parser.add_argument("--quiet", "-q", action="store_true", help="no progress bar")
+    parser.add_argument("--json", action="store_true", help="machine-readable summary on stdout")
+
+
+def run(args) -> int:
+    import sys
+    from pathlib import Path
+
+    from tstrate.cli.common import print_json
+    from tstrate.io.study import read_study
+    from tstrate.physics.thermo import LowModes
+    from tstrate.workflow import _steps, compute_study, default_output_dir, write_outputs
+
+    study = read_study(args.study)
+    out = Path(args.output) if args.output else default_output_dir(study)
+    if out.exists() and not args.force:
+        from tstrate.errors import InputError
+
+        raise InputError("output folder exists", file=str(out),
+                         hint="pass --force to replace it, or choose another --output")
+    steps = _steps(study) + ["tables", "plots", "report"]
+    bar = None
+    if not args.quiet and sys.stderr.isatty():
+        from tqdm import tqdm
+
+        bar = tqdm(total=len(steps), desc="tstrate run", unit="step", file=sys.stderr)
+
+    def progress(name):
+        if bar is not None:
+            bar.set_postfix_str(name)
+            bar.update(1)
+
+    try:
+        result = compute_study(study, low_modes=LowModes(args.low_modes), progress=progress)
+        files = write_outputs(result, out, force=args.force, progress=progress)
+    finally:
+        if bar is not None:
+            bar.close()
+    if args.json:
+        from tstrate.output.fits import arrhenius_record
+
+        print_json({
+            "study": study.file, "output_dir": str(out), "files": [str(f) for f in files],
+            "channels": [{"name": c.name, "mechanism_expression": arrhenius_record(c.expression),
+                          "warnings": list(c.warnings)} for c in result.fits.channels],
+            "warnings": list(result.warnings),
+        })
+        return 0
+    print(f"{study.title}\nwrote {len(files)} files to {out}/ (report: {out / 'report.html'})")
+    for cf in result.fits.channels:
+        e = cf.expression
+        form = f"(T/{e.T0_K:g} K)^{e.n:.2f} " if e.modified else ""
+        print(f"  {cf.name}: k = {e.A_in():.3e} {form}exp(-Ea/RT), Ea = {e.Ea_J_per_mol / 1e3:.2f} kJ/mol "
+              f"[A in {e.A_unit if hasattr(e, 'A_unit') else 'k units'}], {e.Tmin_K:g}-{e.Tmax_K:g} K, "
+              f"max deviation {100 * e.max_rel_deviation:.1f} %")
+    for w in result.warnings:
+        print(f"warning: {w}", file=sys.stderr)
+    print("Estimates bounded by the electronic-structure inputs; check against experiment and "
+          "evaluated data before use.")
+    return 0

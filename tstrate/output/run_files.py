@@ -1,0 +1,309 @@
+"""Everything ``tstrate run`` writes into its output folder.
+
+Layout::
+
+    report.md, report.html      the report (HTML self-contained, plots embedded)
+    mechanism.yaml              Cantera-format mechanism (species NASA7 + fitted reactions)
+    fits.json, fits.csv         fitted parameters with their quality and range
+    results.json                every computed number, units in the keys
+    inputs.json                 the input files with their SHA-256 hashes
+    tables/*.csv                thermochemistry, rate constants, comparisons, falloff
+    plots/*.png, plots/*.svg    figures
+
+The caller (:func:`tstrate.workflow.write_outputs`) gives a fresh temporary
+folder and renames it into place, so this module writes plainly.
+"""
+
+from __future__ import annotations
+
+import datetime as _dt
+from pathlib import Path
+from typing import Callable
+
+import numpy as np
+
+from tstrate.output import report as rp
+
+CAUTION = ("Caution: every number here is an estimate bounded by the electronic-structure inputs "
+           "(an error of 4 kJ/mol in a barrier changes k at 200 K about tenfold; semi-empirical "
+           "barriers can be off by tens of kJ/mol). Check against experiment and established "
+           "evaluations (e.g. NASA/JPL, IUPAC) before use in models or decisions that matter.")
+
+METHODS = (
+    "Thermochemistry: ideal gas, rigid rotor, harmonic oscillator, electronic levels; 1 bar standard "
+    "state; symmetry numbers and optical isomers from the geometry unless overridden.",
+    "Rate constants: canonical transition-state theory (Eyring) from partition functions per unit "
+    "volume and the zero-point-corrected barrier, in logarithms; reaction-path degeneracy carried by "
+    "the symmetry numbers unless overridden; channels through a pre-reactive complex in the "
+    "high-pressure limit (complex in equilibrium with the reactants).",
+    "Tunnelling: Wigner (1932), Skodje-Truhlar (1981) or unsymmetrical Eckart (Eckart 1930; Johnston "
+    "and Heicklen 1962) from the imaginary frequency and the zero-point-corrected barriers; Eckart "
+    "integrated numerically, no tunnelling below the separated reactants by default.",
+    "Reverse rate constants by detailed balance; Kc and Kp from the same partition functions.",
+    "Catalysed routes: catalyst abundance from number density, pressure, mixing ratio or relative "
+    "humidity (Murphy and Koop 2005 saturation pressures); complexes in equilibrium.",
+    "Falloff: RRKM k(E) on an energy grain (Beyer-Swinehart counts), strong collisions scaled by a "
+    "collision efficiency (Troe's weak-collision relation), Lennard-Jones collision rates; Troe "
+    "parameters fitted to the computed curves.",
+    "Fits: Arrhenius and modified Arrhenius by least squares on ln k; NASA 7-coefficient polynomials "
+    "(two ranges) fitted to the thermochemistry, enthalpies shifted by per-element offsets (not "
+    "enthalpies of formation).",
+)
+
+
+def _save(fig, folder: Path, stem: str) -> list[Path]:
+    from tstrate.output.plots import save_figure
+
+    return save_figure(fig, folder / stem, formats=["png", "svg"])
+
+
+def _results_json(result) -> dict:
+    from tstrate.output.records import channel_rates_record
+
+    study = result.study
+    units = study.conditions.rate_units
+    doc = {
+        "study": study.file,
+        "title": study.title,
+        "low_modes": {"method": result.low_modes.method, "cutoff_cm1": result.low_modes.cutoff_cm1},
+        "thermochemistry": [_thermo_record(t, study.species[t.species]) for t in result.thermo],
+        "channels": [channel_rates_record(r, units) for r in result.rates],
+        "warnings": list(result.warnings),
+    }
+    if result.comparisons is not None:
+        from tstrate.output.compare_records import comparison_records
+
+        doc["comparisons"] = comparison_records(result.comparisons, units)
+    if result.falloff is not None:
+        from tstrate.output.pressure_records import study_falloff_record
+
+        doc["falloff"] = study_falloff_record(result.falloff, units)
+    if result.excitations is not None:
+        from tstrate.output.pressure_records import excitation_record
+
+        doc["excitations"] = [excitation_record(e) for e in result.excitations]
+    return doc
+
+
+def _thermo_record(th, sp) -> dict:
+    return {
+        "name": th.species, "formula": sp.formula, "kind": sp.kind,
+        "symmetry_number": sp.symmetry_number, "optical_isomers": sp.optical_isomers,
+        "frequencies_cm1": sp.scaled_frequencies_cm1, "zpe_kJ_per_mol": th.zpe_J_per_mol / 1e3,
+        "temperature_K": th.temperature_K, "entropy_J_per_mol_K": th.entropy_J_per_mol_K,
+        "heat_capacity_J_per_mol_K": th.heat_capacity_J_per_mol_K,
+        "enthalpy_increment_kJ_per_mol": th.enthalpy_increment_J_per_mol / 1e3,
+        "gibbs_increment_kJ_per_mol": th.gibbs_increment_J_per_mol / 1e3,
+    }
+
+
+def write_all(result, folder: Path, *, progress: Callable[[str], None] | None = None) -> list[Path]:
+    """Write every output file into ``folder``; returns the paths written."""
+    from tstrate.io.files import atomic_write_text
+    from tstrate.output.mechanism import write_mechanism
+    from tstrate.output.plots import arrhenius_figure
+    from tstrate.output.records import channel_rates_record
+    from tstrate.output.tables import (json_text, write_fits_csv, write_fits_json, write_rate_tables,
+                                       write_thermo_csv)
+    from tstrate.workflow import file_sha256, input_files
+
+    def step(name):
+        if progress:
+            progress(name)
+
+    folder = Path(folder)
+    (folder / "tables").mkdir()
+    (folder / "plots").mkdir()
+    study = result.study
+    units = study.conditions.rate_units
+    written: list[Path] = []
+    figures: list[tuple[str, Path, str]] = []  # (section, png, caption)
+
+    step("tables")
+    written.append(write_mechanism(result.fits, folder / "mechanism.yaml"))
+    written.append(write_fits_json(folder / "fits.json", result.fits, units))
+    written.append(write_fits_csv(folder / "fits.csv", result.fits, units))
+    written.append(write_thermo_csv(folder / "tables" / "thermochemistry.csv", result.thermo))
+    written += write_rate_tables(folder / "tables", result.rates, units)
+    doc = _results_json(result)
+    atomic_write_text(folder / "results.json", json_text(doc))
+    written.append(folder / "results.json")
+    inputs = [{"file": f, "sha256": file_sha256(f)} for f in input_files(study)]
+    atomic_write_text(folder / "inputs.json", json_text({"inputs": inputs}))
+    written.append(folder / "inputs.json")
+
+    step("plots")
+    records = [channel_rates_record(r, units) for r in result.rates]
+    paths = _save(arrhenius_figure(records, study.title), folder / "plots", "arrhenius")
+    written += paths
+    figures.append(("rates", paths[0], "Arrhenius plot: log10 k against 1000/T; dashed lines "
+                    "without tunnelling."))
+    if result.comparisons is not None:
+        from tstrate.output.compare_plots import comparison_figures
+        from tstrate.output.tables import safe_file_stem
+
+        for cr in result.comparisons:
+            stem = safe_file_stem(cr.comparison.name)
+            for key, fig in comparison_figures(cr).items():
+                paths = _save(fig, folder / "plots", f"compare_{stem}_{key}")
+                written += paths
+                figures.append(("compare", paths[0],
+                                f"{cr.comparison.name}: {key.replace('_', ' ')}"))
+    if result.falloff is not None:
+        from tstrate.output.pressure_plots import falloff_figure
+        from tstrate.output.tables import safe_file_stem
+
+        for cf in result.falloff.channels:
+            paths = _save(falloff_figure(cf), folder / "plots", f"falloff_{safe_file_stem(cf.name)}")
+            written += paths
+            figures.append(("falloff", paths[0], f"Falloff of channel {cf.name}: log10 k against "
+                            "log10 p at several temperatures."))
+    if result.excitations is not None:
+        from tstrate.output import pressure_plots as pp
+        from tstrate.output.tables import safe_file_stem
+
+        for ex in result.excitations:
+            stem = safe_file_stem(ex.spec.name)
+            if ex.pressure is not None:
+                paths = _save(pp.yield_pressure_figure(ex), folder / "plots", f"excitation_{stem}_pressure")
+                written += paths
+                figures.append(("excitation", paths[0], f"{ex.spec.name}: fraction reacting "
+                                "before deactivation against pressure."))
+            if ex.profile is not None:
+                paths = _save(pp.yield_altitude_figure(ex), folder / "plots", f"excitation_{stem}_altitude")
+                written += paths
+                figures.append(("excitation", paths[0], f"{ex.spec.name}: fraction reacting "
+                                "before deactivation against altitude."))
+
+    step("report")
+    blocks = build_report(result, doc, inputs, [(s, p.relative_to(folder), c) for s, p, c in figures])
+    atomic_write_text(folder / "report.md", rp.to_markdown(blocks))
+    atomic_write_text(folder / "report.html", rp.to_html(blocks, folder, study.title))
+    written += [folder / "report.md", folder / "report.html"]
+    return written
+
+
+def _pick_temperatures(T: np.ndarray, most: int = 6) -> list[int]:
+    if len(T) <= most:
+        return list(range(len(T)))
+    return sorted(set(np.linspace(0, len(T) - 1, most).round().astype(int).tolist()))
+
+
+def build_report(result, doc: dict, inputs: list[dict], figures) -> list:
+    """The report's blocks (see :mod:`tstrate.output.report`)."""
+    import tstrate
+
+    study = result.study
+    B: list = [rp.Heading(study.title, 1),
+               rp.Paragraph(f"Made by tstrate {tstrate.__version__} on "
+                            f"{_dt.datetime.now(_dt.timezone.utc).strftime('%Y-%m-%d %H:%M UTC')}."),
+               rp.Paragraph(CAUTION)]
+
+    B.append(rp.Heading("Inputs"))
+    B.append(rp.Table(("file", "SHA-256"), tuple((i["file"], i["sha256"]) for i in inputs)))
+    rows = []
+    for name, sp in study.species.items():
+        prov = sp.provenance.get("method", "") if sp.provenance else ""
+        rows.append((name, sp.formula, sp.kind, prov, sp.symmetry_number,
+                     "-" if sp.energy_J_per_mol is None else "yes"))
+    B.append(rp.Table(("species", "formula", "kind", "method", "symmetry number", "energy"), tuple(rows)))
+
+    B.append(rp.Heading("Methods and assumptions"))
+    B.append(rp.Bullets(METHODS + (f"Low modes: {result.low_modes.method}.",)))
+
+    B.append(rp.Heading("Thermochemistry (1 bar)"))
+    rows = []
+    for rec in doc["thermochemistry"]:
+        j = int(np.argmin(np.abs(np.asarray(rec["temperature_K"]) - 298.15)))
+        rows.append((rec["name"], rec["formula"], f"{rec['zpe_kJ_per_mol']:.2f}",
+                     f"{rec['entropy_J_per_mol_K'][j]:.2f}", f"{rec['heat_capacity_J_per_mol_K'][j]:.2f}",
+                     f"{rec['enthalpy_increment_kJ_per_mol'][j]:.3f}"))
+    B.append(rp.Table(("species", "formula", "ZPE / kJ mol-1", "S(298.15 K) / J mol-1 K-1",
+                       "Cp(298.15 K) / J mol-1 K-1", "H(298.15 K)-H(0) / kJ mol-1"), tuple(rows)))
+
+    B.append(rp.Heading("Rate constants"))
+    rows = []
+    for r in doc["channels"]:
+        rows.append((r["name"], r["order"], f"{r['barrier_classical_kJ_per_mol']:.2f}",
+                     f"{r['barrier_zpe_kJ_per_mol']:.2f}", f"{r['imaginary_frequency_cm1']:.0f}i",
+                     r["tunnelling"], f"{r['reaction_path_degeneracy']:g}",
+                     f"{r['reaction_energy_zpe_kJ_per_mol']:.2f}"))
+    B.append(rp.Table(("channel", "order", "barrier classical / kJ mol-1", "barrier ZPE / kJ mol-1",
+                       "imaginary frequency / cm-1", "tunnelling", "path degeneracy",
+                       "reaction energy ZPE / kJ mol-1"), tuple(rows),
+                      "Barriers from the separated reactants."))
+    for r in doc["channels"]:
+        T = np.asarray(r["temperature_K"])
+        idx = _pick_temperatures(T)
+        B.append(rp.Table(("T / K", f"k / {r['rate_constant_unit']}", "kappa",
+                           f"k without tunnelling / {r['rate_constant_unit']}",
+                           "dG‡ / kJ mol-1", "dH‡ / kJ mol-1", "dS‡ / J mol-1 K-1"),
+                          tuple((f"{T[i]:g}", f"{r['rate_constant'][i]:.3e}", f"{r['kappa'][i]:.3g}",
+                                 f"{r['rate_constant_no_tunnelling'][i]:.3e}",
+                                 f"{r['delta_G_activation_kJ_per_mol'][i]:.2f}",
+                                 f"{r['delta_H_activation_kJ_per_mol'][i]:.2f}",
+                                 f"{r['delta_S_activation_J_per_mol_K'][i]:.2f}") for i in idx),
+                          f"Channel {r['name']} (full table in tables/; activation quantities at 1 bar)."))
+    B += [rp.Figure(p, c) for s, p, c in figures if s == "rates"]
+
+    if result.comparisons is not None:
+        from tstrate.output.compare_records import comparison_report_blocks
+
+        B.append(rp.Heading("Catalysed and bare routes"))
+        B += comparison_report_blocks(result.comparisons, doc["comparisons"])
+        B += [rp.Figure(p, c) for s, p, c in figures if s == "compare"]
+
+    if result.falloff is not None:
+        B.append(rp.Heading("Pressure dependence"))
+        fal = doc["falloff"]
+        B.append(rp.Paragraph(f"Bath gas {fal['bath_gas']} (Lennard-Jones sigma "
+                              f"{fal['bath_gas_lennard_jones']['sigma_A']:.3g} A, epsilon/k "
+                              f"{fal['bath_gas_lennard_jones']['epsilon_K']:.3g} K; "
+                              f"{fal['bath_gas_lennard_jones']['source']})."))
+        rows = []
+        for cf in result.falloff.channels:
+            t = cf.troe
+            rows.append((cf.name, f"{t.a:.3g}", f"{t.T3_K:.3g}", f"{t.T1_K:.3g}",
+                         "-" if t.T2_K is None else f"{t.T2_K:.3g}",
+                         f"{100 * t.max_relative_deviation:.2f}", f"{100 * t.rms_relative_deviation:.2f}"))
+        B.append(rp.Table(("channel", "a", "T*** / K", "T* / K", "T** / K", "max deviation / %",
+                           "rms deviation / %"), tuple(rows), "Troe parameters fitted to the computed "
+                          "falloff curves."))
+        for s in result.falloff.skipped:
+            B.append(rp.Paragraph(f"Channel {s.name}: {s.reason}."))
+        B += [rp.Figure(p, c) for s, p, c in figures if s == "falloff"]
+
+    if result.excitations is not None:
+        B.append(rp.Heading("Energised molecules"))
+        for ex, rec in zip(result.excitations, doc["excitations"]):
+            note = " Below threshold: no reaction." if rec["below_threshold"] else ""
+            B.append(rp.Paragraph(f"{rec['name']} (channel {rec['channel']}): {rec['excitation']}, "
+                                  f"{rec['excitation_energy_kJ_per_mol']:.1f} kJ/mol.{note}"))
+        B += [rp.Figure(p, c) for s, p, c in figures if s == "excitation"]
+
+    B.append(rp.Heading("Fitted parameters"))
+    rows = []
+    for cf in result.fits.channels:
+        for label, fit in (("Arrhenius", cf.arrhenius), ("modified Arrhenius", cf.modified)):
+            rows.append((cf.name, label, f"{fit.A_in():.4g}", f"{fit.n:.3g}",
+                         f"{fit.Ea_J_per_mol / 1e3:.3f}", f"{fit.Tmin_K:g}-{fit.Tmax_K:g}",
+                         f"{100 * fit.max_rel_deviation:.2f}", f"{100 * fit.rms_rel_deviation:.2f}"))
+    B.append(rp.Table(("channel", "form", "A (k's unit)", "n", "Ea / kJ mol-1", "range / K",
+                       "max deviation / %", "rms deviation / %"), tuple(rows),
+                      f"k = A (T/T0)^n exp(-Ea/RT), T0 = {result.fits.channels[0].modified.T0_K:g} K "
+                      "for the modified form; the mechanism file uses the "
+                      f"{result.fits.channels[0].mechanism_form} form."))
+    rows = [(s.name, f"{s.nasa7.Tmin_K:g}-{s.nasa7.Tmid_K:g}-{s.nasa7.Tmax_K:g}",
+             f"{100 * s.nasa7.max_rel_error_cp:.3f}", f"{100 * s.nasa7.max_rel_error_h:.3f}",
+             f"{100 * s.nasa7.max_rel_error_s:.3f}") for s in result.fits.species]
+    B.append(rp.Table(("species", "NASA range / K", "max Cp error / %", "max H error / %",
+                       "max S error / %"), tuple(rows), "NASA 7-coefficient polynomials."))
+    if result.warnings:
+        B.append(rp.Heading("Warnings"))
+        B.append(rp.Bullets(tuple(result.warnings)))
+    B.append(rp.Heading("Files"))
+    B.append(rp.Bullets(("mechanism.yaml: Cantera-format mechanism", "fits.json, fits.csv: fitted "
+                         "parameters", "results.json: every number computed", "tables/: CSV tables",
+                         "plots/: PNG and SVG figures", "inputs.json: input files and hashes")))
+    B.append(rp.Paragraph(CAUTION))
+    return B

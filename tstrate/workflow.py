@@ -1,0 +1,227 @@
+"""The main job end to end: compute everything a study asks for, then write it out.
+
+Python use (the same as ``tstrate run``)::
+
+    from tstrate.io.study import read_study
+    from tstrate.workflow import compute_study, write_outputs
+
+    study = read_study("molecules/carbonic_acid/study.toml")
+    result = compute_study(study)            # thermochemistry, rates, comparisons, falloff, fits
+    result.rates[0].k                        # SI arrays over study.conditions.temperature_K
+    write_outputs(result, "out")             # mechanism.yaml, fits.json, tables, plots, report
+
+Steps run only when the study asks for them: comparisons need ``[[comparison]]``,
+falloff needs pressures in ``[conditions]``, energised-molecule yields need
+``[[excitation]]``.
+"""
+
+from __future__ import annotations
+
+import hashlib
+import logging
+import os
+import shutil
+import tempfile
+from dataclasses import dataclass, field
+from pathlib import Path
+from typing import Callable
+
+import numpy as np
+
+from tstrate.errors import InputError
+from tstrate.model import Study
+from tstrate.physics.thermo import HARMONIC, LowModes, Thermo, thermochemistry
+
+log = logging.getLogger(__name__)
+
+#: the temperatures of the thermochemistry table besides the study's [K]
+THERMO_EXTRA_TEMPERATURES_K = (298.15,)
+
+
+@dataclass(frozen=True)
+class StudyResult:
+    """Everything computed for one study (each part None when the study does not ask for it).
+
+    thermo: one Thermo per species, at the study temperatures plus 298.15 K.
+    rates: tst.ChannelRates per channel.
+    comparisons: catalysis.ComparisonResult per [[comparison]], or None.
+    falloff: pressure.StudyFalloff, or None.
+    excitations: energised-molecule results per [[excitation]], or None.
+    fits: output.fits.StudyFits.
+    warnings: sentences for the report.
+    """
+
+    study: Study
+    low_modes: LowModes
+    thermo: tuple[Thermo, ...]
+    rates: tuple
+    comparisons: tuple | None
+    falloff: object | None
+    excitations: tuple | None
+    fits: object
+    warnings: tuple[str, ...] = field(default=())
+
+
+def _steps(study: Study) -> list[str]:
+    steps = ["thermochemistry", "rate constants"]
+    if study.sections.get("comparison"):
+        steps.append("catalysed routes")
+    if study.conditions.pressure_Pa.size or study.conditions.number_density_m3.size:
+        steps.append("falloff")
+    if study.sections.get("excitation"):
+        steps.append("energised molecules")
+    steps.append("fits")
+    return steps
+
+
+def compute_study(study: Study, *, low_modes: LowModes = HARMONIC,
+                  progress: Callable[[str], None] | None = None) -> StudyResult:
+    """Compute everything ``study`` asks for. ``progress(step)`` is called before each step."""
+    from tstrate.physics.tst import study_rates
+
+    def step(name):
+        log.info("%s", name)
+        if progress:
+            progress(name)
+
+    warnings: list[str] = []
+    T = study.conditions.temperature_K
+    T_thermo = np.unique(np.concatenate([T, THERMO_EXTRA_TEMPERATURES_K]))
+
+    step("thermochemistry")
+    thermo = tuple(thermochemistry(sp, T_thermo, low_modes=low_modes) for sp in study.species.values())
+
+    step("rate constants")
+    rates = tuple(study_rates(study, low_modes=low_modes))
+
+    comparisons = None
+    if study.sections.get("comparison"):
+        step("catalysed routes")
+        from tstrate.physics.catalysis import study_comparisons
+
+        comparisons = tuple(study_comparisons(study, low_modes=low_modes))
+
+    falloff = None
+    troe = {}
+    if study.conditions.pressure_Pa.size or study.conditions.number_density_m3.size:
+        step("falloff")
+        from tstrate.output.fits import TroeData
+        from tstrate.physics.pressure import study_falloff
+
+        falloff = study_falloff(study)
+        warnings += list(falloff.warnings)
+        for cf in falloff.channels:
+            troe[cf.name] = troe_data(cf, study)
+
+    excitations = None
+    if study.sections.get("excitation"):
+        step("energised molecules")
+        from tstrate.physics.pressure import study_excitations
+
+        excitations = tuple(study_excitations(study))
+
+    step("fits")
+    from tstrate.io.fit_section import FitOptions
+    from tstrate.output.fits import fit_study
+
+    opts = study.sections.get("fits") or FitOptions()
+    fits = fit_study(study, low_modes=low_modes, max_deviation=opts.max_deviation, T0_K=opts.T0_K,
+                     split=opts.split, mechanism_form=opts.mechanism_form, troe=troe or None)
+    warnings += list(fits.warnings)
+    for cf in fits.channels:
+        warnings += list(cf.warnings)
+    return StudyResult(study=study, low_modes=low_modes, thermo=thermo, rates=rates,
+                       comparisons=comparisons, falloff=falloff, excitations=excitations, fits=fits,
+                       warnings=tuple(dict.fromkeys(warnings)))
+
+
+def troe_data(cf, study):
+    """Troe data for the mechanism from one channel's falloff result (modified Arrhenius limits)."""
+    from tstrate.output.fits import TroeData
+    from tstrate.physics.fitting import fit_arrhenius
+
+    T = cf.temperature_K
+    k0 = fit_arrhenius(T, cf.troe_k0_m3_per_s, order=2, modified=True) if len(T) >= 3 else \
+        fit_arrhenius(T, cf.troe_k0_m3_per_s, order=2)
+    kinf = fit_arrhenius(T, cf.k_high_pressure_per_s, order=1, modified=True) if len(T) >= 3 else \
+        fit_arrhenius(T, cf.k_high_pressure_per_s, order=1)
+    return TroeData.from_parts(k0, kinf, cf.troe, bath_gas=study.conditions.bath_gas)
+
+
+# ---------------------------------------------------------------------------- writing
+
+def file_sha256(path) -> str:
+    h = hashlib.sha256()
+    with open(path, "rb") as fh:
+        for chunk in iter(lambda: fh.read(1 << 16), b""):
+            h.update(chunk)
+    return h.hexdigest()
+
+
+def input_files(study: Study) -> list[str]:
+    return ([study.file] if study.file else []) + list(dict.fromkeys(study.species_files.values()))
+
+
+def default_output_dir(study: Study, base: str | Path = "tstrate-output") -> Path:
+    """``tstrate-output/<study stem>``, or ``-2``, ``-3``, ... when that exists (never reuse one)."""
+    stem = Path(study.file).stem if study.file else "study"
+    if study.file and stem == "study":
+        stem = Path(study.file).resolve().parent.name or stem
+    base = Path(base)
+    candidate = base / stem
+    i = 2
+    while candidate.exists():
+        candidate = base / f"{stem}-{i}"
+        i += 1
+    return candidate
+
+
+def write_outputs(result: StudyResult, output_dir, *, force: bool = False,
+                  progress: Callable[[str], None] | None = None) -> list[Path]:
+    """Write every output of ``result`` into ``output_dir`` atomically.
+
+    Everything is written into a temporary folder beside ``output_dir`` and
+    renamed into place at the end, so an interrupted run leaves nothing
+    half-written. An existing ``output_dir`` is replaced only with ``force``;
+    a folder holding an input file is never replaced.
+    """
+    from tstrate.output.run_files import write_all
+
+    out = Path(output_dir)
+    inputs = [Path(f).resolve() for f in input_files(result.study)]
+    if out.exists():
+        if not force:
+            raise InputError("output folder exists", file=str(out),
+                             hint="pass --force to replace it, or choose another --output")
+        if not out.is_dir():
+            raise InputError("output path exists and is not a folder", file=str(out))
+        resolved = out.resolve()
+        if any(resolved == p or resolved in p.parents for p in inputs):
+            raise InputError("output folder holds input files; refusing to replace it", file=str(out))
+    try:
+        out.parent.mkdir(parents=True, exist_ok=True)
+        tmp = Path(tempfile.mkdtemp(prefix=f".{out.name}.", suffix=".part", dir=out.parent))
+    except OSError as exc:
+        raise InputError(f"cannot write the output folder: {exc.strerror}", file=str(out)) from None
+    try:
+        os.chmod(tmp, 0o777 & ~_umask())
+        written = write_all(result, tmp, progress=progress)
+        if out.exists():
+            old = out.with_name(f".{out.name}.old")
+            if old.exists():
+                shutil.rmtree(old)
+            out.rename(old)
+            tmp.rename(out)
+            shutil.rmtree(old)
+        else:
+            tmp.rename(out)
+    except BaseException:
+        shutil.rmtree(tmp, ignore_errors=True)
+        raise
+    return [out / p.relative_to(tmp) for p in written]
+
+
+def _umask() -> int:
+    mask = os.umask(0)
+    os.umask(mask)
+    return mask
