@@ -1,0 +1,122 @@
+"""`tstrate run`: the whole job into one folder, atomically, never over inputs.
+
+The study is a copy of the bundled GFN2-xTB carbonic-acid demo restricted to a
+few temperatures (semi-empirical numbers: these tests check the plumbing and
+the agreement of the exported mechanism with tstrate's own numbers, which
+Cantera - a general-purpose reference library - evaluates independently).
+"""
+
+from __future__ import annotations
+
+import base64
+import hashlib
+import json
+import shutil
+from pathlib import Path
+
+import numpy as np
+import pytest
+
+from tstrate.cli.main import main
+
+DEMO = Path(__file__).resolve().parents[2] / "molecules" / "carbonic_acid"
+
+
+@pytest.fixture()
+def study(tmp_path) -> Path:
+    folder = tmp_path / "demo"
+    shutil.copytree(DEMO, folder, ignore=shutil.ignore_patterns("inputs", "*.sh", "*.md"))
+    text = (folder / "study.toml").read_text()
+    # fewer temperatures keep the test quick; the rest of the study is as bundled
+    start = text.index("temperature_K = [150")
+    end = text.index("]", start) + 1
+    text = text[:start] + "temperature_K = [200, 215, 230, 245, 260, 275, 290, 300]" + text[end:]
+    (folder / "study.toml").write_text(text)
+    return folder / "study.toml"
+
+
+def _hashes(folder: Path) -> dict:
+    return {p.name: hashlib.sha256(p.read_bytes()).hexdigest() for p in folder.glob("*.toml")}
+
+
+def test_run_writes_every_output_and_leaves_inputs_alone(study, tmp_path, capsys):
+    before = _hashes(study.parent)
+    out = tmp_path / "out"
+    assert main(["run", str(study), "--output", str(out), "--quiet"]) == 0
+    for name in ("mechanism.yaml", "fits.json", "fits.csv", "results.json", "inputs.json", "report.md",
+                 "report.html", "tables/thermochemistry.csv", "plots/arrhenius.png", "plots/arrhenius.svg"):
+        assert (out / name).is_file(), name
+    assert list((out / "tables").glob("rates_*.csv"))
+    assert _hashes(study.parent) == before
+    # no temporary folder is left beside the output
+    assert [p.name for p in tmp_path.iterdir() if p.name.startswith(".")] == []
+    # the HTML report is self-contained: the Arrhenius PNG is embedded byte for byte
+    html = (out / "report.html").read_text()
+    png = base64.b64encode((out / "plots" / "arrhenius.png").read_bytes()).decode()
+    assert png in html
+    assert "estimate" in html.lower() and "caution" in html.lower()
+    # inputs with their hashes
+    inputs = json.loads((out / "inputs.json").read_text())["inputs"]
+    assert {Path(i["file"]).name for i in inputs} >= {"study.toml", "h2co3.toml", "ts_bare.toml"}
+    for i in inputs:
+        assert i["sha256"] == hashlib.sha256(Path(i["file"]).read_bytes()).hexdigest()
+    assert "wrote" in capsys.readouterr().out
+
+
+def test_rerun_needs_force_and_default_folder_is_never_reused(study, tmp_path, monkeypatch, capsys):
+    out = tmp_path / "out"
+    assert main(["run", str(study), "-o", str(out), "-q"]) == 0
+    stamp = (out / "report.md").read_text()
+    assert main(["run", str(study), "-o", str(out), "-q"]) == 2
+    assert "--force" in capsys.readouterr().err
+    assert (out / "report.md").read_text() == stamp
+    assert main(["run", str(study), "-o", str(out), "-q", "--force"]) == 0
+    monkeypatch.chdir(tmp_path)
+    assert main(["run", str(study), "-q"]) == 0
+    assert main(["run", str(study), "-q"]) == 0
+    made = sorted(p.name for p in (tmp_path / "tstrate-output").iterdir())
+    assert made == ["demo", "demo-2"]
+
+
+def test_unwritable_output_is_a_one_line_error(study, tmp_path, capsys):
+    blocker = tmp_path / "file"
+    blocker.write_text("not a folder")
+    assert main(["run", str(study), "-o", str(blocker / "sub"), "-q"]) == 2
+    err = capsys.readouterr().err.strip()
+    assert err.count("\n") == 0 and "error" in err
+
+
+def test_json_summary(study, tmp_path, capsys):
+    out = tmp_path / "o"
+    assert main(["run", str(study), "-o", str(out), "-q", "--json"]) == 0
+    doc = json.loads(capsys.readouterr().out)
+    assert doc["output_dir"] == str(out)
+    assert {c["name"] for c in doc["channels"]} == {"bare", "one-water", "two-water"}
+
+
+def test_mechanism_reproduces_tstrate_in_cantera(study, tmp_path):
+    """Cantera (reference library) evaluates the exported mechanism; its k(T) equals the fitted
+    expression and tstrate's own k within the fit's stated deviation, and its Kc matches tstrate's."""
+    ct = pytest.importorskip("cantera")
+    out = tmp_path / "o"
+    assert main(["run", str(study), "-o", str(out), "-q"]) == 0
+    doc = json.loads((out / "results.json").read_text())
+    fits = json.loads((out / "fits.json").read_text())
+    gas = ct.Solution(str(out / "mechanism.yaml"))
+    avogadro = ct.avogadro  # molecules per kmol
+    for i, ch in enumerate(doc["channels"]):
+        dev = next(c for c in fits["channels"] if c["name"] == ch["name"])
+        for j, T in enumerate(ch["temperature_K"]):
+            gas.TP = T, 1e5
+            k_ct = gas.forward_rate_constants[i]  # (m3/kmol)^(n-1) s-1
+            n = ch["order"]
+            k_cm = k_ct * (1e6 / avogadro) ** (n - 1)
+            k_ts = ch["rate_constant"][j]
+            fit = dev[dev["mechanism_expression"]]  # the expression written to the mechanism
+            tol = 1.01 * fit["max_deviation_percent"] / 100 + 1e-6
+            assert k_cm == pytest.approx(k_ts, rel=tol), (ch["name"], T)
+            # Kc in Cantera's kmol/m3 units against tstrate's molecule cm-3 units
+            dn = sum(gas.reaction(i).products.values()) - sum(gas.reaction(i).reactants.values())
+            kc_ct = gas.equilibrium_constants[i] * (avogadro / 1e6) ** dn
+            assert np.log(kc_ct) == pytest.approx(np.log(ch["Kc"][j]), abs=0.02), (ch["name"], T)
+
