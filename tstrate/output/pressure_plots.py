@@ -1,0 +1,202 @@
+"""Figures of falloff and energised-molecule results. Functions return a Figure; saving is separate
+(:func:`tstrate.output.plots.save_figure`). matplotlib is imported inside the functions."""
+
+from __future__ import annotations
+
+import re
+
+import numpy as np
+
+from tstrate.physics.falloff import troe_rate
+from tstrate.physics.states import CM1_J_PER_MOL
+from tstrate.units import K_B
+
+_BAR = 1e5
+
+
+def _plt():
+    from tstrate.output.plots import _plt as plt
+
+    return plt()
+
+
+def _pick(n: int, most: int) -> list[int]:
+    """Up to ``most`` indices spread evenly over range(n), ends included."""
+    if n <= most:
+        return list(range(n))
+    return sorted({int(round(x)) for x in np.linspace(0, n - 1, most)})
+
+
+def safe_name(name: str) -> str:
+    """A file-name fragment from a label (letters, digits, '-', '_' only)."""
+    return re.sub(r"[^A-Za-z0-9_-]+", "_", name).strip("_") or "unnamed"
+
+
+def falloff_figure(cf, title: str | None = None, max_curves: int = 5):
+    """Falloff curves of one channel (a ChannelFalloff), two panels against log10 p.
+
+    Left: log10 k; right: log10 (k / k_inf), where the shapes can be compared. Solid: the
+    strong-collision k(T, [M]) (beta_c-scaled) on a dense grid reaching two decades past
+    the study's pressures; dots: the study's grid; dashed: k_inf (flat) and the
+    Lindemann-Hinshelwood curve; dotted black: the Troe fit over the range it was fitted on.
+    Number-density studies are drawn against [M] instead of pressure.
+    """
+    from matplotlib.lines import Line2D
+
+    plt = _plt()
+    fig, (ax, axr) = plt.subplots(1, 2, figsize=(11.0, 5.0))
+    by_pressure = cf.pressure_Pa is not None
+    rows = _pick(cf.temperature_K.size, max_curves)
+    cmap = plt.get_cmap("viridis")
+    lind_style = (0, (6, 2, 1.5, 2))
+    handles = []
+    for j, i in enumerate(rows):
+        colour = cmap(0.9 * j / max(1, len(rows) - 1))
+        t = cf.temperature_K[i]
+        k_inf = cf.k_high_pressure_per_s[i]
+        k0 = cf.k_low_pressure_m3_per_s[i]
+        x_curve = np.log10(cf.curve_pressure_Pa / _BAR if by_pressure else cf.curve_number_density_m3[i] * 1e-6)
+        x_grid = np.log10(cf.pressure_Pa / _BAR if by_pressure else cf.number_density_m3[i] * 1e-6)
+        m_curve = cf.curve_number_density_m3[i]
+        lind = k_inf * k0 * m_curve / (k_inf + k0 * m_curve)
+        m_fit = cf.troe_fit_number_density_m3
+        fit = cf.troe
+        k_troe = troe_rate(cf.troe_k0_m3_per_s[i], k_inf, m_fit, t, fit.a, fit.T3_K, fit.T1_K, fit.T2_K)
+        x_fit = np.log10(m_fit * K_B * t / _BAR if by_pressure else m_fit * 1e-6)
+        for axis, scale in ((ax, 1.0), (axr, k_inf)):
+            line, = axis.plot(x_curve, np.log10(cf.curve_rate_per_s[i] / scale), "-", color=colour, lw=1.8)
+            axis.plot(x_grid, np.log10(cf.rate_constant_per_s[i] / scale), "o", color=colour, ms=4)
+            axis.plot(x_curve[[0, -1]], np.log10([k_inf / scale] * 2), "--", color=colour, lw=1.0)
+            axis.plot(x_curve, np.log10(lind / scale), ls=lind_style, color=colour, lw=1.0)
+            axis.plot(x_fit, np.log10(k_troe / scale), ":", color="k", lw=1.3, alpha=0.8)
+        handles.append(Line2D([], [], color=colour, lw=1.8, label=f"{t:g} K"))
+    xlabel = "log$_{10}$ (p / bar)" if by_pressure else "log$_{10}$ ([M] / molecule cm$^{-3}$)"
+    for axis in (ax, axr):
+        axis.set_xlabel(xlabel)
+        axis.grid(alpha=0.3)
+    ax.set_ylabel("log$_{10}$ (k / s$^{-1}$)")
+    axr.set_ylabel("log$_{10}$ (k / k$_\\infty$)")
+    lo = min(np.log10(np.min(cf.curve_rate_per_s[i] / cf.k_high_pressure_per_s[i])) for i in rows)
+    axr.set_ylim(max(lo, -8.0) - 0.3, 0.4)
+    styles = [Line2D([], [], color="0.3", lw=1.8, label=f"strong collision, $\\beta_c$-scaled, in {cf.bath.name}"),
+              Line2D([], [], color="0.3", ls="", marker="o", ms=4, label="study grid"),
+              Line2D([], [], color="0.3", ls="--", lw=1.0, label="$k_\\infty$"),
+              Line2D([], [], color="0.3", ls=lind_style, lw=1.0, label="Lindemann-Hinshelwood"),
+              Line2D([], [], color="k", ls=":", lw=1.3,
+                     label=f"Troe fit (max dev. {100 * cf.troe.max_relative_deviation:.2g} %)")]
+    fig.legend(handles=handles, loc="lower center", bbox_to_anchor=(0.5, 0.05), ncol=len(handles), fontsize=8,
+               frameon=False)
+    fig.legend(handles=styles, loc="lower center", bbox_to_anchor=(0.5, 0.0), ncol=len(styles), fontsize=8,
+               frameon=False)
+    fig.suptitle(title or f"falloff of {cf.name}: {cf.model.reactant.name} in {cf.bath.name}", fontsize=11)
+    fig.tight_layout(rect=(0, 0.11, 1, 1))
+    return fig
+
+
+def _title(res, where: str = "") -> str:
+    note = "  (below threshold: fraction 0)" if res.below_threshold else ""
+    return (f"{res.spec.name}: {res.model.reactant.name} excited by {res.spec.description}, channel "
+            f"{res.spec.channel}{where}{note}")
+
+
+def _log_quenched(fraction):
+    """log10 (1 - fraction); NaN below 1e-13, where 1 - fraction is rounding noise of doubles."""
+    q = 1.0 - np.asarray(fraction, dtype=float)
+    return np.where(q > 1e-13, np.log10(np.maximum(q, 1e-300)), np.nan)
+
+
+def yield_pressure_figure(res, max_curves: int = 5):
+    """Fraction reacting (left) and log10 of the fraction deactivated (right) against log10 p.
+
+    One colour per temperature; solid: Stern-Volmer, dashed: stepwise, both on the dense
+    grid of ``res.pressure_curve``; markers: the study's pressures.
+    """
+    from matplotlib.lines import Line2D
+
+    plt = _plt()
+    g, c = res.pressure, res.pressure_curve or res.pressure
+    fig, (ax, axq) = plt.subplots(1, 2, figsize=(11.0, 4.8))
+    by_pressure = g.pressure_Pa is not None
+    rows = _pick(g.temperature_K.size, max_curves)
+    cmap = plt.get_cmap("plasma")
+    handles = []
+    for j, i in enumerate(rows):
+        colour = cmap(0.85 * j / max(1, len(rows) - 1))
+        x = np.log10(g.pressure_Pa / _BAR) if by_pressure else np.log10(g.number_density_m3[i] * 1e-6)
+        xc = np.log10(c.pressure_Pa / _BAR) if by_pressure else np.log10(c.number_density_m3[i] * 1e-6)
+        ax.plot(xc, c.stern_volmer[i], "-", color=colour, lw=1.6)
+        ax.plot(x, g.stern_volmer[i], "o", color=colour, ms=4)
+        axq.plot(xc, _log_quenched(c.stern_volmer[i]), "-", color=colour, lw=1.6)
+        axq.plot(x, _log_quenched(g.stern_volmer[i]), "o", color=colour, ms=4)
+        if c.stepwise is not None:
+            ax.plot(xc, c.stepwise[i], "--", color=colour, lw=1.2)
+            axq.plot(xc, _log_quenched(c.stepwise[i]), "--", color=colour, lw=1.2)
+        handles.append(Line2D([], [], color=colour, lw=1.6, label=f"{g.temperature_K[i]:g} K"))
+    xlabel = "log$_{10}$ (p / bar)" if by_pressure else "log$_{10}$ ([M] / molecule cm$^{-3}$)"
+    ax.set_ylim(-0.03, 1.03)
+    ax.set_ylabel("fraction reacting before deactivation")
+    axq.set_ylabel("log$_{10}$ (fraction deactivated)")
+    for axis in (ax, axq):
+        axis.set_xlabel(xlabel)
+        axis.grid(alpha=0.3)
+    styles = [Line2D([], [], color="0.3", lw=1.6, label="Stern-Volmer, $\\beta_c Z$[M]"),
+              Line2D([], [], color="0.3", ls="--", lw=1.2, label="stepwise <$\\Delta E$>$_{down}$"),
+              Line2D([], [], color="0.3", ls="", marker="o", ms=4, label="study pressures")]
+    fig.legend(handles=handles + styles, loc="lower center", ncol=len(handles) + len(styles), fontsize=8,
+               frameon=False)
+    fig.suptitle(_title(res), fontsize=10)
+    fig.tight_layout(rect=(0, 0.07, 1, 1))
+    return fig
+
+
+def yield_altitude_figure(res):
+    """Altitude against the fraction reacting (linear), the fraction deactivated (log) and p, T."""
+    plt = _plt()
+    g = res.profile
+    z_km = res.altitude_m * 1e-3
+    fig, (ax, axq, axp) = plt.subplots(1, 3, figsize=(11.0, 5.0), sharey=True,
+                                       gridspec_kw={"width_ratios": [1.5, 1.5, 1]})
+    ax.plot(g.stern_volmer, z_km, "-o", ms=3, color="C0", label="Stern-Volmer")
+    axq.plot(_log_quenched(g.stern_volmer), z_km, "-o", ms=3, color="C0", label="Stern-Volmer")
+    if g.stepwise is not None:
+        ax.plot(g.stepwise, z_km, "--s", ms=3, color="C3", label="stepwise")
+        axq.plot(_log_quenched(g.stepwise), z_km, "--s", ms=3, color="C3", label="stepwise")
+    ax.set_xlim(-0.03, 1.03)
+    ax.set_xlabel("fraction reacting before deactivation")
+    axq.set_xlabel("log$_{10}$ (fraction deactivated)")
+    ax.set_ylabel("altitude  [km]")
+    for axis in (ax, axq, axp):
+        axis.grid(alpha=0.3)
+    ax.legend(fontsize=8, loc="best")
+    axp.plot(np.log10(g.pressure_Pa / _BAR), z_km, "-", color="0.3")
+    axp.set_xlabel("log$_{10}$ (p / bar)")
+    twin = axp.twiny()
+    twin.plot(g.temperature_K, z_km, "-", color="C1")
+    twin.set_xlabel("T  [K]", color="C1")
+    twin.tick_params(axis="x", colors="C1")
+    fig.suptitle(_title(res, f", along {res.profile_source}"), fontsize=10)
+    fig.tight_layout()
+    return fig
+
+
+def rate_energy_figure(res):
+    """log10 k(E) against E with the barrier and the energies of the energised molecule marked."""
+    plt = _plt()
+    rate = res.model.rate
+    e_cm1 = rate.energies_J_per_mol / CM1_J_PER_MOL
+    keep = rate.rate_per_s > 1e-20 * rate.rate_per_s.max()   # deep-tunnelling tail: 20 decades shown
+    fig, ax = plt.subplots(figsize=(6.4, 4.2))
+    ax.plot(e_cm1[keep], np.log10(rate.rate_per_s[keep]), "-", color="C0", lw=1.2, label="RRKM k(E)")
+    ax.axvline(rate.barrier_J_per_mol / CM1_J_PER_MOL, color="0.4", ls="--", lw=1.0, label="barrier E$_0$")
+    energies = [g.energy_J_per_mol for g in (res.pressure, res.profile) if g is not None]
+    if energies:
+        e = np.concatenate([np.atleast_1d(x) for x in energies]) / CM1_J_PER_MOL
+        ax.axvspan(e.min() - 20, e.max() + 20, color="C3", alpha=0.25, label="energised molecule")
+    ax.set_xlabel("E above the reactant zero-point level  [cm$^{-1}$]")
+    ax.set_ylabel("log$_{10}$ (k(E) / s$^{-1}$)")
+    ax.grid(alpha=0.3)
+    ax.legend(fontsize=8, loc="lower right")
+    how = "with Eckart tunnelling" if res.model.tunnelling == "eckart" else "no tunnelling"
+    ax.set_title(f"RRKM k(E) of channel {res.spec.channel} ({res.model.reactant.name}), {how}", fontsize=10)
+    fig.tight_layout()
+    return fig

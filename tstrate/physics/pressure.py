@@ -1,0 +1,686 @@
+"""Falloff of a study's unimolecular channels: RRKM k(E) from the species, k(T, [M]) on the study grid.
+
+This module joins the pure functions of :mod:`tstrate.physics.states`,
+:mod:`~tstrate.physics.rrkm`, :mod:`~tstrate.physics.falloff` and
+:mod:`~tstrate.physics.collisions` to a study's species, channels and
+``[conditions]``. For every channel with one reactant (order 1) it builds
+
+* the reactant's density of states and the transition state's sum of states
+  (scaled real wavenumbers, electronic levels, the active K-rotor) on one grain,
+  counted from each species' zero-point level (Beyer-Swinehart);
+* E0, the zero-point-corrected barrier (:func:`tstrate.physics.tst.zpe_level_J_per_mol`);
+* k(E) = L * (I_TS/I_R) * N_TS(E - E0) / (h rho_R(E)) (RRKM; Marcus 1952), with an
+  Eckart-corrected sum of states when the channel's tunnelling is "eckart";
+* k(T, [M]) in the strong-collision picture scaled by beta_c (Troe 1977), its
+  limits k_inf(T) and k_0(T), the Lindemann-Hinshelwood curve and a Troe fit.
+
+Reaction-path degeneracy and external symmetry
+----------------------------------------------
+Canonical TST (:mod:`tstrate.physics.tst`) keeps the path degeneracy inside the
+rotational partition functions: q_rot carries 1/sigma and q the number of
+optical isomers n, so k_TST = (k_B T/h) (q_TS/q_R) exp(-E0/RT) already contains
+L_sym = sigma_R n_TS / (sigma_TS n_R) (or the channel's ``degeneracy`` when it
+overrides that count). Here the K-rotors are counted with symmetry number 1 and
+the whole degeneracy goes into k(E) as the path degeneracy L = L_sym (or the
+override). Both routes put the same factor in front, so k_inf = sum_E f(E) k(E)
+reproduces k_TST up to the grain error.
+
+Overall rotation ("lite", :class:`~tstrate.physics.rrkm.ExternalRotation`)
+-------------------------------------------------------------------------
+With rotational constants A >= B >= C of the reactant, Ray's asymmetry
+kappa = (2B - A - C)/(A - C) picks the unique axis: A (near-prolate, kappa <= 0)
+or C (near-oblate). The 2-D rotor about the other two axes is adiabatic and
+enters as I_TS/I_R = B2d_R / B2d_TS with B2d = sqrt(B C) (or sqrt(A B)); the
+transition state uses the same axis labels. The active K-rotor gets the constant
+of the unique axis itself (A or C), not A - B2d: in a classical rigid rotor the
+K energy at fixed J is (A - B)K^2, and the sum over J >= |K| adds exp(-B K^2/kT),
+so the thermal K distribution is that of a free 1-D rotor with constant A. With
+that choice the product of the classical 1-D and 2-D partition functions,
+sqrt(pi kT/A) * kT/sqrt(BC), is exactly the rigid-rotor partition function
+sqrt(pi) (kT)^(3/2)/sqrt(ABC) of canonical TST, which k_inf must reproduce. A
+linear species has the 2-D rotor only.
+
+Grain
+-----
+The requested grain (``grain_cm1``) is refined to a third of the lowest real
+wavenumber of reactant and transition state when it is coarser (with a warning
+in the results), and then lowered slightly so that E0 is a whole number of
+grains: the barrier is then not rounded, and what is left of the grain error is
+the rounding of each wavenumber to the grain and the second-order term
+(grain/kT)^2/12 of the grain-averaged sum of states.
+
+Units: energies J/mol, temperatures K, pressures Pa, number densities m^-3, k(T,[M]) and
+k_inf s^-1, k_0 m^3 s^-1 (per molecule), wavenumbers and grains cm^-1.
+"""
+
+from __future__ import annotations
+
+import logging
+import math
+from dataclasses import dataclass, field
+from typing import Callable, Iterable
+
+import numpy as np
+
+from tstrate.errors import InputError
+from tstrate.model import Channel, Species, Study
+from tstrate.physics import collisions as coll
+from tstrate.physics.falloff import (TroeFit, fit_troe, lindemann_hinshelwood, strong_collision_falloff,
+                                     thermal_distribution, troe_center_broadening, troe_rate)
+from tstrate.physics.rrkm import ExternalRotation, MicrocanonicalRate, microcanonical_rate
+from tstrate.physics.states import (CM1_J_PER_MOL, GRAIN_FRACTION_OF_LOWEST, Rotor, StateCounts,
+                                    convolve_counts, count_states)
+from tstrate.units import C, H, K_B, number_density_m3
+
+log = logging.getLogger(__name__)
+
+#: Reference temperature [K] of a temperature-dependent <dE>down = value (T / 300 K)^n.
+DELTA_E_REFERENCE_T_K = 300.0
+
+#: The energy grid reaches at least this far above the barrier [cm^-1] ...
+MIN_SPAN_CM1 = 20000.0
+#: ... and at least this many k_B T (highest temperature) above it.
+SPAN_IN_KT = 80.0
+
+
+# ---------------------------------------------------------------- settings
+@dataclass(frozen=True)
+class FalloffSettings:
+    """How to compute falloff for a channel (one ``[falloff]`` table, or a per-channel override).
+
+    grain_cm1: energy grain [cm^-1] (refined when too coarse, see module docstring).
+    energy_above_barrier_cm1: how far the grid reaches above E0 [cm^-1]; None = automatic
+        (the larger of 20,000 cm^-1 and 80 k_B T at the highest temperature).
+    collision_efficiency: beta_c given directly (0 < beta_c <= 1), or
+    delta_E_down_cm1: <dE>down [cm^-1] (> 0), average energy removed in downward collisions, or
+    delta_E_all_cm1: <dE> [cm^-1] (< 0), average energy transferred over all collisions;
+        the last two give beta_c(T) by Troe's weak-collision relation (Troe 1977).
+        None of the three: strong collisions (beta_c = 1, an upper bound, with a warning).
+    delta_E_temperature_exponent: n in <dE>(T) = <dE>(300 K) (T / 300 K)^n (default 0).
+    collision_integral: "neufeld" (Neufeld, Janzen and Aziz 1972) or "troe" (Troe 1977).
+    fit_T2: also fit Troe's T** (else the exp(-T**/T) term is left out).
+    file, field: where these settings came from (for error messages).
+    """
+
+    grain_cm1: float = 10.0
+    energy_above_barrier_cm1: float | None = None
+    collision_efficiency: float | None = None
+    delta_E_down_cm1: float | None = None
+    delta_E_all_cm1: float | None = None
+    delta_E_temperature_exponent: float = 0.0
+    collision_integral: str = "neufeld"
+    fit_T2: bool = False
+    file: str | None = None
+    field: str = "falloff"
+
+    def __post_init__(self):
+        def bad(key, problem, hint=None):
+            return InputError(problem, file=self.file, field=f"{self.field}.{key}", hint=hint)
+
+        if not (math.isfinite(self.grain_cm1) and self.grain_cm1 > 0):
+            raise bad("grain_cm1", f"grain must be a positive wavenumber, got {self.grain_cm1!r}")
+        span = self.energy_above_barrier_cm1
+        if span is not None and not (math.isfinite(span) and span > 0):
+            raise bad("energy_above_barrier_cm1", f"must be positive, got {span!r}")
+        given = [k for k in ("collision_efficiency", "delta_E_down_cm1", "delta_E_all_cm1")
+                 if getattr(self, k) is not None]
+        if len(given) > 1:
+            raise bad(given[1], f"give one of collision_efficiency, delta_E_down_cm1, delta_E_all_cm1 "
+                                f"(also found {given[0]})")
+        if self.collision_efficiency is not None and not 0 < self.collision_efficiency <= 1:
+            raise bad("collision_efficiency", f"beta_c must lie in (0, 1], got {self.collision_efficiency!r}")
+        if self.delta_E_down_cm1 is not None and not self.delta_E_down_cm1 > 0:
+            raise bad("delta_E_down_cm1", f"<dE>down must be positive (energy removed), got "
+                                          f"{self.delta_E_down_cm1!r}")
+        if self.delta_E_all_cm1 is not None and not self.delta_E_all_cm1 < 0:
+            raise bad("delta_E_all_cm1", f"<dE> over all collisions must be negative (energy lost), got "
+                                         f"{self.delta_E_all_cm1!r}", hint="or give delta_E_down_cm1 > 0")
+        if not math.isfinite(self.delta_E_temperature_exponent):
+            raise bad("delta_E_temperature_exponent", "must be a finite number")
+        if self.collision_integral not in ("neufeld", "troe"):
+            raise bad("collision_integral", f"unknown collision integral {self.collision_integral!r}",
+                      hint="use neufeld or troe")
+
+    @property
+    def energy_transfer(self) -> str:
+        """"efficiency", "down", "all" or "strong" (nothing given)."""
+        if self.collision_efficiency is not None:
+            return "efficiency"
+        if self.delta_E_down_cm1 is not None:
+            return "down"
+        if self.delta_E_all_cm1 is not None:
+            return "all"
+        return "strong"
+
+    def delta_E_J_per_mol(self, temperature_K) -> np.ndarray | None:
+        """<dE>down (positive) or <dE> (negative) at each temperature [J/mol]; None when not given."""
+        value = self.delta_E_down_cm1 if self.delta_E_down_cm1 is not None else self.delta_E_all_cm1
+        if value is None:
+            return None
+        t = np.atleast_1d(np.asarray(temperature_K, dtype=float))
+        return value * CM1_J_PER_MOL * (t / DELTA_E_REFERENCE_T_K) ** self.delta_E_temperature_exponent
+
+
+@dataclass(frozen=True)
+class FalloffSection:
+    """The validated ``[falloff]`` section: default settings and per-channel overrides."""
+
+    default: FalloffSettings = field(default_factory=FalloffSettings)
+    channels: dict = field(default_factory=dict)   # channel name -> FalloffSettings
+
+    def for_channel(self, name: str) -> FalloffSettings:
+        return self.channels.get(name, self.default)
+
+
+def falloff_section(study: Study) -> FalloffSection:
+    """The study's ``[falloff]`` section, or the defaults when it has none."""
+    section = study.sections.get("falloff")
+    return section if section is not None else FalloffSection(FalloffSettings(file=study.file))
+
+
+# ---------------------------------------------------------------- rotors
+def rotational_constants_cm1(species: Species) -> np.ndarray:
+    """Rotational constants [cm^-1], descending (A >= B >= C; one value for a linear species)."""
+    moments = np.sort(np.asarray(species.moments_of_inertia_kg_m2(), dtype=float))
+    if species.linear:
+        moments = moments[-1:]
+    if np.any(moments <= 0):
+        raise InputError(f"species {species.name!r} has a zero moment of inertia", file=species.source,
+                         field="geometry")
+    return H / (8.0 * math.pi**2 * C * moments) / 100.0
+
+
+@dataclass(frozen=True)
+class RotorSplit:
+    """One species' overall rotation split into the adiabatic 2-D rotor and the active K-rotor [cm^-1]."""
+
+    B2d_cm1: float
+    K_cm1: float | None      # None for a linear species
+    axis: str                # "A", "C" or "linear"
+
+
+def split_rotation(species: Species, axis: str | None = None) -> RotorSplit:
+    """2-D and K-rotor constants of ``species``; ``axis`` "A" or "C" forces the unique axis."""
+    abc = rotational_constants_cm1(species)
+    if abc.size == 1:
+        return RotorSplit(float(abc[0]), None, "linear")
+    a, b, c = abc
+    if axis is None:
+        kappa = (2 * b - a - c) / (a - c) if a > c else -1.0
+        axis = "A" if kappa <= 0 else "C"
+    if axis == "A":
+        return RotorSplit(float(math.sqrt(b * c)), float(a), "A")
+    return RotorSplit(float(math.sqrt(a * b)), float(c), "C")
+
+
+# ---------------------------------------------------------------- k(E) of a channel
+@dataclass(frozen=True)
+class UnimolecularModel:
+    """k(E) of one unimolecular channel and how it was built.
+
+    rate: k(E) on the reactant's grid (energies J/mol from the reactant's zero-point level).
+    grain_cm1: grain used [cm^-1]. barrier_J_per_mol: E0 [J/mol] (a whole number of grains).
+    path_degeneracy: L in k(E). reactant_rotors, ts_rotors: the :class:`RotorSplit` used.
+    external: the ExternalRotation passed to RRKM (None when one species is linear).
+    tunnelling: "eckart" (Eckart-corrected N_TS) or "none" as used in k(E).
+    imaginary_frequency_cm1, eckart_V1_J_per_mol, eckart_V2_J_per_mol: Eckart inputs.
+    warnings: plain sentences for the user.
+    """
+
+    channel: Channel
+    reactant: Species
+    transition_state: Species
+    rate: MicrocanonicalRate
+    grain_cm1: float
+    requested_grain_cm1: float
+    barrier_J_per_mol: float
+    path_degeneracy: float
+    reactant_rotors: RotorSplit
+    ts_rotors: RotorSplit
+    external: ExternalRotation | None
+    tunnelling: str
+    imaginary_frequency_cm1: float
+    eckart_V1_J_per_mol: float | None
+    eckart_V2_J_per_mol: float | None
+    warnings: tuple[str, ...] = ()
+
+
+def _electronic_counts(species: Species, n: int, grain_J_per_mol: float) -> np.ndarray:
+    out = np.zeros(n)
+    for level in species.levels:
+        i = int(round(level.energy_cm1 * CM1_J_PER_MOL / grain_J_per_mol))
+        if i < n:
+            out[i] += level.degeneracy
+    return out
+
+
+def _counts(species: Species, freqs: np.ndarray, e_max: float, grain_cm1: float,
+            rotors: tuple[Rotor, ...]) -> StateCounts:
+    sc = count_states(freqs, e_max, grain_cm1=grain_cm1, rotors=rotors, refine=False)
+    elec = _electronic_counts(species, sc.n_grains, sc.grain_J_per_mol)
+    if elec[0] == 1.0 and not np.any(elec[1:]):
+        return sc
+    return StateCounts(sc.grain_J_per_mol, convolve_counts(sc.counts, elec))
+
+
+def unimolecular_model(study: Study, channel: Channel, settings: FalloffSettings, *,
+                       max_temperature_K: float, min_top_energy_J_per_mol: float = 0.0) -> UnimolecularModel:
+    """Build k(E) for a channel with one reactant (see the module docstring for every choice).
+
+    ``max_temperature_K`` sets the automatic grid length; ``min_top_energy_J_per_mol`` makes
+    the grid reach at least that energy above the reactant's zero-point level (excitations).
+    """
+    from tstrate.physics.tst import symmetry_degeneracy, zpe_level_J_per_mol
+    from tstrate.physics.tunnelling import eckart_transmission
+
+    if channel.order != 1:
+        raise InputError(f"channel {channel.name!r} has {channel.order} reactants; falloff is computed for "
+                         "unimolecular channels only", file=study.file, field="channel")
+    species = study.species
+    reac = species[channel.reactants[0]]
+    ts = species[channel.transition_state]
+    warnings: list[str] = []
+    if len(ts.imaginary_frequencies_cm1) != 1:
+        raise InputError(f"transition state {ts.name!r} has {len(ts.imaginary_frequencies_cm1)} imaginary "
+                         "frequencies; exactly one is needed", file=ts.source, field="frequencies_cm1")
+    if channel.complex:
+        warnings.append(f"channel {channel.name!r}: the complex {channel.complex!r} is not used by the falloff "
+                        f"treatment; the energised molecule is the reactant {reac.name!r}")
+    e0 = zpe_level_J_per_mol(ts) - zpe_level_J_per_mol(reac)
+    if not e0 > 0:
+        raise InputError(f"channel {channel.name!r}: the ZPE-corrected barrier is {e0 / 1e3:.2f} kJ/mol; "
+                         "falloff needs a barrier above the reactant", file=study.file, field="channel",
+                         hint="barrierless and submerged barriers are not treated")
+
+    # grain: refine for the softest mode, then make E0 a whole number of grains
+    rf, tf = reac.real_frequencies_cm1, ts.real_frequencies_cm1
+    lowest = float(np.min(np.concatenate([rf, tf]))) if rf.size + tf.size else math.inf
+    grain = settings.grain_cm1
+    limit = GRAIN_FRACTION_OF_LOWEST * lowest
+    if grain > limit * (1 + 1e-12):
+        warnings.append(f"{settings.file or 'study'} [{settings.field}.grain_cm1]: grain {grain:g} cm-1 is "
+                        f"coarser than a third of the lowest wavenumber of {reac.name}/{ts.name} "
+                        f"({lowest:.4g} cm-1); refined to {limit:.4g} cm-1")
+        grain = limit
+    e0_cm1 = e0 / CM1_J_PER_MOL
+    grain = e0_cm1 / math.ceil(e0_cm1 / grain - 1e-9)
+
+    if settings.energy_above_barrier_cm1 is not None:
+        span_cm1 = settings.energy_above_barrier_cm1
+    else:
+        span_cm1 = max(MIN_SPAN_CM1, SPAN_IN_KT * K_B * max_temperature_K / (H * C * 100.0))
+    e_top = max(e0 + span_cm1 * CM1_J_PER_MOL, min_top_energy_J_per_mol + 50 * grain * CM1_J_PER_MOL)
+
+    # overall rotation
+    r_rot = split_rotation(reac)
+    t_rot = split_rotation(ts, None if r_rot.axis == "linear" else r_rot.axis)
+    r_extra: tuple[Rotor, ...] = ()
+    t_extra: tuple[Rotor, ...] = ()
+    if r_rot.K_cm1 is not None and t_rot.K_cm1 is not None:
+        external = ExternalRotation(r_rot.B2d_cm1, t_rot.B2d_cm1, r_rot.K_cm1, t_rot.K_cm1, symmetry_number=1)
+        r_extra, t_extra = external.k_rotors()
+    else:
+        external = ExternalRotation(r_rot.B2d_cm1, t_rot.B2d_cm1)
+        if r_rot.K_cm1 is not None:
+            r_extra = (Rotor(r_rot.K_cm1, 1, 1, False),)
+        if t_rot.K_cm1 is not None:
+            t_extra = (Rotor(t_rot.K_cm1, 1, 1, False),)
+
+    degeneracy = (symmetry_degeneracy([reac], ts) if channel.degeneracy is None else float(channel.degeneracy))
+
+    transmission = None
+    v1 = v2 = None
+    if channel.tunnelling == "eckart":
+        v1 = e0
+        v2 = zpe_level_J_per_mol(ts) - sum(zpe_level_J_per_mol(species[p]) for p in channel.products)
+        if not v2 > 0:
+            raise InputError(f"channel {channel.name!r}: reverse ZPE-corrected barrier is {v2 / 1e3:.2f} kJ/mol; "
+                             "eckart needs V1 > 0 and V2 > 0", file=study.file, field="channel.tunnelling",
+                             hint="use tunnelling = \"none\" for this channel")
+        imag = ts.imaginary_frequency_cm1
+
+        def transmission(e_from_top, _v1=v1, _v2=v2, _nu=imag):
+            return eckart_transmission(np.asarray(e_from_top) + _v1, _nu, _v1, _v2)
+        used = "eckart"
+    else:
+        used = "none"
+        if channel.tunnelling != "none":
+            warnings.append(f"channel {channel.name!r}: tunnelling {channel.tunnelling!r} has no microcanonical "
+                            "form here; k(E) and the falloff curves are without tunnelling (use \"eckart\")")
+
+    reactant_counts = _counts(reac, rf, e_top, grain, r_extra)
+    ts_counts = _counts(ts, tf, e_top, grain, t_extra)
+    rate = microcanonical_rate(reactant_counts, ts_counts, e0, path_degeneracy=degeneracy,
+                               centrifugal_factor=external.centrifugal_factor, transmission=transmission)
+    for w in warnings:
+        log.debug(w)
+    return UnimolecularModel(channel, reac, ts, rate, grain, settings.grain_cm1, rate.barrier_J_per_mol,
+                             degeneracy, r_rot, t_rot, external if r_extra and t_extra else None, used,
+                             ts.imaginary_frequency_cm1, v1, v2, tuple(warnings))
+
+
+# ---------------------------------------------------------------- collisions
+def bath_parameters(study: Study, name: str | None = None) -> coll.LennardJones:
+    """Lennard-Jones parameters of the study's bath gas (``[conditions] bath_gas``, or ``name``).
+
+    A built-in name (:data:`tstrate.physics.collisions.BATH_GASES`, case-insensitive) or a
+    species of the study that has ``lennard_jones`` in its file.
+    """
+    name = study.conditions.bath_gas if name is None else name
+    if name is None:
+        raise InputError("falloff needs a bath gas", file=study.file, field="conditions.bath_gas",
+                         hint="add bath_gas = \"N2\" (or O2, air, CO2, Ar, He, H2O) to [conditions]")
+    for key, value in coll.BATH_GASES.items():
+        if key.lower() == str(name).lower():
+            return value
+    sp = study.species.get(name)
+    if sp is not None and sp.lennard_jones is not None:
+        sigma, eps = sp.lennard_jones
+        return coll.LennardJones(name, float(sigma), float(eps), f"species file {sp.source}",
+                                 mass_amu=float(np.sum(sp.masses_amu)))
+    raise InputError(f"unknown bath gas {name!r}", file=study.file, field="conditions.bath_gas",
+                     hint="use one of " + ", ".join(coll.BATH_GASES) + ", or a species of the study with "
+                          "lennard_jones in its file")
+
+
+def reactant_parameters(species: Species) -> coll.LennardJones:
+    """Lennard-Jones parameters of a species from its file; InputError naming the file when missing."""
+    if species.lennard_jones is None:
+        raise InputError(f"species {species.name!r} has no Lennard-Jones parameters, needed for collision "
+                         "rates", file=species.source, field="lennard_jones",
+                         hint="add lennard_jones = { sigma_A = ..., epsilon_K = ... } to the species file")
+    sigma, eps = species.lennard_jones
+    return coll.LennardJones(species.name, float(sigma), float(eps), f"species file {species.source}",
+                             mass_amu=float(np.sum(species.masses_amu)))
+
+
+def collision_rate(species: Species, bath: coll.LennardJones, temperature_K,
+                   settings: FalloffSettings) -> np.ndarray:
+    """Z_LJ(T) [m^3 s^-1] of ``species`` in ``bath``."""
+    return np.atleast_1d(coll.pair_collision_rate_m3_s(temperature_K, reactant_parameters(species), bath,
+                                                       omega=settings.collision_integral))
+
+
+def _smoothed_density(model: UnimolecularModel) -> np.ndarray:
+    """Reactant density of states averaged over one quantum of its lowest mode (for F_E only)."""
+    rho = model.rate.reactant.density_per_J_per_mol
+    freqs = model.reactant.real_frequencies_cm1
+    width = max(1, int(round((float(freqs.min()) if freqs.size else model.grain_cm1) / model.grain_cm1)))
+    if width == 1:
+        return rho
+    kernel = np.ones(width) / width
+    return np.convolve(rho, kernel, mode="same")
+
+
+@dataclass(frozen=True)
+class Efficiency:
+    """beta_c(T) and what it came from (arrays over temperature)."""
+
+    beta: np.ndarray
+    energy_factor: np.ndarray | None        # F_E (Troe 1977), when <dE> was used
+    delta_E_J_per_mol: np.ndarray | None    # <dE>down (> 0) or <dE> (< 0) at each T
+    kind: str                               # "efficiency", "down", "all", "strong"
+
+
+def collision_efficiency(model: UnimolecularModel, settings: FalloffSettings, temperature_K) -> Efficiency:
+    """beta_c(T): given, from <dE>down or <dE> by Troe's relation, or 1 (strong collisions)."""
+    t = np.atleast_1d(np.asarray(temperature_K, dtype=float))
+    kind = settings.energy_transfer
+    if kind == "strong":
+        return Efficiency(np.ones_like(t), None, None, kind)
+    if kind == "efficiency":
+        return Efficiency(np.full_like(t, settings.collision_efficiency), None, None, kind)
+    fe = coll.energy_dependence_factor(model.rate.energies_J_per_mol, _smoothed_density(model),
+                                       model.barrier_J_per_mol, t)
+    fe = np.maximum(fe, 1.0)
+    de = settings.delta_E_J_per_mol(t)
+    beta = np.array([float(coll.collision_efficiency(d, ti, kind=kind, energy_factor=f))
+                     for d, ti, f in zip(de, t, fe)])
+    return Efficiency(beta, fe, de, kind)
+
+
+# ---------------------------------------------------------------- results
+@dataclass(frozen=True)
+class ChannelFalloff:
+    """Falloff of one unimolecular channel on the study's temperature x pressure grid.
+
+    Arrays: temperature_K (n_T); pressure_Pa (n_P) when the study gives pressures, else None;
+    number_density_m3 (n_T, n_P) [m^-3]; rate_constant_per_s (n_T, n_P) [s^-1];
+    k_high_pressure_per_s (n_T) [s^-1]; k_low_pressure_m3_per_s (n_T) [m^3 s^-1];
+    lindemann_per_s and troe_per_s (n_T, n_P) [s^-1]; troe_Fcent (n_T);
+    canonical_tst_per_s (n_T) [s^-1]: tst.channel_rates with the same tunnelling treatment
+    (Eckart or none), for comparison with k_high_pressure_per_s;
+    collision_rate_m3_per_s, collision_efficiency (n_T); energy_factor_FE and
+    delta_E_J_per_mol (n_T) or None; troe_fit_number_density_m3 (n_F) where the fit was done;
+    troe_k0_m3_per_s (n_T) [m^3 s^-1]: the k_0 inside the Troe form - the low-pressure limit
+    itself, or for Eckart channels an effective k_0 fitted with the Troe parameters
+    (:func:`fit_troe_effective_k0`);
+    curve_pressure_Pa (n_C) with curve_number_density_m3 and curve_rate_per_s (n_T, n_C):
+    a dense curve two decades beyond the study's pressures on both sides, for plots.
+    """
+
+    model: UnimolecularModel = field(repr=False)
+    settings: FalloffSettings = field(repr=False)
+    bath: coll.LennardJones
+    temperature_K: np.ndarray = field(repr=False)
+    pressure_Pa: np.ndarray | None = field(repr=False)
+    number_density_m3: np.ndarray = field(repr=False)
+    rate_constant_per_s: np.ndarray = field(repr=False)
+    k_high_pressure_per_s: np.ndarray = field(repr=False)
+    k_low_pressure_m3_per_s: np.ndarray = field(repr=False)
+    lindemann_per_s: np.ndarray = field(repr=False)
+    troe: TroeFit
+    troe_per_s: np.ndarray = field(repr=False)
+    troe_Fcent: np.ndarray = field(repr=False)
+    troe_fit_number_density_m3: np.ndarray = field(repr=False)
+    troe_k0_m3_per_s: np.ndarray = field(repr=False)
+    canonical_tst_per_s: np.ndarray = field(repr=False)
+    collision_rate_m3_per_s: np.ndarray = field(repr=False)
+    efficiency: Efficiency = field(repr=False)
+    curve_pressure_Pa: np.ndarray = field(repr=False)
+    curve_number_density_m3: np.ndarray = field(repr=False)
+    curve_rate_per_s: np.ndarray = field(repr=False)
+    warnings: tuple[str, ...] = ()
+
+    @property
+    def name(self) -> str:
+        return self.model.channel.name
+
+    @property
+    def collision_efficiency(self) -> np.ndarray:
+        return self.efficiency.beta
+
+
+@dataclass(frozen=True)
+class SkippedChannel:
+    """A channel without a falloff treatment, and why."""
+
+    name: str
+    order: int
+    reason: str
+
+
+@dataclass(frozen=True)
+class StudyFalloff:
+    """Falloff of every unimolecular channel of a study."""
+
+    study_file: str | None
+    title: str
+    bath: coll.LennardJones
+    channels: tuple[ChannelFalloff, ...]
+    skipped: tuple[SkippedChannel, ...]
+    warnings: tuple[str, ...] = ()
+
+
+# ---------------------------------------------------------------- grid and computation
+def study_number_densities(study: Study, temperature_K) -> tuple[np.ndarray | None, np.ndarray]:
+    """(pressures [Pa] or None, [M] (n_T, n_P) [m^-3]) from ``[conditions]``; InputError when there are none."""
+    cond = study.conditions
+    t = np.atleast_1d(np.asarray(temperature_K, dtype=float))
+    if cond.pressure_Pa.size:
+        p = np.asarray(cond.pressure_Pa, dtype=float)
+        if np.any(~np.isfinite(p)) or np.any(p <= 0):
+            raise InputError("pressures must be positive", file=study.file, field="conditions.pressure_bar")
+        return p, number_density_m3(p[None, :], t[:, None])
+    if cond.number_density_m3.size:
+        m = np.asarray(cond.number_density_m3, dtype=float)
+        if np.any(~np.isfinite(m)) or np.any(m <= 0):
+            raise InputError("number densities must be positive", file=study.file,
+                             field="conditions.number_density_per_cm3")
+        return None, np.broadcast_to(m, (t.size, m.size)).copy()
+    raise InputError("falloff needs pressures, and the study gives none", file=study.file,
+                     field="conditions.pressure_bar",
+                     hint="add pressure_bar = [...] (or pressure_Pa, pressure_Torr, number_density_per_cm3) "
+                          "to [conditions]")
+
+
+def _log_grid(lo: float, hi: float, per_decade: int, minimum: int) -> np.ndarray:
+    lo, hi = math.log10(lo), math.log10(hi)
+    if hi - lo < 1e-9:
+        lo, hi = lo - 1.0, hi + 1.0
+    n = max(minimum, int(math.ceil((hi - lo) * per_decade)) + 1)
+    return np.logspace(lo, hi, n)
+
+
+def channel_falloff(study: Study, channel: Channel, *, settings: FalloffSettings | None = None,
+                    temperature_K=None, bath: coll.LennardJones | None = None) -> ChannelFalloff:
+    """Falloff of one unimolecular channel at the study's temperatures and pressures (or the ones given)."""
+    settings = settings or falloff_section(study).for_channel(channel.name)
+    t = np.atleast_1d(np.asarray(study.conditions.temperature_K if temperature_K is None else temperature_K,
+                                 dtype=float))
+    if t.size == 0 or np.any(~np.isfinite(t)) or np.any(t <= 0):
+        raise InputError("temperatures must be positive", file=study.file, field="conditions.temperature_K")
+    pressures, m = study_number_densities(study, t)
+    bath = bath or bath_parameters(study)
+    model = unimolecular_model(study, channel, settings, max_temperature_K=float(t.max()))
+    warnings = list(model.warnings)
+    z = collision_rate(model.reactant, bath, t, settings)
+    eff = collision_efficiency(model, settings, t)
+    if eff.kind == "strong":
+        warnings.append(f"channel {channel.name!r}: no collision efficiency or <dE> in [falloff]; strong "
+                        "collisions (beta_c = 1) give an upper bound of k(T, [M])")
+
+    # grid check: the thermal population in the top tenth of the grid must be negligible
+    f_top = thermal_distribution(model.rate.reactant, [t.max()])[0]
+    tail = f_top[-max(1, f_top.size // 10):].sum()
+    if tail > 1e-10:
+        warnings.append(f"channel {channel.name!r}: the energy grid is short for {t.max():g} K "
+                        f"(population {tail:.1e} in its top tenth); raise energy_above_barrier_cm1")
+
+    fo = strong_collision_falloff(model.rate, t, m, collision_rate_m3_s=z, collision_efficiency=eff.beta)
+    k_inf, k0 = fo.high_pressure_per_s, fo.low_pressure_m3_s
+    lind = lindemann_hinshelwood(k0[:, None], k_inf[:, None], m)
+
+    # Troe fit on a common [M] grid spanning the study's number densities
+    m_fit = _log_grid(float(m.min()), float(m.max()), 4, 9)
+    fo_fit = strong_collision_falloff(model.rate, t, m_fit, collision_rate_m3_s=z, collision_efficiency=eff.beta)
+    if model.tunnelling == "eckart":
+        troe, k0_troe = fit_troe_effective_k0(t, m_fit, fo_fit.rate_per_s, k0, k_inf, fit_T2=settings.fit_T2)
+    else:
+        troe, k0_troe = fit_troe(t, m_fit, fo_fit.rate_per_s, k0, k_inf, fit_T2=settings.fit_T2), k0
+    troe_k = troe_rate(k0_troe[:, None], k_inf[:, None], m, t[:, None], troe.a, troe.T3_K, troe.T1_K, troe.T2_K)
+    fcent = troe_center_broadening(t, troe.a, troe.T3_K, troe.T1_K, troe.T2_K)
+
+    # dense curve for plots, two decades beyond the study's range on each side
+    if pressures is not None:
+        p_curve = _log_grid(float(pressures.min()) / 100, float(pressures.max()) * 100, 8, 33)
+        m_curve = number_density_m3(p_curve[None, :], t[:, None])
+    else:
+        m_line = _log_grid(float(m.min()) / 100, float(m.max()) * 100, 8, 33)
+        p_curve = np.full(m_line.size, np.nan)
+        m_curve = np.broadcast_to(m_line, (t.size, m_line.size)).copy()
+    fo_curve = strong_collision_falloff(model.rate, t, m_curve, collision_rate_m3_s=z,
+                                        collision_efficiency=eff.beta)
+
+    return ChannelFalloff(
+        model=model, settings=settings, bath=bath, temperature_K=t, pressure_Pa=pressures,
+        number_density_m3=m, rate_constant_per_s=fo.rate_per_s, k_high_pressure_per_s=k_inf,
+        k_low_pressure_m3_per_s=k0, lindemann_per_s=lind, troe=troe, troe_per_s=troe_k, troe_Fcent=fcent,
+        troe_fit_number_density_m3=m_fit, troe_k0_m3_per_s=k0_troe, canonical_tst_per_s=canonical_tst(study, channel, t, model.tunnelling),
+        collision_rate_m3_per_s=z, efficiency=eff, curve_pressure_Pa=p_curve, curve_number_density_m3=m_curve,
+        curve_rate_per_s=fo_curve.rate_per_s, warnings=tuple(warnings))
+
+
+def fit_troe_effective_k0(temperature_K, number_density_m3, rate, k0, k_inf, *,
+                          fit_T2: bool = False) -> tuple[TroeFit, np.ndarray]:
+    """Troe fit with k_inf fixed and k_0(T) fitted as well, one value per temperature.
+
+    With Eckart tunnelling, grains below the barrier react with small k(E): at pressures
+    where their k(E) is far below the collision frequency they contribute k(E) f(E)
+    whatever the pressure, and the true low-pressure limit (every grain with k(E) > 0)
+    is reached only at pressures far below any of interest. The classical-threshold k_0
+    then does not describe the curve, so an effective k_0(T) is fitted together with
+    a, T***, T* (and T**) on log k (least squares), the usual practice when a limit is not
+    reached in the fitted range. Starts from :func:`tstrate.physics.falloff.fit_troe` with
+    k_0 = max(k_0 classical, k([M]_min)/[M]_min). Returns (fit, k_0 effective [m^3 s^-1]).
+    """
+    from scipy.optimize import least_squares
+
+    t = np.atleast_1d(np.asarray(temperature_K, dtype=float))
+    m = np.atleast_1d(np.asarray(number_density_m3, dtype=float))
+    k = np.asarray(rate, dtype=float)
+    kinf = np.asarray(k_inf, dtype=float)
+    i_min = int(np.argmin(m))
+    guess = np.maximum(np.asarray(k0, dtype=float), k[:, i_min] / m[i_min])
+    first = fit_troe(t, m, k, guess, kinf, fit_T2=fit_T2)
+    log_k = np.log(k)
+    n_p = 4 if fit_T2 else 3
+
+    def unpack(p):
+        return (p[0], math.exp(p[1]), math.exp(p[2]), math.exp(p[3]) if fit_T2 else None,
+                np.exp(p[n_p:]))
+
+    def residual(p):
+        a, t3, t1, t2, k0e = unpack(p)
+        with np.errstate(all="ignore"):
+            r = np.log(troe_rate(k0e[:, None], kinf[:, None], m[None, :], t[:, None], a, t3, t1, t2)) - log_k
+        return np.where(np.isfinite(r), r, 1e3).ravel()
+
+    x0 = [first.a, math.log(first.T3_K), math.log(first.T1_K)] + \
+        ([math.log(first.T2_K)] if fit_T2 else []) + list(np.log(guess))
+    lo = [0.0, 0.0, 0.0] + ([0.0] if fit_T2 else []) + list(np.log(guess) - 40.0)
+    hi = [1.0, math.log(1e8), math.log(1e8)] + ([math.log(1e8)] if fit_T2 else []) + list(np.log(guess) + 40.0)
+    x0 = np.clip(x0, lo, hi)
+    sol = least_squares(residual, x0, bounds=(lo, hi), x_scale="jac", xtol=1e-12, ftol=1e-12, gtol=1e-12,
+                        max_nfev=4000)
+    if 0.5 * np.sum(residual(x0) ** 2) <= sol.cost:
+        return first, guess
+    a, t3, t1, t2, k0e = unpack(sol.x)
+    dev = np.exp(-residual(sol.x).reshape(k.shape))
+    dev = 1.0 / dev - 1.0
+    return TroeFit(float(a), t3, t1, t2, float(np.max(np.abs(dev))), float(np.sqrt(np.mean(dev**2)))), k0e
+
+
+def canonical_tst(study: Study, channel: Channel, temperature_K, tunnelling: str = "none") -> np.ndarray:
+    """k_TST(T) [s^-1] of the channel from :func:`tstrate.physics.tst.channel_rates`, with Eckart
+    tunnelling when ``tunnelling == "eckart"`` and without tunnelling otherwise."""
+    from dataclasses import replace
+
+    from tstrate.physics.tst import channel_rates
+
+    ch = replace(channel, tunnelling="eckart" if tunnelling == "eckart" else "none")
+    return channel_rates(ch, study.species, temperature_K).k
+
+
+def study_falloff(study: Study, *, temperature_K=None,
+                  progress: Callable[[Iterable], Iterable] | None = None) -> StudyFalloff:
+    """Falloff of every unimolecular channel of ``study``; other channels are listed as skipped.
+
+    ``progress`` may wrap the iterable of channels (e.g. a tqdm progress bar).
+    """
+    if not study.channels:
+        raise InputError("the study has no [[channel]]", file=study.file, field="channel")
+    t = study.conditions.temperature_K if temperature_K is None else temperature_K
+    study_number_densities(study, np.atleast_1d(np.asarray(t, dtype=float)))  # no pressures: fail first
+    bath = bath_parameters(study)
+    section = falloff_section(study)
+    uni = [c for c in study.channels if c.order == 1]
+    skipped = tuple(SkippedChannel(c.name, c.order,
+                                   f"falloff is not computed for channels of order {c.order}; "
+                                   "only unimolecular channels have a falloff treatment here")
+                    for c in study.channels if c.order != 1)
+    out = []
+    for ch in (progress(uni) if progress else uni):
+        out.append(channel_falloff(study, ch, settings=section.for_channel(ch.name), temperature_K=t, bath=bath))
+    warnings = tuple(w for r in out for w in r.warnings)
+    return StudyFalloff(study.file, study.title, bath, tuple(out), skipped, warnings)
