@@ -38,7 +38,9 @@ def falloff_figure(cf, title: str | None = None, max_curves: int = 5):
     Left: log10 k; right: log10 (k / k_inf), where the shapes can be compared. Solid: the
     strong-collision k(T, [M]) (beta_c-scaled) on a dense grid reaching two decades past
     the study's pressures; dots: the study's grid; dashed: k_inf (flat) and the
-    Lindemann-Hinshelwood curve; dotted black: the Troe fit over the range it was fitted on.
+    Lindemann-Hinshelwood curve (with the k_0 of the Troe form: the low-pressure limit, or
+    the effective k_0 of an Eckart channel); dotted black: the Troe fit over the range it was
+    fitted on.
     Number-density studies are drawn against [M] instead of pressure.
     """
     from matplotlib.lines import Line2D
@@ -54,7 +56,7 @@ def falloff_figure(cf, title: str | None = None, max_curves: int = 5):
         colour = cmap(0.9 * j / max(1, len(rows) - 1))
         t = cf.temperature_K[i]
         k_inf = cf.k_high_pressure_per_s[i]
-        k0 = cf.k_low_pressure_m3_per_s[i]
+        k0 = cf.troe_k0_m3_per_s[i]
         x_curve = np.log10(cf.curve_pressure_Pa / _BAR if by_pressure else cf.curve_number_density_m3[i] * 1e-6)
         x_grid = np.log10(cf.pressure_Pa / _BAR if by_pressure else cf.number_density_m3[i] * 1e-6)
         m_curve = cf.curve_number_density_m3[i]
@@ -77,11 +79,17 @@ def falloff_figure(cf, title: str | None = None, max_curves: int = 5):
     ax.set_ylabel("log$_{10}$ (k / s$^{-1}$)")
     axr.set_ylabel("log$_{10}$ (k / k$_\\infty$)")
     lo = min(np.log10(np.min(cf.curve_rate_per_s[i] / cf.k_high_pressure_per_s[i])) for i in rows)
-    axr.set_ylim(max(lo, -8.0) - 0.3, 0.4)
+    bottom = max(lo, -8.0) - 0.3
+    axr.set_ylim(bottom, -0.08 * bottom)
+    k_lo = min(np.log10(np.min(cf.curve_rate_per_s[i])) for i in rows)
+    k_hi = max(np.log10(cf.k_high_pressure_per_s[i]) for i in rows)
+    ax.set_ylim(k_lo - 1.0, k_hi + 1.0)
     styles = [Line2D([], [], color="0.3", lw=1.8, label=f"strong collision, $\\beta_c$-scaled, in {cf.bath.name}"),
               Line2D([], [], color="0.3", ls="", marker="o", ms=4, label="study grid"),
               Line2D([], [], color="0.3", ls="--", lw=1.0, label="$k_\\infty$"),
-              Line2D([], [], color="0.3", ls=lind_style, lw=1.0, label="Lindemann-Hinshelwood"),
+              Line2D([], [], color="0.3", ls=lind_style, lw=1.0,
+                     label="Lindemann-Hinshelwood" + (" (effective $k_0$)" if cf.model.tunnelling == "eckart"
+                                                      else "")),
               Line2D([], [], color="k", ls=":", lw=1.3,
                      label=f"Troe fit (max dev. {100 * cf.troe.max_relative_deviation:.2g} %)")]
     fig.legend(handles=handles, loc="lower center", bbox_to_anchor=(0.5, 0.05), ncol=len(handles), fontsize=8,

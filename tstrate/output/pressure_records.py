@@ -66,6 +66,7 @@ def falloff_channel_record(cf, rate_units: dict | None = None) -> dict:
         "k_low_pressure": _rate_in(cf.k_low_pressure_m3_per_s, 2, u2),
         "k_low_pressure_unit": u2,
         "lindemann_rate_constant": _rate_in(cf.lindemann_per_s, 1, u1),
+        "lindemann_k_low_pressure": "the k0 of the Troe form (troe.k_low_pressure)",
         "canonical_tst_rate_constant": _rate_in(cf.canonical_tst_per_s, 1, u1),
         "k_high_pressure_over_canonical_tst": cf.k_high_pressure_per_s / cf.canonical_tst_per_s,
         "troe": {

@@ -447,7 +447,9 @@ class ChannelFalloff:
     Arrays: temperature_K (n_T); pressure_Pa (n_P) when the study gives pressures, else None;
     number_density_m3 (n_T, n_P) [m^-3]; rate_constant_per_s (n_T, n_P) [s^-1];
     k_high_pressure_per_s (n_T) [s^-1]; k_low_pressure_m3_per_s (n_T) [m^3 s^-1];
-    lindemann_per_s and troe_per_s (n_T, n_P) [s^-1]; troe_Fcent (n_T);
+    lindemann_per_s and troe_per_s (n_T, n_P) [s^-1]: k_inf k0[M] / (k_inf + k0[M]) and the Troe
+    form, both with the k_0 of troe_k0_m3_per_s (so troe / lindemann is Troe's broadening F);
+    troe_Fcent (n_T);
     canonical_tst_per_s (n_T) [s^-1]: tst.channel_rates with the same tunnelling treatment
     (Eckart or none), for comparison with k_high_pressure_per_s;
     collision_rate_m3_per_s, collision_efficiency (n_T); energy_factor_FE and
@@ -569,7 +571,6 @@ def channel_falloff(study: Study, channel: Channel, *, settings: FalloffSettings
 
     fo = strong_collision_falloff(model.rate, t, m, collision_rate_m3_s=z, collision_efficiency=eff.beta)
     k_inf, k0 = fo.high_pressure_per_s, fo.low_pressure_m3_s
-    lind = lindemann_hinshelwood(k0[:, None], k_inf[:, None], m)
 
     # Troe fit on a common [M] grid spanning the study's number densities
     m_fit = _log_grid(float(m.min()), float(m.max()), 4, 9)
@@ -579,6 +580,7 @@ def channel_falloff(study: Study, channel: Channel, *, settings: FalloffSettings
     else:
         troe, k0_troe = fit_troe(t, m_fit, fo_fit.rate_per_s, k0, k_inf, fit_T2=settings.fit_T2), k0
     troe_k = troe_rate(k0_troe[:, None], k_inf[:, None], m, t[:, None], troe.a, troe.T3_K, troe.T1_K, troe.T2_K)
+    lind = lindemann_hinshelwood(k0_troe[:, None], k_inf[:, None], m)
     fcent = troe_center_broadening(t, troe.a, troe.T3_K, troe.T1_K, troe.T2_K)
 
     # dense curve for plots, two decades beyond the study's range on each side
