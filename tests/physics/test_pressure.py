@@ -237,3 +237,35 @@ def test_strong_collisions_and_wigner_are_said(study):
     assert "'wigner' has no microcanonical form" in text
     assert cf.model.tunnelling == "none"
     assert np.all(cf.collision_efficiency == 1.0)
+
+
+def test_linear_reactant_with_a_bent_transition_state():
+    # Invented HCN -> [bent TS] isomerisation (made-up numbers). The linear reactant has the 2-D rotor
+    # only; the TS gets the K-rotor as an extra rotor. The rotational factor the model puts into k_inf,
+    # (B_R / B2d_TS) * Q_K,TS, must be the ratio of classical rigid-rotor partition functions that canonical
+    # TST uses, (kT/B_R)^-1 * sqrt(pi) (kT)^1.5 / sqrt(ABC), written out here from the rotational constants.
+    from tstrate.io.species import build_species
+    from tstrate.model import Channel, Conditions, Study
+
+    hcn = build_species("HCN", ["H", "C", "N"], [[0, 0, -1.066], [0, 0, 0], [0, 0, 1.156]],
+                        frequencies_cm1=[710, 710, 2100, 3310], energy_J_per_mol=0.0, lennard_jones=(3.6, 570.0))
+    ts = build_species("TSi", ["H", "C", "N"], [[1.05, 0, 0.3], [0, 0, 0], [0, 0, 1.18]], kind="transition_state",
+                       frequencies_cm1=[-1200, 2000, 2600], energy_J_per_mol=16415 * CM1_J_PER_MOL)
+    assert hcn.linear and not ts.linear
+    ch = Channel("iso", ("HCN",), "TSi", ("HCN",))
+    st = Study(None, "linear test", {"HCN": hcn, "TSi": ts}, (ch,),
+               Conditions(np.array([300.0]), pressure_Pa=np.array([1e5]), bath_gas="N2"))
+    m = unimolecular_model(st, ch, FalloffSettings(), max_temperature_K=300.0)
+    assert m.reactant_rotors.axis == "linear" and m.reactant_rotors.K_cm1 is None
+    (b_r,) = rotational_constants_cm1(hcn)
+    a, b, c = rotational_constants_cm1(ts)
+    kt = 300.0 / C2_CM_K                                      # kT in cm-1
+    expected = (math.sqrt(math.pi) * kt**1.5 / math.sqrt(a * b * c)) / (kt / b_r)
+    model_factor = m.rate.centrifugal_factor * math.sqrt(math.pi * kt / m.ts_rotors.K_cm1)
+    assert model_factor == pytest.approx(expected, rel=1e-12)
+    # four modes and no active rotor: most grains above the barrier hold no state, and the user is told
+    assert any("no state in" in w and "lumpy" in w for w in m.warnings)
+
+
+def test_dense_reactant_gets_no_sparse_warning(result):
+    assert not any("no state in" in w for w in result.warnings)

@@ -70,7 +70,7 @@ from tstrate.physics.falloff import (TroeFit, fit_troe, lindemann_hinshelwood, s
 from tstrate.physics.rrkm import ExternalRotation, MicrocanonicalRate, microcanonical_rate
 from tstrate.physics.states import (CM1_J_PER_MOL, GRAIN_FRACTION_OF_LOWEST, Rotor, StateCounts,
                                     convolve_counts, count_states)
-from tstrate.units import C, H, K_B, number_density_m3
+from tstrate.units import C, H, K_B, R, number_density_m3
 
 log = logging.getLogger(__name__)
 
@@ -352,6 +352,15 @@ def unimolecular_model(study: Study, channel: Channel, settings: FalloffSettings
     ts_counts = _counts(ts, tf, e_top, grain, t_extra)
     rate = microcanonical_rate(reactant_counts, ts_counts, e0, path_degeneracy=degeneracy,
                                centrifugal_factor=external.centrifugal_factor, transmission=transmission)
+    # sparse reactant states: grains without a state have k(E) = 0, and grain sums become lumpy
+    g_j = grain * CM1_J_PER_MOL
+    hi = e0 + max(20 * R * max_temperature_K, min_top_energy_J_per_mol - e0 + 1000 * CM1_J_PER_MOL)
+    window = reactant_counts.counts[rate.barrier_index:min(reactant_counts.n_grains, int(hi / g_j) + 1)]
+    empty = float(np.mean(window <= 0)) if window.size else 0.0
+    if empty > 0.01:
+        warnings.append(f"channel {channel.name!r}: {reac.name} has no state in {100 * empty:.0f} % of the grains "
+                        "above the barrier (too few atoms or no active rotor for this grain); k(E) is zero there "
+                        "and the falloff and excitation results are lumpy - compare k_inf with canonical TST")
     for w in warnings:
         log.debug(w)
     return UnimolecularModel(channel, reac, ts, rate, grain, settings.grain_cm1, rate.barrier_J_per_mol,
