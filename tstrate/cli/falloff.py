@@ -21,7 +21,8 @@ a Troe fit (a, T***, T*, optionally T**, Fcent(T)) with its error, and
 k_inf / canonical TST as a check.
 
 JSON output (--json): "study", "title", "bath_gas", "bath_gas_lennard_jones",
-"channels" (each: name, order, temperature_K, pressure_bar, number_density_per_cm3,
+"channels" (each: name, order, temperature_K, pressure_bar (a list over pressure, or
+over temperature of lists when the study gives number densities), number_density_per_cm3,
 rate_constant [T][p], rate_constant_unit, k_high_pressure(_unit), k_low_pressure(_unit),
 lindemann_rate_constant, canonical_tst_rate_constant, k_high_pressure_over_canonical_tst,
 troe {a, T3_K, T1_K, T2_K, Fcent, k_low_pressure(_unit, _kind), max_relative_deviation,
