@@ -116,9 +116,11 @@ def compute_study(study: Study, *, low_modes: LowModes = HARMONIC,
     excitations = None
     if study.sections.get("excitation"):
         step("energised molecules")
-        from tstrate.physics.pressure import study_excitations
+        from tstrate.physics.energised import study_excitations
 
         excitations = tuple(study_excitations(study))
+        for ex in excitations:
+            warnings += list(ex.warnings)
 
     step("fits")
     from tstrate.io.fit_section import FitOptions

@@ -21,3 +21,6 @@ $T compute relay --waters 1 --name TS-H2CO3.H2O --complex-name H2CO3.H2O \
     -o ts_one_water.toml --complex-output h2co3_h2o.toml --product-output co2_2h2o_complex.toml "${Q[@]}"
 $T compute relay --waters 2 --name 'TS-H2CO3.(H2O)2' --complex-name 'H2CO3.(H2O)2' \
     -o ts_two_water.toml --complex-output h2co3_2h2o.toml --product-output co2_3h2o_complex.toml "${Q[@]}"
+
+# collision parameters for falloff (an estimate, not computed: see README.md)
+sed -i '/^lennard_jones = /d; /^optical_isomers = /a lennard_jones = { sigma_A = 4.2, epsilon_K = 400.0 }   # ESTIMATE (HONO2-like values, see README.md), added by make.sh' h2co3.toml

@@ -76,12 +76,14 @@ def run(args) -> int:
             "warnings": list(result.warnings),
         })
         return 0
+    from tstrate.output.records import rate_unit
+
     print(f"{study.title}\nwrote {len(files)} files to {out}/ (report: {out / 'report.html'})")
     for cf in result.fits.channels:
         e = cf.expression
         form = f"(T/{e.T0_K:g} K)^{e.n:.2f} " if e.modified else ""
-        print(f"  {cf.name}: k = {e.A_in():.3e} {form}exp(-Ea/RT), Ea = {e.Ea_J_per_mol / 1e3:.2f} kJ/mol "
-              f"[A in {e.A_unit if hasattr(e, 'A_unit') else 'k units'}], {e.Tmin_K:g}-{e.Tmax_K:g} K, "
+        print(f"  {cf.name}: k = {e.A_in(rate_unit(e.order, study.conditions.rate_units)):.3e} {form}exp(-Ea/RT), Ea = {e.Ea_J_per_mol / 1e3:.2f} kJ/mol "
+              f"[A in {rate_unit(e.order, study.conditions.rate_units)}], {e.Tmin_K:g}-{e.Tmax_K:g} K, "
               f"max deviation {100 * e.max_rel_deviation:.1f} %")
     for w in result.warnings:
         print(f"warning: {w}", file=sys.stderr)
