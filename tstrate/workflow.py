@@ -48,6 +48,8 @@ class StudyResult:
     falloff: pressure.StudyFalloff, or None.
     excitations: energised-molecule results per [[excitation]], or None.
     fits: output.fits.StudyFits.
+    pressure_fits: channel -> list of (pressure [Pa] or None, [M] [m^-3] at the highest
+        temperature, modified Arrhenius fit of k(T) at that pressure), for falloff channels.
     warnings: sentences for the report.
     """
 
@@ -59,6 +61,7 @@ class StudyResult:
     falloff: object | None
     excitations: tuple | None
     fits: object
+    pressure_fits: dict = field(default_factory=dict)
     warnings: tuple[str, ...] = field(default=())
 
 
@@ -103,6 +106,7 @@ def compute_study(study: Study, *, low_modes: LowModes = HARMONIC,
 
     falloff = None
     troe = {}
+    pressure_fits = {}
     if study.conditions.pressure_Pa.size or study.conditions.number_density_m3.size:
         step("falloff")
         from tstrate.output.fits import TroeData
@@ -112,6 +116,8 @@ def compute_study(study: Study, *, low_modes: LowModes = HARMONIC,
         warnings += list(falloff.warnings)
         for cf in falloff.channels:
             troe[cf.name] = troe_data(cf, study)
+            pressure_fits[cf.name], w = fits_at_each_pressure(cf)
+            warnings += w
 
     excitations = None
     if study.sections.get("excitation"):
@@ -134,20 +140,59 @@ def compute_study(study: Study, *, low_modes: LowModes = HARMONIC,
         warnings += list(cf.warnings)
     return StudyResult(study=study, low_modes=low_modes, thermo=thermo, rates=rates,
                        comparisons=comparisons, falloff=falloff, excitations=excitations, fits=fits,
-                       warnings=tuple(dict.fromkeys(warnings)))
+                       pressure_fits=pressure_fits, warnings=tuple(dict.fromkeys(warnings)))
 
 
 def troe_data(cf, study):
-    """Troe data for the mechanism from one channel's falloff result (modified Arrhenius limits)."""
-    from tstrate.output.fits import TroeData
-    from tstrate.physics.fitting import fit_arrhenius
+    """Troe data for the mechanism from one channel's falloff result.
 
-    T = cf.temperature_K
-    k0 = fit_arrhenius(T, cf.troe_k0_m3_per_s, order=2, modified=True) if len(T) >= 3 else \
-        fit_arrhenius(T, cf.troe_k0_m3_per_s, order=2)
-    kinf = fit_arrhenius(T, cf.k_high_pressure_per_s, order=1, modified=True) if len(T) >= 3 else \
-        fit_arrhenius(T, cf.k_high_pressure_per_s, order=1)
+    k0 and k_inf are fitted in the modified Arrhenius form; when that form is
+    unrepresentable in a mechanism (A (1 K / T0)^n beyond the float range, as
+    happens for an effective k0 over a short temperature range), the
+    two-parameter form is used instead and its larger deviation is reported.
+    """
+    from tstrate.output.fits import TroeData
+
+    k0 = _limit_fit(cf.temperature_K, cf.troe_k0_m3_per_s, order=2)
+    kinf = _limit_fit(cf.temperature_K, cf.k_high_pressure_per_s, order=1)
     return TroeData.from_parts(k0, kinf, cf.troe, bath_gas=study.conditions.bath_gas)
+
+
+def _limit_fit(T, k, order):
+    import math
+
+    from tstrate.physics.fitting import fit_arrhenius
+    from tstrate.units import rate_from_SI
+
+    if len(T) >= 3:
+        fit = fit_arrhenius(T, k, order=order, modified=True)
+        ln_a = math.log(float(rate_from_SI(fit.A, order))) - fit.n * math.log(fit.T0_K)
+        if abs(ln_a) < 600:
+            return fit
+    return fit_arrhenius(T, k, order=order)
+
+
+def fits_at_each_pressure(cf, *, max_deviation: float | None = None):
+    """Modified Arrhenius fits of a falloff channel's k(T) at each tabulated pressure.
+
+    Returns ([(pressure_Pa or None, number_density_m3 at the highest T, ArrheniusFit)], warnings).
+    """
+    from tstrate.physics.fitting import MAX_DEVIATION_DEFAULT, fit_arrhenius
+
+    limit = MAX_DEVIATION_DEFAULT if max_deviation is None else max_deviation
+    out, warnings = [], []
+    T = cf.temperature_K
+    modified = len(T) >= 3
+    for j in range(cf.rate_constant_per_s.shape[1]):
+        p = None if cf.pressure_Pa is None else float(cf.pressure_Pa[j])
+        fit = fit_arrhenius(T, cf.rate_constant_per_s[:, j], order=1, modified=modified,
+                            max_deviation=limit)
+        out.append((p, float(cf.number_density_m3[-1, j]), fit))
+    worst = max((f.max_rel_deviation for _, _, f in out), default=0.0)
+    if worst > limit:
+        warnings.append(f"channel {cf.name}: modified Arrhenius fits at fixed pressure deviate by up to "
+                        f"{100 * worst:.1f} % (split the temperature range for a mechanism)")
+    return out, warnings
 
 
 # ---------------------------------------------------------------------------- writing

@@ -138,7 +138,12 @@ def _side(names, cn) -> str:
 
 def _arrhenius_flow(fit, order: int) -> str:
     """Cantera rate mapping: A in molec-cm-s units, b = n, Ea as Ea/R in K."""
-    a = float(rate_from_SI(fit.A, order)) * fit.T0_K ** (-fit.n)
+    ln_a = math.log(float(rate_from_SI(fit.A, order))) - fit.n * math.log(fit.T0_K)
+    if abs(ln_a) > 700:
+        raise InputError(f"the fitted expression (n = {fit.n:.3g}) gives A = exp({ln_a:.0f}) with T0 = 1 K, "
+                         "beyond what a mechanism file can hold", field="mechanism",
+                         hint="fit the two-parameter Arrhenius form or a narrower temperature range")
+    a = math.exp(ln_a)
     return f"{{A: {_num(a)}, b: {_num(fit.n)}, Ea: {_num(fit.Ea_over_R_K)}}}"
 
 

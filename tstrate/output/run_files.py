@@ -85,6 +85,30 @@ def _results_json(result) -> dict:
     return doc
 
 
+def fits_document(result) -> dict:
+    """fits.json: the study's fits plus modified Arrhenius fits at each tabulated pressure."""
+    from tstrate.output.fits import arrhenius_record, fits_to_json
+
+    units = result.study.conditions.rate_units
+    doc = fits_to_json(result.fits, units)
+    if result.pressure_fits:
+        doc["fits_at_each_pressure"] = {
+            name: [{"pressure_bar": None if p is None else p / 1e5,
+                    "number_density_per_cm3_at_highest_T": n * 1e-6,
+                    **arrhenius_record(fit)} for p, n, fit in entries]
+            for name, entries in result.pressure_fits.items()}
+    return doc
+
+
+def pressure_fit_rows(result):
+    header = ["channel", "pressure [bar]", "A [s-1]", "n [1]", "T0 [K]", "Ea [kJ mol-1]", "Tmin [K]",
+              "Tmax [K]", "max deviation [%]", "rms deviation [%]"]
+    rows = [[name, None if p is None else p / 1e5, f.A, f.n, f.T0_K, f.Ea_J_per_mol / 1e3, f.Tmin_K,
+             f.Tmax_K, 100 * f.max_rel_deviation, 100 * f.rms_rel_deviation]
+            for name, entries in result.pressure_fits.items() for p, _, f in entries]
+    return header, rows
+
+
 def _thermo_record(th, sp) -> dict:
     return {
         "name": th.species, "formula": sp.formula, "kind": sp.kind,
@@ -103,7 +127,7 @@ def write_all(result, folder: Path, *, progress: Callable[[str], None] | None = 
     from tstrate.output.mechanism import write_mechanism
     from tstrate.output.plots import arrhenius_figure
     from tstrate.output.records import channel_rates_record
-    from tstrate.output.tables import (json_text, write_fits_csv, write_fits_json, write_rate_tables,
+    from tstrate.output.tables import (csv_text, json_text, write_fits_csv, write_json, write_rate_tables,
                                        write_thermo_csv)
     from tstrate.workflow import file_sha256, input_files
 
@@ -121,10 +145,13 @@ def write_all(result, folder: Path, *, progress: Callable[[str], None] | None = 
 
     step("tables")
     written.append(write_mechanism(result.fits, folder / "mechanism.yaml"))
-    written.append(write_fits_json(folder / "fits.json", result.fits, units))
+    written.append(write_json(folder / "fits.json", fits_document(result)))
     written.append(write_fits_csv(folder / "fits.csv", result.fits, units))
     written.append(write_thermo_csv(folder / "tables" / "thermochemistry.csv", result.thermo))
     written += write_rate_tables(folder / "tables", result.rates, units)
+    if result.pressure_fits:
+        atomic_write_text(folder / "tables" / "fits_at_each_pressure.csv", csv_text(*pressure_fit_rows(result)))
+        written.append(folder / "tables" / "fits_at_each_pressure.csv")
     doc = _results_json(result)
     atomic_write_text(folder / "results.json", json_text(doc))
     written.append(folder / "results.json")
@@ -181,6 +208,14 @@ def write_all(result, folder: Path, *, progress: Callable[[str], None] | None = 
     atomic_write_text(folder / "report.html", rp.to_html(blocks, folder, study.title))
     written += [folder / "report.md", folder / "report.html"]
     return written
+
+
+def _fmt_cell(v):
+    if v is None:
+        return "-"
+    if isinstance(v, float):
+        return f"{v:.4g}"
+    return v
 
 
 def _pick_temperatures(T: np.ndarray, most: int = 6) -> list[int]:
@@ -269,6 +304,11 @@ def build_report(result, doc: dict, inputs: list[dict], figures) -> list:
         B.append(rp.Table(("channel", "a", "T*** / K", "T* / K", "T** / K", "max deviation / %",
                            "rms deviation / %"), tuple(rows), "Troe parameters fitted to the computed "
                           "falloff curves."))
+        if result.pressure_fits:
+            header, rows = pressure_fit_rows(result)
+            B.append(rp.Table(tuple(header), tuple(tuple(_fmt_cell(c) for c in r) for r in rows),
+                              "Modified Arrhenius fits of k(T) at each tabulated pressure (also in "
+                              "fits.json and tables/fits_at_each_pressure.csv)."))
         for s in result.falloff.skipped:
             B.append(rp.Paragraph(f"Channel {s.name}: {s.reason}."))
         B += [rp.Figure(p, c) for s, p, c in figures if s == "falloff"]
