@@ -244,7 +244,13 @@ def build_report(result, doc: dict, inputs: list[dict], figures) -> list:
     B.append(rp.Table(("species", "formula", "kind", "method", "symmetry number", "energy"), tuple(rows)))
 
     B.append(rp.Heading("Methods and assumptions"))
-    B.append(rp.Bullets(METHODS + (f"Low modes: {result.low_modes.method}.",)))
+    skip = set()
+    if result.comparisons is None:
+        skip.add("Catalysed")
+    if result.falloff is None and result.excitations is None:
+        skip.add("Falloff")
+    methods = tuple(m for m in METHODS if not any(m.startswith(k) for k in skip))
+    B.append(rp.Bullets(methods + (f"Low modes: {result.low_modes.method}.",)))
 
     B.append(rp.Heading("Thermochemistry (1 bar)"))
     rows = []
