@@ -12,7 +12,7 @@ References used here (source beside each check):
   the geometry by our own inertia tensor).
 - Atom + atom through a diatomic transition state equals hard-sphere collision theory,
   k = (8kT/(pi mu))^(1/2) pi r^2 exp(-E0/RT): the textbook identity of e.g. NPTEL "Theories of
-  reaction rates", lecture 33, eq. (33.34) (archive.nptel.ac.in, course 122101001) and
+  reaction rates", unit 33, eq. (33.34) (archive.nptel.ac.in, course 122101001) and
   K. J. Laidler, Chemical Kinetics, 3rd ed. (1987), sec. 4.5 (from memory). No published worked
   numerical TST example with its partition functions given could be found with the search tool;
   this identity is used instead.
@@ -243,7 +243,7 @@ def test_toy_unimolecular_rate_from_textbook_partition_functions(toy):
 
 
 def test_atom_plus_atom_equals_hard_sphere_collision_theory():
-    """NPTEL lecture 33 eq. (33.34) / Laidler (1987): k = (8kT/(pi mu))^1/2 pi r^2 exp(-E0/RT) g_TS/(g_A g_B)."""
+    """NPTEL course 122101001, unit 33, eq. (33.34) / Laidler (1987): k = (8kT/(pi mu))^1/2 pi r^2 exp(-E0/RT) g_TS/(g_A g_B)."""
     r_A = 1.9
     e_ts = 25e3  # [J/mol], invented
     species = {
