@@ -489,6 +489,26 @@ def test_complex_eckart_barriers_and_floor(carbonic, floor):
     np.testing.assert_allclose(cr.k_classical, classical, rtol=1e-12)
 
 
+@pytest.mark.parametrize("model", ["eckart", "skodje-truhlar"])
+def test_submerged_transition_state_keeps_its_over_barrier_flux(carbonic, model):
+    """tst.py docstring: a TS below the separated reactants keeps its over-the-barrier flux (the
+    floor sits at the barrier top). Reference: the transmission-weighted flux over the top is at
+    least half the classical one for both models (P = 1/2 at the top of an Eckart or a parabolic
+    barrier, rising above it), and never more than it (no tunnelling is counted)."""
+    sp = dict(carbonic.species)
+    ch = _with_tunnelling(carbonic.channel("water"), model)
+    e_r = zpe_level(sp["H2CO3"]) + zpe_level(sp["H2O"])
+    ts = sp["TS_w"]
+    sp["TS_w"] = dataclasses.replace(ts, energy_J_per_mol=ts.energy_J_per_mol
+                                     - (zpe_level(ts) - e_r) - 5 * 1e3)   # 5 kJ/mol below reactants
+    T = np.array([100.0, 150.0, 250.0, 1000.0])
+    cr = tst.channel_rates(ch, sp, T)
+    assert cr.barrier_zpe_J_per_mol == pytest.approx(-5e3, abs=1e-6)
+    assert cr.energy_floor_J_per_mol == pytest.approx(cr.eckart_V1_J_per_mol, rel=1e-12)
+    assert np.all(cr.kappa > 0.5) and np.all(cr.kappa <= 1.0)
+    assert np.all(np.isfinite(cr.k)) and np.all(cr.k > 0)
+
+
 def test_complex_floor_choice_orders_kappa(carbonic):
     sp = carbonic.species
     base = dataclasses.replace(carbonic.channel("water"), tunnelling="eckart")

@@ -371,6 +371,30 @@ def test_skodje_truhlar_is_continuous_through_beta_equal_alpha():
     np.testing.assert_allclose(k, alpha * D, rtol=2e-4)
 
 
+def _parabolic_kappa_above_top_quad(T, nu):
+    """beta * int_0^inf exp(-beta y) P(y) dy with the parabolic transmission of the Skodje-Truhlar
+    model, P(y) = 1 / (1 + exp(-alpha y)) (y = E - V0), by scipy quad (independent of the module)."""
+    alpha = 2 * math.pi / (nu * CM1_J_PER_MOL)
+    beta = 1 / (R * T)
+    val, _ = quad(lambda y: beta * math.exp(-beta * y) * expit(alpha * y), 0.0, math.inf,
+                  epsabs=0.0, epsrel=1e-12, limit=500)
+    return val
+
+
+@pytest.mark.parametrize("T_over_Tc", [0.3, 0.6, 0.9, 1.0, 1.2, 2.0, 5.0])
+def test_skodje_truhlar_floor_at_the_barrier_top_keeps_the_over_barrier_flux(T_over_Tc):
+    # A floor at the barrier top (a submerged TS, see tst.py) leaves no tunnelling, only the flux
+    # over the top; the closed forms (derived for V0 - V >> 1/alpha) give 0 there for T < T_c.
+    # Reference: the thermal average of the model's own parabolic transmission above the top by
+    # quad; it lies between 1/2 (deep cold, P = 1/2 at the top) and 1 (hot). 1e-8: quad ~1e-12.
+    nu, V1, V2 = 900.0, 40 * KJ, 50 * KJ
+    T = T_over_Tc * nu * CM1_J_PER_MOL / (2 * math.pi * R)
+    k = tn.skodje_truhlar(T, nu, V1, V2, energy_floor_J_per_mol=V1)
+    ref = _parabolic_kappa_above_top_quad(T, nu)
+    assert 0.5 < ref < 1.0
+    assert k == pytest.approx(ref, rel=1e-8)
+
+
 @pytest.mark.parametrize("model", tn.MODELS)
 def test_all_models_tend_to_one_at_high_temperature(model):
     T = np.array([1e4, 1e5, 1e6, 1e7])

@@ -210,6 +210,15 @@ def _pi_over_sin_minus_inv(x: np.ndarray, eps: np.ndarray) -> np.ndarray:
 
 def _skodje_truhlar_log(beta: np.ndarray, alpha: float, D: float) -> np.ndarray:
     """log kappa of Skodje-Truhlar for ``beta = 1/RT`` [mol/J], ``alpha`` [mol/J], depth ``D`` [J/mol]."""
+    if D <= 0.0:
+        # floor at the barrier top (a submerged TS): no tunnelling, only the flux over the top.
+        # The closed forms assume D >> 1/alpha and give 0 here for beta > alpha; the model's own
+        # parabolic transmission P = 1/(1 + exp(-alpha y)) averaged over y >= 0 is, with x = beta/alpha,
+        # beta int_0^inf exp(-beta y) P dy = sum_k (-1)^k x/(x + k) = (x/2) [psi((1+x)/2) - psi(x/2)].
+        from scipy.special import digamma
+
+        x = beta / alpha
+        return np.log(0.5 * x * (digamma(0.5 * (1.0 + x)) - digamma(0.5 * x)))
     out = np.empty_like(beta)
     low = beta < alpha          # high temperature branch
     high = beta > alpha         # low temperature (deep tunnelling) branch
@@ -270,7 +279,12 @@ def skodje_truhlar(temperature_K, imag_freq_cm1, forward_barrier_J_per_mol,
     * ``beta > alpha``: ``kappa = beta/(beta - alpha) {exp[(beta - alpha)(V0 - V)] - 1}``
 
     At ``beta == alpha`` both give ``alpha (V0 - V)``; the form used here is
-    rearranged so that it stays accurate next to that point. Temperatures [K]
+    rearranged so that it stays accurate next to that point. With the floor at
+    the barrier top (``V = V0``, a submerged transition state) the closed forms,
+    derived for ``V0 - V >> 1/alpha``, would give 0 below the crossover
+    temperature; there the thermal average of the parabolic transmission over
+    the top, ``(x/2) [psi((1+x)/2) - psi(x/2)]`` with ``x = beta/alpha``
+    (between 1/2 and 1), is returned instead. Temperatures [K]
     may be an array; barriers in J/mol (non-negative); the imaginary wavenumber
     [cm^-1] is given as its positive magnitude. Values too large for a float
     come back as ``inf``; use :func:`skodje_truhlar_log` for those.
