@@ -89,6 +89,17 @@ def test_bad_options_exit_2(capsys, argv, needles):
         assert n in lines[0], (n, lines[0])
 
 
+def test_binary_or_folder_profile_exit_2(capsys, tmp_path):
+    binary = tmp_path / "profile.csv"
+    binary.write_bytes(b"\xd0\xff\x00\x81" * 20)
+    for profile, needle in ((binary, "not a text file"), (tmp_path, "is a folder")):
+        code, out, err = run(capsys, "excite", STUDY, "--wavenumber", "7000", "--channel", "bare",
+                             "--profile", profile, "--altitude", "0", "10")
+        assert code == 2 and out == ""
+        lines = err.strip().splitlines()
+        assert len(lines) == 1 and needle in lines[0] and "Traceback" not in err, err
+
+
 def test_study_without_excitations(capsys, tmp_path):
     text = STUDY.read_text().split("[[excitation]]")[0]
     for f in ("h2co3.toml", "ts_bare.toml", "co2.toml", "h2o.toml"):

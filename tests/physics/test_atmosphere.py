@@ -95,3 +95,14 @@ def test_bad_profile_rows(tmp_path, text, match):
 def test_missing_profile_file(tmp_path):
     with pytest.raises(InputError, match="cannot read profile"):
         read_profile_csv(tmp_path / "nope.csv")
+
+
+def test_binary_or_folder_profile_is_an_input_error(tmp_path):
+    # a user pointing --profile at a binary file or a folder gets a one-line error, not a traceback
+    binary = tmp_path / "profile.csv"
+    binary.write_bytes(b"altitude_km,temperature_K\n\xd0\xff\x00\x81")
+    with pytest.raises(InputError, match="not a text file") as info:
+        read_profile_csv(binary)
+    assert info.value.file == str(binary)
+    with pytest.raises(InputError, match="is a folder"):
+        read_profile_csv(tmp_path)

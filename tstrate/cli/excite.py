@@ -114,6 +114,9 @@ def _cli_spec(args, study):
         profile = resolve_profile(profile, None)
         from pathlib import Path
 
+        if profile != US_STANDARD_1976 and Path(profile).is_dir():
+            raise InputError("is a folder, not a profile file", file=profile, field="--profile",
+                             hint=f"give {US_STANDARD_1976} or a CSV file")
         if profile != US_STANDARD_1976 and not Path(profile).is_file():
             raise InputError("profile file does not exist", file=profile, field="--profile",
                              hint=f"give {US_STANDARD_1976} or a CSV file")

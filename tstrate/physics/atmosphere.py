@@ -132,10 +132,14 @@ def read_profile_csv(path) -> AtmosphereProfile:
     InputError naming the file and line.
     """
     path = Path(path)
+    if path.is_dir():
+        raise InputError("is a folder, not a profile file (CSV expected)", file=str(path))
     try:
         text = path.read_text(encoding="utf-8")
     except OSError as exc:
         raise InputError(f"cannot read profile: {exc.strerror or exc}", file=str(path)) from None
+    except UnicodeDecodeError:
+        raise InputError("not a text file (CSV expected)", file=str(path)) from None
     rows = [(i + 1, line) for i, line in enumerate(text.splitlines())
             if line.strip() and not line.lstrip().startswith("#")]
     if not rows:
