@@ -72,7 +72,7 @@ def test_energy_option_and_no_pressures(capsys):
     (["--energy", "x", "kJ/mol"], ["[--energy]", "not a number"]),
     (["--energy", "100", "furlongs"], ["[--energy]", "unknown energy unit"]),
     (["--wavenumber", "7000"], ["[--channel]", "say which unimolecular channel"]),
-    (["--wavenumber", "7000", "--channel", "back"], ["channel 'back' has 2 reactants"]),
+    (["--wavenumber", "7000", "--channel", "back"], ["[--channel]", "channel 'back' has 2 reactants"]),
     (["--wavenumber", "7000", "--channel", "bare", "--altitude", "0", "120"],
      ["[--altitude]", "ends at 86 km"]),
     (["--wavenumber", "7000", "--channel", "bare", "--profile", "nowhere.csv"], ["nowhere.csv", "[--profile]"]),

@@ -30,6 +30,7 @@ altitude_km along a profile; half_quenching_pressure_bar for the scan}, warnings
 excite_<name>_k_of_E (PNG and SVG) into DIR.
 """
 
+_CLI_FIELD = "command line"
 _CLI_ONLY = ("channel", "temperature", "profile", "altitude", "delta_e_down", "collision_efficiency",
              "no_pressures")
 
@@ -130,7 +131,7 @@ def _cli_spec(args, study):
             delta_E_down_cm1=args.delta_e_down, collision_efficiency=args.collision_efficiency,
             pressure_scan=False if args.no_pressures else None, profile=profile,
             altitude_range_km=tuple(args.altitude) if args.altitude else None,
-            altitude_step_km=args.altitude_step, file=None, field="command line")
+            altitude_step_km=args.altitude_step, file=None, field=_CLI_FIELD)
     except InputError as exc:
         # name the option instead of the spec's field
         opt = {"delta_E_down_cm1": "--delta-e-down", "collision_efficiency": "--collision-efficiency",
@@ -191,6 +192,7 @@ def run(args) -> int:
 
     from tstrate.cli.common import print_json
     from tstrate.cli.falloff import check_plot_dir, progress_wrapper, write_figure
+    from tstrate.errors import InputError
     from tstrate.io.study import read_study
     from tstrate.output.pressure_records import excitation_record
     from tstrate.physics.energised import study_excitations
@@ -198,7 +200,19 @@ def run(args) -> int:
     folder = check_plot_dir(args.plot) if args.plot else None
     study = read_study(args.study)
     spec = _cli_spec(args, study)
-    results = study_excitations(study, None if spec is None else [spec], progress=progress_wrapper("excite"))
+    try:
+        results = study_excitations(study, None if spec is None else [spec], progress=progress_wrapper("excite"))
+    except InputError as exc:
+        if spec is None or not (exc.field or "").startswith(_CLI_FIELD):
+            raise
+        # name the option instead of the command-line spec's field
+        key = exc.field[len(_CLI_FIELD):].lstrip(".")
+        opt = {"channel": "--channel", "altitude_km": "--altitude", "profile": "--profile",
+               "temperature_K": "--temperature", "delta_E_down_cm1": "--delta-e-down",
+               "collision_efficiency": "--collision-efficiency"}.get(key)
+        if opt is None:  # what the study lacks (pressures in [conditions])
+            raise InputError(exc.problem, file=study.file, field="conditions", hint=exc.hint) from None
+        raise InputError(exc.problem, file=exc.file, field=opt, hint=exc.hint) from None
     for res in results:
         for w in res.warnings:
             print(f"tstrate excite: warning: {w}", file=sys.stderr)
