@@ -1,8 +1,8 @@
 """Energised-molecule glue (tstrate.physics.energised) on the invented carbonic-acid test study.
 
 Stern-Volmer and stepwise formulas are tested in test_activation.py; here: that a study
-excitation gets the right energy (excitation + mean thermal vibrational energy written out
-independently), [M] = p / kT, the channel's k(E), and that the fraction along the U.S.
+excitation gets the right energy (excitation + mean thermal energy of the active degrees of
+freedom: the vibrations, written out independently, plus RT/2 for the classical active K-rotor), [M] = p / kT, the channel's k(E), and that the fraction along the U.S.
 Standard Atmosphere 1976 behaves as it must (more reaction higher up, where [M] is smaller).
 """
 
@@ -59,7 +59,10 @@ def test_energy_density_and_stern_volmer_on_the_study_grid(results, study):
     freqs = study.species["H2CO3"].real_frequencies_cm1
     photon = h * c_light / 400e-9 * N_A
     for i, t in enumerate(g.temperature_K):
-        assert g.energy_J_per_mol[i] == pytest.approx(photon + mean_vib_energy_J_per_mol(freqs, t), rel=1e-12)
+        # vibrations (independent sum) + RT/2 for the active K-rotor (equipartition, one classical
+        # degree of freedom), within one grain of the discrete thermal average
+        expected = photon + mean_vib_energy_J_per_mol(freqs, t) + 0.5 * N_A * kB * t
+        assert g.energy_J_per_mol[i] == pytest.approx(expected, abs=r.model.grain_cm1 * CM1_J_PER_MOL)
     np.testing.assert_allclose(g.number_density_m3, study.conditions.pressure_Pa[None, :]
                                / (kB * g.temperature_K[:, None]), rtol=1e-12)
     k = r.model.rate.rate_at(g.energy_J_per_mol)

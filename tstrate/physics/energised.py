@@ -2,8 +2,10 @@
 
 An excitation (a photon or an overtone, given as a wavelength, a wavenumber or
 an energy) lifts the reactant of a unimolecular channel to
-E = E_exc + <E_vib>(T), its mean thermal vibrational energy added
-(:func:`tstrate.physics.activation.excitation_energy_J_per_mol`). The channel's
+E = E_exc + <E>(T), with <E>(T) the mean thermal energy of the reactant's
+active degrees of freedom - the vibrations and the active K-rotor counted in
+the RRKM density of states - averaged over its thermal distribution on the
+grain (about RT/2 more than the vibrational energy alone). The channel's
 RRKM k(E) comes from :func:`tstrate.physics.pressure.unimolecular_model` (same
 grain, rotors, degeneracy and tunnelling choices as the falloff). Then
 
@@ -42,7 +44,7 @@ from tstrate.physics.pressure import (FalloffSettings, UnimolecularModel, bath_p
                                       collision_rate, falloff_section, study_number_densities,
                                       unimolecular_model)
 from tstrate.physics.states import CM1_J_PER_MOL
-from tstrate.units import K_B
+from tstrate.units import K_B, R
 
 #: Name of the built-in altitude profile.
 US_STANDARD_1976 = "us-standard-1976"
@@ -169,6 +171,15 @@ class ExcitationResult:
 
 
 # ---------------------------------------------------------------- computation
+def mean_active_energy_J_per_mol(model: UnimolecularModel, temperature_K) -> np.ndarray:
+    """Mean thermal energy [J/mol] of the states counted in the reactant's RRKM density
+    (vibrations and the active K-rotor), from its thermal distribution on the grain."""
+    from tstrate.physics.falloff import thermal_distribution
+
+    states = model.rate.reactant
+    return thermal_distribution(states, temperature_K) @ states.energies_J_per_mol
+
+
 def _delta_e_down(spec: ExcitationSpec, settings: FalloffSettings, t: np.ndarray) -> np.ndarray | None:
     if spec.delta_E_down_cm1 is not None:
         return np.full(t.shape, spec.delta_E_down_cm1 * CM1_J_PER_MOL)
@@ -180,8 +191,8 @@ def _delta_e_down(spec: ExcitationSpec, settings: FalloffSettings, t: np.ndarray
 def _yields(model: UnimolecularModel, spec: ExcitationSpec, settings: FalloffSettings, bath, t: np.ndarray,
             m: np.ndarray, pressures: np.ndarray | None) -> YieldGrid:
     """Fractions at temperatures ``t`` (n,) and number densities ``m`` (n, n_P)."""
-    e_vib = np.atleast_1d(mean_vibrational_energy_J_per_mol(model.reactant.real_frequencies_cm1, t))
-    energy = spec.energy_J_per_mol + e_vib
+    e_thermal = mean_active_energy_J_per_mol(model, t)
+    energy = spec.energy_J_per_mol + e_thermal
     z = collision_rate(model.reactant, bath, t, settings)
     beta = (np.full(t.shape, spec.collision_efficiency) if spec.collision_efficiency is not None
             else collision_efficiency(model, settings, t).beta)
@@ -199,7 +210,7 @@ def _yields(model: UnimolecularModel, spec: ExcitationSpec, settings: FalloffSet
                                      energy_down_J_per_mol=float(de_down[i])).fraction
     with np.errstate(divide="ignore", invalid="ignore"):
         half = np.where(below, np.nan, k / (beta * z))
-    return YieldGrid(t, pressures, m, e_vib, energy, k, below, z, beta, z[:, None] * m, sv, step, half, de_down)
+    return YieldGrid(t, pressures, m, e_thermal, energy, k, below, z, beta, z[:, None] * m, sv, step, half, de_down)
 
 
 def _profile(study: Study, spec: ExcitationSpec) -> AtmosphereProfile:
@@ -251,8 +262,9 @@ def excitation_yield(study: Study, spec: ExcitationSpec) -> ExcitationResult:
     if prof is not None:
         temps.append(prof.temperature_K)
     t_all = np.concatenate(temps)
+    # grid top: vibrational energy plus a margin for the K-rotor (its classical share is RT/2)
     e_top = spec.energy_J_per_mol + float(np.max(mean_vibrational_energy_J_per_mol(
-        study.species[channel.reactants[0]].real_frequencies_cm1, t_all)))
+        study.species[channel.reactants[0]].real_frequencies_cm1, t_all) + R * t_all))
     model = unimolecular_model(study, channel, settings, max_temperature_K=float(t_all.max()),
                                min_top_energy_J_per_mol=e_top)
     warnings = list(model.warnings)
