@@ -55,6 +55,12 @@ def test_run_writes_every_output_and_leaves_inputs_alone(study, tmp_path, capsys
     png = base64.b64encode((out / "plots" / "arrhenius.png").read_bytes()).decode()
     assert png in html
     assert "estimate" in html.lower() and "caution" in html.lower()
+    # limits drawn from the results: the demo's bare channel tunnels deeply and two channels
+    # go through complexes treated in the high-pressure limit
+    report = (out / "report.md").read_text()
+    limits = report[report.index("## Limits of these results"):]
+    assert "Channel bare: deep tunnelling" in limits
+    assert "high-pressure limit" in limits
     # inputs with their hashes
     inputs = json.loads((out / "inputs.json").read_text())["inputs"]
     assert {Path(i["file"]).name for i in inputs} >= {"study.toml", "h2co3.toml", "ts_bare.toml"}

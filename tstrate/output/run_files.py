@@ -210,6 +210,38 @@ def write_all(result, folder: Path, *, progress: Callable[[str], None] | None = 
     return written
 
 
+def limits(result) -> list[str]:
+    """Plain statements of what the results do not cover, drawn from the results themselves."""
+    out = ["The accuracy is bounded by the electronic-structure inputs: barrier heights dominate, "
+           "and rate constants at low temperature are exponentially sensitive to them."]
+    for r in result.rates:
+        big = float(np.max(r.kappa))
+        if r.tunnelling == "eckart" and big > 1e3:
+            t = float(r.temperature_K[int(np.argmax(r.kappa))])
+            out.append(f"Channel {r.channel}: deep tunnelling (kappa up to {big:.2g} at {t:g} K). A "
+                       "one-dimensional Eckart barrier is unreliable this far below the barrier top (it "
+                       "usually overestimates); use a multidimensional tunnelling treatment if it matters.")
+    with_complex = [c.name for c in result.study.channels if c.complex]
+    if with_complex:
+        out.append(f"Channels through a pre-reactive complex ({', '.join(with_complex)}) are treated in the "
+                   "high-pressure limit (the complex in equilibrium with the reactants). At low pressure a "
+                   "complex may not be stabilised; quantifying that needs a master-equation treatment.")
+    if result.falloff is not None and any(cf.model.tunnelling == "eckart" for cf in result.falloff.channels):
+        out.append("Falloff of channels with Eckart tunnelling: the Troe k0 is an effective value fitted "
+                   "together with the broadening parameters, not the strong-collision low-pressure limit.")
+    wild = [cf.name for cf in result.fits.channels if abs(cf.expression.n) > 10]
+    if wild:
+        out.append(f"Fitted expressions of {', '.join(wild)} have |n| > 10: they reproduce k only inside the "
+                   "fitted temperature range and must not be extrapolated; split ranges (fits.json) fit better.")
+    if result.low_modes.method == "harmonic":
+        soft = [n for n, sp in result.study.species.items()
+                if sp.real_frequencies_cm1.size and float(sp.real_frequencies_cm1.min()) < 100.0]
+        if soft:
+            out.append(f"Species with real modes below 100 cm-1 treated as harmonic ({', '.join(soft)}): "
+                       "their entropies are uncertain; compare with --low-modes grimme or truhlar.")
+    return out
+
+
 def _fmt_cell(v):
     if v is None:
         return "-"
@@ -344,6 +376,8 @@ def build_report(result, doc: dict, inputs: list[dict], figures) -> list:
              f"{100 * s.nasa7.max_rel_error_s:.3f}") for s in result.fits.species]
     B.append(rp.Table(("species", "NASA range / K", "max Cp error / %", "max H error / %",
                        "max S error / %"), tuple(rows), "NASA 7-coefficient polynomials."))
+    B.append(rp.Heading("Limits of these results"))
+    B.append(rp.Bullets(tuple(limits(result))))
     if result.warnings:
         B.append(rp.Heading("Warnings"))
         B.append(rp.Bullets(tuple(result.warnings)))
