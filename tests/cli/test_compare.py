@@ -107,6 +107,18 @@ def test_plots_written_atomically(tmp_path, capsys):
     assert "6 plot files written" in capsys.readouterr().out
 
 
+def test_plot_onto_an_existing_file_exit_2(tmp_path, capsys):
+    # --plot takes a folder; an existing file gets the same one-line message as falloff/excite
+    # (it used to fail after the computation with "<file>/<figure>.png: cannot write here")
+    target = tmp_path / "notes.txt"
+    target.write_text("mine\n")
+    assert main(["compare", str(STUDY), "--plot", str(target)]) == 2
+    out, err = capsys.readouterr()
+    assert out == "" and "\n" not in err.strip()
+    assert "[--plot]: exists and is not a folder" in err
+    assert target.read_text() == "mine\n"
+
+
 def test_figures_have_axes_with_units(library_results):
     from tstrate.output.compare_plots import (energy_profile_figure, ratio_abundance_figure,
                                               ratio_temperature_figure)

@@ -149,7 +149,10 @@ def _print_barriers(rec) -> None:
 
 def run(args) -> int:
     from tstrate.cli.common import print_json
+    from tstrate.cli.falloff import check_plot_dir
 
+    if args.plot:
+        check_plot_dir(args.plot)
     study, results = compute(args.study, args.low_modes)
     from tstrate.output.compare_records import comparison_records
 
