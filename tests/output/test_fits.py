@@ -125,6 +125,14 @@ def test_split_fit_when_asked(toy):
         fit_study(toy, split=True)          # 5 temperatures: 4 per side needed
 
 
+def test_split_outside_the_data_names_the_fits_key(toy):
+    # `split = 500` in [fits] with data to 300 K: the error names [fits.split], not the
+    # API argument break_K (the study file has no such key)
+    with pytest.raises(InputError, match="break temperature 5000 K is not inside") as info:
+        fit_study(toy, split=5000.0)
+    assert info.value.field == "fits.split" and info.value.file == toy.file
+
+
 def test_mechanism_form_choice(toy):
     fits = fit_study(toy, mechanism_form="arrhenius")
     assert all(c.expression is c.arrhenius for c in fits.channels)

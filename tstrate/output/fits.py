@@ -49,7 +49,7 @@ Transition states are not species of a mechanism and get no polynomial.
 Enthalpy zero
 -------------
 Quantum-chemistry energies are huge (H2CO3 near -264 hartree, about
--6.9e8 J/mol) and their zero depends on the method. Exported enthalpies are
+-6.9e8 J/mol, at ab initio levels; about -15.4 hartree with GFN2-xTB) and their zero depends on the method. Exported enthalpies are
 therefore shifted by per-element offsets: species i with atom counts n_ij
 gets
 
@@ -518,9 +518,15 @@ def _fit_channel(cr, ch, *, max_deviation, T0_K, split, mechanism_form, troe, fi
                             max_deviation=max_deviation)
         sp = None
         if split is not False and split is not None:
-            sp = fit_arrhenius_split(T, k, order=cr.order, modified=mechanism_form == "modified",
-                                     T0_K=T0_K, max_deviation=max_deviation,
-                                     break_K=None if split is True else float(split))
+            try:
+                sp = fit_arrhenius_split(T, k, order=cr.order, modified=mechanism_form == "modified",
+                                         T0_K=T0_K, max_deviation=max_deviation,
+                                         break_K=None if split is True else float(split))
+            except InputError as exc:  # a break temperature of the study's [fits] split
+                if exc.field != "break_K":
+                    raise
+                raise InputError(f"channel {ch.name}: {exc.problem}", file=file, field="fits.split",
+                                 hint=exc.hint) from None
     except InputError as exc:
         raise exc.located(**where) from None
     warnings = [f"channel {ch.name}: {w}" for w in (arr.warning, mod.warning) if w]
