@@ -63,7 +63,16 @@ def run(args) -> int:
     from tstrate.cli.common import format_table, print_json
     from tstrate.physics.thermo import LowModes
 
-    low = LowModes(args.low_modes, args.low_mode_cutoff_cm1)
+    import math
+
+    from tstrate.errors import InputError
+
+    if any(not (math.isfinite(t) and t > 0) for t in args.temperature or ()):
+        raise InputError("temperatures must be positive (kelvin)", field="--temperature")
+    try:
+        low = LowModes(args.low_modes, args.low_mode_cutoff_cm1)
+    except InputError as exc:
+        raise InputError(exc.problem, field="--low-mode-cutoff-cm1", hint=exc.hint) from None
     records = compute(args.files, args.temperature, low)
     if args.json:
         print_json({"standard_pressure_bar": 1.0, "low_modes": {"method": low.method,
