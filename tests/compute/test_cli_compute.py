@@ -33,6 +33,12 @@ def test_bad_smiles_exit_2(capsys):
     assert "cannot parse the SMILES" in capsys.readouterr().err
 
 
+def test_empty_smiles_exit_2(capsys):
+    assert main(["compute", "minimum", "--smiles", "", "--name", "x"]) == 2
+    err = capsys.readouterr().err
+    assert "SMILES is empty" in err and "Traceback" not in err and len(err.strip().splitlines()) == 1
+
+
 def test_non_convergence_exit_2_and_no_species_file(tmp_path, capsys):
     out = tmp_path / "w.toml"
     code = main(["compute", "minimum", "--smiles", "O", "--name", "w", "--max-steps", "1",

@@ -102,6 +102,13 @@ def test_unparsable_smiles():
         compute_minimum(name="x", smiles="C1CC(")
 
 
+@pytest.mark.parametrize("smiles", ["", "   "])
+def test_empty_smiles(smiles):
+    # RDKit parses "" into a molecule without atoms; the embedding then raised a bare ValueError
+    with pytest.raises(InputError, match="SMILES is empty|cannot parse the SMILES"):
+        compute_minimum(name="x", smiles=smiles)
+
+
 def test_non_convergence_keeps_last_geometry(tmp_path):
     with pytest.raises(InputError, match=r"did not converge in 1 steps.*water-conformer1\.unconverged\.xyz"):
         compute_minimum(name="water", smiles="O", settings=Settings(max_steps=1, n_conformers=1),

@@ -61,6 +61,8 @@ def conformers_from_smiles(smiles: str, n_conformers: int, seed: int):
     if mol is None:
         raise InputError(f"RDKit cannot parse the SMILES {smiles!r}", field="smiles",
                          hint="check brackets, ring closures and valences")
+    if mol.GetNumAtoms() == 0:
+        raise InputError("the SMILES is empty", field="smiles", hint="give a molecule, e.g. 'O' for water")
     mol = Chem.AddHs(mol)
     params = AllChem.ETKDGv3()
     params.randomSeed = int(seed) % 2**31
