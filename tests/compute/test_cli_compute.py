@@ -39,6 +39,21 @@ def test_empty_smiles_exit_2(capsys):
     assert "SMILES is empty" in err and "Traceback" not in err and len(err.strip().splitlines()) == 1
 
 
+def test_empty_smiles_exit_2(capsys):
+    assert main(["compute", "minimum", "--smiles", "", "--name", "x"]) == 2
+    err = capsys.readouterr().err
+    assert "SMILES is empty" in err and "Traceback" not in err and len(err.strip().splitlines()) == 1
+
+
+def test_output_folder_is_refused_before_computing(tmp_path, capsys):
+    # with --force a folder used to reach the atomic write after the calculation (IsADirectoryError)
+    code = main(["compute", "minimum", "--smiles", "O", "--name", "x", "-o", str(tmp_path), "--force",
+                 "--no-cache"])
+    err = capsys.readouterr().err
+    assert code == 2 and "is a folder, not a file" in err and "[--output]" in err and "Traceback" not in err
+    assert list(tmp_path.iterdir()) == []
+
+
 def test_non_convergence_exit_2_and_no_species_file(tmp_path, capsys):
     out = tmp_path / "w.toml"
     code = main(["compute", "minimum", "--smiles", "O", "--name", "w", "--max-steps", "1",

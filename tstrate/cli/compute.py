@@ -145,6 +145,9 @@ def _outputs(args, inputs, *names) -> list[Path | None]:
         flag = "--" + n.replace("_", "-")
         if path.resolve() in ins:
             raise InputError("refusing to overwrite an input file", file=str(path), field=flag)
+        if path.is_dir():
+            raise InputError("is a folder, not a file", file=str(path), field=flag,
+                             hint="give the species file to write, e.g. NAME.toml")
         if path.exists() and not args.force:
             raise InputError("file exists; refusing to overwrite it", file=str(path), field=flag,
                              hint="pass --force to replace it")
