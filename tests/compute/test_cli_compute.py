@@ -39,12 +39,6 @@ def test_empty_smiles_exit_2(capsys):
     assert "SMILES is empty" in err and "Traceback" not in err and len(err.strip().splitlines()) == 1
 
 
-def test_empty_smiles_exit_2(capsys):
-    assert main(["compute", "minimum", "--smiles", "", "--name", "x"]) == 2
-    err = capsys.readouterr().err
-    assert "SMILES is empty" in err and "Traceback" not in err and len(err.strip().splitlines()) == 1
-
-
 def test_output_folder_is_refused_before_computing(tmp_path, capsys):
     # with --force a folder used to reach the atomic write after the calculation (IsADirectoryError)
     code = main(["compute", "minimum", "--smiles", "O", "--name", "x", "-o", str(tmp_path), "--force",
@@ -52,6 +46,18 @@ def test_output_folder_is_refused_before_computing(tmp_path, capsys):
     err = capsys.readouterr().err
     assert code == 2 and "is a folder, not a file" in err and "[--output]" in err and "Traceback" not in err
     assert list(tmp_path.iterdir()) == []
+
+
+@pytest.mark.parametrize("argv, needle", [
+    (["--smiles", "C1CC("], "[--smiles]: RDKit cannot parse"),
+    (["--smiles", "O", "--fmax", "-1"], "[--fmax]: fmax must be positive"),
+    (["--smiles", "O", "--conformers", "0"], "[--conformers]: at least one conformer"),
+])
+def test_errors_name_the_option(capsys, argv, needle):
+    # the library's argument names ([smiles], [fmax] ...) are shown as the options the user typed
+    assert main(["compute", "minimum", "--name", "x", *argv]) == 2
+    err = capsys.readouterr().err
+    assert len(err.strip().splitlines()) == 1 and needle in err, err
 
 
 def test_non_convergence_exit_2_and_no_species_file(tmp_path, capsys):

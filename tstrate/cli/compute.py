@@ -338,5 +338,12 @@ def _run_read(args) -> int:
 
 
 def run(args) -> int:
-    return {"minimum": _run_minimum, "saddle": _run_saddle, "relay": _run_relay,
-            "read": _run_read}[args.compute_command](args)
+    action = {"minimum": _run_minimum, "saddle": _run_saddle, "relay": _run_relay,
+              "read": _run_read}[args.compute_command]
+    try:
+        return action(args)
+    except InputError as exc:
+        # the library names its arguments (smiles, fmax, conformers ...); name the option instead
+        if exc.file is None and exc.field and not exc.field.startswith("-") and hasattr(args, exc.field):
+            raise InputError(exc.problem, field="--" + exc.field.replace("_", "-"), hint=exc.hint) from None
+        raise
