@@ -134,3 +134,16 @@ def test_bad_inputs(tmp_path):
     with pytest.raises(InputError, match="neither 'VALUE UNIT'"):
         single_point_J_per_mol("-76.4 hartrees")
     assert single_point_J_per_mol("-1 kJ/mol") == -1000.0
+
+
+def test_binary_or_folder_hessian_file(tmp_path):
+    # --hessian pointing at a binary file or a folder: one-line InputError, not a UnicodeDecodeError
+    from tstrate.io.qcout import read_hessian_file
+
+    binary = tmp_path / "hessian"
+    binary.write_bytes(b"\xd0\xff\x00\x81" * 20)
+    with pytest.raises(InputError, match="not a text file") as info:
+        read_hessian_file(binary, 3)
+    assert info.value.file == str(binary)
+    with pytest.raises(InputError, match="is a folder"):
+        read_hessian_file(tmp_path, 3)

@@ -103,8 +103,14 @@ def read_hessian_file(path, natoms: int) -> np.ndarray:
     path = Path(path)
     if not path.exists():
         raise InputError("Hessian file does not exist", file=str(path))
+    if path.is_dir():
+        raise InputError("is a folder, not a Hessian file", file=str(path))
+    try:
+        text = path.read_text()
+    except UnicodeDecodeError:
+        raise InputError("not a text file (a plain-number Hessian expected)", file=str(path)) from None
     values = []
-    for lineno, line in enumerate(path.read_text().splitlines(), 1):
+    for lineno, line in enumerate(text.splitlines(), 1):
         if not line.strip() or line.lstrip().startswith("$"):
             continue
         try:
