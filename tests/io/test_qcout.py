@@ -118,7 +118,7 @@ def test_single_point_overrides_geometry_energy(xtb_water):
 
 @needs_xtb
 def test_geometry_file_needs_modes(xtb_water):
-    with pytest.raises(InputError, match="give frequencies_cm1 or a \\[hessian\\]"):
+    with pytest.raises(InputError, match="no vibrational frequencies or Hessian.*--hessian FILE"):
         read_output(xtb_water / "xtbopt.xyz")
     sp = read_output(xtb_water / "xtbopt.xyz", hessian_file=xtb_water / "hessian")
     assert len(sp.frequencies_cm1) == 3 and sp.energy_J_per_mol is None
@@ -134,6 +134,15 @@ def test_bad_inputs(tmp_path):
     with pytest.raises(InputError, match="neither 'VALUE UNIT'"):
         single_point_J_per_mol("-76.4 hartrees")
     assert single_point_J_per_mol("-1 kJ/mol") == -1000.0
+
+
+def test_geometry_without_modes_names_the_hessian_option(tmp_path):
+    # a plain geometry has no modes; the message names --hessian (not the species-file keys)
+    xyz = tmp_path / "w.xyz"
+    xyz.write_text(WATER_XYZ)
+    with pytest.raises(InputError, match="--hessian FILE") as info:
+        read_output(xyz)
+    assert info.value.file == str(xyz)
 
 
 def test_binary_or_folder_hessian_file(tmp_path):

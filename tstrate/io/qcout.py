@@ -238,6 +238,11 @@ def read_output(path, *, name: str | None = None, kind: str | None = None,
                              "or a Hessian of another geometry)", file=file, field="hessian")
     if freqs is not None and hess is not None:
         freqs = None  # the Hessian gives them (and allows isotopes)
+    if freqs is None and hess is None:
+        raise InputError("the file holds no vibrational frequencies or Hessian", file=file,
+                         field="frequencies_cm1",
+                         hint="give a plain-number Hessian file: tstrate compute read --hessian FILE "
+                              "(hessian_file= in Python)")
     sp = None if single_point is None else single_point_J_per_mol(single_point)
     if sp is not None:
         prov["single_point"] = str(single_point)
