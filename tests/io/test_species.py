@@ -190,6 +190,10 @@ BAD = [
     ("lennard-jones-typo", _GOOD + "lennard_jones = { sigma_A = 1.0, epsilonK = 3.0 }\n",
      r"\[lennard_jones\.epsilon_K\]: missing required key"),
     ("not-toml", _GOOD + "x = = 3\n", r": not valid TOML"),
+    ("empty-file", "", r": the file holds no keys"),
+    ("comments-only", "# nothing here yet\n", r": the file holds no keys"),
+    ("a-study-file", '[species]\nH2O = "h2o.toml"\n\n[[channel]]\nname = "x"\n',
+     r": this is a study file, not a species file"),
     ("geometry-line", _GOOD.replace("O  0.000000  0.000000  0.000000", "O  0.0  0.0"),
      r"\[geometry\]: line 1: expected 'Symbol x y z'"),
 ]

@@ -240,3 +240,15 @@ def test_not_toml(study_dir):
     with pytest.raises(InputError, match="not valid TOML") as exc:
         read_study(study_dir / "study.toml")
     assert "study.toml" in str(exc.value)
+
+
+def test_a_species_file_or_an_empty_file_given_as_the_study(study_dir, tmp_path):
+    # the usual mistake: `tstrate rates h2o.toml`; said plainly instead of "[species]: missing"
+    with pytest.raises(InputError, match="this is a species file, not a study file") as exc:
+        read_study(study_dir / "h2o.toml")
+    assert exc.value.file.endswith("h2o.toml") and "\n" not in str(exc.value)
+    empty = tmp_path / "empty.toml"
+    empty.write_text("")
+    with pytest.raises(InputError, match="the file holds no keys") as exc:
+        read_study(empty)
+    assert exc.value.file == str(empty)

@@ -260,6 +260,12 @@ def read_species(path: str | Path, *, name: str | None = None) -> Species:
     path = Path(path)
     file = str(path)
     t = Table(load_toml(path), file)
+    if not t.data:
+        raise InputError("the file holds no keys (empty?)", file=file, hint="a species file needs name, charge, "
+                         "multiplicity, geometry and frequencies_cm1 or a [hessian]")
+    if "name" not in t and ("species" in t or "channel" in t):
+        raise InputError("this is a study file, not a species file", file=file,
+                         hint="give the species files it names, or the study to tstrate rates/run")
     fname = t.get("name", str)
     symbols, positions = read_geometry(t.get("geometry", str), path.parent, file=file)
 

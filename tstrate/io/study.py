@@ -165,6 +165,11 @@ def read_study(path: str | Path) -> Study:
     path = Path(path)
     file = str(path)
     t = Table(load_toml(path), file)
+    if not t.data:
+        raise InputError("the file holds no keys (empty?)", file=file, hint="a study names [species] and [[channel]]")
+    if "species" not in t and ("geometry" in t or "frequencies_cm1" in t):
+        raise InputError("this is a species file, not a study file", file=file,
+                         hint="a study names species files under [species] and links them by [[channel]]")
     title = t.get("title", str, path.stem)
     st = t.table("species")
     species, species_files = {}, {}
