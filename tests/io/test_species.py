@@ -122,6 +122,7 @@ frequencies_cm1 = [1594.7, 3657.1, 3755.9]
 energy = { value = -76.4, unit = "hartree" }
 '''
 
+_GOOD_GEOMETRY = _GOOD[_GOOD.index('geometry = """'):_GOOD.index("frequencies_cm1")]
 _NAN_HESSIAN = '[hessian]\nunit = "hartree/bohr2"\nvalues = [' + ", ".join(["nan"] + ["0.0"] * 80) \
     + "]\n"
 
@@ -194,6 +195,10 @@ BAD = [
     ("comments-only", "# nothing here yet\n", r": the file holds no keys"),
     ("a-study-file", '[species]\nH2O = "h2o.toml"\n\n[[channel]]\nname = "x"\n',
      r": this is a study file, not a species file"),
+    ("geometry-empty", _GOOD.replace(_GOOD_GEOMETRY, 'geometry = ""\n'),
+     r"\[geometry\]: the geometry is empty"),
+    ("geometry-folder", _GOOD.replace(_GOOD_GEOMETRY, 'geometry = "."\n'),
+     r"\[geometry\]: geometry '.*' is a folder, not a file"),
     ("geometry-line", _GOOD.replace("O  0.000000  0.000000  0.000000", "O  0.0  0.0"),
      r"\[geometry\]: line 1: expected 'Symbol x y z'"),
 ]

@@ -94,6 +94,9 @@ def parse_xyz_body(text: str, *, file=None, field="geometry") -> tuple[list[str]
 
 def read_geometry(value: str, base: Path | None, *, file=None, field="geometry"):
     """Inline XYZ body (contains a line break) or a path to a file ASE reads."""
+    if not value.strip():
+        raise InputError("the geometry is empty", file=file, field=field,
+                         hint="give lines 'Symbol x y z' in Angstrom or a geometry file")
     if "\n" in value.strip() or len(value.split()) == 4:
         return parse_xyz_body(value, file=file, field=field)
     path = Path(value)
@@ -101,6 +104,8 @@ def read_geometry(value: str, base: Path | None, *, file=None, field="geometry")
         path = base / path
     if not path.exists():
         raise InputError(f"geometry file {str(path)!r} does not exist", file=file, field=field)
+    if path.is_dir():
+        raise InputError(f"geometry {str(path)!r} is a folder, not a file", file=file, field=field)
     import ase.io
 
     try:
