@@ -60,6 +60,14 @@ def test_errors_name_the_option(capsys, argv, needle):
     assert len(err.strip().splitlines()) == 1 and needle in err, err
 
 
+@pytest.mark.parametrize("option, value", [("--charge", "1"), ("--multiplicity", "3")])
+def test_relay_refuses_charge_and_multiplicity_it_would_ignore(capsys, option, value):
+    # the relay always builds neutral singlet H2CO3 + water; these options were silently ignored
+    assert main(["compute", "relay", "--waters", "1", option, value, "--no-cache"]) == 2
+    err = capsys.readouterr().err
+    assert len(err.strip().splitlines()) == 1 and f"[{option}]" in err and "cannot apply" in err, err
+
+
 def test_non_convergence_exit_2_and_no_species_file(tmp_path, capsys):
     out = tmp_path / "w.toml"
     code = main(["compute", "minimum", "--smiles", "O", "--name", "w", "--max-steps", "1",

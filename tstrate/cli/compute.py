@@ -37,9 +37,10 @@ def _common(p: argparse.ArgumentParser, *, semi_empirical: bool = True) -> None:
     if not semi_empirical:
         return
     p.add_argument("--charge", type=int, default=None, help="total charge (default: from the "
-                   "SMILES, else 0)")
+                   "SMILES with --smiles, else 0; relay: always 0)")
     p.add_argument("--multiplicity", type=int, default=None,
-                   help="spin multiplicity 2S+1 (default: from the SMILES, else 1)")
+                   help="spin multiplicity 2S+1 (default: from the SMILES with --smiles, else 1; "
+                   "relay: always 1)")
     p.add_argument("--fmax", type=float, default=5e-4, metavar="EV_PER_A",
                    help="convergence: largest force [eV/Angstrom] (default 5e-4)")
     p.add_argument("--max-steps", type=int, default=1000, help="optimiser step limit (default 1000)")
@@ -291,6 +292,10 @@ def _run_saddle(args) -> int:
 def _run_relay(args) -> int:
     from tstrate.compute.relay import find_relay
 
+    for opt, value, only in (("--charge", args.charge, 0), ("--multiplicity", args.multiplicity, 1)):
+        if value is not None and value != only:
+            raise InputError(f"the relay is neutral singlet H2CO3 with water; {opt} {value} cannot apply",
+                             field=opt, hint=f"leave {opt} out (it is {only})")
     outs = _outputs(args, [], "output", "complex_output", "product_output")
     res = find_relay(args.waters, name=args.name, complex_name=args.complex_name,
                      settings=_settings(args), cache=_cache(args), progress=_progress(args),
