@@ -333,3 +333,30 @@ def test_write_species_refuses_to_overwrite(tmp_path):
     write_species(sp, path, overwrite=True)
     _assert_same_species(sp, read_species(path))
     assert not [p for p in tmp_path.iterdir() if p.name.endswith(".part")]  # no temporary left
+
+
+@pytest.mark.parametrize("charge, multiplicity, ok", [
+    (0, 1, True),    # H2O: 10 electrons, singlet
+    (0, 3, True),    # a triplet is possible with 10 electrons
+    (0, 2, False),   # a doublet is not (2S+1 must be odd for an even electron count)
+    (1, 2, True),    # H2O+: 9 electrons, doublet
+    (1, 1, False),
+])
+def test_multiplicity_must_match_the_electron_count(charge, multiplicity, ok):
+    from tstrate.io.species import build_species
+
+    kw = dict(charge=charge, multiplicity=multiplicity, frequencies_cm1=[1595, 3657, 3756])
+    geometry = [[0, 0, 0], [0, 0.757, 0.586], [0, -0.757, 0.586]]
+    if ok:
+        build_species("w", ["O", "H", "H"], geometry, **kw)
+    else:
+        with pytest.raises(InputError, match=r"\[multiplicity\].*impossible with"):
+            build_species("w", ["O", "H", "H"], geometry, source="w.toml", **kw)
+
+
+def test_negative_imaginary_allowance_is_refused():
+    from tstrate.io.species import build_species
+
+    with pytest.raises(InputError, match=r"allow_imaginary_below_cm1"):
+        build_species("w", ["O", "H", "H"], [[0, 0, 0], [0, 0.757, 0.586], [0, -0.757, 0.586]],
+                      frequencies_cm1=[1595, 3657, 3756], allow_imaginary_below_cm1=-5.0)

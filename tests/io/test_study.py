@@ -147,7 +147,7 @@ BAD = {
         "study.toml", 'complex = "H2CO3_H2O"', 'complex = "H2CO3"',
         "atoms do not balance", "study.toml", "channel[1].complex"),
     "charge-does-not-balance": (
-        "co2.toml", "charge = 0", "charge = 1",
+        "co2.toml", "charge = 0\nmultiplicity = 1", "charge = 1\nmultiplicity = 2",  # CO2+ doublet
         r"charge does not balance \(0 vs 1\)", "study.toml", "channel[0].products"),
     "zero-temperature": (
         "study.toml", "temperature_K = [150,", "temperature_K = [0,",

@@ -162,6 +162,18 @@ def build_species(name: str, symbols, positions_A, *, charge: int = 0, multiplic
                          hint="use 'minimum' or 'transition_state'")
     if int(multiplicity) < 1:
         raise InputError("multiplicity must be 1 or more", file=file, field="multiplicity")
+    from ase.data import atomic_numbers
+
+    electrons = sum(atomic_numbers[s] for s in symbols) - int(charge)
+    if electrons < 0:
+        raise InputError(f"charge {charge} leaves {electrons} electrons", file=file, field="charge")
+    if (electrons + int(multiplicity)) % 2 == 0:  # 2S+1 must be odd for an even electron count
+        raise InputError(f"multiplicity {multiplicity} is impossible with {electrons} electrons",
+                         file=file, field="multiplicity",
+                         hint="an even electron count needs an odd multiplicity (1, 3, ...) and vice versa")
+    if not (allow_imaginary_below_cm1 >= 0 and math.isfinite(allow_imaginary_below_cm1)):
+        raise InputError("allow_imaginary_below_cm1 must be a non-negative wavenumber", file=file,
+                         field="allow_imaginary_below_cm1")
     if not (frequency_scale > 0 and math.isfinite(frequency_scale)):
         raise InputError("frequency scale factor must be positive", file=file, field="frequency_scale")
 
