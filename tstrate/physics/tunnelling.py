@@ -142,11 +142,11 @@ def _barrier(value, field: str, *, strictly_positive: bool) -> float:
     if not math.isfinite(v):
         raise InputError(f"barrier must be finite, got {v}", field=field)
     if strictly_positive and v <= 0.0:
-        raise InputError(f"barrier must be positive for an Eckart barrier, got {v} J/mol",
+        raise InputError(f"barrier must be positive for an Eckart barrier, got {v / 1e3:.6g} kJ/mol",
                          field=field,
                          hint="the Eckart shape needs a barrier above both asymptotes")
     if v < 0.0:
-        raise InputError(f"barrier must not be negative, got {v} J/mol", field=field)
+        raise InputError(f"barrier must not be negative, got {v / 1e3:.6g} kJ/mol", field=field)
     return v
 
 
@@ -256,7 +256,7 @@ def skodje_truhlar_log(temperature_K, imag_freq_cm1, forward_barrier_J_per_mol,
     V2 = _barrier(reverse_barrier_J_per_mol, "reverse_barrier", strictly_positive=False)
     floor = _floor(energy_floor_J_per_mol, V1, V2)
     if floor > V1:
-        raise InputError(f"energy floor {floor} J/mol lies above the barrier top {V1} J/mol",
+        raise InputError(f"energy floor {floor / 1e3:.6g} kJ/mol lies above the barrier top {V1 / 1e3:.6g} kJ/mol",
                          field="energy_floor",
                          hint="the Skodje-Truhlar form needs a floor at or below the barrier")
     alpha = 2.0 * np.pi / _barrier_energy(nu)
