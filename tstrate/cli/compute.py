@@ -63,7 +63,7 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
     src.add_argument("--smiles", help="SMILES string (hydrogens are added)")
     src.add_argument("--geometry", help="any geometry file ASE reads (last frame)")
     p.add_argument("--name", required=True, help="species name")
-    p.add_argument("-o", "--output", help="species file to write (.toml)")
+    p.add_argument("-o", "--output", help="species file to write (.toml); without it nothing is written, only a summary is printed")
     p.add_argument("--conformers", type=int, default=10, help="conformers embedded from a "
                    "SMILES (default 10)")
     _common(p)
@@ -74,7 +74,7 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
     p.add_argument("--reactant", help="reactant geometry (same atom order as the product)")
     p.add_argument("--product", help="product geometry (same atom order as the reactant)")
     p.add_argument("--name", required=True, help="name of the transition state")
-    p.add_argument("-o", "--output", help="species file of the transition state (.toml)")
+    p.add_argument("-o", "--output", help="species file of the transition state (.toml); without it only a summary is printed")
     p.add_argument("--reactant-output", help="species file of the reactant-side minimum")
     p.add_argument("--product-output", help="species file of the product-side minimum")
     p.add_argument("--neb-images", type=int, default=7, help="interior NEB images (default 7)")
@@ -91,7 +91,7 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
                    help="relay waters: 0 (bare four-centre TS), 1 (six-membered ring), 2 (eight)")
     p.add_argument("--name", help="name of the transition state")
     p.add_argument("--complex-name", help="name of the pre-reactive complex")
-    p.add_argument("-o", "--output", help="species file of the transition state (.toml)")
+    p.add_argument("-o", "--output", help="species file of the transition state (.toml); without it only a summary is printed")
     p.add_argument("--complex-output", help="species file of the pre-reactive complex")
     p.add_argument("--product-output", help="species file of the product-side complex")
     _common(p)
@@ -111,7 +111,7 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
     p.add_argument("--multiplicity", type=int, default=None, help="multiplicity (default: the "
                    "file's)")
     p.add_argument("--scale", type=float, default=1.0, help="frequency scale factor (default 1)")
-    p.add_argument("-o", "--output", help="species file to write (.toml)")
+    p.add_argument("-o", "--output", help="species file to write (.toml); without it nothing is written, only a summary is printed")
     _common(p, semi_empirical=False)
 
 
