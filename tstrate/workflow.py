@@ -106,6 +106,7 @@ def compute_study(study: Study, *, low_modes: LowModes = HARMONIC,
 
     falloff = None
     troe = {}
+    grid = {}
     pressure_fits = {}
     if study.conditions.pressure_Pa.size or study.conditions.number_density_m3.size:
         step("falloff")
@@ -116,6 +117,8 @@ def compute_study(study: Study, *, low_modes: LowModes = HARMONIC,
         warnings += list(falloff.warnings)
         for cf in falloff.channels:
             troe[cf.name] = troe_data(cf, study)
+            if cf.pressure_Pa is not None:  # k(T, P) on the study's grid, for Chebyshev fits
+                grid[cf.name] = (cf.pressure_Pa, cf.rate_constant_per_s)
             pressure_fits[cf.name], w = fits_at_each_pressure(cf)
             warnings += w
 
@@ -134,7 +137,10 @@ def compute_study(study: Study, *, low_modes: LowModes = HARMONIC,
 
     opts = study.sections.get("fits") or FitOptions()
     fits = fit_study(study, low_modes=low_modes, max_deviation=opts.max_deviation, T0_K=opts.T0_K,
-                     split=opts.split, mechanism_form=opts.mechanism_form, troe=troe or None)
+                     split=opts.split, mechanism_form=opts.mechanism_form, troe=troe or None,
+                     chebyshev_temperature_terms=opts.chebyshev_temperature_terms,
+                     chebyshev_pressure_terms=opts.chebyshev_pressure_terms,
+                     falloff_grid=grid or None)
     warnings += list(fits.warnings)
     for cf in fits.channels:
         warnings += list(cf.warnings)

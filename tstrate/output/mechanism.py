@@ -19,7 +19,25 @@ What the file holds
   channel's fitted (modified) Arrhenius expression, or ``type: falloff`` with
   ``(+M)``, low- and high-pressure limits and ``Troe`` parameters when Troe
   data were given. Cantera's form is k = A T^b exp(-Ea/RT) with T in K, so the
-  modified Arrhenius A (T/T0)^n becomes A T0^-n T^n.
+  modified Arrhenius A (T/T0)^n becomes A T0^-n T^n;
+- with the ``chebyshev`` mechanism form, ``type: Chebyshev`` reactions
+  (Venkatesh, Chang, Dean, Cohen and Carr, AIChE J. 43, 1331 (1997); see
+  :mod:`tstrate.physics.fitting`): ``temperature-range`` [K], ``pressure-range``
+  with the unit written out (Pa) and ``data``, the coefficient matrix of
+  log10 k with k in the file's molecule-cm-s units (rows: 1/T terms, columns:
+  log P terms). A falloff channel with a k(T, P) grid gets its
+  two-dimensional fit over the study's pressures; the pressure is Cantera's
+  total pressure, and k(T, P) was computed for the study's bath gas. The
+  other channels get one pressure column; since the single pressure term is
+  the constant T_0(P~) = 1, k does not depend on P, and the pressure range is
+  written as 1e-30 to 1e30 Pa so that it covers any pressure (Cantera 3.2
+  accepts one pressure column with any positive range and does not clip P;
+  checked in the tests). Outside the temperature range Cantera extrapolates
+  the polynomial: do not use the expressions there. Cantera 3.2 reads a
+  Chebyshev channel with a species on both sides (``H2CO3 + H2O <=> CO2 + 2
+  H2O``) as ``three-body-Chebyshev`` with that species as the named third
+  body; its rates of progress are the same mass-action k [H2CO3] [H2O]
+  forward and k_r [CO2] [H2O]^2 backward (checked in the tests).
 
 ``type: elementary`` is written explicitly: without it Cantera would read a
 channel such as ``H2CO3 + H2O <=> CO2 + 2 H2O`` (one species on both sides,
@@ -147,6 +165,20 @@ def _arrhenius_flow(fit, order: int) -> str:
     return f"{{A: {_num(a)}, b: {_num(fit.n)}, Ea: {_num(fit.Ea_over_R_K)}}}"
 
 
+#: Pressure range [Pa] written for Chebyshev reactions that do not depend on pressure.
+CHEBYSHEV_ANY_PRESSURE_PA = (1e-30, 1e30)
+
+
+def _chebyshev_lines(fit) -> list[str]:
+    """temperature-range, pressure-range and data of a Cantera Chebyshev reaction."""
+    coeffs = fit.coefficients_in(None)          # log10 k in molec-cm-s units (the file's units)
+    lo, hi = ((fit.Pmin_Pa, fit.Pmax_Pa) if fit.pressure_dependent
+              else CHEBYSHEV_ANY_PRESSURE_PA)
+    return [f"  temperature-range: [{_num(fit.Tmin_K)}, {_num(fit.Tmax_K)}]",
+            f"  pressure-range: [{_num(lo)} Pa, {_num(hi)} Pa]",
+            "  data:"] + ["  - [" + ", ".join(_num(a) for a in row) + "]" for row in coeffs]
+
+
 # ============================================================================
 # text
 # ============================================================================
@@ -166,6 +198,12 @@ def _header(fits, cn) -> list[str]:
         f"{float(min(fits.temperature_K)):g}-{float(max(fits.temperature_K)):g} K; "
         "reverse rates follow from the",
         "# NASA polynomials (reversible reactions).",
+        *([] if not any(c.mechanism_kind.startswith("chebyshev") for c in fits.channels) else [
+            "# Chebyshev reactions: log10 k = sum a[t][p] T_t(x) T_p(y) with k in the units above,",
+            "# x = (2/T - 1/Tmin - 1/Tmax)/(1/Tmax - 1/Tmin), y = (2 ln P - ln Pmin - ln Pmax)/"
+            "(ln Pmax - ln Pmin), P in Pa;",
+            "# one pressure column: k independent of pressure (range 1e-30 to 1e30 Pa). Valid only "
+            "inside the temperature range."]),
         "# Thermochemistry: NASA 7-coefficient polynomials fitted to tstrate's ideal-gas "
         f"thermochemistry (low modes: {fits.low_modes.method}),",
         "# standard state 1 bar.",
@@ -210,7 +248,19 @@ def _species_block(s, cn) -> list[str]:
 
 def _reaction_block(c, cn, duplicate: bool) -> list[str]:
     lhs, rhs = _side(c.reactants, cn), _side(c.products, cn)
-    if c.troe is None:
+    kind = c.mechanism_kind
+    if kind.startswith("chebyshev"):
+        f = c.chebyshev_falloff if kind == "chebyshev_falloff" else c.chebyshev
+        note = (f"channel {c.name}; Chebyshev fit ({f.n_temperature} x {f.n_pressure} terms) of "
+                f"{'k(T, P)' if f.pressure_dependent else 'k(T)'} over {f.Tmin_K:g}-{f.Tmax_K:g} K")
+        if f.pressure_dependent:
+            note += f" and {f.Pmin_Pa:g}-{f.Pmax_Pa:g} Pa"
+            if c.troe is not None and c.troe.bath_gas:
+                note += f" (falloff computed for bath gas {c.troe.bath_gas})"
+        note += f", max deviation {100 * f.max_rel_deviation:.2f} %"
+        lines = [f"- equation: {_q(f'{lhs} <=> {rhs}')}",
+                 "  type: Chebyshev"] + _chebyshev_lines(f)
+    elif c.troe is None:
         e = c.expression
         note = (f"channel {c.name}; {'modified ' if e.modified else ''}Arrhenius fit over "
                 f"{e.Tmin_K:g}-{e.Tmax_K:g} K, max deviation {100 * e.max_rel_deviation:.2f} %")
@@ -248,7 +298,10 @@ def _duplicates(channels) -> set[str]:
     keys: dict = {}
     for c in channels:
         r, p = tuple(sorted(c.reactants)), tuple(sorted(c.products))
-        key = (frozenset([r, p]) if r != p else frozenset([r]), c.troe is None)
+        kind = c.mechanism_kind
+        written = ("Chebyshev" if kind.startswith("chebyshev")
+                   else "falloff" if kind == "troe" else "elementary")
+        key = (frozenset([r, p]) if r != p else frozenset([r]), written)
         keys.setdefault(key, []).append(c.name)
     return {n for names in keys.values() if len(names) > 1 for n in names}
 
@@ -299,4 +352,5 @@ def write_mechanism(fits, path, *, phase_name: str = "gas") -> Path:
     return path
 
 
-__all__ = ["mechanism_yaml", "write_mechanism", "cantera_names", "UNITS_LINE", "CAUTION"]
+__all__ = ["mechanism_yaml", "write_mechanism", "cantera_names", "UNITS_LINE", "CAUTION",
+           "CHEBYSHEV_ANY_PRESSURE_PA"]

@@ -163,12 +163,15 @@ def write_rate_tables(folder, rates, rate_units=None, *, inputs=(), prefix: str 
 
 FIT_COLUMNS = ["channel", "expression", "range", "order", "A", "A unit", "n [1]", "T0 [K]",
                "Ea [kJ mol-1]", "Ea/R [K]", "Tmin [K]", "Tmax [K]", "max deviation [%]",
-               "rms deviation [%]"]
+               "rms deviation [%]", "Pmin [Pa]", "Pmax [Pa]",
+               "Chebyshev log10 k coefficients (k in A unit; rows 1/T terms, columns log P terms)"]
 
 
 def fits_csv_text(fits, rate_units=None) -> str:
-    """One row per channel and fitted expression (Arrhenius, modified, split ranges, Troe limits)."""
-    from tstrate.output.fits import arrhenius_record
+    """One row per channel and fitted expression (Arrhenius, modified, split ranges, Troe limits,
+    Chebyshev k(T) and k(T, P)). Chebyshev rows leave the Arrhenius columns empty and give the
+    coefficient matrix as a JSON list of rows."""
+    from tstrate.output.fits import arrhenius_record, chebyshev_record
 
     units = dict(rate_units or {})
     rows = []
@@ -177,7 +180,15 @@ def fits_csv_text(fits, rate_units=None) -> str:
         r = arrhenius_record(fit, units.get(fit.order))
         rows.append([channel, label, rng, fit.order, r["A"], r["A_unit"], r["n"], r["T0_K"],
                      r["Ea_kJ_per_mol"], r["Ea_over_R_K"], r["Tmin_K"], r["Tmax_K"],
-                     r["max_deviation_percent"], r["rms_deviation_percent"]])
+                     r["max_deviation_percent"], r["rms_deviation_percent"], None, None, None])
+
+    def add_cheb(channel, label, fit):
+        r = chebyshev_record(fit, units.get(fit.order))
+        rng = "all T" + (", P range" if fit.pressure_dependent else ", any P")
+        rows.append([channel, label, rng, fit.order, None, r["k_unit"], None, None, None, None,
+                     r["Tmin_K"], r["Tmax_K"], r["max_deviation_percent"],
+                     r["rms_deviation_percent"], r["Pmin_Pa"], r["Pmax_Pa"],
+                     json.dumps(r["coefficients_log10_k"])])
 
     for c in fits.channels:
         add(c.name, "arrhenius", "all", c.arrhenius)
@@ -189,6 +200,10 @@ def fits_csv_text(fits, rate_units=None) -> str:
         if c.troe is not None:
             add(c.name, "troe_k0", "low-pressure limit", c.troe.k0)
             add(c.name, "troe_kinf", "high-pressure limit", c.troe.kinf)
+        if c.chebyshev is not None:
+            add_cheb(c.name, "chebyshev", c.chebyshev)
+        if c.chebyshev_falloff is not None:
+            add_cheb(c.name, "chebyshev_falloff", c.chebyshev_falloff)
     return csv_text(FIT_COLUMNS, rows)
 
 
