@@ -32,6 +32,19 @@ def add_arguments(parser) -> None:
     parser.add_argument("--json", action="store_true", help="machine-readable summary on stdout")
 
 
+def mechanism_record(cf, rate_units=None) -> dict:
+    """The fitted expression the mechanism file holds for one channel, units in the keys."""
+    from tstrate.output.fits import arrhenius_record, chebyshev_record
+    from tstrate.output.records import rate_unit
+
+    kind = cf.mechanism_kind
+    if kind == "chebyshev_falloff":
+        return chebyshev_record(cf.chebyshev_falloff, rate_unit(cf.order, rate_units))
+    if kind == "chebyshev":
+        return chebyshev_record(cf.chebyshev, rate_unit(cf.order, rate_units))
+    return arrhenius_record(cf.expression, rate_unit(cf.order, rate_units))
+
+
 def run(args) -> int:
     import sys
     from pathlib import Path
@@ -67,11 +80,10 @@ def run(args) -> int:
         if bar is not None:
             bar.close()
     if args.json:
-        from tstrate.output.fits import arrhenius_record
-
         print_json({
             "study": study.file, "output_dir": str(out), "files": [str(f) for f in files],
-            "channels": [{"name": c.name, "mechanism_expression": arrhenius_record(c.expression),
+            "channels": [{"name": c.name, "mechanism_kind": c.mechanism_kind,
+                          "mechanism_expression": mechanism_record(c, study.conditions.rate_units),
                           "warnings": list(c.warnings)} for c in result.fits.channels],
             "warnings": list(result.warnings),
         })
@@ -80,6 +92,17 @@ def run(args) -> int:
 
     print(f"{study.title}\nwrote {len(files)} files to {out}/ (report: {out / 'report.html'})")
     for cf in result.fits.channels:
+        kind = cf.mechanism_kind
+        if kind.startswith("chebyshev"):
+            fit = cf.chebyshev_falloff if kind == "chebyshev_falloff" else cf.chebyshev
+            nt, np_ = fit.coefficients.shape
+            over = f", {fit.Pmin_Pa / 1e5:.3g}-{fit.Pmax_Pa / 1e5:.3g} bar" if kind == "chebyshev_falloff" else ""
+            print(f"  {cf.name}: Chebyshev {nt} x {np_} terms in mechanism.yaml, {fit.Tmin_K:g}-{fit.Tmax_K:g} K"
+                  f"{over}, max deviation {100 * fit.max_rel_deviation:.2f} %")
+            continue
+        if kind == "troe":
+            print(f"  {cf.name}: Troe falloff in mechanism.yaml (see fits.json)")
+            continue
         e = cf.expression
         form = f"(T/{e.T0_K:g} K)^{e.n:.2f} " if e.modified else ""
         print(f"  {cf.name}: k = {e.A_in(rate_unit(e.order, study.conditions.rate_units)):.3e} {form}exp(-Ea/RT), Ea = {e.Ea_J_per_mol / 1e3:.2f} kJ/mol "
