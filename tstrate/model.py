@@ -13,7 +13,7 @@ from typing import Literal
 
 import numpy as np
 
-from tstrate.units import AMU
+from tstrate.units import AMU, C, H
 
 Kind = Literal["minimum", "transition_state"]
 
@@ -24,6 +24,41 @@ class ElectronicLevel:
 
     energy_cm1: float
     degeneracy: int
+
+
+@dataclass(frozen=True)
+class FreeRotor:
+    """A 1-D free internal rotor that replaces one harmonic mode of a species.
+
+    replaces_cm1: the unscaled harmonic wavenumber [cm^-1] of the real mode it replaces,
+        as listed in ``frequencies_cm1`` or computed from the Hessian.
+    symmetry_number: symmetry number sigma of the internal rotation (3 for a methyl group).
+    reduced_moment_amu_A2: reduced moment of inertia of the rotation [u Angstrom^2].
+
+    The mode leaves the harmonic set (partition function, zero-point energy, state counts)
+    and a classical 1-D free rotor takes its place (see :mod:`tstrate.physics.thermo`).
+    """
+
+    replaces_cm1: float
+    symmetry_number: int
+    reduced_moment_amu_A2: float
+
+    @property
+    def moment_kg_m2(self) -> float:
+        """Reduced moment of inertia [kg m^2]."""
+        return self.reduced_moment_amu_A2 * AMU * 1e-20
+
+    @property
+    def rotational_constant_cm1(self) -> float:
+        """B = h / (8 pi^2 c I) [cm^-1]."""
+        return H / (8 * np.pi**2 * C * self.moment_kg_m2) / 100.0
+
+    @classmethod
+    def from_rotational_constant(cls, replaces_cm1: float, symmetry_number: int,
+                                 rotational_constant_cm1: float) -> "FreeRotor":
+        """A rotor from its rotational constant B [cm^-1] instead of its moment: I = h / (8 pi^2 c B)."""
+        moment_kg_m2 = H / (8 * np.pi**2 * C * rotational_constant_cm1 * 100.0)
+        return cls(replaces_cm1, symmetry_number, moment_kg_m2 / (AMU * 1e-20))
 
 
 @dataclass(frozen=True)
@@ -54,6 +89,7 @@ class Species:
     provenance: free-form strings (method, source, program, ...).
     source: the file the species was read from, if any.
     lennard_jones: collision parameters (sigma [Angstrom], epsilon/k_B [K]) for falloff, if given.
+    free_rotors: :class:`FreeRotor` s, each replacing one real harmonic mode (default none).
     """
 
     name: str
@@ -75,6 +111,7 @@ class Species:
     provenance: dict = field(default_factory=dict)
     source: str | None = None
     lennard_jones: tuple[float, float] | None = None  # (sigma [Angstrom], epsilon/k_B [K])
+    free_rotors: tuple[FreeRotor, ...] = ()
 
     # ---- derived quantities -------------------------------------------------
     @property
@@ -109,9 +146,39 @@ class Species:
 
     @property
     def real_frequencies_cm1(self) -> np.ndarray:
-        """Scaled real (positive) wavenumbers [cm^-1]; the vibrational modes used in Q_vib."""
+        """Scaled real (positive) wavenumbers [cm^-1], including any replaced by free rotors
+        (:attr:`harmonic_frequencies_cm1` leaves those out)."""
         f = self.scaled_frequencies_cm1
         return f[f > 0]
+
+    def replaced_mode_indices(self) -> tuple[int, ...]:
+        """Indices into ``frequencies_cm1`` of the real modes the free rotors replace.
+
+        Each rotor takes the real mode (unscaled wavenumber) nearest to its ``replaces_cm1``
+        that no earlier rotor took (build_species has checked that the match is within 1 cm^-1
+        and unique).
+        """
+        f = np.asarray(self.frequencies_cm1, dtype=float)
+        free = [i for i in range(f.size) if f[i] > 0]
+        taken = []
+        for rotor in self.free_rotors:
+            if not free:
+                raise ValueError(f"{self.name}: more free rotors than real modes")
+            j = min(free, key=lambda i: abs(f[i] - rotor.replaces_cm1))
+            free.remove(j)
+            taken.append(j)
+        return tuple(taken)
+
+    @property
+    def harmonic_frequencies_cm1(self) -> np.ndarray:
+        """Scaled real wavenumbers [cm^-1] treated as harmonic oscillators: the real modes minus
+        those replaced by free rotors. These enter Q_vib, the ZPE, state counts and thermal energies."""
+        if not self.free_rotors:
+            return self.real_frequencies_cm1
+        f = self.scaled_frequencies_cm1
+        keep = f > 0
+        keep[list(self.replaced_mode_indices())] = False
+        return f[keep]
 
     @property
     def imaginary_frequencies_cm1(self) -> np.ndarray:

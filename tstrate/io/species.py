@@ -28,6 +28,12 @@ are required)::
     energy_cm1 = 0.0
     degeneracy = 1
 
+    [[free_rotors]]                   # optional; one table per free internal rotor
+    replaces_cm1 = 220.0              # the harmonic mode it replaces, unscaled, as listed in
+                                      # frequencies_cm1 or computed from the [hessian]
+    symmetry_number = 1               # integer >= 1 (3 for a methyl group)
+    reduced_moment_amu_A2 = 0.85      # or: rotational_constant_cm1 = 19.8  (one of the two)
+
     [hessian]                         # optional Cartesian Hessian (3N x 3N, nested or flat)
     unit = "hartree/bohr2"            # hartree/bohr2, eV/A2, kJ/mol/A2, kcal/mol/A2, J/m2
     values = [[...], ...]
@@ -35,6 +41,14 @@ are required)::
     [provenance]                      # free-form strings
     method = "GFN2-xTB"
     source = "..."
+
+Free rotors: each ``replaces_cm1`` must lie within :data:`ROTOR_MATCH_CM1` (1 cm^-1) of
+exactly one real mode (tolerated small imaginary modes of a minimum count by their
+magnitude; the imaginary mode of a transition state cannot be replaced), and no mode may be
+replaced twice. The matched mode leaves the harmonic set everywhere (partition function,
+zero-point energy, RRKM state counts); a classical 1-D free rotor takes its place and has
+no zero-point energy (see :mod:`tstrate.physics.thermo`). ``replaces_cm1`` is stored as the
+matched mode's wavenumber.
 """
 
 from __future__ import annotations
@@ -49,7 +63,7 @@ import numpy as np
 
 from tstrate.errors import InputError
 from tstrate.io.tables import Table, load_toml
-from tstrate.model import ElectronicLevel, Species
+from tstrate.model import ElectronicLevel, FreeRotor, Species
 from tstrate.physics import symmetry as sym
 from tstrate.physics.vibrations import (HESSIAN_UNITS_J_PER_M2, default_masses_amu,
                                         expected_mode_count, isotope_mass_amu, vibrational_analysis)
@@ -62,10 +76,13 @@ _BARE_KEY = re.compile(r"[A-Za-z0-9_-]+")
 #: closest approach of two nuclei accepted in a geometry [Angstrom]
 MIN_DISTANCE_A = 0.4
 
+#: a free rotor's ``replaces_cm1`` must lie this close to the mode it replaces [cm^-1]
+ROTOR_MATCH_CM1 = 1.0
+
 KNOWN_KEYS = {"name", "charge", "multiplicity", "kind", "geometry", "frequencies_cm1",
               "frequency_scale", "energy", "single_point", "symmetry_number", "optical_isomers",
               "linear", "allow_imaginary_below_cm1", "isotopes", "masses_amu", "lennard_jones",
-              "electronic_levels", "hessian", "provenance"}
+              "electronic_levels", "free_rotors", "hessian", "provenance"}
 
 
 # ---- geometry ---------------------------------------------------------------------
@@ -143,12 +160,14 @@ def build_species(name: str, symbols, positions_A, *, charge: int = 0, multiplic
                   masses_amu=None, isotopes: dict[int, int] | None = None,
                   electronic_levels=(), allow_imaginary_below_cm1: float = 0.0,
                   lennard_jones=None, provenance: dict | None = None, source: str | None = None,
-                  symmetry_tolerance_A: float = sym.DEFAULT_TOLERANCE_A) -> Species:
+                  symmetry_tolerance_A: float = sym.DEFAULT_TOLERANCE_A, free_rotors=()) -> Species:
     """Validate inputs and build a :class:`Species` (the one path from files and from Python).
 
     ``isotopes`` maps 0-based atom indices to mass numbers. When a Hessian is
     given the frequencies are computed from it with the final masses; when both
-    are given the listed frequencies are only checked for count.
+    are given the listed frequencies are only checked for count. ``free_rotors``
+    are :class:`~tstrate.model.FreeRotor` s; each must match one real mode (see the
+    module docstring).
     """
     file = source
     symbols = [str(s) for s in symbols]
@@ -251,6 +270,8 @@ def build_species(name: str, symbols, positions_A, *, charge: int = 0, multiplic
         raise InputError("the lowest electronic level must be at 0 cm-1", file=file,
                          field="electronic_levels")
 
+    rotors = _check_free_rotors(free_rotors, freqs, file=file)
+
     hess = None if hessian_J_per_m2 is None else np.array(hessian_J_per_m2, dtype=float)
     return Species(
         name=name, symbols=tuple(symbols), positions_A=positions, masses_amu=masses,
@@ -259,8 +280,57 @@ def build_species(name: str, symbols, positions_A, *, charge: int = 0, multiplic
         kind=kind, symmetry_number=int(symmetry_number), optical_isomers=int(optical_isomers),
         linear=is_lin, electronic_levels=levels, hessian_J_per_m2=hess,
         geometry_energy_J_per_mol=geometry_energy_J_per_mol, provenance=dict(provenance or {}),
-        source=source, lennard_jones=lennard_jones,
+        source=source, lennard_jones=lennard_jones, free_rotors=rotors,
     )
+
+
+def _finite(x) -> float:
+    """``x`` as a float, NaN when it is not a finite number (so every comparison fails)."""
+    try:
+        v = float(x)
+    except (TypeError, ValueError):
+        return math.nan
+    return v if math.isfinite(v) else math.nan
+
+
+def _check_free_rotors(free_rotors, freqs: np.ndarray, *, file) -> tuple[FreeRotor, ...]:
+    """Validate free rotors against the final (sorted, unscaled) wavenumbers; each rotor comes
+    back with ``replaces_cm1`` set to the wavenumber of the mode it matched."""
+    out, used = [], {}
+    real = np.flatnonzero(freqs > 0)
+    for i, rotor in enumerate(free_rotors):
+        key = f"free_rotors[{i}]"
+        if not isinstance(rotor, FreeRotor):
+            raise InputError(f"expected a FreeRotor, got {type(rotor).__name__}", file=file, field=key)
+        nu = _finite(rotor.replaces_cm1)
+        if not nu > 0:
+            raise InputError(f"must be a positive wavenumber, got {rotor.replaces_cm1!r}", file=file,
+                             field=f"{key}.replaces_cm1")
+        sigma = rotor.symmetry_number
+        if isinstance(sigma, bool) or not _finite(sigma) >= 1 or int(sigma) != sigma:
+            raise InputError(f"must be an integer of 1 or more, got {sigma!r}", file=file,
+                             field=f"{key}.symmetry_number")
+        moment = _finite(rotor.reduced_moment_amu_A2)
+        if not moment > 0:
+            raise InputError(f"must be positive, got {rotor.reduced_moment_amu_A2!r}", file=file,
+                             field=f"{key}.reduced_moment_amu_A2")
+        dist = np.abs(freqs[real] - nu)
+        hits = real[dist <= ROTOR_MATCH_CM1]
+        if len(hits) != 1:
+            nearest = ", ".join(f"{freqs[j]:.2f}" for j in real[np.argsort(dist)[:3]]) or "none"
+            problem = (f"no real mode within {ROTOR_MATCH_CM1:g} cm-1 of {nu:g} cm-1" if not len(hits)
+                       else f"{len(hits)} real modes lie within {ROTOR_MATCH_CM1:g} cm-1 of {nu:g} cm-1")
+            hint = ("give the unscaled wavenumber of the mode the rotor replaces" if not len(hits) else
+                    f"give a value within {ROTOR_MATCH_CM1:g} cm-1 of only the mode the rotor replaces")
+            raise InputError(f"{problem}; nearest modes: {nearest} cm-1", file=file,
+                             field=f"{key}.replaces_cm1", hint=hint)
+        j = int(hits[0])
+        if j in used:
+            raise InputError(f"the mode at {freqs[j]:.2f} cm-1 is already replaced by free_rotors[{used[j]}]",
+                             file=file, field=f"{key}.replaces_cm1", hint="each mode can be replaced once")
+        used[j] = i
+        out.append(FreeRotor(float(freqs[j]), int(sigma), float(moment)))
+    return tuple(out)
 
 
 def species_from_atoms(atoms, name: str | None = None, **kwargs) -> Species:
@@ -333,6 +403,22 @@ def read_species(path: str | Path, *, name: str | None = None) -> Species:
         levels.append(ElectronicLevel(lt.get("energy_cm1", float), lt.get("degeneracy", int)))
         lt.reject_unknown()
 
+    rotors = []
+    for rt in t.tables("free_rotors"):
+        replaces = rt.get("replaces_cm1", float)
+        sigma = rt.get("symmetry_number", int)
+        given = [k for k in ("reduced_moment_amu_A2", "rotational_constant_cm1") if k in rt]
+        if len(given) != 1:
+            raise rt.error(given[1] if given else None,
+                           "give one of reduced_moment_amu_A2 and rotational_constant_cm1"
+                           + (" (not both)" if given else ""))
+        value = rt.get(given[0], float)
+        if not value > 0:
+            raise rt.error(given[0], f"must be positive, got {value!r}")
+        rt.reject_unknown()
+        rotors.append(FreeRotor(replaces, sigma, value) if given[0] == "reduced_moment_amu_A2"
+                      else FreeRotor.from_rotational_constant(replaces, sigma, value))
+
     lj = None
     if "lennard_jones" in t:
         lt = t.table("lennard_jones")
@@ -364,7 +450,7 @@ def read_species(path: str | Path, *, name: str | None = None) -> Species:
         optical_isomers=t.get("optical_isomers", int, None), linear=linear,
         masses_amu=masses, isotopes=isotopes, electronic_levels=levels,
         allow_imaginary_below_cm1=t.get("allow_imaginary_below_cm1", float, 0.0),
-        lennard_jones=lj, provenance=provenance, source=file,
+        lennard_jones=lj, provenance=provenance, source=file, free_rotors=rotors,
     )
 
 
@@ -430,6 +516,10 @@ def species_to_toml(species: Species, *, include_hessian: bool = True,
     for lv in species.electronic_levels:
         lines += ["", "[[electronic_levels]]", f"energy_cm1 = {_toml_num(lv.energy_cm1)}",
                   f"degeneracy = {lv.degeneracy}"]
+    for rotor in species.free_rotors:
+        lines += ["", "[[free_rotors]]", f"replaces_cm1 = {_toml_num(rotor.replaces_cm1)}",
+                  f"symmetry_number = {rotor.symmetry_number}",
+                  f"reduced_moment_amu_A2 = {_toml_num(rotor.reduced_moment_amu_A2)}"]
     if species.provenance:
         lines += ["", "[provenance]"]
         lines += [f"{_toml_key(k)} = {_toml_str(str(v))}" for k, v in species.provenance.items()]

@@ -235,7 +235,7 @@ def limits(result) -> list[str]:
                    "fitted temperature range and must not be extrapolated; split ranges (fits.json) fit better.")
     if result.low_modes.method == "harmonic":
         soft = [n for n, sp in result.study.species.items()
-                if sp.real_frequencies_cm1.size and float(sp.real_frequencies_cm1.min()) < 100.0]
+                if sp.harmonic_frequencies_cm1.size and float(sp.harmonic_frequencies_cm1.min()) < 100.0]
         if soft:
             out.append(f"Species with real modes below 100 cm-1 treated as harmonic ({', '.join(soft)}): "
                        "their entropies are uncertain; compare with --low-modes grimme or truhlar.")

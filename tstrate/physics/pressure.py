@@ -6,8 +6,10 @@ This module joins the pure functions of :mod:`tstrate.physics.states`,
 ``[conditions]``. For every channel with one reactant (order 1) it builds
 
 * the reactant's density of states and the transition state's sum of states
-  (scaled real wavenumbers, electronic levels, the active K-rotor) on one grain,
-  counted from each species' zero-point level (Beyer-Swinehart);
+  (scaled harmonic wavenumbers, electronic levels, the active K-rotor and any declared
+  free internal rotors, each a classical 1-D rotor with its symmetry number in place of
+  the mode it replaces) on one grain, counted from each species' zero-point level
+  (Beyer-Swinehart);
 * E0, the zero-point-corrected barrier (:func:`tstrate.physics.tst.zpe_level_J_per_mol`);
 * k(E) = L * (I_TS/I_R) * N_TS(E - E0) / (h rho_R(E)) (RRKM; Marcus 1952), with an
   Eckart-corrected sum of states when the channel's tunnelling is "eckart";
@@ -190,6 +192,12 @@ def rotational_constants_cm1(species: Species) -> np.ndarray:
     return H / (8.0 * math.pi**2 * C * moments) / 100.0
 
 
+def free_rotor_states(species: Species) -> tuple[Rotor, ...]:
+    """The species' declared free internal rotors as classical 1-D :class:`Rotor` s for state counts."""
+    return tuple(Rotor.from_moment_of_inertia(r.reduced_moment_amu_A2, r.symmetry_number, 1, False)
+                 for r in species.free_rotors)
+
+
 @dataclass(frozen=True)
 class RotorSplit:
     """One species' overall rotation split into the adiabatic 2-D rotor and the active K-rotor [cm^-1]."""
@@ -293,7 +301,7 @@ def unimolecular_model(study: Study, channel: Channel, settings: FalloffSettings
                          hint="barrierless and submerged barriers are not treated")
 
     # grain: refine for the softest mode, then make E0 a whole number of grains
-    rf, tf = reac.real_frequencies_cm1, ts.real_frequencies_cm1
+    rf, tf = reac.harmonic_frequencies_cm1, ts.harmonic_frequencies_cm1
     lowest = float(np.min(np.concatenate([rf, tf]))) if rf.size + tf.size else math.inf
     grain = settings.grain_cm1
     limit = GRAIN_FRACTION_OF_LOWEST * lowest
@@ -325,6 +333,12 @@ def unimolecular_model(study: Study, channel: Channel, settings: FalloffSettings
             r_extra = (Rotor(r_rot.K_cm1, 1, 1, False),)
         if t_rot.K_cm1 is not None:
             t_extra = (Rotor(t_rot.K_cm1, 1, 1, False),)
+
+    # declared free internal rotors: classical 1-D rotors with their own symmetry numbers (the
+    # modes they replace are not in rf, tf), as in the partition functions of canonical TST
+    both_k_rotors = bool(r_extra and t_extra)
+    r_extra = r_extra + free_rotor_states(reac)
+    t_extra = t_extra + free_rotor_states(ts)
 
     degeneracy = (symmetry_degeneracy([reac], ts) if channel.degeneracy is None else float(channel.degeneracy))
 
@@ -364,7 +378,7 @@ def unimolecular_model(study: Study, channel: Channel, settings: FalloffSettings
     for w in warnings:
         log.debug(w)
     return UnimolecularModel(channel, reac, ts, rate, grain, settings.grain_cm1, rate.barrier_J_per_mol,
-                             degeneracy, r_rot, t_rot, external if r_extra and t_extra else None, used,
+                             degeneracy, r_rot, t_rot, external if both_k_rotors else None, used,
                              ts.imaginary_frequency_cm1, v1, v2, tuple(warnings))
 
 
@@ -413,7 +427,7 @@ def collision_rate(species: Species, bath: coll.LennardJones, temperature_K,
 def _smoothed_density(model: UnimolecularModel) -> np.ndarray:
     """Reactant density of states averaged over one quantum of its lowest mode (for F_E only)."""
     rho = model.rate.reactant.density_per_J_per_mol
-    freqs = model.reactant.real_frequencies_cm1
+    freqs = model.reactant.harmonic_frequencies_cm1
     width = max(1, int(round((float(freqs.min()) if freqs.size else model.grain_cm1) / model.grain_cm1)))
     if width == 1:
         return rho

@@ -16,6 +16,18 @@ and discrete electronic levels. Quasi-harmonic options for low modes:
 Imaginary modes are never part of the vibrational partition function (the
 reaction coordinate of a transition state is left out).
 
+Free internal rotors (``[[free_rotors]]`` of a species file, :class:`tstrate.model.FreeRotor`):
+the mode a rotor replaces leaves the harmonic set, and a classical 1-D free rotor of reduced
+moment I and symmetry number sigma takes its place,
+
+    q = (8 pi^3 I k_B T)^(1/2) / (sigma h),  U = RT/2,  S = R (ln q + 1/2),  Cv = R/2
+
+(D. A. McQuarrie, *Statistical Mechanics*, Harper & Row 1976; the free-rotor limit of
+K. S. Pitzer and W. D. Gwinn, J. Chem. Phys. 10, 428 (1942)). Its energy zero is the m = 0
+level, so a free rotor has no zero-point energy: the ZPE sums only the remaining harmonic
+modes (:attr:`tstrate.model.Species.harmonic_frequencies_cm1`). The low-mode treatments
+apply to the remaining harmonic modes only.
+
 Conventions: molar quantities per mole of molecules; standard state 1 bar
 for translation unless a pressure is given; ``ln_q_per_volume`` gives the
 translational partition function per unit volume [m^-3] for concentration
@@ -121,6 +133,24 @@ def free_rotor_entropy(freqs_cm1, T: np.ndarray, b_av_kg_m2: float = GRIMME_B_AV
     return 0.5 + np.log(np.sqrt(8 * np.pi**3 * mu_eff * K_B * T[:, None] / H**2))
 
 
+def internal_free_rotor(moment_kg_m2: float, symmetry_number: int, T: np.ndarray):
+    """ln q, U/RT, S/R, Cv/R of a classical 1-D free internal rotor, shape (T,).
+
+    q = (8 pi^3 I k_B T)^(1/2) / (sigma h) with I the reduced moment [kg m^2] and sigma the
+    symmetry number; U/RT = Cv/R = 1/2, S/R = ln q + 1/2 (McQuarrie 1976; Pitzer and Gwinn,
+    J. Chem. Phys. 10, 428 (1942), free-rotor limit). The classical limit needs k_B T >> B.
+    """
+    ln_q = 0.5 * np.log(8 * np.pi**3 * moment_kg_m2 * K_B * T) - np.log(symmetry_number * H)
+    half = np.full_like(T, 0.5)
+    return ln_q, half, ln_q + 0.5, half
+
+
+def _free_rotor_parts(species: Species, T: np.ndarray):
+    z = np.zeros_like(T)
+    parts = [internal_free_rotor(r.moment_kg_m2, r.symmetry_number, T) for r in species.free_rotors]
+    return tuple(sum((p[k] for p in parts), z) for k in range(4))
+
+
 def electronic(levels, T: np.ndarray):
     """ln q, U/RT, S/R, Cv/R of discrete electronic levels (energies from the ground level)."""
     e = np.array([lv.energy_cm1 for lv in levels], dtype=float)[None, :] * CM1_J
@@ -145,13 +175,14 @@ class Thermo:
     pressure ``pressure_Pa`` (1 bar unless stated).
 
     temperature_K: temperatures [K].
-    zpe_J_per_mol: harmonic zero-point energy [J/mol] (real modes only).
+    zpe_J_per_mol: harmonic zero-point energy [J/mol] (real modes not replaced by free rotors).
     energy_J_per_mol: electronic energy of the species [J/mol], or None when unknown.
     enthalpy_increment_J_per_mol: H(T) - H(0) [J/mol].
     entropy_J_per_mol_K: S(T) [J/(mol K)].
     heat_capacity_J_per_mol_K: Cp(T) [J/(mol K)].
     ln_q: dict of ln partition functions by part ("translational", "rotational",
-        "vibrational", "electronic"), the vibrational one from the zero-point level.
+        "vibrational", "internal_rotation", "electronic"), the vibrational one from the
+        zero-point level; "internal_rotation" is the free rotors' (zero without any).
     """
 
     species: str
@@ -191,8 +222,9 @@ class Thermo:
 
 
 def zero_point_energy_J_per_mol(species: Species) -> float:
-    """Harmonic ZPE of the real (scaled) modes [J/mol]."""
-    return float(0.5 * np.sum(species.real_frequencies_cm1) * CM1_J * N_A)
+    """Harmonic ZPE of the real (scaled) modes not replaced by free rotors [J/mol]
+    (a free rotor has no zero-point energy)."""
+    return float(0.5 * np.sum(species.harmonic_frequencies_cm1) * CM1_J * N_A)
 
 
 def _vibrational_parts(freqs: np.ndarray, T: np.ndarray, low_modes: LowModes):
@@ -215,7 +247,8 @@ def thermochemistry(species: Species, temperature_K, *, low_modes: LowModes = HA
 
     Parameters
     ----------
-    species: the stationary point (its imaginary mode, if any, is left out).
+    species: the stationary point (its imaginary mode, if any, is left out; its free rotors
+        replace the modes they name).
     temperature_K: scalar or array of temperatures [K].
     low_modes: quasi-harmonic treatment of low real modes.
     pressure_Pa: standard pressure of the translational part [Pa], 1 bar by default.
@@ -226,7 +259,8 @@ def thermochemistry(species: Species, temperature_K, *, low_modes: LowModes = HA
         "rotational": (rotational(species.moments_of_inertia_kg_m2(), species.symmetry_number,
                                   species.linear, T)
                        if not species.is_atom else tuple(np.zeros_like(T) for _ in range(4))),
-        "vibrational": _vibrational_parts(species.real_frequencies_cm1, T, low_modes),
+        "vibrational": _vibrational_parts(species.harmonic_frequencies_cm1, T, low_modes),
+        "internal_rotation": _free_rotor_parts(species, T),
         "electronic": electronic(species.levels, T),
     }
     ln_q = {k: v[0] for k, v in parts.items()}
