@@ -145,3 +145,15 @@ def test_two_modes_within_the_match_window_are_ambiguous():
     with pytest.raises(InputError, match=r"no real mode within 1 cm-1 of 220 cm-1; nearest modes: 300\.00, 580"):
         build_species("TS", symbols, positions, kind="transition_state", frequencies_cm1=ts_freqs,
                       free_rotors=[FreeRotor(220.0, 1, 0.85)])
+
+
+def test_thermo_json_lists_the_declared_rotor(tmp_path, capsys):
+    import json
+
+    from tstrate.cli.main import main
+
+    path = _write(tmp_path, H2CO3_TEXT + ROTOR)
+    assert main(["thermo", str(path), "--json"]) == 0
+    entry = json.loads(capsys.readouterr().out)["species"][0]
+    assert entry["free_rotors"] == [{"replaces_cm1": 220.0, "symmetry_number": 1,
+                                     "reduced_moment_amu_A2": 0.85}]

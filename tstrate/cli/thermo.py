@@ -10,7 +10,9 @@ levels, standard state 1 bar.
 
 JSON output (--json): one object with a list "species"; each entry has name,
 formula, kind, symmetry_number, optical_isomers, linear, frequencies_cm1
-(scaled, imaginary negative), zpe_kJ_per_mol, and arrays over temperature_K:
+(scaled, imaginary negative), free_rotors (each with replaces_cm1,
+symmetry_number, reduced_moment_amu_A2; the replaced modes are not harmonic
+and have no zero-point energy), zpe_kJ_per_mol, and arrays over temperature_K:
 entropy_J_per_mol_K, heat_capacity_J_per_mol_K, enthalpy_increment_kJ_per_mol
 (H(T)-H(0)), gibbs_increment_kJ_per_mol (G(T)-H(0)); plus standard_pressure_bar
 and low_modes.
@@ -49,6 +51,8 @@ def compute(files, temperatures_K, low_modes):
             "optical_isomers": sp.optical_isomers,
             "linear": sp.linear,
             "frequencies_cm1": sp.scaled_frequencies_cm1,
+            "free_rotors": [{"replaces_cm1": r.replaces_cm1, "symmetry_number": r.symmetry_number,
+                             "reduced_moment_amu_A2": r.reduced_moment_amu_A2} for r in sp.free_rotors],
             "zpe_kJ_per_mol": th.zpe_J_per_mol / 1e3,
             "temperature_K": th.temperature_K,
             "entropy_J_per_mol_K": th.entropy_J_per_mol_K,

@@ -114,6 +114,8 @@ def _thermo_record(th, sp) -> dict:
         "name": th.species, "formula": sp.formula, "kind": sp.kind,
         "symmetry_number": sp.symmetry_number, "optical_isomers": sp.optical_isomers,
         "frequencies_cm1": sp.scaled_frequencies_cm1, "zpe_kJ_per_mol": th.zpe_J_per_mol / 1e3,
+        "free_rotors": [{"replaces_cm1": r.replaces_cm1, "symmetry_number": r.symmetry_number,
+                         "reduced_moment_amu_A2": r.reduced_moment_amu_A2} for r in sp.free_rotors],
         "temperature_K": th.temperature_K, "entropy_J_per_mol_K": th.entropy_J_per_mol_K,
         "heat_capacity_J_per_mol_K": th.heat_capacity_J_per_mol_K,
         "enthalpy_increment_kJ_per_mol": th.enthalpy_increment_J_per_mol / 1e3,
@@ -229,7 +231,8 @@ def limits(result) -> list[str]:
     if result.falloff is not None and any(cf.model.tunnelling == "eckart" for cf in result.falloff.channels):
         out.append("Falloff of channels with Eckart tunnelling: the Troe k0 is an effective value fitted "
                    "together with the broadening parameters, not the strong-collision low-pressure limit.")
-    wild = [cf.name for cf in result.fits.channels if abs(cf.expression.n) > 10]
+    wild = [cf.name for cf in result.fits.channels
+            if cf.mechanism_kind in ("arrhenius", "modified_arrhenius") and abs(cf.expression.n) > 10]
     if wild:
         out.append(f"Fitted expressions of {', '.join(wild)} have |n| > 10: they reproduce k only inside the "
                    "fitted temperature range and must not be extrapolated; split ranges (fits.json) fit better.")
@@ -371,6 +374,21 @@ def build_report(result, doc: dict, inputs: list[dict], figures) -> list:
                       f"k = A (T/T0)^n exp(-Ea/RT), T0 = {result.fits.channels[0].modified.T0_K:g} K "
                       "for the modified form; the mechanism file uses the "
                       f"{result.fits.channels[0].mechanism_form} form."))
+    rows = []
+    for cf in result.fits.channels:
+        for label, fit in (("Chebyshev k(T)", cf.chebyshev), ("Chebyshev k(T, p)", cf.chebyshev_falloff)):
+            if fit is None:
+                continue
+            p_range = "-" if fit.Pmin_Pa is None else f"{fit.Pmin_Pa / 1e5:.3g}-{fit.Pmax_Pa / 1e5:.3g}"
+            rows.append((cf.name, label, "x".join(str(n) for n in fit.coefficients.shape),
+                         f"{fit.Tmin_K:g}-{fit.Tmax_K:g}", p_range, f"{100 * fit.max_rel_deviation:.2f}",
+                         f"{100 * fit.rms_rel_deviation:.2f}"))
+    if rows:
+        B.append(rp.Table(("channel", "form", "terms (T x p)", "range / K", "range / bar",
+                           "max deviation / %", "rms deviation / %"), tuple(rows),
+                          "Chebyshev expansions of log10 k in 1/T and log p (coefficients in fits.json)."))
+    B.append(rp.Paragraph("The mechanism file holds, per channel: " + "; ".join(
+        f"{cf.name}: {cf.mechanism_kind.replace('_', ' ')}" for cf in result.fits.channels) + "."))
     rows = [(s.name, f"{s.nasa7.Tmin_K:g}-{s.nasa7.Tmid_K:g}-{s.nasa7.Tmax_K:g}",
              f"{100 * s.nasa7.max_rel_error_cp:.3f}", f"{100 * s.nasa7.max_rel_error_h:.3f}",
              f"{100 * s.nasa7.max_rel_error_s:.3f}") for s in result.fits.species]
