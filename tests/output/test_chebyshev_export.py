@@ -25,13 +25,11 @@ from tstrate.io.study import read_study
 from tstrate.output.fits import TroeData, arrhenius_expression, fit_study, fits_to_json
 from tstrate.output.mechanism import mechanism_yaml, write_mechanism
 from tstrate.output.tables import fits_csv_text
-from tstrate.physics.tst import study_rates
 from tstrate.units import N_A
 
 ct = pytest.importorskip("cantera")
 
 ROOT = Path(__file__).resolve().parents[2]
-CARBONIC = Path(__file__).resolve().parent / "data" / "carbonic" / "study.toml"
 DEMO = ROOT / "molecules" / "carbonic_acid" / "study.toml"
 PER_KMOL = N_A * 1e3        # molecules per kmol
 TARGET = 0.01               # the brief's target: 1 % over the fitted range
@@ -39,16 +37,6 @@ TARGET = 0.01               # the brief's target: 1 % over the fitted range
 
 def _k_per_molecule(gas, i, order):
     return gas.forward_rate_constants[i] / PER_KMOL ** (order - 1)
-
-
-@pytest.fixture(scope="module")
-def carbonic():
-    return read_study(CARBONIC)
-
-
-@pytest.fixture(scope="module")
-def rates(carbonic):
-    return study_rates(carbonic)
 
 
 def _invented_grid(rates, name):

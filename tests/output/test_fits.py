@@ -38,16 +38,6 @@ def toy():
     return read_study(TOY)
 
 
-@pytest.fixture(scope="module")
-def carbonic():
-    return read_study(CARBONIC)
-
-
-@pytest.fixture(scope="module")
-def carbonic_fits(carbonic):
-    return fit_study(carbonic)
-
-
 # ----------------------------------------------------------------------------- channels
 
 def test_channel_fit_uses_k_with_tunnelling(toy):

@@ -48,16 +48,6 @@ def _exported_h(fit, species, T):
     return fit.h0_exported_J_per_mol + th.enthalpy_increment_J_per_mol
 
 
-@pytest.fixture(scope="module")
-def carbonic():
-    return read_study(CARBONIC)
-
-
-@pytest.fixture(scope="module")
-def carbonic_fits(carbonic):
-    return fit_study(carbonic)
-
-
 # ----------------------------------------------------------------------------- rate constants
 
 def test_carbonic_mechanism_reproduces_tstrate_within_1_percent(carbonic, carbonic_fits, tmp_path):

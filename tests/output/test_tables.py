@@ -17,7 +17,6 @@ from tstrate.io.study import read_study
 from tstrate.output import tables
 from tstrate.output.fits import fit_study
 from tstrate.physics.thermo import thermochemistry
-from tstrate.physics.tst import study_rates
 from tstrate.units import N_A
 
 CARBONIC = Path(__file__).resolve().parent / "data" / "carbonic" / "study.toml"
@@ -26,16 +25,6 @@ CARBONIC = Path(__file__).resolve().parent / "data" / "carbonic" / "study.toml"
 def _read_csv(text):
     rows = list(csv.reader(io.StringIO(text)))
     return rows[0], rows[1:]
-
-
-@pytest.fixture(scope="module")
-def carbonic():
-    return read_study(CARBONIC)
-
-
-@pytest.fixture(scope="module")
-def rates(carbonic):
-    return study_rates(carbonic)
 
 
 def test_thermo_csv_values_and_units(carbonic, tmp_path):
