@@ -142,3 +142,14 @@ def test_errors(study):
     empty = dataclasses.replace(study, sections={})
     with pytest.raises(InputError, match="no excitation to follow"):
         study_excitations(empty)
+
+
+def test_altitude_range_beyond_the_csv_profile_is_said(study, caplog):
+    import logging
+
+    csv = next(s for s in study.sections["excitation"] if s.name == "csv")
+    wider = dataclasses.replace(csv, altitude_range_km=(0.0, 60.0))   # the invented profile stops at 40 km
+    with caplog.at_level(logging.WARNING, logger="tstrate.physics.energised"):
+        r = excitation_yield(study, wider)
+    np.testing.assert_allclose(r.altitude_m, [0, 10e3, 20e3, 30e3, 40e3])
+    assert any("covers only 0 .. 40 km of the asked 0 .. 60 km" in m for m in caplog.messages)

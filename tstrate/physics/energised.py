@@ -29,6 +29,7 @@ k(E) s^-1, Z m^3 s^-1, collision frequencies s^-1, altitudes m.
 
 from __future__ import annotations
 
+import logging
 import math
 from dataclasses import dataclass, field
 from pathlib import Path
@@ -45,6 +46,8 @@ from tstrate.physics.pressure import (FalloffSettings, UnimolecularModel, bath_p
                                       unimolecular_model)
 from tstrate.physics.states import CM1_J_PER_MOL
 from tstrate.units import K_B, R
+
+log = logging.getLogger(__name__)
 
 #: Name of the built-in altitude profile.
 US_STANDARD_1976 = "us-standard-1976"
@@ -229,6 +232,10 @@ def _profile(study: Study, spec: ExcitationSpec) -> AtmosphereProfile:
     if not np.any(keep):
         raise InputError(f"no altitude of the profile lies in {lo:g} .. {hi:g} km", file=spec.file,
                          field=f"{spec.field}.altitude_km", hint=f"the profile is {spec.profile}")
+    z = prof.altitude_m[keep] / 1e3
+    if z.min() > lo + 1e-6 or z.max() < hi - 1e-6:
+        log.warning("%s: the profile %s covers only %g .. %g km of the asked %g .. %g km", spec.name,
+                    spec.profile, z.min(), z.max(), lo, hi)
     return AtmosphereProfile(prof.altitude_m[keep], prof.temperature_K[keep], prof.pressure_Pa[keep], prof.source)
 
 
