@@ -110,7 +110,6 @@ def compute_study(study: Study, *, low_modes: LowModes = HARMONIC,
     pressure_fits = {}
     if study.conditions.pressure_Pa.size or study.conditions.number_density_m3.size:
         step("falloff")
-        from tstrate.output.fits import TroeData
         from tstrate.physics.pressure import study_falloff
 
         falloff = study_falloff(study)
@@ -140,7 +139,7 @@ def compute_study(study: Study, *, low_modes: LowModes = HARMONIC,
                      split=opts.split, mechanism_form=opts.mechanism_form, troe=troe or None,
                      chebyshev_temperature_terms=opts.chebyshev_temperature_terms,
                      chebyshev_pressure_terms=opts.chebyshev_pressure_terms,
-                     falloff_grid=grid or None)
+                     falloff_grid=grid or None, rates=list(rates))
     warnings += list(fits.warnings)
     for cf in fits.channels:
         warnings += list(cf.warnings)

@@ -628,7 +628,7 @@ def fit_study(study, *, temperature_K=None, low_modes: LowModes = HARMONIC,
               troe: Mapping[str, TroeData] | None = None, bath_gas: str | None = None,
               reference_dir=None, chebyshev_temperature_terms: int | None = None,
               chebyshev_pressure_terms: int | None = None,
-              falloff_grid: Mapping[str, tuple] | None = None) -> StudyFits:
+              falloff_grid: Mapping[str, tuple] | None = None, rates=None) -> StudyFits:
     """Fit every channel's k(T) and every exported species' thermochemistry.
 
     Parameters
@@ -656,6 +656,8 @@ def fit_study(study, *, temperature_K=None, low_modes: LowModes = HARMONIC,
         InputError naming the [fits] key.
     falloff_grid: channel name -> (pressure_Pa (n_P,), k (n_T, n_P) in SI per molecule) on the
         fitted temperatures, for a two-dimensional Chebyshev fit of falloff channels.
+    rates: the study's TST results (:func:`tstrate.physics.tst.study_rates`) when the caller
+        has them already, computed with the same ``low_modes`` and temperatures; else computed here.
     """
     import tstrate
     from tstrate.physics.tst import study_rates
@@ -690,7 +692,8 @@ def fit_study(study, *, temperature_K=None, low_modes: LowModes = HARMONIC,
     for sp in exported:
         _check_energy(sp)
 
-    rates = study_rates(study, low_modes=low_modes, temperature_K=temperature_K)
+    if rates is None:
+        rates = study_rates(study, low_modes=low_modes, temperature_K=temperature_K)
     T_fit = rates[0].temperature_K
     lo, hi = nasa_range(T_fit, range_K=nasa_range_K)
     nasa_kw = dict(T_range_K=(lo, hi), T_mid_K=nasa_T_mid_K, adjust_mid=nasa_adjust_mid,
