@@ -128,7 +128,6 @@ def write_all(result, folder: Path, *, progress: Callable[[str], None] | None = 
     from tstrate.io.files import atomic_write_text
     from tstrate.output.mechanism import write_mechanism
     from tstrate.output.plots import arrhenius_figure
-    from tstrate.output.records import channel_rates_record
     from tstrate.output.tables import (csv_text, json_text, write_fits_csv, write_json, write_rate_tables,
                                        write_thermo_csv)
     from tstrate.workflow import file_sha256, input_files
@@ -162,8 +161,7 @@ def write_all(result, folder: Path, *, progress: Callable[[str], None] | None = 
     written.append(folder / "inputs.json")
 
     step("plots")
-    records = [channel_rates_record(r, units) for r in result.rates]
-    paths = _save(arrhenius_figure(records, study.title), folder / "plots", "arrhenius")
+    paths = _save(arrhenius_figure(doc["channels"], study.title), folder / "plots", "arrhenius")
     written += paths
     figures.append(("rates", paths[0], "Arrhenius plot: log10 k against 1000/T; dashed lines "
                     "without tunnelling."))
