@@ -237,6 +237,7 @@ def write_outputs(result: StudyResult, output_dir, *, force: bool = False,
     half-written. An existing ``output_dir`` is replaced only with ``force``;
     a folder holding an input file is never replaced.
     """
+    from tstrate.io.files import current_umask
     from tstrate.output.run_files import write_all
 
     out = Path(output_dir)
@@ -256,7 +257,7 @@ def write_outputs(result: StudyResult, output_dir, *, force: bool = False,
     except OSError as exc:
         raise InputError(f"cannot write the output folder: {exc.strerror}", file=str(out)) from None
     try:
-        os.chmod(tmp, 0o777 & ~_umask())
+        os.chmod(tmp, 0o777 & ~current_umask())
         written = write_all(result, tmp, progress=progress)
         if out.exists():
             old = out.with_name(f".{out.name}.old")
@@ -272,8 +273,3 @@ def write_outputs(result: StudyResult, output_dir, *, force: bool = False,
         raise
     return [out / p.relative_to(tmp) for p in written]
 
-
-def _umask() -> int:
-    mask = os.umask(0)
-    os.umask(mask)
-    return mask

@@ -23,7 +23,7 @@ def atomic_write_bytes(path: str | os.PathLike, data: bytes) -> None:
     try:
         with os.fdopen(fd, "wb") as fh:
             fh.write(data)
-        os.chmod(tmp, 0o666 & ~_umask())  # mkstemp makes 0600; give the usual permissions
+        os.chmod(tmp, 0o666 & ~current_umask())  # mkstemp makes 0600; give the usual permissions
         os.replace(tmp, path)
     except BaseException:
         try:
@@ -37,7 +37,8 @@ def atomic_write_text(path, text: str) -> None:
     atomic_write_bytes(path, text.encode("utf-8"))
 
 
-def _umask() -> int:
+def current_umask() -> int:
+    """The process's file-creation mask (read without changing it for good)."""
     mask = os.umask(0)
     os.umask(mask)
     return mask
