@@ -48,3 +48,16 @@ class InputError(ValueError):
         """Return a copy that fills in the file and field where they are missing."""
         return InputError(self.problem, file=self.file or file,
                           field=self.field or field, hint=self.hint)
+
+    def within(self, *, file: str | None = None, prefix: str | None = None) -> "InputError":
+        """A copy placed inside a file's section: fills in ``file`` where missing and puts
+        ``prefix`` in front of the key (``prefix.key``), or uses ``prefix`` when there is no key.
+
+        The study and species readers call this once, at the boundary, on errors raised by
+        records and physics that name only their own parameter."""
+        if self.file is not None and self.file != (None if file is None else str(file)):
+            return self  # already placed in another file (e.g. a species file named by a study)
+        field = self.field
+        if prefix:
+            field = f"{prefix}.{field}" if field else prefix
+        return InputError(self.problem, file=self.file or file, field=field, hint=self.hint)

@@ -14,6 +14,7 @@ import numpy as np
 import pytest
 from ase.build import molecule
 
+from tstrate import geometry
 from tstrate.physics import symmetry as sym
 from tstrate.physics.vibrations import default_masses_amu, isotope_mass_amu
 from tstrate.units import AMU
@@ -53,18 +54,18 @@ def test_symmetry_number_is_invariant_under_rotation_and_translation(name):
     symbols, x, m = _g2(name)
     moved = x @ _rotation(7).T + np.array([3.0, -1.5, 12.0])
     assert sym.symmetry_number(symbols, moved, m) == sym.symmetry_number(symbols, x, m)
-    assert sym.is_linear(moved, m) == sym.is_linear(x, m)
+    assert geometry.is_linear(moved, m) == geometry.is_linear(x, m)
 
 
 @pytest.mark.parametrize("name,linear", [("CO2", True), ("HCN", True), ("C2H2", True), ("N2", True),
                                          ("H2O", False), ("CH4", False), ("C2H4", False)])
 def test_linearity(name, linear):
     _, x, m = _g2(name)
-    assert sym.is_linear(x, m) is linear
+    assert geometry.is_linear(x, m) is linear
 
 
 def test_an_atom_is_not_linear_and_has_sigma_one():
-    assert not sym.is_linear([[0.0, 0.0, 0.0]], [39.96])
+    assert not geometry.is_linear([[0.0, 0.0, 0.0]], [39.96])
     assert sym.symmetry_number(["Ar"], [[1.0, 2.0, 3.0]], [39.96]) == 1
     assert sym.optical_isomers(["Ar"], [[1.0, 2.0, 3.0]], [39.96]) == 1
 
@@ -73,10 +74,10 @@ def test_bent_co2_within_and_beyond_the_linearity_tolerance():
     symbols, x, m = _g2("CO2")
     bent = x.copy()
     bent[1, 0] += 0.005  # carbon 0.005 Angstrom off the axis: linear within 0.02 Angstrom
-    assert sym.is_linear(bent, m)
+    assert geometry.is_linear(bent, m)
     assert sym.symmetry_number(symbols, bent, m) == 2
     bent[1, 0] += 0.1  # clearly bent: C2v, nonlinear
-    assert not sym.is_linear(bent, m)
+    assert not geometry.is_linear(bent, m)
     assert sym.symmetry_number(symbols, bent, m) == 2
 
 
@@ -150,13 +151,13 @@ H2CO3_TS_LIKE = (["C", "O", "O", "O", "H", "H"], np.array([
     [-0.10, -1.40, 0.0], [-1.95, 0.15, 0.0]]))  # Cs
 
 
-@pytest.mark.parametrize("geometry,sigma", [(H2CO3_CIS_CIS, 2), (H2CO3_CIS_TRANS, 1),
+@pytest.mark.parametrize("structure,sigma", [(H2CO3_CIS_CIS, 2), (H2CO3_CIS_TRANS, 1),
                                             (H2CO3_TS_LIKE, 1)],
                          ids=["H2CO3-cis-cis-C2v", "H2CO3-cis-trans-Cs", "H2CO3-TS-like-Cs"])
-def test_planar_carbonic_acid_geometries(geometry, sigma):
-    symbols, x = geometry
+def test_planar_carbonic_acid_geometries(structure, sigma):
+    symbols, x = structure
     m = default_masses_amu(symbols)
-    assert not sym.is_linear(x, m)
+    assert not geometry.is_linear(x, m)
     assert sym.symmetry_number(symbols, x, m) == sigma
     assert sym.optical_isomers(symbols, x, m) == 1  # planar: never chiral
 
@@ -194,7 +195,7 @@ def test_carbon_with_four_different_substituents_is_chiral():
 @pytest.mark.parametrize("name", ["H2O", "CH4", "C6H6", "CO2", "H2O2", "CH3Cl"])
 def test_principal_moments_match_ase(name):
     atoms = molecule(name)
-    ours = sym.principal_moments(atoms.positions, atoms.get_masses())
+    ours = geometry.principal_moments(atoms.positions, atoms.get_masses())
     ase_kg_m2 = np.sort(atoms.get_moments_of_inertia()) * AMU * 1e-20  # ASE: amu Angstrom^2
     # ASE's amu is CODATA 2014, ours CODATA 2022: 1e-8 relative
     assert ours == pytest.approx(ase_kg_m2, rel=1e-7, abs=1e-52)
@@ -202,5 +203,5 @@ def test_principal_moments_match_ase(name):
 
 def test_centre_of_mass_frame_has_zero_first_moment():
     symbols, x, m = _g2("CH3Cl")
-    xc = sym.centre_of_mass_frame(x + 5.0, m)
+    xc = geometry.centre_of_mass_frame(x + 5.0, m)
     assert np.allclose((m[:, None] * xc).sum(axis=0), 0.0, atol=1e-12)

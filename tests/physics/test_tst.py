@@ -581,15 +581,18 @@ def test_transition_state_needs_exactly_one_imaginary_frequency(carbonic):
     sp = carbonic.species
     ch = carbonic.channel("bare")
     ts = sp["TS_bare"]
-    none_imag = dict(sp, TS_bare=dataclasses.replace(ts, frequencies_cm1=np.abs(ts.frequencies_cm1)))
-    with pytest.raises(InputError, match="has 0 imaginary frequencies") as exc:
-        tst.channel_rates(ch, none_imag, [300.0])
+    # refused when the record is built (not first when rates are computed), naming file and key
+    with pytest.raises(InputError, match="exactly one imaginary frequency, found 0") as exc:
+        dataclasses.replace(ts, frequencies_cm1=np.abs(ts.frequencies_cm1))
     assert "ts_bare.toml" in str(exc.value) and "frequencies_cm1" in str(exc.value)
     f = np.array(ts.frequencies_cm1, dtype=float)
     f[1] = -f[1]
-    two_imag = dict(sp, TS_bare=dataclasses.replace(ts, frequencies_cm1=np.sort(f)))
-    with pytest.raises(InputError, match="has 2 imaginary frequencies"):
-        tst.channel_rates(ch, two_imag, [300.0])
+    with pytest.raises(InputError, match="exactly one imaginary frequency, found 2"):
+        dataclasses.replace(ts, frequencies_cm1=np.sort(f))
+    # a minimum used as the transition state of a channel is still refused by the rate code
+    not_ts = dict(sp, TS_bare=dataclasses.replace(ts, kind="minimum", frequencies_cm1=np.abs(ts.frequencies_cm1)))
+    with pytest.raises(InputError, match="has 0 imaginary frequencies"):
+        tst.channel_rates(ch, not_ts, [300.0])
 
 
 @pytest.mark.parametrize("temps", [[0.0], [300.0, -5.0], [np.nan], [np.inf]])
@@ -601,9 +604,8 @@ def test_temperatures_must_be_positive_and_finite(carbonic, temps):
 
 
 def test_unknown_tunnelling_model(carbonic):
-    ch = dataclasses.replace(carbonic.channel("bare"), tunnelling="parabolic")
     with pytest.raises(InputError, match="unknown tunnelling model 'parabolic'"):
-        tst.channel_rates(ch, carbonic.species, [300.0])
+        dataclasses.replace(carbonic.channel("bare"), tunnelling="parabolic")  # refused at construction
 
 
 def test_eckart_needs_positive_barriers(carbonic):

@@ -22,11 +22,12 @@ from scipy import constants as sc
 
 from tests.conftest import (WATER_POSITIONS_A, WATER_SYMBOLS, valence_b_rows,
                             valence_hessian_J_per_m2, water_terms)
+from tstrate.geometry import expected_mode_count
 from tstrate.errors import InputError
 from tstrate.io.species import build_species
 from tstrate.physics.thermo import thermochemistry
 from tstrate.physics.vibrations import (HESSIAN_UNITS_J_PER_M2, default_masses_amu,
-                                        expected_mode_count, isotope_mass_amu, rigid_body_basis,
+                                        isotope_mass_amu, rigid_body_basis,
                                         vibrational_analysis)
 from tstrate.units import AMU, C
 
@@ -232,7 +233,7 @@ def _water_frequencies(masses):
 
 def test_teller_redlich_product_rule_for_d2o():
     """prod(w'/w)^2 = prod_a (m_a/m_a')^3 (M'/M)^3 (I'_A I'_B I'_C)/(I_A I_B I_C), nonlinear."""
-    from tstrate.physics.symmetry import principal_moments
+    from tstrate.geometry import principal_moments
 
     mh = default_masses_amu(WATER_SYMBOLS)
     md = mh.copy()

@@ -35,7 +35,8 @@ import numpy as np
 
 from tstrate.errors import InputError
 from tstrate.model import Species
-from tstrate.physics.vibrations import HESSIAN_UNITS_J_PER_M2, expected_mode_count
+from tstrate.geometry import expected_mode_count
+from tstrate.physics.vibrations import HESSIAN_UNITS_J_PER_M2
 from tstrate.units import ENERGY_UNITS_J_PER_MOL, energy_to_J_per_mol
 
 log = logging.getLogger(__name__)
@@ -174,7 +175,7 @@ def read_output(path, *, name: str | None = None, kind: str | None = None,
     Other keywords go to :func:`tstrate.io.species.build_species`.
     """
     from tstrate.io.species import build_species
-    from tstrate.physics.symmetry import is_linear
+    from tstrate.geometry import is_linear
     from tstrate.physics.vibrations import default_masses_amu, vibrational_analysis
 
     path = Path(path)

@@ -42,7 +42,7 @@ are required)::
     method = "GFN2-xTB"
     source = "..."
 
-Free rotors: each ``replaces_cm1`` must lie within :data:`ROTOR_MATCH_CM1` (1 cm^-1) of
+Free rotors: each ``replaces_cm1`` must lie within :data:`tstrate.model.species.ROTOR_MATCH_CM1` (1 cm^-1) of
 exactly one real mode (tolerated small imaginary modes of a minimum count by their
 magnitude; the imaginary mode of a transition state cannot be replaced), and no mode may be
 replaced twice. The matched mode leaves the harmonic set everywhere (partition function,
@@ -61,23 +61,19 @@ from pathlib import Path
 
 import numpy as np
 
+from tstrate.arrays import finite_or_nan
 from tstrate.errors import InputError
+from tstrate.geometry import DEFAULT_TOLERANCE_A, is_linear
 from tstrate.io.tables import Table, load_toml
-from tstrate.model import ElectronicLevel, FreeRotor, Species
+from tstrate.model.species import ElectronicLevel, FreeRotor, Species, check_geometry
 from tstrate.physics import symmetry as sym
 from tstrate.physics.vibrations import (HESSIAN_UNITS_J_PER_M2, default_masses_amu,
-                                        expected_mode_count, isotope_mass_amu, vibrational_analysis)
+                                        isotope_mass_amu, vibrational_analysis)
 from tstrate.units import energy_to_J_per_mol
 
 log = logging.getLogger(__name__)
 
 _BARE_KEY = re.compile(r"[A-Za-z0-9_-]+")
-
-#: closest approach of two nuclei accepted in a geometry [Angstrom]
-MIN_DISTANCE_A = 0.4
-
-#: a free rotor's ``replaces_cm1`` must lie this close to the mode it replaces [cm^-1]
-ROTOR_MATCH_CM1 = 1.0
 
 KNOWN_KEYS = {"name", "charge", "multiplicity", "kind", "geometry", "frequencies_cm1",
               "frequency_scale", "energy", "single_point", "symmetry_number", "optical_isomers",
@@ -133,23 +129,6 @@ def read_geometry(value: str, base: Path | None, *, file=None, field="geometry")
     return list(atoms.get_chemical_symbols()), np.array(atoms.positions, dtype=float)
 
 
-def _check_geometry(symbols, positions, *, file, field="geometry"):
-    from ase.data import atomic_numbers
-
-    for i, s in enumerate(symbols):
-        if s not in atomic_numbers or s == "X":
-            raise InputError(f"unknown element {s!r} (atom {i + 1})", file=file, field=field)
-    if not np.all(np.isfinite(positions)):
-        raise InputError("coordinates hold NaN or infinite values", file=file, field=field)
-    if len(symbols) > 1:
-        d = np.linalg.norm(positions[:, None] - positions[None, :], axis=2)
-        d[np.diag_indices_from(d)] = np.inf
-        i, j = np.unravel_index(np.argmin(d), d.shape)
-        if d[i, j] < MIN_DISTANCE_A:
-            raise InputError(f"atoms {i + 1} and {j + 1} overlap ({d[i, j]:.3f} Angstrom apart)",
-                             file=file, field=field, hint="check the units (Angstrom expected)")
-
-
 # ---- building a species -----------------------------------------------------------
 
 def build_species(name: str, symbols, positions_A, *, charge: int = 0, multiplicity: int = 1,
@@ -160,7 +139,7 @@ def build_species(name: str, symbols, positions_A, *, charge: int = 0, multiplic
                   masses_amu=None, isotopes: dict[int, int] | None = None,
                   electronic_levels=(), allow_imaginary_below_cm1: float = 0.0,
                   lennard_jones=None, provenance: dict | None = None, source: str | None = None,
-                  symmetry_tolerance_A: float = sym.DEFAULT_TOLERANCE_A, free_rotors=()) -> Species:
+                  symmetry_tolerance_A: float = DEFAULT_TOLERANCE_A, free_rotors=()) -> Species:
     """Validate inputs and build a :class:`Species` (the one path from files and from Python).
 
     ``isotopes`` maps 0-based atom indices to mass numbers. When a Hessian is
@@ -170,32 +149,8 @@ def build_species(name: str, symbols, positions_A, *, charge: int = 0, multiplic
     module docstring).
     """
     file = source
-    symbols = [str(s) for s in symbols]
-    positions = np.array(positions_A, dtype=float).reshape(-1, 3)
-    if len(symbols) != len(positions):
-        raise InputError(f"{len(symbols)} symbols but {len(positions)} positions", file=file,
-                         field="geometry")
-    _check_geometry(symbols, positions, file=file)
-    if kind not in ("minimum", "transition_state"):
-        raise InputError(f"unknown kind {kind!r}", file=file, field="kind",
-                         hint="use 'minimum' or 'transition_state'")
-    if int(multiplicity) < 1:
-        raise InputError("multiplicity must be 1 or more", file=file, field="multiplicity")
-    from ase.data import atomic_numbers
-
-    electrons = sum(atomic_numbers[s] for s in symbols) - int(charge)
-    if electrons < 0:
-        raise InputError(f"charge {charge} leaves {electrons} electrons", file=file, field="charge")
-    if (electrons + int(multiplicity)) % 2 == 0:  # 2S+1 must be odd for an even electron count
-        raise InputError(f"multiplicity {multiplicity} is impossible with {electrons} electrons",
-                         file=file, field="multiplicity",
-                         hint="an even electron count needs an odd multiplicity (1, 3, ...) and vice versa")
-    if not (allow_imaginary_below_cm1 >= 0 and math.isfinite(allow_imaginary_below_cm1)):
-        raise InputError("allow_imaginary_below_cm1 must be a non-negative wavenumber", file=file,
-                         field="allow_imaginary_below_cm1")
-    if not (frequency_scale > 0 and math.isfinite(frequency_scale)):
-        raise InputError("frequency scale factor must be positive", file=file, field="frequency_scale")
-
+    symbols, positions = check_geometry(symbols, positions_A, file=file)
+    symbols = list(symbols)
     masses = (default_masses_amu(symbols) if masses_amu is None
               else np.array(masses_amu, dtype=float))
     for idx, mass_number in (isotopes or {}).items():
@@ -206,10 +161,11 @@ def build_species(name: str, symbols, positions_A, *, charge: int = 0, multiplic
             masses[idx] = isotope_mass_amu(symbols[idx], mass_number)
         except InputError as exc:
             raise exc.located(file=file, field="isotopes") from None
+    if not (finite_or_nan(allow_imaginary_below_cm1) >= 0):
+        raise InputError("allow_imaginary_below_cm1 must be a non-negative wavenumber", file=file,
+                         field="allow_imaginary_below_cm1")
 
-    is_lin = sym.is_linear(positions, masses, symmetry_tolerance_A) if linear is None else bool(linear)
-    nmodes = expected_mode_count(len(symbols), is_lin)
-
+    is_lin = is_linear(positions, masses, symmetry_tolerance_A) if linear is None else bool(linear)
     if hessian_J_per_m2 is not None:
         try:
             nm = vibrational_analysis(hessian_J_per_m2, positions, masses, is_lin)
@@ -227,110 +183,28 @@ def build_species(name: str, symbols, positions_A, *, charge: int = 0, multiplic
         freqs = np.array(frequencies_cm1, dtype=float)
     else:
         raise InputError("give frequencies_cm1 or a [hessian]", file=file, field="frequencies_cm1")
-    if not np.all(np.isfinite(freqs)):
-        raise InputError("frequencies hold NaN or infinite values", file=file, field="frequencies_cm1")
-    if len(freqs) != nmodes:
-        shape = "atom" if len(symbols) == 1 else ("linear" if is_lin else "nonlinear")
-        raise InputError(f"{len(freqs)} frequencies for a {shape} species of {len(symbols)} atoms; "
-                         f"expected {nmodes}", file=file, field="frequencies_cm1")
     freqs = np.sort(freqs)
 
     imag = freqs[freqs < 0]
-    if kind == "transition_state":
-        if len(imag) != 1:
-            raise InputError(f"a transition state needs exactly one imaginary frequency, found "
-                             f"{len(imag)}", file=file, field="frequencies_cm1",
-                             hint="imaginary frequencies are written as negative numbers")
-    elif len(imag):
-        too_big = imag[-imag > allow_imaginary_below_cm1]
-        if len(too_big):
-            raise InputError(f"a minimum with imaginary frequency {too_big[0]:.1f} cm-1", file=file,
-                             field="frequencies_cm1",
-                             hint="set allow_imaginary_below_cm1 to tolerate small ones, or kind = "
-                                  "'transition_state'")
+    if kind == "minimum" and len(imag) and np.all(-imag <= allow_imaginary_below_cm1):
         log.warning("%s: %d small imaginary frequencies treated as real", name, len(imag))
         freqs = np.sort(np.abs(freqs))
 
     if symmetry_number is None:
         symmetry_number = sym.symmetry_number(symbols, positions, masses, symmetry_tolerance_A)
-    elif int(symmetry_number) < 1:
-        raise InputError("symmetry number must be 1 or more", file=file, field="symmetry_number")
     if optical_isomers is None:
         optical_isomers = sym.optical_isomers(symbols, positions, masses, symmetry_tolerance_A)
-    elif int(optical_isomers) < 1:
-        raise InputError("number of optical isomers must be 1 or more", file=file,
-                         field="optical_isomers")
 
-    levels = tuple(electronic_levels)
-    for lv in levels:
-        if lv.degeneracy < 1 or lv.energy_cm1 < 0:
-            raise InputError("electronic levels need degeneracy >= 1 and energy >= 0", file=file,
-                             field="electronic_levels")
-    if levels and min(lv.energy_cm1 for lv in levels) != 0.0:
-        raise InputError("the lowest electronic level must be at 0 cm-1", file=file,
-                         field="electronic_levels")
-
-    rotors = _check_free_rotors(free_rotors, freqs, file=file)
-
-    hess = None if hessian_J_per_m2 is None else np.array(hessian_J_per_m2, dtype=float)
+    # every check of the values themselves runs in Species' construction
     return Species(
         name=name, symbols=tuple(symbols), positions_A=positions, masses_amu=masses,
-        charge=int(charge), multiplicity=int(multiplicity),
-        energy_J_per_mol=energy_J_per_mol, frequencies_cm1=freqs, frequency_scale=float(frequency_scale),
-        kind=kind, symmetry_number=int(symmetry_number), optical_isomers=int(optical_isomers),
-        linear=is_lin, electronic_levels=levels, hessian_J_per_m2=hess,
+        charge=charge, multiplicity=multiplicity,
+        energy_J_per_mol=energy_J_per_mol, frequencies_cm1=freqs, frequency_scale=frequency_scale,
+        kind=kind, symmetry_number=symmetry_number, optical_isomers=optical_isomers,
+        linear=is_lin, electronic_levels=tuple(electronic_levels), hessian_J_per_m2=hessian_J_per_m2,
         geometry_energy_J_per_mol=geometry_energy_J_per_mol, provenance=dict(provenance or {}),
-        source=source, lennard_jones=lennard_jones, free_rotors=rotors,
+        source=source, lennard_jones=lennard_jones, free_rotors=tuple(free_rotors),
     )
-
-
-def _finite(x) -> float:
-    """``x`` as a float, NaN when it is not a finite number (so every comparison fails)."""
-    try:
-        v = float(x)
-    except (TypeError, ValueError):
-        return math.nan
-    return v if math.isfinite(v) else math.nan
-
-
-def _check_free_rotors(free_rotors, freqs: np.ndarray, *, file) -> tuple[FreeRotor, ...]:
-    """Validate free rotors against the final (sorted, unscaled) wavenumbers; each rotor comes
-    back with ``replaces_cm1`` set to the wavenumber of the mode it matched."""
-    out, used = [], {}
-    real = np.flatnonzero(freqs > 0)
-    for i, rotor in enumerate(free_rotors):
-        key = f"free_rotors[{i}]"
-        if not isinstance(rotor, FreeRotor):
-            raise InputError(f"expected a FreeRotor, got {type(rotor).__name__}", file=file, field=key)
-        nu = _finite(rotor.replaces_cm1)
-        if not nu > 0:
-            raise InputError(f"must be a positive wavenumber, got {rotor.replaces_cm1!r}", file=file,
-                             field=f"{key}.replaces_cm1")
-        sigma = rotor.symmetry_number
-        if isinstance(sigma, bool) or not _finite(sigma) >= 1 or int(sigma) != sigma:
-            raise InputError(f"must be an integer of 1 or more, got {sigma!r}", file=file,
-                             field=f"{key}.symmetry_number")
-        moment = _finite(rotor.reduced_moment_amu_A2)
-        if not moment > 0:
-            raise InputError(f"must be positive, got {rotor.reduced_moment_amu_A2!r}", file=file,
-                             field=f"{key}.reduced_moment_amu_A2")
-        dist = np.abs(freqs[real] - nu)
-        hits = real[dist <= ROTOR_MATCH_CM1]
-        if len(hits) != 1:
-            nearest = ", ".join(f"{freqs[j]:.2f}" for j in real[np.argsort(dist)[:3]]) or "none"
-            problem = (f"no real mode within {ROTOR_MATCH_CM1:g} cm-1 of {nu:g} cm-1" if not len(hits)
-                       else f"{len(hits)} real modes lie within {ROTOR_MATCH_CM1:g} cm-1 of {nu:g} cm-1")
-            hint = ("give the unscaled wavenumber of the mode the rotor replaces" if not len(hits) else
-                    f"give a value within {ROTOR_MATCH_CM1:g} cm-1 of only the mode the rotor replaces")
-            raise InputError(f"{problem}; nearest modes: {nearest} cm-1", file=file,
-                             field=f"{key}.replaces_cm1", hint=hint)
-        j = int(hits[0])
-        if j in used:
-            raise InputError(f"the mode at {freqs[j]:.2f} cm-1 is already replaced by free_rotors[{used[j]}]",
-                             file=file, field=f"{key}.replaces_cm1", hint="each mode can be replaced once")
-        used[j] = i
-        out.append(FreeRotor(float(freqs[j]), int(sigma), float(moment)))
-    return tuple(out)
 
 
 def species_from_atoms(atoms, name: str | None = None, **kwargs) -> Species:

@@ -54,6 +54,14 @@ class Table:
         return InputError(problem, file=self.file, field=self.key(name) if name else (self.prefix or None),
                           hint=hint)
 
+    def build(self, factory, *args, **kwargs):
+        """``factory(*args, **kwargs)`` (a record or a physics check); an :class:`InputError` it raises
+        about its own parameter comes back placed in this file and table."""
+        try:
+            return factory(*args, **kwargs)
+        except InputError as exc:
+            raise exc.within(file=self.file, prefix=self.prefix or None) from None
+
     def __contains__(self, name: str) -> bool:
         return name in self.data
 

@@ -94,10 +94,11 @@ import numpy as np
 from scipy.special import logsumexp
 
 from tstrate.errors import InputError
+from tstrate.model.species import TUNNELLING_MODELS
 from tstrate.units import CM1_J, N_A, R
 
 #: Names accepted by :func:`kappa` and :func:`log_kappa`.
-MODELS: tuple[str, ...] = ("none", "wigner", "skodje-truhlar", "eckart")
+MODELS: tuple[str, ...] = TUNNELLING_MODELS
 
 # Quadrature layout of the Eckart thermal average (see module docstring).
 _SEARCH_POINTS = 65      # points per search level

@@ -19,7 +19,7 @@ import numpy as np
 from scipy import constants as _sc
 
 from tstrate.errors import InputError
-from tstrate.physics.symmetry import centre_of_mass_frame, is_linear
+from tstrate.geometry import centre_of_mass_frame, is_linear
 from tstrate.units import AMU, C, HARTREE_J
 
 _BOHR = _sc.physical_constants["Bohr radius"][0]
@@ -143,10 +143,3 @@ def vibrational_analysis(hessian_J_per_m2, positions_A, masses_amu,
     freqs = omega / (2 * np.pi * C * 100.0)  # [cm^-1]
     modes = (vib @ vec).T.reshape(-1, n, 3)
     return NormalModes(frequencies_cm1=freqs, modes=modes, linear=bool(linear))
-
-
-def expected_mode_count(natoms: int, linear: bool) -> int:
-    """3N-6 for a nonlinear molecule, 3N-5 for a linear one, 0 for an atom."""
-    if natoms == 1:
-        return 0
-    return 3 * natoms - (5 if linear else 6)

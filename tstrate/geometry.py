@@ -1,0 +1,61 @@
+"""Geometry of a set of nuclei: centre of mass, inertia tensor, principal moments, linearity, distances.
+
+Positions in Angstrom, masses in unified atomic mass units (u); moments of inertia in kg m^2.
+"""
+
+from __future__ import annotations
+
+import numpy as np
+
+from tstrate.units import AMU
+
+#: default geometric tolerance for linearity and symmetry detection [Angstrom]
+DEFAULT_TOLERANCE_A = 0.02
+
+
+def centre_of_mass_frame(positions_A, masses_amu) -> np.ndarray:
+    """Positions relative to the centre of mass [Angstrom]."""
+    x = np.asarray(positions_A, dtype=float)
+    m = np.asarray(masses_amu, dtype=float)
+    return x - (m[:, None] * x).sum(axis=0) / m.sum()
+
+
+def inertia_tensor(positions_A, masses_amu) -> np.ndarray:
+    """Inertia tensor about the centre of mass [kg m^2]."""
+    x = centre_of_mass_frame(positions_A, masses_amu) * 1e-10
+    m = np.asarray(masses_amu, dtype=float) * AMU
+    r2 = (x**2).sum(axis=1)
+    return np.eye(3) * (m * r2).sum() - np.einsum("i,ij,ik->jk", m, x, x)
+
+
+def principal_moments(positions_A, masses_amu) -> np.ndarray:
+    """Principal moments of inertia [kg m^2], ascending."""
+    if len(masses_amu) == 1:
+        return np.zeros(3)
+    return np.clip(np.linalg.eigvalsh(inertia_tensor(positions_A, masses_amu)), 0.0, None)
+
+
+def is_linear(positions_A, masses_amu, tolerance_A: float = DEFAULT_TOLERANCE_A) -> bool:
+    """True when all atoms lie on one line (within ``tolerance_A``); False for an atom."""
+    x = centre_of_mass_frame(positions_A, masses_amu)
+    if len(x) < 2:
+        return False
+    # largest singular value spans the line; the others measure the spread off it
+    s = np.linalg.svd(x, compute_uv=False)
+    return bool(s[1] < tolerance_A)
+
+
+def closest_pair(positions_A) -> tuple[int, int, float]:
+    """(i, j, distance [Angstrom]) of the two nuclei closest to each other (0-based; needs 2 atoms)."""
+    x = np.asarray(positions_A, dtype=float)
+    d = np.linalg.norm(x[:, None] - x[None, :], axis=2)
+    d[np.diag_indices_from(d)] = np.inf
+    i, j = np.unravel_index(np.argmin(d), d.shape)
+    return int(i), int(j), float(d[i, j])
+
+
+def expected_mode_count(natoms: int, linear: bool) -> int:
+    """3N-6 for a nonlinear molecule, 3N-5 for a linear one, 0 for an atom."""
+    if natoms == 1:
+        return 0
+    return 3 * natoms - (5 if linear else 6)

@@ -1,0 +1,60 @@
+"""A study: species, channels, conditions and the typed settings of its optional sections.
+
+Units are SI (temperatures K, pressures Pa, number densities m^-3).
+"""
+
+from __future__ import annotations
+
+from dataclasses import dataclass, field
+
+import numpy as np
+
+from tstrate.model.species import Channel
+
+
+@dataclass(frozen=True)
+class Conditions:
+    """Conditions a study asks for.
+
+    temperature_K: (T,) temperatures [K].
+    pressure_Pa: (P,) total pressures [Pa] for falloff, may be empty.
+    number_density_m3: (P,) bath-gas number densities [m^-3], when the study gives [M]
+        instead of pressures (then pressure_Pa is empty).
+    bath_gas: name of the bath gas for collisions (built-in or a species), or None.
+    rate_units: molecularity -> output unit of rate constants (e.g. {2: "cm3 molecule-1 s-1"}).
+    """
+
+    temperature_K: np.ndarray
+    pressure_Pa: np.ndarray = field(default_factory=lambda: np.zeros(0))
+    number_density_m3: np.ndarray = field(default_factory=lambda: np.zeros(0))
+    bath_gas: str | None = None
+    rate_units: dict = field(default_factory=dict)
+
+
+@dataclass(frozen=True)
+class Study:
+    """Everything a study file asks for, validated.
+
+    file: the study file's path (None when built in Python).
+    title: free text.
+    species: name -> Species.
+    channels: the channels, in file order.
+    conditions: temperatures, pressures, bath gas, output units.
+    sections: further validated parts added by later readers (comparisons,
+        falloff settings, excitations, fits), keyed by section name.
+    species_files: name -> path of the species file (for reports and hashes).
+    """
+
+    file: str | None
+    title: str
+    species: dict
+    channels: tuple[Channel, ...]
+    conditions: Conditions
+    sections: dict = field(default_factory=dict)
+    species_files: dict = field(default_factory=dict)
+
+    def channel(self, name: str) -> Channel:
+        for ch in self.channels:
+            if ch.name == name:
+                return ch
+        raise KeyError(name)
