@@ -5,7 +5,7 @@ water complex, with two waters, and the reverse of the bare channel; all four wi
 tunnelling). The study file and its species files are read once before any timing: the times
 below are compute only.
 
-Fast path: tstrate.physics.tst.study_rates on the whole temperature array (everything it
+Fast path: tstrate.study.rates.study_rates on the whole temperature array (everything it
 returns: k, kappa, reverse rates, Kc, activation quantities).
 Reference, timed in the same run: a per-temperature Python loop written here from textbook
 formulas - partition functions per volume evaluated one temperature at a time, and the Eckart
@@ -29,7 +29,7 @@ from scipy import constants as sc
 from scipy import integrate, optimize
 
 from tstrate.io.study import read_study
-from tstrate.physics.tst import study_rates
+from tstrate.study.rates import study_rates
 
 STUDY = Path(__file__).resolve().parents[1] / "tests" / "data" / "tst" / "study.toml"
 TEMPERATURES_K = np.geomspace(150.0, 1500.0, 200)

@@ -10,7 +10,7 @@ The numbers are checked first: S and H to 1e-6 relative, G to 1e-6 of |H| + |T S
 cancels at some temperatures). The ~4e-7 residual is ASE's CODATA 2014 constants against
 tstrate's CODATA 2022 ones (see tests/physics/test_thermo.py).
 
-Species: the five experimental reference species in molecules/reference/ and five molecules
+Species: the five experimental reference species in tstrate/io/reference/ and five molecules
 from ASE's G2 set with approximate experimental fundamentals (Shimanouchi 1972, from memory;
 they only need to be identical inputs to both codes).
 
@@ -60,7 +60,7 @@ def load_species():
     """(species, ASE geometry keyword, spin) for the 10 benchmark species."""
     out = []
     for name in ("h2o", "co2", "so2", "n2", "o2"):
-        sp = read_species(ROOT / "molecules" / "reference" / f"{name}.toml")
+        sp = read_species(ROOT / "tstrate" / "io" / "reference" / f"{name}.toml")
         if name == "o2":  # ASE knows only the spin degeneracy, not the a1Delta_g level
             sp = sp.with_changes(electronic_levels=())
         out.append(sp)

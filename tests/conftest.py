@@ -73,7 +73,7 @@ def valence_hessian_J_per_m2(positions_A, **terms):
 WATER_K_OH_N_PER_M = 845.0
 WATER_K_BEND_J_PER_RAD2 = 0.76e-18
 
-#: Experimental H2O geometry (molecules/reference/h2o.toml: r(OH) = 0.9572 A, HOH = 104.52 deg)
+#: Experimental H2O geometry (tstrate/io/reference/h2o.toml: r(OH) = 0.9572 A, HOH = 104.52 deg)
 WATER_SYMBOLS = ("O", "H", "H")
 WATER_POSITIONS_A = np.array([[0.0, 0.0, 0.0],
                               [0.0, 0.756950, 0.585882],

@@ -16,9 +16,9 @@ _LAZY = {
     "read_study": "tstrate.io.study",
     "thermochemistry": "tstrate.physics.thermo",
     "channel_rates": "tstrate.physics.tst",
-    "study_rates": "tstrate.physics.tst",
-    "compute_study": "tstrate.workflow",
-    "write_outputs": "tstrate.workflow",
+    "study_rates": "tstrate.study.rates",
+    "compute_study": "tstrate.study.run",
+    "write_outputs": "tstrate.output.folder",
 }
 
 

@@ -16,7 +16,7 @@ from scipy import constants as sc
 
 from tstrate.cli.main import main
 from tstrate.io.study import read_study
-from tstrate.physics.catalysis import study_comparisons
+from tstrate.study.routes import study_comparisons
 
 DATA = Path(__file__).resolve().parents[1] / "data"
 STUDY = DATA / "catalysis" / "study.toml"

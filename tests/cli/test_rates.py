@@ -18,7 +18,7 @@ import pytest
 
 from tstrate.cli.main import main
 from tstrate.io.study import read_study
-from tstrate.physics.tst import study_rates
+from tstrate.study.rates import study_rates
 
 DATA = Path(__file__).resolve().parents[1] / "data" / "tst"
 STUDY = DATA / "study.toml"

@@ -6,7 +6,7 @@ import pytest
 
 from tstrate.cli.main import main
 
-H2O = Path(__file__).resolve().parents[2] / "molecules" / "reference" / "h2o.toml"
+H2O = Path(__file__).resolve().parents[2] / "tstrate" / "io" / "reference" / "h2o.toml"
 
 
 @pytest.mark.parametrize("argv, needle", [

@@ -19,7 +19,7 @@ from tstrate.physics.vibrations import (HESSIAN_UNITS_J_PER_M2, default_masses_a
 from tstrate.units import ENERGY_UNITS_J_PER_MOL
 
 ROOT = Path(__file__).resolve().parents[2]
-REFERENCE = ROOT / "molecules" / "reference"
+REFERENCE = ROOT / "tstrate" / "io" / "reference"
 DATA = ROOT / "tests" / "data" / "species"
 
 

@@ -107,7 +107,7 @@ def test_rate_units_in_m3_per_mol(study_dir):
     study = read_study(study_dir / "study.toml")
     assert study.conditions.rate_units == {2: "m3 mol-1 s-1"}
     from tstrate.output.records import channel_rates_record
-    from tstrate.physics.tst import study_rates
+    from tstrate.study.rates import study_rates
 
     rec = channel_rates_record(study_rates(study)[1], study.conditions.rate_units)
     assert rec["rate_constant_unit"] == "m3 mol-1 s-1"

@@ -6,8 +6,8 @@ from pathlib import Path
 import pytest
 
 from tstrate.io.study import read_study
-from tstrate.output.fits import fit_study
-from tstrate.physics.tst import study_rates
+from tstrate.study.fits import fit_study
+from tstrate.study.rates import study_rates
 
 CARBONIC = Path(__file__).resolve().parent / "data" / "carbonic" / "study.toml"
 

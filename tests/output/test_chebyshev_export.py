@@ -1,4 +1,4 @@
-"""Chebyshev expressions in fits (tstrate.output.fits), fits.json/fits.csv and the Cantera mechanism.
+"""Chebyshev expressions in fits (tstrate.study.fits, tstrate.output.fit_records), fits.json/fits.csv and the Cantera mechanism.
 
 Cantera (reference library, test-only) is the independent reader of the mechanism: it evaluates
 the written ``type: Chebyshev`` reactions from the coefficients, the reduced variables of
@@ -22,7 +22,8 @@ import pytest
 
 from tstrate.errors import InputError
 from tstrate.io.study import read_study
-from tstrate.output.fits import TroeData, arrhenius_expression, fit_study, fits_to_json
+from tstrate.output.fit_records import fits_to_json
+from tstrate.study.fits import TroeData, arrhenius_expression, fit_study
 from tstrate.output.mechanism import mechanism_yaml, write_mechanism
 from tstrate.output.tables import fits_csv_text
 from tstrate.units import N_A
@@ -168,7 +169,7 @@ def test_cantera_reads_synthetic_chebyshev_mechanism(carbonic, rates, tmp_path):
 @pytest.fixture(scope="module")
 def demo(tmp_path_factory):
     """The demo study computed as `tstrate run` does (falloff included), with its mechanism."""
-    from tstrate.workflow import compute_study
+    from tstrate.study.run import compute_study
 
     study = read_study(DEMO)
     assert study.sections["fits"].mechanism_form == "chebyshev"      # the demo uses it

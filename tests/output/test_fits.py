@@ -19,18 +19,18 @@ import pytest
 from tstrate.errors import InputError
 from tstrate.io.species import read_species
 from tstrate.io.study import read_study
-from tstrate.output import fits as fits_mod
-from tstrate.output.fits import (TroeData, arrhenius_expression, fit_species_nasa, fit_study,
-                                 fits_to_json)
-from tstrate.physics.fitting import fit_arrhenius
+from tstrate.study import fits as fits_mod
+from tstrate.output.fit_records import fits_to_json
+from tstrate.study.fits import TroeData, arrhenius_expression, fit_species_nasa, fit_study
+from tstrate.expressions.arrhenius import fit_arrhenius
 from tstrate.physics.thermo import thermochemistry
-from tstrate.physics.tst import study_rates
+from tstrate.study.rates import study_rates
 from tstrate.units import R
 
 ROOT = Path(__file__).resolve().parents[2]
 TOY = ROOT / "tests" / "data" / "toy" / "study.toml"
 CARBONIC = Path(__file__).resolve().parent / "data" / "carbonic" / "study.toml"
-REFERENCE = ROOT / "molecules" / "reference"
+REFERENCE = ROOT / "tstrate" / "io" / "reference"
 
 
 @pytest.fixture(scope="module")
@@ -71,7 +71,7 @@ def test_fits_recover_synthetic_parameters(carbonic, monkeypatch, order, A_SI, n
             out.append(dataclasses.replace(cr, k=k, order=order))
         return out
 
-    monkeypatch.setattr("tstrate.physics.tst.study_rates", fake_rates)
+    monkeypatch.setattr("tstrate.study.rates.study_rates", fake_rates)
     fits = fit_study(carbonic)
     c = fits.channels[0]
     assert c.modified.A == pytest.approx(A_SI, rel=1e-8)
@@ -133,8 +133,8 @@ def test_mechanism_form_choice(toy):
 # ----------------------------------------------------------------------------- NASA
 
 @pytest.mark.parametrize("path", [
-    "tests/data/toy/h2o.toml", "tests/data/toy/o2.toml", "molecules/reference/n2.toml",
-    "molecules/reference/o2.toml",
+    "tests/data/toy/h2o.toml", "tests/data/toy/o2.toml", "tstrate/io/reference/n2.toml",
+    "tstrate/io/reference/o2.toml",
 ])
 def test_nasa_reproduces_tstrate_within_0p1_percent_default_range(path):
     """Default 200-3000 K: Cp, H and S of tstrate within 0.1 % for diatomics and H2O.
@@ -206,7 +206,7 @@ JANAF_H2O = {
     1500.0: (47.073, 250.620, 48.151),
 }
 # Allowed deviation of the rigid-rotor/harmonic-oscillator model (experimental fundamentals,
-# molecules/reference/h2o.toml) from JANAF, growing with T: anharmonicity, rotation-vibration
+# tstrate/io/reference/h2o.toml) from JANAF, growing with T: anharmonicity, rotation-vibration
 # coupling and centrifugal distortion add to Cp roughly in proportion to T; at 300 K the
 # residual (0.3 % in Cp, 0.1 % in S) is the quantum correction to the classical rotor of a
 # light molecule (A = 27.9 cm-1) plus the harmonic bend. The NASA fit adds < 0.06 %.
@@ -353,14 +353,20 @@ def test_json_has_units_in_keys(carbonic_fits):
 def test_bath_gas_from_reference_species(carbonic, carbonic_fits):
     troe = TroeData(k0=arrhenius_expression(1e-16, -3.0, 1.5e5, order=2),
                     kinf=carbonic_fits.channel_fit("bare").modified, a=0.6, T3_K=300.0, T1_K=3000.0)
-    fits = fit_study(carbonic, troe={"bare": troe}, bath_gas="N2")
+    # the reference species ship inside the package (tstrate.io.reference); read_study attaches the
+    # study's own bath gas, and a caller naming another one passes its species
+    from tstrate.io.reference import reference_species
+
+    fits = fit_study(carbonic, troe={"bare": troe}, bath_gas="N2", bath_species=reference_species("N2"))
     n2 = fits.species_fit("N2")
     assert n2.role == "bath gas" and n2.composition == {"N": 2}
     assert n2.h0_exported_J_per_mol == 0.0 and "own" in n2.note
-    ar = fit_study(carbonic, troe={"bare": troe}, bath_gas="Ar").species_fit("Ar")
+    ar = fit_study(carbonic, troe={"bare": troe}, bath_gas="Ar",
+                   bath_species=reference_species("Ar")).species_fit("Ar")
     assert ar.composition == {"Ar": 1}
     # a monatomic ideal gas: Cp = 5/2 R exactly, from the polynomial too
     assert ar.nasa7.cp_J_per_mol_K(250.0) == pytest.approx(2.5 * R, rel=1e-9)
+    assert reference_species("XY") is None
     unknown = fit_study(carbonic, troe={"bare": troe}, bath_gas="XY")
     assert unknown.bath_gas is None
     assert any("XY" in w for w in unknown.warnings)
@@ -381,7 +387,7 @@ def test_non_positive_rate_constant_is_input_error(carbonic, monkeypatch):
     def zero_rates(study, **kwargs):
         return [dataclasses.replace(cr, k=np.where(cr.temperature_K < 250, 0.0, cr.k)) for cr in real]
 
-    monkeypatch.setattr("tstrate.physics.tst.study_rates", zero_rates)
+    monkeypatch.setattr("tstrate.study.rates.study_rates", zero_rates)
     with pytest.raises(InputError, match="positive") as exc:
         fit_study(carbonic)
     assert "\n" not in str(exc.value)

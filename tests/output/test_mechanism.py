@@ -19,10 +19,10 @@ import pytest
 
 from tstrate.errors import InputError
 from tstrate.io.study import read_study
-from tstrate.output.fits import TroeData, arrhenius_expression, fit_study
+from tstrate.study.fits import TroeData, arrhenius_expression, fit_study
 from tstrate.output.mechanism import UNITS_LINE, cantera_names, mechanism_yaml, write_mechanism
 from tstrate.physics.thermo import thermochemistry
-from tstrate.physics.tst import study_rates
+from tstrate.study.rates import study_rates
 from tstrate.units import K_B, N_A, R
 
 ct = pytest.importorskip("cantera")
@@ -142,7 +142,10 @@ def test_falloff_reaction_matches_troe_formula(carbonic, carbonic_fits, tmp_path
     kinf = carbonic_fits.channel_fit("bare").modified
     k0 = arrhenius_expression(1e-16, -3.0, 150e3, order=2)     # invented, SI m^3 s^-1
     troe = TroeData(k0=k0, kinf=kinf, a=0.6, T3_K=300.0, T1_K=3000.0, T2_K=T2, bath_gas="CO2")
-    fits = fit_study(carbonic, troe={"bare": troe}, bath_gas=bath)
+    from tstrate.io.reference import reference_species
+
+    fits = fit_study(carbonic, troe={"bare": troe}, bath_gas=bath,
+                     bath_species=None if bath in carbonic.species else reference_species(bath))
     gas, path = _load(fits, tmp_path)
     assert bath in gas.species_names
     text = path.read_text()
@@ -229,7 +232,7 @@ tunnelling = "none"
 
 
 def test_production_code_does_not_import_cantera():
-    code = ("import sys; import tstrate.output.fits, tstrate.output.mechanism, "
+    code = ("import sys; import tstrate.study.fits, tstrate.output.mechanism, "
             "tstrate.output.tables; print('cantera' in sys.modules)")
     out = subprocess.run([sys.executable, "-c", code], capture_output=True, text=True, check=True,
                          cwd=ROOT)

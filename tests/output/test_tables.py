@@ -15,7 +15,7 @@ import pytest
 from tstrate.errors import InputError
 from tstrate.io.study import read_study
 from tstrate.output import tables
-from tstrate.output.fits import fit_study
+from tstrate.study.fits import fit_study
 from tstrate.physics.thermo import thermochemistry
 from tstrate.units import N_A
 

@@ -19,10 +19,11 @@ from tstrate.errors import InputError
 from tstrate.io.species import read_species
 from tstrate.io.study import read_study
 from tstrate.model import Channel
+from tstrate.study.routes import study_comparisons
 from tstrate.physics.catalysis import (AssistedRoute, CatalystAbundance, Comparison, classify_route,
                                        compare_routes, complex_equilibrium,
                                        faster_temperature_ranges, k_unimolecular_from_complex,
-                                       study_comparisons)
+                                       )
 from tstrate.physics.humidity import Abundance, dimer_number_density_m3
 from tstrate.physics.thermo import thermochemistry, zero_point_energy_J_per_mol
 from tstrate.physics.tst import channel_rates

@@ -29,7 +29,7 @@ from tstrate.physics.thermo import (GRIMME_B_AV_KG_M2, LowModes, ln_partition_fu
                                     thermochemistry)
 from tstrate.units import CM1_J, K_B, N_A, P_STANDARD, R
 
-REFERENCE = Path(__file__).resolve().parents[2] / "molecules" / "reference"
+REFERENCE = Path(__file__).resolve().parents[2] / "tstrate" / "io" / "reference"
 NAMES = ["h2o", "co2", "so2", "n2", "o2"]
 
 

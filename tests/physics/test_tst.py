@@ -45,6 +45,7 @@ from tstrate.errors import InputError
 from tstrate.io.species import build_species
 from tstrate.io.study import read_study
 from tstrate.model import Channel
+from tstrate.study.rates import study_rates
 from tstrate.output.records import channel_rates_record
 from tstrate.physics import tst, tunnelling
 from tstrate.physics.thermo import thermochemistry
@@ -383,7 +384,7 @@ def test_record_units(carbonic):
 def test_termolecular_study_units():
     study = read_study(DATA / "tst" / "reverse_water.toml")
     assert study.conditions.rate_units == {2: "L mol-1 s-1", 3: "cm6 molecule-2 s-1"}
-    (cr,) = tst.study_rates(study)
+    (cr,) = study_rates(study)
     assert cr.order == 3 and cr.reverse_order == 2
     rec = channel_rates_record(cr, study.conditions.rate_units)
     assert rec["rate_constant_unit"] == "cm6 molecule-2 s-1"
@@ -600,7 +601,7 @@ def test_temperatures_must_be_positive_and_finite(carbonic, temps):
     with pytest.raises(InputError, match="temperatures must be positive"):
         tst.channel_rates(carbonic.channel("bare"), carbonic.species, temps)
     with pytest.raises(InputError, match="temperatures must be positive"):
-        tst.study_rates(carbonic, temperature_K=temps)
+        study_rates(carbonic, temperature_K=temps)
 
 
 def test_unknown_tunnelling_model(carbonic):
@@ -620,7 +621,7 @@ def test_eckart_needs_positive_barriers(carbonic):
     # the study-level call names the study file and the channel's key
     study = dataclasses.replace(carbonic, species=sp)
     with pytest.raises(InputError) as exc:
-        tst.study_rates(study)
+        study_rates(study)
     msg = str(exc.value)
     assert "study.toml" in msg and "[channel[0].tunnelling]" in msg and "\n" not in msg
     # exactly zero reverse barrier: Eckart needs V2 > 0 (the channel's message, not the module's)
@@ -644,5 +645,5 @@ def test_species_without_energy_is_named(carbonic):
     sp = dict(carbonic.species)
     sp["H2CO3"] = dataclasses.replace(sp["H2CO3"], energy_J_per_mol=None)
     with pytest.raises(InputError, match="has no electronic energy") as exc:
-        tst.study_rates(dataclasses.replace(carbonic, species=sp))
+        study_rates(dataclasses.replace(carbonic, species=sp))
     assert "h2co3.toml" in str(exc.value)

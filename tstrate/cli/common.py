@@ -3,36 +3,11 @@
 from __future__ import annotations
 
 import json
-import math
 import sys
-from pathlib import Path
 
 import numpy as np
 
-from tstrate.io.files import atomic_write_bytes, atomic_write_text  # noqa: F401 (re-export)
-
-
-def to_jsonable(obj):
-    """Turn numpy arrays/scalars and nested containers into plain JSON values.
-
-    Non-finite floats become ``null`` so the output stays valid JSON.
-    """
-    if isinstance(obj, dict):
-        return {str(k): to_jsonable(v) for k, v in obj.items()}
-    if isinstance(obj, (list, tuple)):
-        return [to_jsonable(v) for v in obj]
-    if isinstance(obj, np.ndarray):
-        return to_jsonable(obj.tolist())
-    if isinstance(obj, (np.floating, float)):
-        f = float(obj)
-        return f if math.isfinite(f) else None
-    if isinstance(obj, (np.integer,)):
-        return int(obj)
-    if isinstance(obj, (np.bool_,)):
-        return bool(obj)
-    if isinstance(obj, Path):
-        return str(obj)
-    return obj
+from tstrate.output.records import to_jsonable
 
 
 def print_json(obj) -> None:

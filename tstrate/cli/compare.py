@@ -52,7 +52,7 @@ def _slug(text: str) -> str:
 def compute(study_path, low_modes="harmonic"):
     from tstrate.errors import InputError
     from tstrate.io.study import read_study
-    from tstrate.physics.catalysis import study_comparisons
+    from tstrate.study.routes import study_comparisons
     from tstrate.physics.thermo import LowModes
 
     study = read_study(study_path)

@@ -35,7 +35,7 @@ def compute(study_path, temperatures=None, low_modes="harmonic"):
     from tstrate.io.study import read_study
     from tstrate.output.records import channel_rates_record
     from tstrate.physics.thermo import LowModes
-    from tstrate.physics.tst import study_rates
+    from tstrate.study.rates import study_rates
 
     study = read_study(study_path)
     if not study.channels:

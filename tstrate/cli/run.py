@@ -34,7 +34,7 @@ def add_arguments(parser) -> None:
 
 def mechanism_record(cf, rate_units=None) -> dict:
     """The fitted expression the mechanism file holds for one channel, units in the keys."""
-    from tstrate.output.fits import arrhenius_record, chebyshev_record
+    from tstrate.output.fit_records import arrhenius_record, chebyshev_record
     from tstrate.output.records import rate_unit
 
     kind = cf.mechanism_kind
@@ -52,7 +52,8 @@ def run(args) -> int:
     from tstrate.cli.common import print_json
     from tstrate.io.study import read_study
     from tstrate.physics.thermo import LowModes
-    from tstrate.workflow import _steps, compute_study, default_output_dir, write_outputs
+    from tstrate.output.folder import default_output_dir, write_outputs
+    from tstrate.study.run import compute_study, steps
 
     study = read_study(args.study)
     out = Path(args.output) if args.output else default_output_dir(study)
@@ -61,12 +62,12 @@ def run(args) -> int:
 
         raise InputError("output folder exists", file=str(out),
                          hint="pass --force to replace it, or choose another --output")
-    steps = _steps(study) + ["tables", "plots", "report"]
+    names = steps(study) + ["tables", "plots", "report"]
     bar = None
     if not args.quiet and sys.stderr.isatty():
         from tqdm import tqdm
 
-        bar = tqdm(total=len(steps), desc="tstrate run", unit="step", file=sys.stderr)
+        bar = tqdm(total=len(names), desc="tstrate run", unit="step", file=sys.stderr)
 
     def progress(name):
         if bar is not None:

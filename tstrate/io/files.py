@@ -42,3 +42,14 @@ def current_umask() -> int:
     mask = os.umask(0)
     os.umask(mask)
     return mask
+
+
+def file_sha256(path) -> str:
+    """SHA-256 of a file's bytes, as hex (read in 64 KiB chunks)."""
+    import hashlib
+
+    h = hashlib.sha256()
+    with open(path, "rb") as fh:
+        for chunk in iter(lambda: fh.read(1 << 16), b""):
+            h.update(chunk)
+    return h.hexdigest()

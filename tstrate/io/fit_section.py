@@ -19,31 +19,19 @@ the number of temperatures (pressures) when that is smaller.
 
 from __future__ import annotations
 
-from dataclasses import dataclass
+from tstrate.model.settings import MAX_DEVIATION_DEFAULT, T0_DEFAULT_K, FitOptions
 
-from tstrate.physics.fitting import MAX_DEVIATION_DEFAULT, T0_DEFAULT_K
-
-#: Default numbers of Chebyshev terms in 1/T and in log P.
-CHEBYSHEV_TEMPERATURE_TERMS_DEFAULT = 6
-CHEBYSHEV_PRESSURE_TERMS_DEFAULT = 4
-#: The mechanism forms a study may choose.
-MECHANISM_FORMS = ("modified", "arrhenius", "chebyshev")
-
-
-@dataclass(frozen=True)
-class FitOptions:
-    """Fit settings of a study (see the module docstring); deviation as a fraction.
-
-    Chebyshev term counts None mean the defaults (6 in 1/T, 4 in log P), lowered
-    to the number of temperatures (pressures) when there are fewer.
-    """
-
-    max_deviation: float = MAX_DEVIATION_DEFAULT
-    split: bool | float = False
-    mechanism_form: str = "modified"
-    T0_K: float = T0_DEFAULT_K
-    chebyshev_temperature_terms: int | None = None
-    chebyshev_pressure_terms: int | None = None
+#: the keys of [fits], each with its type, default and meaning (documentation is generated from this)
+KEYS = {
+    "max_deviation_percent": ("number", 100 * MAX_DEVIATION_DEFAULT,
+                              "warn when a fit misses a computed k by more than this [%]"),
+    "split": ("true/false or number", False,
+              "also fit two temperature ranges: true searches the break, a number gives it [K]"),
+    "mechanism_form": ("string", "modified", "expression in the mechanism: modified, arrhenius or chebyshev"),
+    "T0_K": ("number", T0_DEFAULT_K, "reference temperature of the modified Arrhenius form [K]"),
+    "chebyshev_temperature_terms": ("integer", 6, "Chebyshev terms in 1/T (chebyshev form only)"),
+    "chebyshev_pressure_terms": ("integer", 4, "Chebyshev terms in log P, falloff channels (chebyshev form only)"),
+}
 
 
 def read_fit_options(table, study) -> FitOptions:
@@ -51,24 +39,10 @@ def read_fit_options(table, study) -> FitOptions:
     dev = t.get("max_deviation_percent", float, 100 * MAX_DEVIATION_DEFAULT)
     if dev <= 0:
         raise t.error("max_deviation_percent", "must be positive")
-    split = t.get("split", (bool, float), False)
-    if not isinstance(split, bool) and split <= 0:
-        raise t.error("split", "a break temperature must be positive (K)")
-    form = t.get("mechanism_form", str, "modified")
-    if form not in MECHANISM_FORMS:
-        raise t.error("mechanism_form", f"unknown form {form!r}",
-                      hint="use modified, arrhenius or chebyshev")
-    t0 = t.get("T0_K", float, T0_DEFAULT_K)
-    if t0 <= 0:
-        raise t.error("T0_K", "must be positive (K)")
-    terms = {}
-    for key in ("chebyshev_temperature_terms", "chebyshev_pressure_terms"):
-        if key in t and form != "chebyshev":
-            raise t.error(key, f"is used only with mechanism_form = \"chebyshev\" (the form is {form!r})",
-                          hint="remove it or set mechanism_form = \"chebyshev\"")
-        n = t.get(key, int, None)
-        if n is not None and n < 1:
-            raise t.error(key, f"must be at least 1, got {n}")
-        terms[key] = n
-    t.reject_unknown()
-    return FitOptions(max_deviation=dev / 100, split=split, mechanism_form=form, T0_K=t0, **terms)
+    options = t.build(FitOptions, max_deviation=dev / 100, split=t.get("split", (bool, float), False),
+                      mechanism_form=t.get("mechanism_form", str, "modified"),
+                      T0_K=t.get("T0_K", float, T0_DEFAULT_K),
+                      chebyshev_temperature_terms=t.get("chebyshev_temperature_terms", int, None),
+                      chebyshev_pressure_terms=t.get("chebyshev_pressure_terms", int, None))
+    t.reject_unknown(set(KEYS))
+    return options

@@ -180,8 +180,16 @@ def read_study(path: str | Path) -> Study:
     if dup:
         raise t.error("channel", f"channel name {dup[0]!r} used twice")
     t.reject_unknown(CORE_KEYS | set(SECTION_READERS))
+    reference = {}
+    bath = conditions.bath_gas
+    if bath is not None and bath not in species:
+        from tstrate.io.reference import reference_species
+
+        ref = reference_species(bath)
+        if ref is not None:
+            reference[bath] = ref
     study = Study(file=file, title=title, species=species, channels=tuple(channels),
-                  conditions=conditions, species_files=species_files)
+                  conditions=conditions, species_files=species_files, reference_species=reference)
     for section, target in SECTION_READERS.items():
         if section in t.data:
             modname, func = target.split(":")

@@ -43,6 +43,8 @@ class Study:
     sections: further validated parts added by later readers (comparisons,
         falloff settings, excitations, fits), keyed by section name.
     species_files: name -> path of the species file (for reports and hashes).
+    reference_species: name -> Species of reference data the study uses but does not list
+        (a bath gas exported to the mechanism); the study reader fills it.
     """
 
     file: str | None
@@ -52,6 +54,7 @@ class Study:
     conditions: Conditions
     sections: dict = field(default_factory=dict)
     species_files: dict = field(default_factory=dict)
+    reference_species: dict = field(default_factory=dict)
 
     def channel(self, name: str) -> Channel:
         for ch in self.channels:

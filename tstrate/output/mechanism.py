@@ -1,5 +1,5 @@
 """Mechanism files in Cantera's YAML input format (an open format read by a general-purpose
-kinetics library), written from :class:`tstrate.output.fits.StudyFits`.
+kinetics library), written from :class:`tstrate.study.fits.StudyFits`.
 
 What the file holds
 -------------------
@@ -22,7 +22,7 @@ What the file holds
   modified Arrhenius A (T/T0)^n becomes A T0^-n T^n;
 - with the ``chebyshev`` mechanism form, ``type: Chebyshev`` reactions
   (Venkatesh, Chang, Dean, Cohen and Carr, AIChE J. 43, 1331 (1997); see
-  :mod:`tstrate.physics.fitting`): ``temperature-range`` [K], ``pressure-range``
+  :mod:`tstrate.expressions.chebyshev`): ``temperature-range`` [K], ``pressure-range``
   with the unit written out (Pa) and ``data``, the coefficient matrix of
   log10 k with k in the file's molecule-cm-s units (rows: 1/T terms, columns:
   log P terms). A falloff channel with a k(T, P) grid gets its
@@ -45,7 +45,7 @@ three products) as a three-body reaction.
 
 Falloff reactions use the generic collider M with all efficiencies 1: the
 Troe k0 belongs to the study's bath gas, which is added as a species (see
-:mod:`tstrate.output.fits`), so a mixture of that bath gas reproduces it;
+:mod:`tstrate.study.fits`), so a mixture of that bath gas reproduces it;
 other colliders count as if they were the bath gas (a limitation).
 
 Species names: Cantera reads species names out of the equation strings, so

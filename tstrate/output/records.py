@@ -6,6 +6,11 @@ meet the units users see.
 
 from __future__ import annotations
 
+import math
+from pathlib import Path
+
+import numpy as np
+
 from tstrate.units import DEFAULT_RATE_UNIT, rate_from_SI
 
 
@@ -82,3 +87,26 @@ def _kc_cm3(cr):
 
 def _opt(v, factor):
     return None if v is None else v * factor
+
+
+def to_jsonable(obj):
+    """Turn numpy arrays/scalars and nested containers into plain JSON values.
+
+    Non-finite floats become ``null`` so the output stays valid JSON.
+    """
+    if isinstance(obj, dict):
+        return {str(k): to_jsonable(v) for k, v in obj.items()}
+    if isinstance(obj, (list, tuple)):
+        return [to_jsonable(v) for v in obj]
+    if isinstance(obj, np.ndarray):
+        return to_jsonable(obj.tolist())
+    if isinstance(obj, (np.floating, float)):
+        f = float(obj)
+        return f if math.isfinite(f) else None
+    if isinstance(obj, (np.integer,)):
+        return int(obj)
+    if isinstance(obj, (np.bool_,)):
+        return bool(obj)
+    if isinstance(obj, Path):
+        return str(obj)
+    return obj

@@ -10,7 +10,7 @@ Layout::
     tables/*.csv                thermochemistry, rate constants, comparisons, falloff
     plots/*.png, plots/*.svg    figures
 
-The caller (:func:`tstrate.workflow.write_outputs`) gives a fresh temporary
+The caller (:func:`tstrate.output.folder.write_outputs`) gives a fresh temporary
 folder and renames it into place, so this module writes plainly.
 """
 
@@ -87,7 +87,7 @@ def _results_json(result) -> dict:
 
 def fits_document(result) -> dict:
     """fits.json: the study's fits plus modified Arrhenius fits at each tabulated pressure."""
-    from tstrate.output.fits import arrhenius_record, fits_to_json
+    from tstrate.output.fit_records import arrhenius_record, fits_to_json
 
     units = result.study.conditions.rate_units
     doc = fits_to_json(result.fits, units)
@@ -130,7 +130,8 @@ def write_all(result, folder: Path, *, progress: Callable[[str], None] | None = 
     from tstrate.output.plots import arrhenius_figure
     from tstrate.output.tables import (csv_text, json_text, write_fits_csv, write_json, write_rate_tables,
                                        write_thermo_csv)
-    from tstrate.workflow import file_sha256, input_files
+    from tstrate.io.files import file_sha256
+    from tstrate.output.folder import input_files
 
     def step(name):
         if progress:

@@ -171,7 +171,7 @@ def fits_csv_text(fits, rate_units=None) -> str:
     """One row per channel and fitted expression (Arrhenius, modified, split ranges, Troe limits,
     Chebyshev k(T) and k(T, P)). Chebyshev rows leave the Arrhenius columns empty and give the
     coefficient matrix as a JSON list of rows."""
-    from tstrate.output.fits import arrhenius_record, chebyshev_record
+    from tstrate.output.fit_records import arrhenius_record, chebyshev_record
 
     units = dict(rate_units or {})
     rows = []
@@ -220,7 +220,7 @@ def write_fits_csv(path, fits, rate_units=None) -> Path:
 
 def json_text(obj) -> str:
     """Indented JSON of ``obj`` (numpy arrays and scalars converted; NaN/inf become null)."""
-    from tstrate.cli.common import to_jsonable
+    from tstrate.output.records import to_jsonable
 
     return json.dumps(to_jsonable(obj), indent=2, allow_nan=False) + "\n"
 
@@ -233,8 +233,8 @@ def write_json(path, obj, *, inputs=()) -> Path:
 
 
 def write_fits_json(path, fits, rate_units=None) -> Path:
-    """Write :func:`tstrate.output.fits.fits_to_json` atomically (never over the study's inputs)."""
-    from tstrate.output.fits import fits_to_json
+    """Write :func:`tstrate.output.fit_records.fits_to_json` atomically (never over the study's inputs)."""
+    from tstrate.output.fit_records import fits_to_json
 
     return write_json(path, fits_to_json(fits, rate_units), inputs=fits.input_files)
 

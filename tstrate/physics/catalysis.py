@@ -673,17 +673,7 @@ def compare_routes(comparison: Comparison, species: Mapping[str, Species], chann
                             free_substrate_fraction=free, barriers=barriers, profiles=profiles)
 
 
-def study_comparisons(study, *, low_modes: LowModes = HARMONIC) -> list[ComparisonResult]:
-    """Results of every ``[[comparison]]`` of a study (each at its own or the study's temperatures)."""
-    out = []
-    for comp in study.sections.get("comparison", ()):
-        T = comp.temperature_K if comp.temperature_K is not None else study.conditions.temperature_K
-        out.append(compare_routes(comp, study.species, study.channels, T, low_modes=low_modes))
-    return out
-
-
 __all__ = ["ROUTE_KINDS", "ABUNDANCE_UNITS", "CatalystAbundance", "AssistedRoute", "Comparison",
            "classify_route", "ComplexEquilibrium", "complex_equilibrium", "TemperatureRange",
            "faster_temperature_ranges", "RouteResult", "BarrierRow", "ProfileLevel", "RouteProfile",
-           "route_profile", "ComparisonResult", "k_unimolecular_from_complex", "compare_routes",
-           "study_comparisons"]
+           "route_profile", "ComparisonResult", "k_unimolecular_from_complex", "compare_routes"]

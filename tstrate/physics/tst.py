@@ -222,29 +222,10 @@ def channel_rates(channel: Channel, species: dict, temperature_K, *,
     )
 
 
-def study_rates(study, *, low_modes: LowModes = HARMONIC, temperature_K=None) -> list[ChannelRates]:
-    """TST results for every channel of a study (at its temperatures unless given)."""
-    T = study.conditions.temperature_K if temperature_K is None else temperature_K
-    T = np.atleast_1d(np.asarray(T, dtype=float))
-    if T.size == 0 or np.any(T <= 0) or not np.all(np.isfinite(T)):
-        raise InputError("temperatures must be positive and finite", field="temperature_K")
-    out = []
-    for i, ch in enumerate(study.channels):
-        try:
-            out.append(channel_rates(ch, study.species, T, low_modes=low_modes))
-        except InputError as exc:
-            if exc.file is not None:  # a species file's own mistake (e.g. no energy)
-                raise
-            # a problem of the channel: name the study file and the channel's key in it
-            field = f"channel[{i}]" + (f".{exc.field}" if exc.field else "")
-            raise InputError(exc.problem, file=study.file, field=field, hint=exc.hint) from None
-    return out
-
-
 def ln_eyring_factor(T) -> np.ndarray:
     """ln(k_B T / h) [ln s^-1]."""
     return np.log(K_B * np.asarray(T, dtype=float) / H)
 
 
-__all__ = ["ChannelRates", "channel_rates", "study_rates", "ln_equilibrium_constant", "kp_from_kc",
+__all__ = ["ChannelRates", "channel_rates", "ln_equilibrium_constant", "kp_from_kc",
            "symmetry_degeneracy", "zpe_level_J_per_mol", "ln_eyring_factor", "N_A"]

@@ -3,7 +3,8 @@
 Python use (the same as ``tstrate run``)::
 
     from tstrate.io.study import read_study
-    from tstrate.workflow import compute_study, write_outputs
+    from tstrate.study.run import compute_study
+    from tstrate.output.folder import write_outputs
 
     study = read_study("molecules/carbonic_acid/study.toml")
     result = compute_study(study)            # thermochemistry, rates, comparisons, falloff, fits
@@ -17,18 +18,12 @@ falloff needs pressures in ``[conditions]``, energised-molecule yields need
 
 from __future__ import annotations
 
-import hashlib
 import logging
-import os
-import shutil
-import tempfile
 from dataclasses import dataclass, field
-from pathlib import Path
 from typing import Callable
 
 import numpy as np
 
-from tstrate.errors import InputError
 from tstrate.model import Study
 from tstrate.physics.thermo import HARMONIC, LowModes, Thermo, thermochemistry
 
@@ -47,7 +42,7 @@ class StudyResult:
     comparisons: catalysis.ComparisonResult per [[comparison]], or None.
     falloff: pressure.StudyFalloff, or None.
     excitations: energised-molecule results per [[excitation]], or None.
-    fits: output.fits.StudyFits.
+    fits: study.fits.StudyFits.
     pressure_fits: channel -> list of (pressure [Pa] or None, [M] [m^-3] at the highest
         temperature, modified Arrhenius fit of k(T) at that pressure), for falloff channels.
     warnings: sentences for the report.
@@ -65,7 +60,7 @@ class StudyResult:
     warnings: tuple[str, ...] = field(default=())
 
 
-def _steps(study: Study) -> list[str]:
+def steps(study: Study) -> list[str]:
     steps = ["thermochemistry", "rate constants"]
     if study.sections.get("comparison"):
         steps.append("catalysed routes")
@@ -80,7 +75,7 @@ def _steps(study: Study) -> list[str]:
 def compute_study(study: Study, *, low_modes: LowModes = HARMONIC,
                   progress: Callable[[str], None] | None = None) -> StudyResult:
     """Compute everything ``study`` asks for. ``progress(step)`` is called before each step."""
-    from tstrate.physics.tst import study_rates
+    from tstrate.study.rates import study_rates
 
     def step(name):
         log.info("%s", name)
@@ -100,7 +95,7 @@ def compute_study(study: Study, *, low_modes: LowModes = HARMONIC,
     comparisons = None
     if study.sections.get("comparison"):
         step("catalysed routes")
-        from tstrate.physics.catalysis import study_comparisons
+        from tstrate.study.routes import study_comparisons
 
         comparisons = tuple(study_comparisons(study, low_modes=low_modes))
 
@@ -131,8 +126,8 @@ def compute_study(study: Study, *, low_modes: LowModes = HARMONIC,
             warnings += list(ex.warnings)
 
     step("fits")
-    from tstrate.io.fit_section import FitOptions
-    from tstrate.output.fits import fit_study
+    from tstrate.model.settings import FitOptions
+    from tstrate.study.fits import fit_study
 
     opts = study.sections.get("fits") or FitOptions()
     fits = fit_study(study, low_modes=low_modes, max_deviation=opts.max_deviation, T0_K=opts.T0_K,
@@ -156,7 +151,7 @@ def troe_data(cf, study):
     happens for an effective k0 over a short temperature range), the
     two-parameter form is used instead and its larger deviation is reported.
     """
-    from tstrate.output.fits import TroeData
+    from tstrate.study.fits import TroeData
 
     k0 = _limit_fit(cf.temperature_K, cf.troe_k0_m3_per_s, order=2)
     kinf = _limit_fit(cf.temperature_K, cf.k_high_pressure_per_s, order=1)
@@ -166,7 +161,7 @@ def troe_data(cf, study):
 def _limit_fit(T, k, order):
     import math
 
-    from tstrate.physics.fitting import fit_arrhenius
+    from tstrate.expressions.arrhenius import fit_arrhenius
     from tstrate.units import rate_from_SI
 
     if len(T) >= 3:
@@ -182,7 +177,7 @@ def fits_at_each_pressure(cf, *, max_deviation: float | None = None):
 
     Returns ([(pressure_Pa or None, number_density_m3 at the highest T, ArrheniusFit)], warnings).
     """
-    from tstrate.physics.fitting import MAX_DEVIATION_DEFAULT, fit_arrhenius
+    from tstrate.expressions.arrhenius import MAX_DEVIATION_DEFAULT, fit_arrhenius
 
     limit = MAX_DEVIATION_DEFAULT if max_deviation is None else max_deviation
     out, warnings = [], []
@@ -198,78 +193,3 @@ def fits_at_each_pressure(cf, *, max_deviation: float | None = None):
         warnings.append(f"channel {cf.name}: modified Arrhenius fits at fixed pressure deviate by up to "
                         f"{100 * worst:.1f} % (split the temperature range for a mechanism)")
     return out, warnings
-
-
-# ---------------------------------------------------------------------------- writing
-
-def file_sha256(path) -> str:
-    h = hashlib.sha256()
-    with open(path, "rb") as fh:
-        for chunk in iter(lambda: fh.read(1 << 16), b""):
-            h.update(chunk)
-    return h.hexdigest()
-
-
-def input_files(study: Study) -> list[str]:
-    return ([study.file] if study.file else []) + list(dict.fromkeys(study.species_files.values()))
-
-
-def default_output_dir(study: Study, base: str | Path = "tstrate-output") -> Path:
-    """``tstrate-output/<study stem>``, or ``-2``, ``-3``, ... when that exists (never reuse one)."""
-    stem = Path(study.file).stem if study.file else "study"
-    if study.file and stem == "study":
-        stem = Path(study.file).resolve().parent.name or stem
-    base = Path(base)
-    candidate = base / stem
-    i = 2
-    while candidate.exists():
-        candidate = base / f"{stem}-{i}"
-        i += 1
-    return candidate
-
-
-def write_outputs(result: StudyResult, output_dir, *, force: bool = False,
-                  progress: Callable[[str], None] | None = None) -> list[Path]:
-    """Write every output of ``result`` into ``output_dir`` atomically.
-
-    Everything is written into a temporary folder beside ``output_dir`` and
-    renamed into place at the end, so an interrupted run leaves nothing
-    half-written. An existing ``output_dir`` is replaced only with ``force``;
-    a folder holding an input file is never replaced.
-    """
-    from tstrate.io.files import current_umask
-    from tstrate.output.run_files import write_all
-
-    out = Path(output_dir)
-    inputs = [Path(f).resolve() for f in input_files(result.study)]
-    if out.exists():
-        if not force:
-            raise InputError("output folder exists", file=str(out),
-                             hint="pass --force to replace it, or choose another --output")
-        if not out.is_dir():
-            raise InputError("output path exists and is not a folder", file=str(out))
-        resolved = out.resolve()
-        if any(resolved == p or resolved in p.parents for p in inputs):
-            raise InputError("output folder holds input files; refusing to replace it", file=str(out))
-    try:
-        out.parent.mkdir(parents=True, exist_ok=True)
-        tmp = Path(tempfile.mkdtemp(prefix=f".{out.name}.", suffix=".part", dir=out.parent))
-    except OSError as exc:
-        raise InputError(f"cannot write the output folder: {exc.strerror}", file=str(out)) from None
-    try:
-        os.chmod(tmp, 0o777 & ~current_umask())
-        written = write_all(result, tmp, progress=progress)
-        if out.exists():
-            old = out.with_name(f".{out.name}.old")
-            if old.exists():
-                shutil.rmtree(old)
-            out.rename(old)
-            tmp.rename(out)
-            shutil.rmtree(old)
-        else:
-            tmp.rename(out)
-    except BaseException:
-        shutil.rmtree(tmp, ignore_errors=True)
-        raise
-    return [out / p.relative_to(tmp) for p in written]
-

@@ -9,7 +9,7 @@ For every channel the TST rate constant *with tunnelling* at the study's
 temperatures is fitted to the two-parameter Arrhenius form (Arrhenius,
 Z. Phys. Chem. 4, 226 (1889)) and to the modified, three-parameter form
 k = A (T/T0)^n exp(-Ea/RT) (Kooij, Z. Phys. Chem. 12, 155 (1893)) with
-:func:`tstrate.physics.fitting.fit_arrhenius`. The max and RMS relative
+:func:`tstrate.expressions.arrhenius.fit_arrhenius`. The max and RMS relative
 deviation of k and the fitted range are kept; a deviation above
 ``max_deviation`` (5 % by default) yields a warning that suggests split
 ranges, and ``split=True`` (automatic break) or ``split=<break in K>`` adds a
@@ -20,7 +20,7 @@ in the JSON only, since a single elementary reaction cannot hold two ranges.
 With ``mechanism_form="chebyshev"`` every channel also gets a Chebyshev fit
 of log10 k(T) over the reduced inverse temperature (Venkatesh, Chang, Dean,
 Cohen and Carr, AIChE J. 43, 1331 (1997);
-:func:`tstrate.physics.fitting.fit_chebyshev`), and a channel whose falloff
+:func:`tstrate.expressions.chebyshev.fit_chebyshev`), and a channel whose falloff
 grid k(T, P) is passed in ``falloff_grid`` a two-dimensional fit over 1/T and
 log P on the study's temperatures and pressures. Deep tunnelling makes ln k
 curve in 1/T more than (T/T0)^n can follow; six Chebyshev terms follow it
@@ -37,7 +37,7 @@ Species
 -------
 Reactants, products and pre-reactive complexes of the channels get two-range
 NASA 7-coefficient polynomials (McBride, Gordon and Reno, NASA TM-4513, 1993)
-fitted by :func:`tstrate.physics.fitting.fit_nasa7` to tstrate's own ideal-gas
+fitted by :func:`tstrate.expressions.nasa7.fit_nasa7` to tstrate's own ideal-gas
 thermochemistry (same low-mode treatment as the rates) on a grid from 200 K
 to 3000 K with the common temperature at 1000 K. When the study's
 temperatures go below 200 K (cold atmospheres: 100-150 K) the low range is
@@ -78,7 +78,7 @@ is compared with tstrate's ``ln_kc`` at the fitted temperatures
 (:attr:`ChannelFit.max_abs_ln_kc_error`).
 
 A bath-gas species needed by a falloff reaction but not part of the study
-(N2, CO2, O2, ... from ``molecules/reference``, or a noble-gas atom) has its
+(N2, CO2, O2, ... shipped in :mod:`tstrate.io.reference`, or a noble-gas atom) has its
 own enthalpy zero H(0) = 0: it only serves as a collision partner (a
 warning says so when it shares elements with the study's species). A bath
 gas listed among the study's species but in no channel is exported on the
@@ -93,17 +93,19 @@ from __future__ import annotations
 import datetime as _dt
 import math
 from dataclasses import dataclass, field
-from pathlib import Path
 from typing import Mapping
 
 import numpy as np
 
 from tstrate.errors import InputError
-from tstrate.physics.fitting import (MAX_DEVIATION_DEFAULT, T0_DEFAULT_K, ArrheniusFit,
-                                     ChebyshevFit, Nasa7Fit, SplitArrheniusFit, fit_arrhenius,
-                                     fit_arrhenius_split, fit_chebyshev, fit_nasa7)
+from tstrate.expressions.arrhenius import (MAX_DEVIATION_DEFAULT, T0_DEFAULT_K, ArrheniusFit,
+                                           SplitArrheniusFit, fit_arrhenius, fit_arrhenius_split)
+from tstrate.expressions.chebyshev import ChebyshevFit, fit_chebyshev
+from tstrate.expressions.nasa7 import Nasa7Fit, fit_nasa7
+from tstrate.model.settings import (CHEBYSHEV_PRESSURE_TERMS_DEFAULT, CHEBYSHEV_TEMPERATURE_TERMS_DEFAULT,
+                                    MECHANISM_FORMS)
 from tstrate.physics.thermo import HARMONIC, LowModes, thermochemistry
-from tstrate.units import K_B, P_STANDARD, R, rate_from_SI
+from tstrate.units import K_B, P_STANDARD, R
 
 #: Default NASA fit range [K] and common temperature [K].
 NASA_RANGE_DEFAULT_K = (200.0, 3000.0)
@@ -114,13 +116,6 @@ _NASA_POINTS_PER_RANGE = 120
 NASA_WARN_REL_ERROR = 1e-3
 #: Above this |ln Kc(NASA) - ln Kc(tstrate)| a channel gets a warning.
 KC_WARN_LN_ERROR = 0.01
-#: Noble gases that can be built as bath-gas atoms without a species file.
-_NOBLE_GASES = ("He", "Ne", "Ar", "Kr", "Xe")
-#: Mechanism forms fit_study accepts.
-MECHANISM_FORMS = ("modified", "arrhenius", "chebyshev")
-#: Default numbers of Chebyshev terms in 1/T and in log P (lowered to the number of points).
-CHEBYSHEV_TEMPERATURE_TERMS = 6
-CHEBYSHEV_PRESSURE_TERMS = 4
 #: Element order for formulas and element lists (the rest follows alphabetically).
 _ELEMENT_FIRST = ("C", "H")
 
@@ -517,27 +512,6 @@ def ln_kc_from_nasa(reactant_fits, product_fits, temperature_K) -> np.ndarray:
 # bath gas
 # ============================================================================
 
-def default_reference_dir() -> Path:
-    """``molecules/reference`` of the source tree (experimental reference species)."""
-    return Path(__file__).resolve().parents[2] / "molecules" / "reference"
-
-
-def _bath_species(name: str, reference_dir: Path | None):
-    """A Species for a bath gas that is not in the study, or None when unknown."""
-    from tstrate.io.species import build_species, read_species
-
-    ref = Path(reference_dir) if reference_dir is not None else default_reference_dir()
-    path = ref / f"{name.lower()}.toml"
-    if path.is_file():
-        return read_species(path, name=name)
-    for gas in _NOBLE_GASES:
-        if name.lower() == gas.lower():
-            return build_species(gas, [gas], [[0.0, 0.0, 0.0]], frequencies_cm1=[], energy_J_per_mol=0.0,
-                                 source=f"built-in {gas} atom (ideal-gas translation only)",
-                                 provenance={"method": "ideal-gas atom"})
-    return None
-
-
 # ============================================================================
 # the whole study
 # ============================================================================
@@ -581,7 +555,7 @@ def _fit_channel(cr, ch, *, max_deviation, T0_K, split, mechanism_form, troe, fi
                          f"{cr.order} reactant(s)", **where)
     cheb = cheb_p = None
     if mechanism_form == "chebyshev":
-        n_T = _chebyshev_terms(cheb_T_terms, np.unique(T).size, CHEBYSHEV_TEMPERATURE_TERMS)
+        n_T = _chebyshev_terms(cheb_T_terms, np.unique(T).size, CHEBYSHEV_TEMPERATURE_TERMS_DEFAULT)
         cheb = _chebyshev(T, k, cr.order, n_T, None, 1, max_deviation, ch.name, file)
         if grid is not None:
             P, kP = grid
@@ -590,7 +564,7 @@ def _fit_channel(cr, ch, *, max_deviation, T0_K, split, mechanism_form, troe, fi
             if kP.ndim != 2 or kP.shape[0] != T.size:
                 raise InputError(f"falloff grid of shape {kP.shape} does not match the "
                                  f"{T.size} fitted temperatures", **where)
-            n_P = _chebyshev_terms(cheb_P_terms, np.unique(P).size, CHEBYSHEV_PRESSURE_TERMS)
+            n_P = _chebyshev_terms(cheb_P_terms, np.unique(P).size, CHEBYSHEV_PRESSURE_TERMS_DEFAULT)
             cheb_p = _chebyshev(T, kP, cr.order, n_T, P, n_P, max_deviation, ch.name, file)
         elif troe is not None:
             warnings.append(f"channel {ch.name}: no falloff grid k(T, P) was given, so the "
@@ -626,7 +600,7 @@ def fit_study(study, *, temperature_K=None, low_modes: LowModes = HARMONIC,
               nasa_range_K=NASA_RANGE_DEFAULT_K, nasa_T_mid_K: float | None = NASA_T_MID_DEFAULT_K,
               nasa_adjust_mid: bool = True,
               troe: Mapping[str, TroeData] | None = None, bath_gas: str | None = None,
-              reference_dir=None, chebyshev_temperature_terms: int | None = None,
+              bath_species=None, chebyshev_temperature_terms: int | None = None,
               chebyshev_pressure_terms: int | None = None,
               falloff_grid: Mapping[str, tuple] | None = None, rates=None) -> StudyFits:
     """Fit every channel's k(T) and every exported species' thermochemistry.
@@ -648,19 +622,20 @@ def fit_study(study, *, temperature_K=None, low_modes: LowModes = HARMONIC,
     troe: channel name -> :class:`TroeData` for falloff channels.
     bath_gas: collision partner of falloff reactions (default: the study's
         ``bath_gas``); added as a species when it is not one already.
-    reference_dir: folder of reference species files for the bath gas
-        (default ``molecules/reference`` of the source tree).
+    bath_species: the :class:`~tstrate.model.Species` of a bath gas that is not a study species
+        (default: ``study.reference_species``, which :func:`tstrate.io.study.read_study` fills
+        from the reference species shipped in the package).
     chebyshev_temperature_terms, chebyshev_pressure_terms: numbers of Chebyshev terms in 1/T
         and log P for the chebyshev form (default 6 and 4, or fewer when there are fewer
         temperatures or pressures); an explicit count above the number of points is an
         InputError naming the [fits] key.
     falloff_grid: channel name -> (pressure_Pa (n_P,), k (n_T, n_P) in SI per molecule) on the
         fitted temperatures, for a two-dimensional Chebyshev fit of falloff channels.
-    rates: the study's TST results (:func:`tstrate.physics.tst.study_rates`) when the caller
+    rates: the study's TST results (:func:`tstrate.study.rates.study_rates`) when the caller
         has them already, computed with the same ``low_modes`` and temperatures; else computed here.
     """
     import tstrate
-    from tstrate.physics.tst import study_rates
+    from tstrate.study.rates import study_rates
 
     if mechanism_form not in MECHANISM_FORMS:
         raise InputError(f"unknown mechanism form {mechanism_form!r}", field="mechanism_form",
@@ -729,7 +704,7 @@ def fit_study(study, *, temperature_K=None, low_modes: LowModes = HARMONIC,
                                                  offset_J_per_mol=_offset(sp, offsets),
                                                  role="bath gas"))
         else:
-            sp = _bath_species(bath_name, reference_dir)
+            sp = bath_species if bath_species is not None else study.reference_species.get(bath_name)
             if sp is None:
                 study_warnings.append(
                     f"bath gas {bath_name!r} is neither a study species nor a reference species; "
@@ -783,202 +758,6 @@ def fit_study(study, *, temperature_K=None, low_modes: LowModes = HARMONIC,
         version=getattr(tstrate, "__version__", "unknown"), input_files=inputs)
 
 
-# ============================================================================
-# JSON
-# ============================================================================
-
-def _pct(x):
-    return None if x is None or not math.isfinite(x) else 100.0 * float(x)
-
-
-def arrhenius_record(fit: ArrheniusFit, unit: str | None = None) -> dict:
-    """One Arrhenius expression with units in the keys.
-
-    ``A`` is given in ``A_unit`` (default: the trade's unit for the order,
-    e.g. cm3 molecule-1 s-1) and in SI per molecule (``A_SI``).
-    """
-    a_unit = unit or {1: "s-1", 2: "cm3 molecule-1 s-1", 3: "cm6 molecule-2 s-1"}[fit.order]
-    return {
-        "form": "modified Arrhenius k = A (T/T0)^n exp(-Ea/RT)" if fit.modified
-        else "Arrhenius k = A exp(-Ea/RT)",
-        "A": float(rate_from_SI(fit.A, fit.order, a_unit)),
-        "A_unit": a_unit,
-        "A_SI": fit.A,
-        "A_SI_unit": {1: "s-1", 2: "m3 molecule-1 s-1", 3: "m6 molecule-2 s-1"}[fit.order],
-        "n": fit.n,
-        "T0_K": fit.T0_K,
-        "Ea_kJ_per_mol": fit.Ea_J_per_mol / 1e3,
-        "Ea_over_R_K": fit.Ea_over_R_K,
-        "order": fit.order,
-        "Tmin_K": fit.Tmin_K,
-        "Tmax_K": fit.Tmax_K,
-        "n_points": fit.n_points,
-        "max_deviation_percent": _pct(fit.max_rel_deviation),
-        "rms_deviation_percent": _pct(fit.rms_rel_deviation),
-        "warning": fit.warning,
-    }
-
-
-def chebyshev_record(fit: ChebyshevFit, unit: str | None = None) -> dict:
-    """One Chebyshev expression with units in the keys.
-
-    Coefficients are given for log10 of k in ``k_unit`` (default: the trade's
-    unit for the order) and in SI per molecule; they differ only in a_00.
-    """
-    k_unit = unit or {1: "s-1", 2: "cm3 molecule-1 s-1", 3: "cm6 molecule-2 s-1"}[fit.order]
-    return {
-        "form": "log10 k = sum_t sum_p a[t][p] T_t(x) T_p(y), T_n Chebyshev polynomials of the "
-                "first kind, x = (2/T - 1/Tmin - 1/Tmax) / (1/Tmax - 1/Tmin), "
-                "y = (2 ln P - ln Pmin - ln Pmax) / (ln Pmax - ln Pmin) (y = 0 without a "
-                "pressure range); Venkatesh et al., AIChE J. 43, 1331 (1997)",
-        "coefficients_log10_k": fit.coefficients_in(k_unit).tolist(),
-        "k_unit": k_unit,
-        "coefficients_log10_k_SI": fit.coefficients.tolist(),
-        "k_SI_unit": {1: "s-1", 2: "m3 molecule-1 s-1", 3: "m6 molecule-2 s-1"}[fit.order],
-        "coefficient_layout": "rows: 1/T terms (degree 0 first); columns: log P terms",
-        "n_temperature_terms": fit.n_temperature,
-        "n_pressure_terms": fit.n_pressure,
-        "order": fit.order,
-        "Tmin_K": fit.Tmin_K,
-        "Tmax_K": fit.Tmax_K,
-        "pressure_dependent": fit.pressure_dependent,
-        "Pmin_Pa": fit.Pmin_Pa,
-        "Pmax_Pa": fit.Pmax_Pa,
-        "n_points": fit.n_points,
-        "max_deviation_percent": _pct(fit.max_rel_deviation),
-        "rms_deviation_percent": _pct(fit.rms_rel_deviation),
-        "warning": fit.warning,
-    }
-
-
-def _troe_record(t: TroeData, rate_units) -> dict:
-    return {
-        "k0_low_pressure": arrhenius_record(t.k0, (rate_units or {}).get(t.k0.order)),
-        "kinf_high_pressure": arrhenius_record(t.kinf, (rate_units or {}).get(t.kinf.order)),
-        "a": t.a,
-        "T3_K": t.T3_K,
-        "T1_K": t.T1_K,
-        "T2_K": t.T2_K,
-        "Fcent_formula": "(1-a) exp(-T/T3) + a exp(-T/T1) + exp(-T2/T) (last term only with T2)",
-        "fit_max_deviation_percent": _pct(t.max_rel_deviation),
-        "fit_rms_deviation_percent": _pct(t.rms_rel_deviation),
-        "bath_gas": t.bath_gas,
-        "source": t.source,
-    }
-
-
-def _nasa_record(n: Nasa7Fit) -> dict:
-    return {
-        "form": "Cp/R = a1 + a2 T + a3 T^2 + a4 T^3 + a5 T^4; H/RT = a1 + a2 T/2 + a3 T^2/3 "
-                "+ a4 T^3/4 + a5 T^4/5 + a6/T; S/R = a1 ln T + a2 T + a3 T^2/2 + a4 T^3/3 "
-                "+ a5 T^4/4 + a7 (T in K)",
-        "Tmin_K": n.Tmin_K,
-        "Tmid_K": n.Tmid_K,
-        "Tmax_K": n.Tmax_K,
-        "low_range_coefficients": list(n.low),
-        "high_range_coefficients": list(n.high),
-        "reference_pressure_Pa": P_STANDARD,
-        "max_error_cp_percent": _pct(n.max_rel_error_cp),
-        "max_error_h_percent_of_max_abs_H_or_RT": _pct(n.max_rel_error_h),
-        "max_abs_error_h_J_per_mol": n.max_abs_error_h_J_per_mol,
-        "max_error_s_percent": _pct(n.max_rel_error_s),
-        "n_points": n.n_points,
-    }
-
-
-def fits_to_json(fits: StudyFits, rate_units: Mapping[int, str] | None = None) -> dict:
-    """A JSON-ready dict of everything in ``fits`` (units in every key).
-
-    ``rate_units`` maps order -> unit of A (default the trade's units,
-    s-1 / cm3 molecule-1 s-1 / cm6 molecule-2 s-1); A is also given in SI.
-    """
-    from tstrate.cli.common import to_jsonable
-
-    units = dict(rate_units or {})
-    channels = []
-    for c in fits.channels:
-        u = units.get(c.order)
-        entry = {
-            "name": c.name,
-            "equation": c.equation,
-            "reactants": list(c.reactants),
-            "products": list(c.products),
-            "order": c.order,
-            "reverse_order": c.reverse_order,
-            "fitted_temperature_range_K": [float(c.temperature_K.min()), float(c.temperature_K.max())],
-            "fitted_temperatures_K": c.temperature_K,
-            "rate_constant_data_SI": c.k_SI,
-            "rate_constant_data_SI_unit": {1: "s-1", 2: "m3 molecule-1 s-1",
-                                           3: "m6 molecule-2 s-1"}[c.order],
-            "includes_tunnelling": True,
-            "arrhenius": arrhenius_record(c.arrhenius, u),
-            "modified_arrhenius": arrhenius_record(c.modified, u),
-            "split": None if c.split is None else {
-                "break_K": c.split.break_K,
-                "jump_at_break_percent": _pct(c.split.jump_at_break),
-                "max_deviation_percent": _pct(c.split.max_rel_deviation),
-                "low": arrhenius_record(c.split.low, u),
-                "high": arrhenius_record(c.split.high, u),
-            },
-            "chebyshev": None if c.chebyshev is None else chebyshev_record(c.chebyshev, u),
-            "chebyshev_falloff": None if c.chebyshev_falloff is None
-            else chebyshev_record(c.chebyshev_falloff, u),
-            # the key of the record above that the mechanism holds; a channel written in Troe
-            # form names its Arrhenius form (the Troe record is under falloff_troe)
-            "mechanism_expression": c.mechanism_kind if c.mechanism_kind.startswith("chebyshev")
-            else ("arrhenius" if c.mechanism_form == "arrhenius" else "modified_arrhenius"),
-            "Kc_check_max_abs_ln_difference": c.max_abs_ln_kc_error,
-            "falloff_troe": None if c.troe is None else _troe_record(c.troe, units),
-            "warnings": list(c.warnings),
-        }
-        channels.append(entry)
-    species = []
-    for s in fits.species:
-        species.append({
-            "name": s.name,
-            "formula": s.formula,
-            "composition": s.composition,
-            "role": s.role,
-            "source": s.source,
-            "electronic_energy_J_per_mol": s.energy_J_per_mol,
-            "zpe_J_per_mol": s.zpe_J_per_mol,
-            "enthalpy_offset_J_per_mol": s.enthalpy_offset_J_per_mol,
-            "H0K_exported_J_per_mol": s.h0_exported_J_per_mol,
-            "H298_exported_kJ_per_mol": float(s.nasa7.h_J_per_mol(298.15)) / 1e3
-            if s.nasa7.Tmin_K <= 298.15 <= s.nasa7.Tmax_K else None,
-            "nasa7": _nasa_record(s.nasa7),
-            "nasa7_errors_at_fitted_temperatures_percent": None if s.errors_at_extra is None
-            else {"cp": _pct(s.errors_at_extra["cp"]),
-                  "h_of_max_abs_H_or_RT": _pct(s.errors_at_extra["h"]),
-                  "s": _pct(s.errors_at_extra["s"])},
-            "note": s.note,
-        })
-    out = {
-        "study": fits.study_file,
-        "title": fits.title,
-        "created_utc": fits.created,
-        "tstrate_version": fits.version,
-        "caution": "estimates from transition-state theory on computed stationary points; "
-                   "check them against measurements before relying on them",
-        "low_modes": {"method": fits.low_modes.method, "cutoff_cm1": fits.low_modes.cutoff_cm1},
-        "fitted_temperatures_K": fits.temperature_K,
-        "enthalpy_zero": {
-            "description": "H_export = E + ZPE + [H(T) - H(0)] - sum_j n_j c_j with per-element "
-                           "offsets c_j (least squares over the exported study species); "
-                           "reaction energies and Kc are unchanged; values are not enthalpies "
-                           "of formation",
-            "element_offsets_J_per_mol": fits.element_offsets_J_per_mol,
-        },
-        "standard_state": "1 bar (NASA polynomials); rate constants per molecule",
-        "bath_gas": fits.bath_gas,
-        "species": species,
-        "channels": channels,
-        "warnings": list(fits.warnings) + [w for c in fits.channels for w in c.warnings],
-    }
-    return to_jsonable(out)
-
-
-__all__ = ["TroeData", "SpeciesFit", "ChannelFit", "StudyFits", "fit_study", "fits_to_json",
-           "arrhenius_expression", "arrhenius_record", "chebyshev_record", "MECHANISM_FORMS", "element_offsets", "fit_species_nasa",
-           "ln_kc_from_nasa", "nasa_grid", "nasa_range", "midpoint_candidates", "element_order", "default_reference_dir",
-           "NASA_RANGE_DEFAULT_K", "NASA_T_MID_DEFAULT_K"]
+__all__ = ["TroeData", "SpeciesFit", "ChannelFit", "StudyFits", "fit_study", "arrhenius_expression",
+           "MECHANISM_FORMS", "element_offsets", "fit_species_nasa", "ln_kc_from_nasa", "nasa_grid", "nasa_range",
+           "midpoint_candidates", "element_order", "NASA_RANGE_DEFAULT_K", "NASA_T_MID_DEFAULT_K"]

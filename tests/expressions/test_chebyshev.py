@@ -1,4 +1,4 @@
-"""Chebyshev rate expressions (tstrate.physics.fitting.fit_chebyshev / ChebyshevFit).
+"""Chebyshev rate expressions (tstrate.expressions.chebyshev.fit_chebyshev / ChebyshevFit).
 
 References outside the project:
 - the definition of the Chebyshev polynomials of the first kind, T_n(cos t) = cos(n t)
@@ -17,7 +17,7 @@ import numpy as np
 import pytest
 
 from tstrate.errors import InputError
-from tstrate.physics.fitting import ChebyshevFit, fit_chebyshev
+from tstrate.expressions.chebyshev import ChebyshevFit, fit_chebyshev
 
 T_GRID = np.arange(150.0, 301.0, 10.0)                 # the demo study's temperatures [K]
 P_GRID = np.array([0.1, 0.3, 1, 3, 10, 30, 100, 300, 1e3, 3e3, 1e4, 3e4, 1e5])  # [Pa]

@@ -1,4 +1,4 @@
-"""Tests for tstrate.physics.fitting (Arrhenius fits and NASA 7-coefficient polynomials)."""
+"""Tests for tstrate.expressions.arrhenius and tstrate.expressions.nasa7."""
 
 from __future__ import annotations
 
@@ -8,17 +8,9 @@ import numpy as np
 import pytest
 
 from tstrate.errors import InputError
-from tstrate.physics.fitting import (
-    ArrheniusFit,
-    Nasa7Fit,
-    fit_arrhenius,
-    fit_arrhenius_split,
-    fit_nasa7,
-    nasa7_cp_J_per_mol_K,
-    nasa7_g_J_per_mol,
-    nasa7_h_J_per_mol,
-    nasa7_s_J_per_mol_K,
-)
+from tstrate.expressions.arrhenius import ArrheniusFit, fit_arrhenius, fit_arrhenius_split
+from tstrate.expressions.nasa7 import (Nasa7Fit, fit_nasa7, nasa7_cp_J_per_mol_K, nasa7_g_J_per_mol,
+                                       nasa7_h_J_per_mol, nasa7_s_J_per_mol_K)
 from tstrate.units import CM1_J, K_B, R
 
 # Exact synthetic data are recovered to round-off; ln k spans ~20 units, so the least-squares

@@ -1,0 +1,204 @@
+"""fits.json: the fitted expressions of a study as plain records in users' units."""
+
+from __future__ import annotations
+
+import math
+from typing import Mapping
+
+from tstrate.expressions.arrhenius import ArrheniusFit
+from tstrate.expressions.chebyshev import ChebyshevFit
+from tstrate.expressions.nasa7 import Nasa7Fit
+from tstrate.output.records import to_jsonable
+from tstrate.study.fits import StudyFits, TroeData
+from tstrate.units import P_STANDARD, rate_from_SI
+
+def _pct(x):
+    return None if x is None or not math.isfinite(x) else 100.0 * float(x)
+
+
+def arrhenius_record(fit: ArrheniusFit, unit: str | None = None) -> dict:
+    """One Arrhenius expression with units in the keys.
+
+    ``A`` is given in ``A_unit`` (default: the trade's unit for the order,
+    e.g. cm3 molecule-1 s-1) and in SI per molecule (``A_SI``).
+    """
+    a_unit = unit or {1: "s-1", 2: "cm3 molecule-1 s-1", 3: "cm6 molecule-2 s-1"}[fit.order]
+    return {
+        "form": "modified Arrhenius k = A (T/T0)^n exp(-Ea/RT)" if fit.modified
+        else "Arrhenius k = A exp(-Ea/RT)",
+        "A": float(rate_from_SI(fit.A, fit.order, a_unit)),
+        "A_unit": a_unit,
+        "A_SI": fit.A,
+        "A_SI_unit": {1: "s-1", 2: "m3 molecule-1 s-1", 3: "m6 molecule-2 s-1"}[fit.order],
+        "n": fit.n,
+        "T0_K": fit.T0_K,
+        "Ea_kJ_per_mol": fit.Ea_J_per_mol / 1e3,
+        "Ea_over_R_K": fit.Ea_over_R_K,
+        "order": fit.order,
+        "Tmin_K": fit.Tmin_K,
+        "Tmax_K": fit.Tmax_K,
+        "n_points": fit.n_points,
+        "max_deviation_percent": _pct(fit.max_rel_deviation),
+        "rms_deviation_percent": _pct(fit.rms_rel_deviation),
+        "warning": fit.warning,
+    }
+
+
+def chebyshev_record(fit: ChebyshevFit, unit: str | None = None) -> dict:
+    """One Chebyshev expression with units in the keys.
+
+    Coefficients are given for log10 of k in ``k_unit`` (default: the trade's
+    unit for the order) and in SI per molecule; they differ only in a_00.
+    """
+    k_unit = unit or {1: "s-1", 2: "cm3 molecule-1 s-1", 3: "cm6 molecule-2 s-1"}[fit.order]
+    return {
+        "form": "log10 k = sum_t sum_p a[t][p] T_t(x) T_p(y), T_n Chebyshev polynomials of the "
+                "first kind, x = (2/T - 1/Tmin - 1/Tmax) / (1/Tmax - 1/Tmin), "
+                "y = (2 ln P - ln Pmin - ln Pmax) / (ln Pmax - ln Pmin) (y = 0 without a "
+                "pressure range); Venkatesh et al., AIChE J. 43, 1331 (1997)",
+        "coefficients_log10_k": fit.coefficients_in(k_unit).tolist(),
+        "k_unit": k_unit,
+        "coefficients_log10_k_SI": fit.coefficients.tolist(),
+        "k_SI_unit": {1: "s-1", 2: "m3 molecule-1 s-1", 3: "m6 molecule-2 s-1"}[fit.order],
+        "coefficient_layout": "rows: 1/T terms (degree 0 first); columns: log P terms",
+        "n_temperature_terms": fit.n_temperature,
+        "n_pressure_terms": fit.n_pressure,
+        "order": fit.order,
+        "Tmin_K": fit.Tmin_K,
+        "Tmax_K": fit.Tmax_K,
+        "pressure_dependent": fit.pressure_dependent,
+        "Pmin_Pa": fit.Pmin_Pa,
+        "Pmax_Pa": fit.Pmax_Pa,
+        "n_points": fit.n_points,
+        "max_deviation_percent": _pct(fit.max_rel_deviation),
+        "rms_deviation_percent": _pct(fit.rms_rel_deviation),
+        "warning": fit.warning,
+    }
+
+
+def _troe_record(t: TroeData, rate_units) -> dict:
+    return {
+        "k0_low_pressure": arrhenius_record(t.k0, (rate_units or {}).get(t.k0.order)),
+        "kinf_high_pressure": arrhenius_record(t.kinf, (rate_units or {}).get(t.kinf.order)),
+        "a": t.a,
+        "T3_K": t.T3_K,
+        "T1_K": t.T1_K,
+        "T2_K": t.T2_K,
+        "Fcent_formula": "(1-a) exp(-T/T3) + a exp(-T/T1) + exp(-T2/T) (last term only with T2)",
+        "fit_max_deviation_percent": _pct(t.max_rel_deviation),
+        "fit_rms_deviation_percent": _pct(t.rms_rel_deviation),
+        "bath_gas": t.bath_gas,
+        "source": t.source,
+    }
+
+
+def _nasa_record(n: Nasa7Fit) -> dict:
+    return {
+        "form": "Cp/R = a1 + a2 T + a3 T^2 + a4 T^3 + a5 T^4; H/RT = a1 + a2 T/2 + a3 T^2/3 "
+                "+ a4 T^3/4 + a5 T^4/5 + a6/T; S/R = a1 ln T + a2 T + a3 T^2/2 + a4 T^3/3 "
+                "+ a5 T^4/4 + a7 (T in K)",
+        "Tmin_K": n.Tmin_K,
+        "Tmid_K": n.Tmid_K,
+        "Tmax_K": n.Tmax_K,
+        "low_range_coefficients": list(n.low),
+        "high_range_coefficients": list(n.high),
+        "reference_pressure_Pa": P_STANDARD,
+        "max_error_cp_percent": _pct(n.max_rel_error_cp),
+        "max_error_h_percent_of_max_abs_H_or_RT": _pct(n.max_rel_error_h),
+        "max_abs_error_h_J_per_mol": n.max_abs_error_h_J_per_mol,
+        "max_error_s_percent": _pct(n.max_rel_error_s),
+        "n_points": n.n_points,
+    }
+
+
+def fits_to_json(fits: StudyFits, rate_units: Mapping[int, str] | None = None) -> dict:
+    """A JSON-ready dict of everything in ``fits`` (units in every key).
+
+    ``rate_units`` maps order -> unit of A (default the trade's units,
+    s-1 / cm3 molecule-1 s-1 / cm6 molecule-2 s-1); A is also given in SI.
+    """
+    units = dict(rate_units or {})
+    channels = []
+    for c in fits.channels:
+        u = units.get(c.order)
+        entry = {
+            "name": c.name,
+            "equation": c.equation,
+            "reactants": list(c.reactants),
+            "products": list(c.products),
+            "order": c.order,
+            "reverse_order": c.reverse_order,
+            "fitted_temperature_range_K": [float(c.temperature_K.min()), float(c.temperature_K.max())],
+            "fitted_temperatures_K": c.temperature_K,
+            "rate_constant_data_SI": c.k_SI,
+            "rate_constant_data_SI_unit": {1: "s-1", 2: "m3 molecule-1 s-1",
+                                           3: "m6 molecule-2 s-1"}[c.order],
+            "includes_tunnelling": True,
+            "arrhenius": arrhenius_record(c.arrhenius, u),
+            "modified_arrhenius": arrhenius_record(c.modified, u),
+            "split": None if c.split is None else {
+                "break_K": c.split.break_K,
+                "jump_at_break_percent": _pct(c.split.jump_at_break),
+                "max_deviation_percent": _pct(c.split.max_rel_deviation),
+                "low": arrhenius_record(c.split.low, u),
+                "high": arrhenius_record(c.split.high, u),
+            },
+            "chebyshev": None if c.chebyshev is None else chebyshev_record(c.chebyshev, u),
+            "chebyshev_falloff": None if c.chebyshev_falloff is None
+            else chebyshev_record(c.chebyshev_falloff, u),
+            # the key of the record above that the mechanism holds; a channel written in Troe
+            # form names its Arrhenius form (the Troe record is under falloff_troe)
+            "mechanism_expression": c.mechanism_kind if c.mechanism_kind.startswith("chebyshev")
+            else ("arrhenius" if c.mechanism_form == "arrhenius" else "modified_arrhenius"),
+            "Kc_check_max_abs_ln_difference": c.max_abs_ln_kc_error,
+            "falloff_troe": None if c.troe is None else _troe_record(c.troe, units),
+            "warnings": list(c.warnings),
+        }
+        channels.append(entry)
+    species = []
+    for s in fits.species:
+        species.append({
+            "name": s.name,
+            "formula": s.formula,
+            "composition": s.composition,
+            "role": s.role,
+            "source": s.source,
+            "electronic_energy_J_per_mol": s.energy_J_per_mol,
+            "zpe_J_per_mol": s.zpe_J_per_mol,
+            "enthalpy_offset_J_per_mol": s.enthalpy_offset_J_per_mol,
+            "H0K_exported_J_per_mol": s.h0_exported_J_per_mol,
+            "H298_exported_kJ_per_mol": float(s.nasa7.h_J_per_mol(298.15)) / 1e3
+            if s.nasa7.Tmin_K <= 298.15 <= s.nasa7.Tmax_K else None,
+            "nasa7": _nasa_record(s.nasa7),
+            "nasa7_errors_at_fitted_temperatures_percent": None if s.errors_at_extra is None
+            else {"cp": _pct(s.errors_at_extra["cp"]),
+                  "h_of_max_abs_H_or_RT": _pct(s.errors_at_extra["h"]),
+                  "s": _pct(s.errors_at_extra["s"])},
+            "note": s.note,
+        })
+    out = {
+        "study": fits.study_file,
+        "title": fits.title,
+        "created_utc": fits.created,
+        "tstrate_version": fits.version,
+        "caution": "estimates from transition-state theory on computed stationary points; "
+                   "check them against measurements before relying on them",
+        "low_modes": {"method": fits.low_modes.method, "cutoff_cm1": fits.low_modes.cutoff_cm1},
+        "fitted_temperatures_K": fits.temperature_K,
+        "enthalpy_zero": {
+            "description": "H_export = E + ZPE + [H(T) - H(0)] - sum_j n_j c_j with per-element "
+                           "offsets c_j (least squares over the exported study species); "
+                           "reaction energies and Kc are unchanged; values are not enthalpies "
+                           "of formation",
+            "element_offsets_J_per_mol": fits.element_offsets_J_per_mol,
+        },
+        "standard_state": "1 bar (NASA polynomials); rate constants per molecule",
+        "bath_gas": fits.bath_gas,
+        "species": species,
+        "channels": channels,
+        "warnings": list(fits.warnings) + [w for c in fits.channels for w in c.warnings],
+    }
+    return to_jsonable(out)
+
+
+__all__ = ["arrhenius_record", "chebyshev_record", "fits_to_json"]

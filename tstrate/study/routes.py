@@ -1,0 +1,15 @@
+"""Bare against catalysed routes: every ``[[comparison]]`` of a study."""
+
+from __future__ import annotations
+
+from tstrate.physics.catalysis import ComparisonResult, compare_routes
+from tstrate.physics.thermo import HARMONIC, LowModes
+
+
+def study_comparisons(study, *, low_modes: LowModes = HARMONIC) -> list[ComparisonResult]:
+    """Results of every ``[[comparison]]`` of a study (each at its own or the study's temperatures)."""
+    out = []
+    for comp in study.sections.get("comparison", ()):
+        T = comp.temperature_K if comp.temperature_K is not None else study.conditions.temperature_K
+        out.append(compare_routes(comp, study.species, study.channels, T, low_modes=low_modes))
+    return out
