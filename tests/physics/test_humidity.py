@@ -92,7 +92,7 @@ def test_no_warning_inside_validity(caplog):
 
 @pytest.mark.parametrize("T", [0.0, -10.0, np.nan, [200.0, -1.0]])
 def test_bad_temperature_raises(T):
-    with pytest.raises(InputError, match="temperature must be"):
+    with pytest.raises(InputError, match="temperatures must be"):
         saturation_pressure_ice_Pa(T)
 
 
@@ -168,7 +168,7 @@ def test_supersaturation_warns_but_is_allowed(caplog):
     (lambda: number_density_from_partial_pressure(-3.0, 200.0), "partial pressure must not be negative"),
     (lambda: number_density_from_mixing_ratio(-1e-6, 1e4, 200.0), "mixing ratio must not be negative"),
     (lambda: number_density_from_mixing_ratio(2.0, 1e4, 200.0), "must not exceed 1 mol/mol"),
-    (lambda: number_density_from_partial_pressure(10.0, 0.0), "temperature must be positive"),
+    (lambda: number_density_from_partial_pressure(10.0, 0.0), "temperatures must be positive"),
     (lambda: relative_humidity_from_number_density(-5.0, 200.0), "number density must not be negative"),
     (lambda: mixing_ratio_from_number_density(1e20, 0.0, 200.0), "total pressure must be positive"),
 ])
@@ -243,7 +243,7 @@ def test_dimer_vectorised_and_quadratic():
 @pytest.mark.parametrize("args, match", [
     ((-0.1, 1e21, 250.0), "equilibrium constant Kp must not be negative"),
     ((0.1, -1e21, 250.0), "monomer number density must not be negative"),
-    ((0.1, 1e21, 0.0), "temperature must be positive"),
+    ((0.1, 1e21, 0.0), "temperatures must be positive"),
 ])
 def test_dimer_errors(args, match):
     with pytest.raises(InputError, match=match):

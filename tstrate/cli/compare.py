@@ -58,7 +58,7 @@ def compute(study_path, low_modes="harmonic"):
     study = read_study(study_path)
     if not study.sections.get("comparison"):
         raise InputError("the study has no [[comparison]] section", file=study.file,
-                         hint="add one, see the documentation of tstrate.io.comparisons")
+                         hint="add one, see docs/study-file.md")
     return study, study_comparisons(study, low_modes=LowModes(low_modes))
 
 

@@ -18,6 +18,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from tstrate.arrays import temperatures_K
 from tstrate.errors import InputError
 from tstrate.model.settings import MAX_DEVIATION_DEFAULT, T0_DEFAULT_K  # noqa: F401 (defaults of the fits)
 from tstrate.units import R, rate_from_SI
@@ -125,8 +126,7 @@ def _arrhenius_inputs(temperature_K, k_SI, weights, n_params):
     k = np.asarray(k_SI, dtype=float).ravel()
     if T.shape != k.shape:
         raise InputError(f"{T.size} temperatures but {k.size} rate constants", field="k_SI")
-    if not np.all(np.isfinite(T)) or np.any(T <= 0.0):
-        raise InputError("temperatures must be positive and finite", field="temperature_K")
+    temperatures_K(T)
     if not np.all(np.isfinite(k)) or np.any(k <= 0.0):
         raise InputError("rate constants must be positive and finite to fit ln k", field="k_SI",
                          hint="drop points where the rate constant under- or overflowed")

@@ -22,6 +22,7 @@ from dataclasses import dataclass
 import numpy as np
 from scipy.linalg import null_space
 
+from tstrate.arrays import temperatures_K
 from tstrate.errors import InputError
 from tstrate.units import R
 
@@ -192,8 +193,7 @@ def fit_nasa7(temperature_K, cp_J_per_mol_K, h_J_per_mol, s_J_per_mol_K, *,
         if not np.all(np.isfinite(arr)):
             raise InputError("values must be finite", field=name)
         data[name] = arr
-    if not np.all(np.isfinite(T)) or np.any(T <= 0.0):
-        raise InputError("temperatures must be positive and finite", field="temperature_K")
+    temperatures_K(T)
     if np.any(data["cp_J_per_mol_K"] <= 0.0):
         raise InputError("heat capacities must be positive", field="cp_J_per_mol_K")
     weights = np.asarray(quantity_weights, dtype=float)

@@ -47,10 +47,10 @@ from tstrate.model import Channel, Conditions, Study
 from tstrate.units import PRESSURE_UNITS_PA, RATE_UNITS
 
 #: top-level section -> "module:function" that reads it (called with (table, study) -> object)
-SECTION_READERS: dict[str, str] = {"comparison": "tstrate.io.comparisons:read_comparisons",
-                                  "falloff": "tstrate.io.pressure_sections:read_falloff",
-                                  "excitation": "tstrate.io.pressure_sections:read_excitations",
-                                  "fits": "tstrate.io.fit_section:read_fit_options"}
+SECTION_READERS: dict[str, str] = {"comparison": "tstrate.io.sections.comparison:read_comparisons",
+                                  "falloff": "tstrate.io.sections.pressure:read_falloff",
+                                  "excitation": "tstrate.io.sections.pressure:read_excitations",
+                                  "fits": "tstrate.io.sections.fits:read_fit_options"}
 
 CORE_KEYS = {"title", "species", "conditions", "channel"}
 CONDITION_KEYS = {"temperature_K", "pressure_bar", "pressure_Pa", "pressure_Torr",

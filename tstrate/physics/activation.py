@@ -22,9 +22,10 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from tstrate.arrays import positive_array
 from tstrate.errors import InputError
 from tstrate.physics.rrkm import MicrocanonicalRate
-from tstrate.physics.states import CM1_J_PER_MOL, _as_positive_array
+from tstrate.physics.states import CM1_J_PER_MOL, MODE_HINT
 from tstrate.units import C, H, N_A, R, energy_to_J_per_mol
 
 
@@ -57,7 +58,7 @@ def mean_vibrational_energy_J_per_mol(frequencies_cm1, temperature_K):
     sum_i N_A h c nu_i / (exp(h c nu_i / kT) - 1); vectorised over temperature."""
     from tstrate.physics.thermo import harmonic_oscillators
 
-    nu = _as_positive_array(frequencies_cm1, "frequencies_cm1")
+    nu = positive_array(frequencies_cm1, "frequencies_cm1", hint=MODE_HINT)
     t = np.asarray(temperature_K, dtype=float)
     _, u_over_rt, _, _ = harmonic_oscillators(nu, np.atleast_1d(t))   # thermal U/RT per mode
     energy = R * np.atleast_1d(t) * u_over_rt.sum(axis=1)

@@ -63,6 +63,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from tstrate.arrays import temperatures_K
 from tstrate.errors import InputError
 from tstrate.model import Channel, Species
 from tstrate.physics.humidity import Abundance, saturation_pressure_Pa
@@ -196,7 +197,6 @@ class Comparison:
     catalyst_dimer: species name of X2 (its abundance from 2 X <=> X2), or None.
     temperature_K: temperatures [K] of this comparison, or None for the study's.
     description: free text.
-    file: the study file, for messages.
     """
 
     name: str
@@ -208,7 +208,6 @@ class Comparison:
     catalyst_dimer: str | None = None
     temperature_K: tuple[float, ...] | None = None
     description: str = ""
-    file: str | None = None
 
 
 def classify_route(channel: Channel, substrate: str, catalyst: str,
@@ -585,9 +584,7 @@ def compare_routes(comparison: Comparison, species: Mapping[str, Species], chann
             raise InputError(f"comparison {comparison.name!r} has no temperatures",
                              field="temperature_K")
         temperature_K = comparison.temperature_K
-    T = np.atleast_1d(np.asarray(temperature_K, dtype=float))
-    if T.ndim != 1 or not np.all(np.isfinite(T)) or np.any(T <= 0):
-        raise InputError("temperatures must be positive and finite", field="temperature_K")
+    T = temperatures_K(temperature_K, ndim=1)
     for name in [comparison.reference] + [a.channel for a in comparison.assisted]:
         if name not in chans:
             raise InputError(f"unknown channel {name!r}", field="comparison")
@@ -626,12 +623,9 @@ def compare_routes(comparison: Comparison, species: Mapping[str, Species], chann
                     k_unimolecular_from_complex_per_s=k_uni, complex_per_free_substrate=per_free,
                     ln_k1=np.broadcast_to(ln_k1, n_cat.shape))
 
-    try:
-        raw = [one_route(chans[comparison.reference], "bare", 0, False)]
-        for a in comparison.assisted:
-            raw.append(one_route(chans[a.channel], a.kind, a.catalyst_count, a.via_dimer))
-    except InputError as exc:
-        raise exc.located(file=comparison.file, field=f"comparison {comparison.name}") from None
+    raw = [one_route(chans[comparison.reference], "bare", 0, False)]
+    for a in comparison.assisted:
+        raw.append(one_route(chans[a.channel], a.kind, a.catalyst_count, a.via_dimer))
 
     ln_bare = raw[0]["ln_k1"]
     routes = []

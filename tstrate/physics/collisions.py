@@ -26,6 +26,7 @@ from types import MappingProxyType
 
 import numpy as np
 
+from tstrate.arrays import temperatures_K
 from tstrate.errors import InputError
 from tstrate.units import AMU, K_B, R
 
@@ -142,9 +143,7 @@ def collision_rate_m3_s(temperature_K, sigma_A: float, epsilon_K: float, reduced
     except KeyError:
         raise InputError(f"unknown collision-integral approximation {omega!r}", field="omega",
                          hint="use 'neufeld' or 'troe'") from None
-    t = np.asarray(temperature_K, dtype=float)
-    if np.any(~np.isfinite(t)) or np.any(t <= 0):
-        raise InputError("temperatures must be positive", field="temperature")
+    t = temperatures_K(temperature_K)
     for name, v in (("sigma_A", sigma_A), ("epsilon_K", epsilon_K), ("reduced_mass_amu", reduced_mass_amu)):
         if not (math.isfinite(v) and v > 0):
             raise InputError(f"{name} must be positive, got {v!r}", field=name)

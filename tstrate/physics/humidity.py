@@ -31,6 +31,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from tstrate.arrays import temperatures_K
 from tstrate.errors import InputError
 from tstrate.units import K_B, P_STANDARD
 
@@ -64,13 +65,7 @@ def _out(values) -> float | np.ndarray:
 
 
 def _temperature(temperature_K, *, field: str = "temperature_K") -> np.ndarray:
-    T = np.asarray(temperature_K, dtype=float)
-    if not np.all(np.isfinite(T)):
-        raise InputError("temperature must be finite", field=field)
-    if np.any(T <= 0.0):
-        raise InputError(f"temperature must be positive, got {T[T <= 0.0].ravel()[0]:g} K",
-                         field=field)
-    return T
+    return temperatures_K(temperature_K, name=field)
 
 
 def _non_negative(value, what: str, field: str) -> np.ndarray:

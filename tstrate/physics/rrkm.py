@@ -50,8 +50,9 @@ from typing import Callable, Sequence
 
 import numpy as np
 
+from tstrate.arrays import positive, positive_array
 from tstrate.errors import InputError
-from tstrate.physics.states import (CM1_J_PER_MOL, Rotor, StateCounts, _as_positive_array, _positive,
+from tstrate.physics.states import (CM1_J_PER_MOL, Rotor, StateCounts,
                                     check_grain, count_states)
 from tstrate.units import H, N_A, R
 
@@ -90,8 +91,8 @@ class ExternalRotation:
     quantum_K: bool = False
 
     def __post_init__(self):
-        _positive(self.reactant_B2d_cm1, "reactant_B2d_cm1")
-        _positive(self.ts_B2d_cm1, "ts_B2d_cm1")
+        positive(self.reactant_B2d_cm1, "reactant_B2d_cm1")
+        positive(self.ts_B2d_cm1, "ts_B2d_cm1")
         if (self.reactant_K_cm1 is None) != (self.ts_K_cm1 is None):
             raise InputError("give the K-rotor constant for both reactant and transition state, or neither",
                              field="K_cm1")
@@ -116,8 +117,8 @@ def centrifugal_barrier_shift_J_per_mol(reactant_B2d_cm1: float, ts_B2d_cm1: flo
     (negative when the transition state is looser). Documented alternative to
     the I_TS/I_R factor; not used by :func:`rrkm_rate`.
     """
-    b_r = _positive(reactant_B2d_cm1, "reactant_B2d_cm1")
-    b_ts = _positive(ts_B2d_cm1, "ts_B2d_cm1")
+    b_r = positive(reactant_B2d_cm1, "reactant_B2d_cm1")
+    b_ts = positive(ts_B2d_cm1, "ts_B2d_cm1")
     return R * np.asarray(temperature_K, dtype=float) * (b_ts / b_r - 1.0)
 
 
@@ -219,8 +220,8 @@ def microcanonical_rate(reactant: StateCounts, ts: StateCounts, barrier_J_per_mo
     if not math.isfinite(e0) or e0 < 0.0:
         raise InputError(f"barrier must be a non-negative energy in J/mol, got {barrier_J_per_mol!r}",
                          field="barrier_J_per_mol")
-    _positive(path_degeneracy, "path_degeneracy")
-    _positive(centrifugal_factor, "centrifugal_factor")
+    positive(path_degeneracy, "path_degeneracy")
+    positive(centrifugal_factor, "centrifugal_factor")
     n = reactant.n_grains
     m = int(round(e0 / grain))
     if m >= n:
@@ -276,13 +277,13 @@ def rrkm_rate(reactant_frequencies_cm1: Sequence[float], ts_frequencies_cm1: Seq
     refine_grain:
         Refine a grain that is too coarse (with a logged warning) instead of only warning.
     """
-    rf = _as_positive_array(reactant_frequencies_cm1, "reactant_frequencies_cm1")
+    rf = positive_array(reactant_frequencies_cm1, "reactant_frequencies_cm1")
     tf = np.atleast_1d(np.asarray(ts_frequencies_cm1, dtype=float))
     if tf.size:
-        tf = _as_positive_array(tf, "ts_frequencies_cm1")
+        tf = positive_array(tf, "ts_frequencies_cm1")
     grain_cm1 = check_grain(grain_cm1, np.concatenate([rf, tf]), refine=refine_grain)
     e0 = float(barrier_J_per_mol)
-    span = _positive(energy_above_barrier_J_per_mol, "energy_above_barrier_J_per_mol")
+    span = positive(energy_above_barrier_J_per_mol, "energy_above_barrier_J_per_mol")
     r_rot, t_rot = tuple(reactant_rotors), tuple(ts_rotors)
     factor = 1.0
     if external is not None:

@@ -33,6 +33,7 @@ from typing import Iterable, Sequence
 
 import numpy as np
 
+from tstrate.arrays import positive, positive_array
 from tstrate.errors import InputError
 from tstrate.units import AMU, C, CM1_J, H, N_A, R
 
@@ -46,33 +47,14 @@ CM1_J_PER_MOL = CM1_J * N_A
 GRAIN_FRACTION_OF_LOWEST = 1.0 / 3.0
 
 
-def _as_positive_array(values, name: str) -> np.ndarray:
-    arr = np.atleast_1d(np.asarray(values, dtype=float))
-    if arr.ndim != 1:
-        raise InputError(f"{name} must be a flat list of numbers, got shape {arr.shape}", field=name)
-    if not np.all(np.isfinite(arr)):
-        raise InputError(f"{name} contains a value that is not a finite number", field=name)
-    if np.any(arr <= 0.0):
-        bad = arr[arr <= 0.0]
-        raise InputError(f"{name} must all be positive, got {bad.tolist()}", field=name,
-                         hint="imaginary modes are given as negative numbers; leave the reaction "
-                              "coordinate out of a transition state's real modes")
-    return arr
-
-
-def _positive(value, name: str) -> float:
-    try:
-        v = float(value)
-    except (TypeError, ValueError):
-        raise InputError(f"{name} must be a number, got {value!r}", field=name) from None
-    if not math.isfinite(v) or v <= 0.0:
-        raise InputError(f"{name} must be positive, got {value!r}", field=name)
-    return v
+#: what to say when a list of real wavenumbers holds a non-positive one
+MODE_HINT = ("imaginary modes are given as negative numbers; leave the reaction coordinate out of a "
+             "transition state's real modes")
 
 
 def rotational_constant_cm1(moment_of_inertia_amu_A2: float) -> float:
     """Rotational constant B = h / (8 pi^2 c I) [cm^-1] of a moment of inertia [amu Angstrom^2]."""
-    inertia_kg_m2 = _positive(moment_of_inertia_amu_A2, "moment_of_inertia_amu_A2") * AMU * 1e-20
+    inertia_kg_m2 = positive(moment_of_inertia_amu_A2, "moment_of_inertia_amu_A2") * AMU * 1e-20
     return H / (8.0 * math.pi**2 * C * inertia_kg_m2) / 100.0
 
 
@@ -103,7 +85,7 @@ class Rotor:
     quantum: bool = False
 
     def __post_init__(self):
-        _positive(self.rotational_constant_cm1, "rotational_constant_cm1")
+        positive(self.rotational_constant_cm1, "rotational_constant_cm1")
         if int(self.symmetry_number) != self.symmetry_number or self.symmetry_number < 1:
             raise InputError(f"rotor symmetry number must be a positive integer, got {self.symmetry_number!r}",
                              field="symmetry_number")
@@ -220,11 +202,11 @@ def check_grain(grain_cm1: float, frequencies_cm1, *, refine: bool = True) -> fl
     exceeds ``GRAIN_FRACTION_OF_LOWEST * min(frequencies_cm1)`` a warning is
     logged and, with ``refine=True``, the grain is reduced to that value.
     """
-    grain = _positive(grain_cm1, "grain_cm1")
+    grain = positive(grain_cm1, "grain_cm1")
     freqs = np.atleast_1d(np.asarray(frequencies_cm1, dtype=float))
     if freqs.size == 0:
         return grain
-    freqs = _as_positive_array(freqs, "frequencies_cm1")
+    freqs = positive_array(freqs, "frequencies_cm1", hint=MODE_HINT)
     limit = GRAIN_FRACTION_OF_LOWEST * float(freqs.min())
     if grain > limit * (1.0 + 1e-12):
         if refine:
@@ -244,8 +226,8 @@ def add_oscillators(counts: np.ndarray, frequencies_cm1, grain_cm1: float) -> np
     here as a cumulative sum over the grid folded into rows of length r, so
     the cost is one pass over the grid per oscillator. Returns a new array.
     """
-    grain = _positive(grain_cm1, "grain_cm1")
-    freqs = _as_positive_array(frequencies_cm1, "frequencies_cm1") if np.size(frequencies_cm1) else []
+    grain = positive(grain_cm1, "grain_cm1")
+    freqs = positive_array(frequencies_cm1, "frequencies_cm1", hint=MODE_HINT) if np.size(frequencies_cm1) else []
     c = np.array(counts, dtype=float)
     n = c.size
     for nu in freqs:
@@ -292,13 +274,13 @@ def count_states(frequencies_cm1, max_energy_J_per_mol: float, *, grain_cm1: flo
     if (grain_cm1 is None) == (grain_J_per_mol is None):
         raise InputError("give exactly one of grain_cm1 and grain_J_per_mol", field="grain")
     if grain_cm1 is None:
-        grain_cm1 = _positive(grain_J_per_mol, "grain_J_per_mol") / CM1_J_PER_MOL
+        grain_cm1 = positive(grain_J_per_mol, "grain_J_per_mol") / CM1_J_PER_MOL
     freqs = np.atleast_1d(np.asarray(frequencies_cm1, dtype=float))
     rotors = tuple(rotors)
     if freqs.size == 0 and not rotors:
         raise InputError("nothing to count: no frequencies and no rotors", field="frequencies_cm1")
     grain_cm1 = check_grain(grain_cm1, freqs, refine=refine)
-    e_max = _positive(max_energy_J_per_mol, "max_energy_J_per_mol")
+    e_max = positive(max_energy_J_per_mol, "max_energy_J_per_mol")
     grain = grain_cm1 * CM1_J_PER_MOL
     n = int(math.ceil(e_max / grain)) + 1
     counts = np.zeros(n)
@@ -326,7 +308,7 @@ def whitten_rabinovitch(frequencies_cm1, energies_J_per_mol):
     Returns ``(sum_of_states, density_per_J_per_mol)`` as arrays over
     ``energies_J_per_mol`` (energies from the zero-point level).
     """
-    freqs = _as_positive_array(frequencies_cm1, "frequencies_cm1")
+    freqs = positive_array(frequencies_cm1, "frequencies_cm1", hint=MODE_HINT)
     e = np.asarray(energies_J_per_mol, dtype=float)
     s = freqs.size
     hnu = freqs * CM1_J_PER_MOL

@@ -41,6 +41,7 @@ from typing import Literal
 
 import numpy as np
 
+from tstrate.arrays import temperatures_K
 from tstrate.errors import InputError
 from tstrate.model import Species
 from tstrate.units import CM1_J, H, K_B, N_A, P_STANDARD, R
@@ -73,10 +74,7 @@ HARMONIC = LowModes()
 
 
 def _temperatures(temperature_K) -> np.ndarray:
-    t = np.atleast_1d(np.asarray(temperature_K, dtype=float))
-    if not np.all(np.isfinite(t)) or np.any(t <= 0):
-        raise InputError("temperatures must be positive and finite", field="temperature_K")
-    return t
+    return np.atleast_1d(temperatures_K(temperature_K))
 
 
 # ---- per-degree-of-freedom pieces (all dimensionless, shape (T,)) -------------

@@ -39,6 +39,7 @@ from dataclasses import dataclass
 
 import numpy as np
 
+from tstrate.arrays import temperatures_K
 from tstrate.errors import InputError
 from tstrate.model import Channel, Species
 from tstrate.physics import tunnelling
@@ -131,9 +132,7 @@ class ChannelRates:
 def channel_rates(channel: Channel, species: dict, temperature_K, *,
                   low_modes: LowModes = HARMONIC) -> ChannelRates:
     """Canonical TST k(T) of one channel, with tunnelling, reverse rate and activation quantities."""
-    T = np.atleast_1d(np.asarray(temperature_K, dtype=float))
-    if np.any(T <= 0) or not np.all(np.isfinite(T)):
-        raise InputError("temperatures must be positive and finite", field="temperature_K")
+    T = np.atleast_1d(temperatures_K(temperature_K))
     reac = [species[n] for n in channel.reactants]
     prod = [species[n] for n in channel.products]
     ts = species[channel.transition_state]

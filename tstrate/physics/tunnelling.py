@@ -93,6 +93,7 @@ import math
 import numpy as np
 from scipy.special import logsumexp
 
+from tstrate.arrays import temperatures_K
 from tstrate.errors import InputError
 from tstrate.model.species import TUNNELLING_MODELS
 from tstrate.units import CM1_J, N_A, R
@@ -114,14 +115,7 @@ _GL_NODES = 8            # Gauss-Legendre nodes per panel
 # --------------------------------------------------------------------------
 
 def _temperatures(temperature_K) -> np.ndarray:
-    T = np.asarray(temperature_K, dtype=float)
-    if T.size == 0:
-        raise InputError("no temperature given", field="temperature_K")
-    if not np.all(np.isfinite(T)) or np.any(T <= 0.0):
-        bad = T[~(np.isfinite(T) & (T > 0.0))].ravel()[0]
-        raise InputError(f"temperature must be a positive finite number of kelvin, got {bad}",
-                         field="temperature_K")
-    return T
+    return temperatures_K(temperature_K)
 
 
 def _imag_freq(imag_freq_cm1) -> float:

@@ -215,7 +215,7 @@ def _read_one(t: Table, study) -> Comparison:
     t.reject_unknown(KNOWN_KEYS)
     return Comparison(name=name, reference=ref.name, assisted=tuple(routes), substrate=substrate,
                       catalyst=catalyst, abundances=abundances, catalyst_dimer=dimer,
-                      temperature_K=temps, description=description, file=file)
+                      temperature_K=temps, description=description)
 
 
 def read_comparisons(table: Table, study) -> tuple[Comparison, ...]:

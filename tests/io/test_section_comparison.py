@@ -1,4 +1,4 @@
-"""Tests for tstrate.io.comparisons (the [[comparison]] section of study files).
+"""Tests for tstrate.io.sections.comparison (the [[comparison]] section of study files).
 
 The species are the toy carbonic-acid study in tests/data/catalysis (INVENTED numbers) and the
 real water / water-dimer data in tests/data/water_dimer.
@@ -94,7 +94,7 @@ def _read(tmp_path, text):
 
 
 def test_reader_is_registered():
-    assert SECTION_READERS["comparison"] == "tstrate.io.comparisons:read_comparisons"
+    assert SECTION_READERS["comparison"] == "tstrate.io.sections.comparison:read_comparisons"
 
 
 def test_toy_study_reads():

@@ -1,4 +1,4 @@
-"""The [fits] table of a study file (tstrate.io.fit_section): the chebyshev form and its keys.
+"""The [fits] table of a study file (tstrate.io.sections.fits): the chebyshev form and its keys.
 
 Each case appends a [fits] table to a copy of the invented test study tests/data/tst/ and checks
 what it gives, or that a mistake is a one-line InputError naming the file and the key.
