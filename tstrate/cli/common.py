@@ -1,15 +1,48 @@
-"""Small helpers shared by the subcommands (printing, JSON, atomic writes)."""
+"""Small helpers shared by the subcommands: the parser, shared options, printing, JSON, atomic writes.
+
+This module is imported while the parser is built (``tstrate --help``), so it imports
+nothing heavy at the top; numpy and the library come in inside the functions.
+"""
 
 from __future__ import annotations
 
+import argparse
 import json
 import math
 import sys
 from pathlib import Path
 
-import numpy as np
-
 from tstrate.io.files import atomic_write_bytes, atomic_write_text  # noqa: F401 (re-export)
+
+
+class OneLineParser(argparse.ArgumentParser):
+    """An ArgumentParser whose usage errors are one line on stderr with exit status 2.
+
+    ``prog: error: message``, e.g. ``tstrate rates: error: argument --plot: expected one
+    argument``, instead of argparse's usage block. Subparsers made by ``add_subparsers`` are of
+    the same class (argparse's default), so every command and the actions of ``tstrate compute``
+    behave alike. ``--help`` is untouched. Each parser records its ``prog`` as the default
+    ``_prog``, so that arguments nobody recognised are reported by the deepest command given.
+    """
+
+    def __init__(self, *args, **kwargs):
+        super().__init__(*args, **kwargs)
+        self.set_defaults(_prog=self.prog)
+
+    def error(self, message: str):
+        self.exit_with(self.prog, message)
+
+    def exit_with(self, prog: str, message: str):
+        text = " ".join(str(message).split())
+        sys.stderr.write(f"{prog}: error: {text}\n")
+        sys.exit(2)
+
+    def parse_args(self, args=None, namespace=None):
+        parsed, extras = self.parse_known_args(args, namespace)
+        if extras:
+            self.exit_with(getattr(parsed, "_prog", self.prog),
+                           "unrecognized arguments: " + " ".join(extras))
+        return parsed
 
 
 def to_jsonable(obj):
@@ -17,6 +50,8 @@ def to_jsonable(obj):
 
     Non-finite floats become ``null`` so the output stays valid JSON.
     """
+    import numpy as np
+
     if isinstance(obj, dict):
         return {str(k): to_jsonable(v) for k, v in obj.items()}
     if isinstance(obj, (list, tuple)):
@@ -42,6 +77,8 @@ def print_json(obj) -> None:
 
 def format_table(header: list[str], rows: list[list], floatfmt: str = "{:.5g}") -> str:
     """A plain aligned text table."""
+    import numpy as np
+
     cells = [[h for h in header]] + [
         [floatfmt.format(v) if isinstance(v, (float, np.floating)) else str(v) for v in row]
         for row in rows

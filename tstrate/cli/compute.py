@@ -120,7 +120,7 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
 def _command_line(args) -> str:
     if Path(sys.argv[0]).name == "tstrate":
         return "tstrate " + shlex.join(sys.argv[1:])
-    skip = {"_run", "command", "compute_command", "traceback", "verbose"}
+    skip = {"_run", "_prog", "command", "compute_command", "traceback", "verbose"}
     parts = ["tstrate", "compute", args.compute_command]
     for key, value in vars(args).items():
         if key in skip or value is None or value is False:
