@@ -52,9 +52,9 @@ METHODS = (
 
 
 def _save(fig, folder: Path, stem: str) -> list[Path]:
-    from tstrate.output.plots import save_figure
+    from tstrate.output.plots import FIGURE_FORMATS, save_figure
 
-    return save_figure(fig, folder / stem, formats=["png", "svg"])
+    return save_figure(fig, folder / stem, formats=list(FIGURE_FORMATS))
 
 
 def _results_json(result) -> dict:
@@ -127,7 +127,7 @@ def write_all(result, folder: Path, *, progress: Callable[[str], None] | None = 
     """Write every output file into ``folder``; returns the paths written."""
     from tstrate.io.files import atomic_write_text
     from tstrate.output.mechanism import write_mechanism
-    from tstrate.output.plots import arrhenius_figure
+    from tstrate.output.plots import arrhenius_figure, figure_stem
     from tstrate.output.tables import (csv_text, json_text, write_fits_csv, write_json, write_rate_tables,
                                        write_thermo_csv)
     from tstrate.workflow import file_sha256, input_files
@@ -161,43 +161,40 @@ def write_all(result, folder: Path, *, progress: Callable[[str], None] | None = 
     written.append(folder / "inputs.json")
 
     step("plots")
-    paths = _save(arrhenius_figure(doc["channels"], study.title), folder / "plots", "arrhenius")
+    paths = _save(arrhenius_figure(doc["channels"], study.title), folder / "plots", figure_stem("arrhenius"))
     written += paths
     figures.append(("rates", paths[0], "Arrhenius plot: log10 k against 1000/T; dashed lines "
                     "without tunnelling."))
     if result.comparisons is not None:
         from tstrate.output.compare_plots import comparison_figures
-        from tstrate.output.tables import safe_file_stem
 
         for cr in result.comparisons:
-            stem = safe_file_stem(cr.comparison.name)
             for key, fig in comparison_figures(cr).items():
-                paths = _save(fig, folder / "plots", f"compare_{stem}_{key}")
+                paths = _save(fig, folder / "plots", figure_stem("comparison", cr.comparison.name, key))
                 written += paths
                 figures.append(("compare", paths[0],
                                 f"{cr.comparison.name}: {key.replace('_', ' ')}"))
     if result.falloff is not None:
         from tstrate.output.pressure_plots import falloff_figure
-        from tstrate.output.tables import safe_file_stem
 
         for cf in result.falloff.channels:
-            paths = _save(falloff_figure(cf), folder / "plots", f"falloff_{safe_file_stem(cf.name)}")
+            paths = _save(falloff_figure(cf), folder / "plots", figure_stem("falloff", cf.name))
             written += paths
             figures.append(("falloff", paths[0], f"Falloff of channel {cf.name}: log10 k against "
                             "log10 p at several temperatures."))
     if result.excitations is not None:
         from tstrate.output import pressure_plots as pp
-        from tstrate.output.tables import safe_file_stem
 
         for ex in result.excitations:
-            stem = safe_file_stem(ex.spec.name)
             if ex.pressure is not None:
-                paths = _save(pp.yield_pressure_figure(ex), folder / "plots", f"excitation_{stem}_pressure")
+                paths = _save(pp.yield_pressure_figure(ex), folder / "plots",
+                              figure_stem("excitation", ex.spec.name, "pressure"))
                 written += paths
                 figures.append(("excitation", paths[0], f"{ex.spec.name}: fraction reacting "
                                 "before deactivation against pressure."))
             if ex.profile is not None:
-                paths = _save(pp.yield_altitude_figure(ex), folder / "plots", f"excitation_{stem}_altitude")
+                paths = _save(pp.yield_altitude_figure(ex), folder / "plots",
+                              figure_stem("excitation", ex.spec.name, "altitude"))
                 written += paths
                 figures.append(("excitation", paths[0], f"{ex.spec.name}: fraction reacting "
                                 "before deactivation against altitude."))
