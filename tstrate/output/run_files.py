@@ -23,6 +23,8 @@ from typing import Callable
 import numpy as np
 
 from tstrate.output import report as rp
+from tstrate.physics.thermo import (DEFAULT_LOW_MODE_CUTOFF_CM1, LOW_MODES_FREQUENCY_FLOOR, LOW_MODES_HARMONIC,
+                                    LOW_MODES_ROTOR_ENTROPY_BLEND)
 
 CAUTION = ("Caution: every number here is an estimate bounded by the electronic-structure inputs "
            "(an error of 4 kJ/mol in a barrier changes k at 200 K about tenfold; semi-empirical "
@@ -49,6 +51,15 @@ METHODS = (
     "(two ranges) fitted to the thermochemistry, enthalpies shifted by per-element offsets (not "
     "enthalpies of formation).",
 )
+
+
+def low_modes_method_text(low_modes) -> str:
+    """The report's methods entry on the low-mode treatment, with the sources of the options."""
+    text = f"Low modes: {low_modes.description}."
+    if low_modes.method == LOW_MODES_HARMONIC:
+        text += (f" The quasi-harmonic alternatives are {LOW_MODES_ROTOR_ENTROPY_BLEND} (Grimme 2012) and "
+                 f"{LOW_MODES_FREQUENCY_FLOOR} (Ribeiro, Marenich, Cramer and Truhlar 2011), option --low-modes.")
+    return text
 
 
 def _save(fig, folder: Path, stem: str) -> list[Path]:
@@ -231,12 +242,14 @@ def limits(result) -> list[str]:
     if wild:
         out.append(f"Fitted expressions of {', '.join(wild)} have |n| > 10: they reproduce k only inside the "
                    "fitted temperature range and must not be extrapolated; split ranges (fits.json) fit better.")
-    if result.low_modes.method == "harmonic":
+    if result.low_modes.method == LOW_MODES_HARMONIC:
+        low = DEFAULT_LOW_MODE_CUTOFF_CM1
         soft = [n for n, sp in result.study.species.items()
-                if sp.harmonic_frequencies_cm1.size and float(sp.harmonic_frequencies_cm1.min()) < 100.0]
+                if sp.harmonic_frequencies_cm1.size and float(sp.harmonic_frequencies_cm1.min()) < low]
         if soft:
-            out.append(f"Species with real modes below 100 cm-1 treated as harmonic ({', '.join(soft)}): "
-                       "their entropies are uncertain; compare with --low-modes grimme or truhlar.")
+            out.append(f"Species with real modes below {low:g} cm-1 treated as harmonic ({', '.join(soft)}): "
+                       f"their entropies are uncertain; compare with --low-modes {LOW_MODES_ROTOR_ENTROPY_BLEND} "
+                       f"or {LOW_MODES_FREQUENCY_FLOOR}.")
     return out
 
 
@@ -280,7 +293,7 @@ def build_report(result, doc: dict, inputs: list[dict], figures) -> list:
     if result.falloff is None and result.excitations is None:
         skip.add("Falloff")
     methods = tuple(m for m in METHODS if not any(m.startswith(k) for k in skip))
-    B.append(rp.Bullets(methods + (f"Low modes: {result.low_modes.method}.",)))
+    B.append(rp.Bullets(methods + (low_modes_method_text(result.low_modes),)))
 
     B.append(rp.Heading("Thermochemistry (1 bar)"))
     rows = []
