@@ -100,7 +100,8 @@ def test_plots_written_atomically(tmp_path, capsys):
     assert main(["compare", str(path), "--plot", str(outdir)]) == 0
     files = sorted(p.name for p in outdir.iterdir())  # no temporary ".part" files left behind
     kinds = ["energy_profile", "ratio_vs_abundance", "ratio_vs_temperature"]
-    assert files == sorted(f"humid_lower_atmosphere_{k}.{ext}" for k in kinds for ext in ("png", "svg"))
+    # the names tstrate run gives them in plots/ (they had no compare_ prefix before)
+    assert files == sorted(f"compare_humid_lower_atmosphere_{k}.{ext}" for k in kinds for ext in ("png", "svg"))
     for p in outdir.iterdir():
         head = p.read_bytes()[:200]
         assert head.startswith(b"\x89PNG") if p.suffix == ".png" else b"<svg" in head

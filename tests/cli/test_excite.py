@@ -51,7 +51,7 @@ def test_command_line_excitation_text_and_plots(capsys, tmp_path):
     assert "wavenumber 15500 cm-1" in out and "along U.S. Standard Atmosphere, 1976" in out
     assert "OH overtone" not in out                       # the study's excitations are replaced
     names = sorted(p.name for p in tmp_path.iterdir())
-    stem = "excite_wavenumber_15500_cm-1"
+    stem = "excitation_wavenumber_15500_cm-1"  # the prefix tstrate run uses (it was excite_)
     assert names == sorted(f"{stem}_{kind}.{ext}" for kind in ("pressure", "altitude", "k_of_E")
                            for ext in ("png", "svg"))
 

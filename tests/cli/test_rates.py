@@ -95,32 +95,35 @@ def test_temperature_option_and_study_units(capsys):
     np.testing.assert_allclose(rec["reverse_rate_constant"], cr.k_reverse * 1e3 * 6.02214076e23, rtol=1e-12)
 
 
-@pytest.mark.parametrize("suffix, check", [
-    (".png", lambda b: b.startswith(PNG_MAGIC)),
-    (".svg", lambda b: b"<svg" in b[:2000] and b.rstrip().endswith(b"</svg>")),
-], ids=["png", "svg"])
-def test_plot(capsys, tmp_path, suffix, check):
-    target = tmp_path / f"arrhenius{suffix}"
-    code, out, err = _run(capsys, STUDY, "--plot", target)
+def test_plot_dir_holds_the_arrhenius_plot_under_the_name_run_uses(capsys, tmp_path):
+    # --plot takes a folder (it used to take a file): arrhenius.png and .svg, the names of
+    # tstrate run's plots/ folder (tests/cli/test_run.py checks the same names there)
+    folder = tmp_path / "figures"
+    code, out, err = _run(capsys, STUDY, "--plot", folder)
     assert code == 0 and err == ""
-    assert target.exists() and check(target.read_bytes())
-    assert f"plot written to {target}" in out
+    assert sorted(p.name for p in folder.iterdir()) == ["arrhenius.png", "arrhenius.svg"]
+    assert (folder / "arrhenius.png").read_bytes().startswith(PNG_MAGIC)
+    svg = (folder / "arrhenius.svg").read_bytes()
+    assert b"<svg" in svg[:2000] and svg.rstrip().endswith(b"</svg>")
+    assert f"plot written to {folder / 'arrhenius.png'}" in out
 
 
 def test_plot_with_json_keeps_stdout_json(capsys, tmp_path):
-    target = tmp_path / "k"  # no suffix: a PNG named k.png
-    code, out, _ = _run(capsys, STUDY, "--json", "--plot", target)
+    code, out, _ = _run(capsys, STUDY, "--json", "--plot", tmp_path)
     assert code == 0
-    json.loads(out)
-    assert (tmp_path / "k.png").read_bytes().startswith(PNG_MAGIC)
+    doc = json.loads(out)
+    assert doc["plots"] == [str(tmp_path / "arrhenius.png"), str(tmp_path / "arrhenius.svg")]
+    assert doc["low_modes"] == {"method": "harmonic", "cutoff_cm1": 100.0}
+    assert (tmp_path / "arrhenius.png").read_bytes().startswith(PNG_MAGIC)
 
 
-def test_plot_in_unknown_format_fails_before_any_work(capsys, tmp_path):
-    target = tmp_path / "arrhenius.txt"
+def test_plot_onto_an_existing_file_fails_before_any_work(capsys, tmp_path):
+    target = tmp_path / "arrhenius.png"
+    target.write_bytes(b"mine")
     code, out, err = _run(capsys, STUDY, "--plot", target)
     assert code == 2 and out == ""
-    assert err.count("\n") == 1 and "cannot write a plot in format 'txt'" in err
-    assert not target.exists()
+    assert err.count("\n") == 1 and "[--plot]: exists and is not a folder" in err
+    assert target.read_bytes() == b"mine"
 
 
 # ---- errors: exit status 2 and one line on stderr -------------------------------------------------
@@ -166,9 +169,9 @@ def test_bad_temperature_option(capsys, temps):
 def test_study_without_channels(capsys, study_dir):
     text = (study_dir / "study.toml").read_text()
     (study_dir / "study.toml").write_text(text[:text.index("[[channel]]")])
-    code, _, err = _run(capsys, study_dir / "study.toml", "--plot", study_dir / "k.png")
+    code, _, err = _run(capsys, study_dir / "study.toml", "--plot", study_dir / "figures")
     assert code == 2 and "has no [[channel]]" in err
-    assert not (study_dir / "k.png").exists()
+    assert not (study_dir / "figures").exists()
 
 
 def test_real_process_exit_status_and_no_traceback(study_dir):

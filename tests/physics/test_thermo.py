@@ -25,8 +25,8 @@ from scipy import constants as sc
 from tstrate.errors import InputError
 from tstrate.io.species import build_species, read_species
 from tstrate.model import ElectronicLevel
-from tstrate.physics.thermo import (GRIMME_B_AV_KG_M2, LowModes, ln_partition_function_per_volume,
-                                    thermochemistry)
+from tstrate.physics.thermo import (FREE_ROTOR_AVERAGE_MOMENT_KG_M2, LOW_MODE_METHODS, LowModes,
+                                    ln_partition_function_per_volume, thermochemistry)
 from tstrate.units import CM1_J, K_B, N_A, P_STANDARD, R
 
 REFERENCE = Path(__file__).resolve().parents[2] / "tstrate" / "io" / "reference"
@@ -233,23 +233,23 @@ def _with_low_mode(nu_cm1):
 T_GRID = np.array([50.0, 150.0, 298.15, 1000.0])
 
 
-def test_truhlar_raises_a_20_cm1_mode_to_100_cm1():
+def test_frequency_floor_raises_a_20_cm1_mode_to_100_cm1():
     sp = _with_low_mode(20.0)
     harmonic = thermochemistry(sp, T_GRID)
-    truhlar = thermochemistry(sp, T_GRID, low_modes=LowModes("truhlar", 100.0))
+    floor = thermochemistry(sp, T_GRID, low_modes=LowModes("frequency-floor", 100.0))
     ds = (_ho_entropy_over_R(100.0, T_GRID) - _ho_entropy_over_R(20.0, T_GRID)) * sc.R
     dh = (_ho_energy_over_RT(100.0, T_GRID) - _ho_energy_over_RT(20.0, T_GRID)) * sc.R * T_GRID
-    assert truhlar.entropy_J_per_mol_K - harmonic.entropy_J_per_mol_K == pytest.approx(ds, rel=1e-9)
-    assert (truhlar.enthalpy_increment_J_per_mol - harmonic.enthalpy_increment_J_per_mol
+    assert floor.entropy_J_per_mol_K - harmonic.entropy_J_per_mol_K == pytest.approx(ds, rel=1e-9)
+    assert (floor.enthalpy_increment_J_per_mol - harmonic.enthalpy_increment_J_per_mol
             == pytest.approx(dh, rel=1e-9))
-    assert truhlar.zpe_J_per_mol == harmonic.zpe_J_per_mol  # ZPE keeps the true wavenumber
+    assert floor.zpe_J_per_mol == harmonic.zpe_J_per_mol  # ZPE keeps the true wavenumber
     # modes above the cut-off are untouched
     h2o = read_species(REFERENCE / "h2o.toml")
-    assert (thermochemistry(h2o, T_GRID, low_modes=LowModes("truhlar")).entropy_J_per_mol_K
+    assert (thermochemistry(h2o, T_GRID, low_modes=LowModes("frequency-floor")).entropy_J_per_mol_K
             == pytest.approx(thermochemistry(h2o, T_GRID).entropy_J_per_mol_K, rel=1e-14))
 
 
-def _grimme_by_hand(nu_cm1, T, nu0_cm1=100.0):
+def _blend_by_hand(nu_cm1, T, nu0_cm1=100.0):
     """Grimme 2012: mu = h/(8 pi^2 nu) (eq. 4); mu' = mu B_av/(mu + B_av), B_av = 1e-44 kg m^2
     (eq. 5); S_R = R [1/2 + ln (8 pi^3 mu' k T / h^2)^(1/2)] (eq. 6); w = 1/(1 + (nu0/nu)^4)
     (eq. 7); S = w S_V + (1 - w) S_R. Returns S/R of one mode."""
@@ -262,61 +262,78 @@ def _grimme_by_hand(nu_cm1, T, nu0_cm1=100.0):
     return w * _ho_entropy_over_R(nu_cm1, T) + (1 - w) * s_r, s_r, w
 
 
-def test_grimme_average_moment_is_grimmes_value():
-    assert GRIMME_B_AV_KG_M2 == 1e-44  # Grimme 2012: B_av = 1e-44 kg m^2
+def test_free_rotor_average_moment_is_the_value_of_grimme_2012():
+    assert FREE_ROTOR_AVERAGE_MOMENT_KG_M2 == 1e-44  # Grimme 2012: B_av = 1e-44 kg m^2
 
 
-def _grimme_change_by_hand(freqs_cm1, T):
-    """S(Grimme) - S(harmonic) [J/(mol K)] summed over all modes (high ones change by ~1e-5)."""
-    return sum(_grimme_by_hand(nu, T)[0] - _ho_entropy_over_R(nu, T) for nu in freqs_cm1) * sc.R
+def _blend_change_by_hand(freqs_cm1, T):
+    """S(blend) - S(harmonic) [J/(mol K)] summed over all modes (high ones change by ~1e-5)."""
+    return sum(_blend_by_hand(nu, T)[0] - _ho_entropy_over_R(nu, T) for nu in freqs_cm1) * sc.R
 
 
-def test_grimme_free_rotor_limit_for_a_very_low_mode():
+def test_entropy_blend_free_rotor_limit_for_a_very_low_mode():
     nu = 5.0
     sp = _with_low_mode(nu)
     harmonic = thermochemistry(sp, T_GRID)
-    grimme = thermochemistry(sp, T_GRID, low_modes=LowModes("grimme", 100.0))
-    s_mode, s_rotor, w = _grimme_by_hand(nu, T_GRID)
+    blend = thermochemistry(sp, T_GRID, low_modes=LowModes("rotor-entropy-blend", 100.0))
+    s_mode, s_rotor, w = _blend_by_hand(nu, T_GRID)
     assert w < 1e-5  # practically a free rotor
-    expected = harmonic.entropy_J_per_mol_K + _grimme_change_by_hand(sp.frequencies_cm1, T_GRID)
-    assert grimme.entropy_J_per_mol_K == pytest.approx(expected, rel=1e-12)
+    expected = harmonic.entropy_J_per_mol_K + _blend_change_by_hand(sp.frequencies_cm1, T_GRID)
+    assert blend.entropy_J_per_mol_K == pytest.approx(expected, rel=1e-12)
     # the soft mode alone is the free rotor of eq. 6 to within w (< 1e-5)
     soft = (s_rotor - _ho_entropy_over_R(nu, T_GRID)) * sc.R
-    assert grimme.entropy_J_per_mol_K - harmonic.entropy_J_per_mol_K == pytest.approx(soft,
+    assert blend.entropy_J_per_mol_K - harmonic.entropy_J_per_mol_K == pytest.approx(soft,
                                                                                    rel=1e-4)
     # and the free rotor is much less entropic than a 5 cm^-1 harmonic oscillator
     assert np.all(s_rotor < _ho_entropy_over_R(nu, T_GRID))
-    # Grimme's scheme changes only the entropy
-    assert grimme.enthalpy_increment_J_per_mol == pytest.approx(
+    # the blend changes only the entropy
+    assert blend.enthalpy_increment_J_per_mol == pytest.approx(
         harmonic.enthalpy_increment_J_per_mol, rel=1e-14)
-    assert grimme.heat_capacity_J_per_mol_K == pytest.approx(harmonic.heat_capacity_J_per_mol_K,
+    assert blend.heat_capacity_J_per_mol_K == pytest.approx(harmonic.heat_capacity_J_per_mol_K,
                                                              rel=1e-14)
 
 
-def test_grimme_leaves_high_modes_alone():
+def test_entropy_blend_leaves_high_modes_alone():
     h2o = read_species(REFERENCE / "h2o.toml")  # lowest mode 1594.7 cm^-1: w = 1 - 1.5e-5
     harmonic = thermochemistry(h2o, T_GRID)
-    grimme = thermochemistry(h2o, T_GRID, low_modes=LowModes("grimme"))
-    assert grimme.entropy_J_per_mol_K == pytest.approx(harmonic.entropy_J_per_mol_K, abs=1e-3)
-    by_hand = _grimme_change_by_hand(h2o.frequencies_cm1, T_GRID)
-    assert grimme.entropy_J_per_mol_K - harmonic.entropy_J_per_mol_K == pytest.approx(by_hand,
+    blend = thermochemistry(h2o, T_GRID, low_modes=LowModes("rotor-entropy-blend"))
+    assert blend.entropy_J_per_mol_K == pytest.approx(harmonic.entropy_J_per_mol_K, abs=1e-3)
+    by_hand = _blend_change_by_hand(h2o.frequencies_cm1, T_GRID)
+    assert blend.entropy_J_per_mol_K - harmonic.entropy_J_per_mol_K == pytest.approx(by_hand,
                                                                                    rel=1e-6)
 
 
-def test_grimme_interpolation_at_the_cut_off():
+def test_entropy_blend_at_the_cut_off():
     sp = _with_low_mode(100.0)  # w = 1/2 exactly at nu = nu0
     harmonic = thermochemistry(sp, T_GRID)
-    grimme = thermochemistry(sp, T_GRID, low_modes=LowModes("grimme", 100.0))
-    s_mode, s_rotor, w = _grimme_by_hand(100.0, T_GRID)
+    blend = thermochemistry(sp, T_GRID, low_modes=LowModes("rotor-entropy-blend", 100.0))
+    s_mode, s_rotor, w = _blend_by_hand(100.0, T_GRID)
     assert w == 0.5
-    expected = harmonic.entropy_J_per_mol_K + _grimme_change_by_hand(sp.frequencies_cm1, T_GRID)
-    assert grimme.entropy_J_per_mol_K == pytest.approx(expected, rel=1e-12)
+    expected = harmonic.entropy_J_per_mol_K + _blend_change_by_hand(sp.frequencies_cm1, T_GRID)
+    assert blend.entropy_J_per_mol_K == pytest.approx(expected, rel=1e-12)
 
 
-@pytest.mark.parametrize("method,cutoff", [("quasi", 100.0), ("grimme", 0.0), ("truhlar", -5.0)])
+@pytest.mark.parametrize("method,cutoff", [("quasi", 100.0), ("rotor-entropy-blend", 0.0), ("frequency-floor", -5.0)])
 def test_bad_low_mode_options(method, cutoff):
     with pytest.raises(InputError, match=r"low_modes"):
         LowModes(method, cutoff)
+
+
+@pytest.mark.parametrize("old_name", ["grimme", "truhlar"])
+def test_old_low_mode_names_are_refused_and_the_hint_names_the_new_ones(old_name):
+    with pytest.raises(InputError) as info:
+        LowModes(old_name)
+    text = str(info.value)
+    assert "\n" not in text and f"unknown low-mode treatment {old_name!r}" in text
+    for name in LOW_MODE_METHODS:
+        assert name in text
+
+
+def test_description_names_the_treatment_its_source_and_cut_off():
+    assert LowModes().description.startswith("harmonic: ")
+    blend = LowModes("rotor-entropy-blend", 80.0).description
+    assert "Grimme 2012" in blend and "nu0 = 80 cm-1" in blend
+    assert "Ribeiro, Marenich, Cramer and Truhlar 2011" in LowModes("frequency-floor").description
 
 
 # ---- internal consistency ---------------------------------------------------------------------
@@ -338,7 +355,7 @@ def test_gibbs_energy_is_minus_rt_ln_q(reference_species):
     T = np.array([10.0, 298.15, 2500.0])
     chiral = reference_species["so2"].with_changes(optical_isomers=2)
     for sp in [*reference_species.values(), chiral]:
-        for low_modes in (LowModes(), LowModes("grimme"), LowModes("truhlar", 1200.0)):
+        for low_modes in (LowModes(), LowModes("rotor-entropy-blend"), LowModes("frequency-floor", 1200.0)):
             th = thermochemistry(sp, T, low_modes=low_modes)
             assert th.gibbs_increment_J_per_mol == pytest.approx(-R * T * th.ln_q_total, rel=1e-12)
 

@@ -136,11 +136,11 @@ def test_species_with_a_rotor_differs_by_exactly_that_mode(pair):
 
 
 def test_low_mode_treatments_leave_the_rotor_alone(pair):
-    # Truhlar's floor raises modes below 300 cm-1: the species' lowest harmonic mode is 550 cm-1 once
+    # the frequency floor raises modes below 300 cm-1: the species' lowest harmonic mode is 550 cm-1 once
     # the 220 cm-1 mode is a rotor, so nothing is raised and the result equals the harmonic one
     _, rotor = pair
     a = thermochemistry(rotor, TEMPS)
-    b = thermochemistry(rotor, TEMPS, low_modes=LowModes("truhlar", 300.0))
+    b = thermochemistry(rotor, TEMPS, low_modes=LowModes("frequency-floor", 300.0))
     np.testing.assert_allclose(b.entropy_J_per_mol_K, a.entropy_J_per_mol_K, rtol=1e-14)
 
 

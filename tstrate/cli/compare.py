@@ -27,54 +27,56 @@ complex_Kc_unit, complex_Kp with complex_Kp_unit, k_unimolecular_from_complex_pe
 complex_per_free_substrate, pseudo_first_order_per_s, ratio_to_bare,
 crossover_number_density_per_cm3, crossover_in_given_unit with
 crossover_given_unit, faster_than_bare_K: a list of {low_K, high_K,
-low_at_grid_edge, high_at_grid_edge}). Arrays run over temperature_K.
+low_at_grid_edge, high_at_grid_edge}). Arrays run over temperature_K. Also
+"low_modes" (method, cutoff_cm1).
 
 With --plot DIR: for each comparison, an energy profile, the ratio against
-temperature and the ratio against the catalyst abundance, as PNG and SVG.
+temperature and the ratio against the catalyst abundance, as PNG and SVG,
+named compare_<comparison>_energy_profile, _ratio_vs_temperature and
+_ratio_vs_abundance as in the plots/ folder of tstrate run (JSON: "plots",
+the files written).
 """
 
 
 def add_arguments(parser) -> None:
+    from tstrate.cli.common import add_low_mode_options, add_plot_option, add_quiet_option
+
     parser.add_argument("study", metavar="STUDY", help="study file (TOML) with [[comparison]] sections")
-    parser.add_argument("--low-modes", choices=["harmonic", "grimme", "truhlar"], default="harmonic",
-                        help="treatment of low real modes (default harmonic)")
+    add_low_mode_options(parser)
     parser.add_argument("--json", action="store_true", help="machine-readable output on stdout")
-    parser.add_argument("--plot", metavar="DIR",
-                        help="write the figures of each comparison into DIR (PNG and SVG)")
-
-
-def _slug(text: str) -> str:
-    import re
-
-    return re.sub(r"[^A-Za-z0-9]+", "_", text).strip("_").lower() or "comparison"
+    add_plot_option(parser, "the three figures of each comparison")
+    add_quiet_option(parser)
 
 
 def compute(study_path, low_modes="harmonic"):
+    """The study and its comparison results; ``low_modes`` a LowModes or the name of one."""
     from tstrate.errors import InputError
     from tstrate.io.study import read_study
     from tstrate.study.routes import study_comparisons
     from tstrate.physics.thermo import LowModes
 
+    if not isinstance(low_modes, LowModes):
+        low_modes = LowModes(low_modes)
     study = read_study(study_path)
     if not study.sections.get("comparison"):
         raise InputError("the study has no [[comparison]] section", file=study.file,
                          hint="add one, see docs/study-file.md")
-    return study, study_comparisons(study, low_modes=LowModes(low_modes))
+    return study, study_comparisons(study, low_modes=low_modes)
 
 
-def write_plots(results, directory) -> list:
-    """Write the figures of every comparison into ``directory`` (PNG and SVG); returns the paths."""
-    from pathlib import Path
+def write_plots(results, directory, inputs=(), progress=None) -> list:
+    """Write the figures of every comparison into ``directory`` (PNG and SVG); returns the paths.
 
+    ``inputs`` are never overwritten; ``progress`` wraps the loop over the comparisons.
+    """
+    from tstrate.cli.common import write_figure
     from tstrate.output.compare_plots import comparison_figures
-    from tstrate.output.plots import save_figure
+    from tstrate.output.plots import figure_stem
 
-    directory = Path(directory)
     written = []
-    for res in results:
-        stem = _slug(res.comparison.name)
-        for suffix, fig in comparison_figures(res).items():
-            written += save_figure(fig, directory / f"{stem}_{suffix}.png", formats=["png", "svg"])
+    for res in (progress or (lambda it: it))(results):
+        for panel, fig in comparison_figures(res).items():
+            written += write_figure(fig, directory, figure_stem("comparison", res.comparison.name, panel), inputs)
     return written
 
 
@@ -148,18 +150,20 @@ def _print_barriers(rec) -> None:
 
 
 def run(args) -> int:
-    from tstrate.cli.common import print_json
-    from tstrate.cli.falloff import check_plot_dir
+    from tstrate.cli.common import (check_plot_dir, low_modes_from_args, low_modes_record, print_json,
+                                    progress_wrapper)
 
-    if args.plot:
-        check_plot_dir(args.plot)
-    study, results = compute(args.study, args.low_modes)
+    folder = check_plot_dir(args.plot) if args.plot else None
+    low_modes = low_modes_from_args(args)
+    study, results = compute(args.study, low_modes)
     from tstrate.output.compare_records import comparison_records
 
     records = comparison_records(results, study.conditions.rate_units)
-    written = write_plots(results, args.plot) if args.plot else []
+    written = [] if folder is None else write_plots(
+        results, folder, [study.file, *study.species_files.values()], progress_wrapper(args, "compare plots"))
     if args.json:
-        print_json({"study": study.file, "title": study.title, "comparisons": records})
+        print_json({"study": study.file, "title": study.title, "low_modes": low_modes_record(low_modes),
+                    "comparisons": records, "plots": [str(p) for p in written]})
         return 0
     print(study.title)
     shown = set()
@@ -170,6 +174,6 @@ def run(args) -> int:
         _print_scenario(rec)
     if written:
         print(f"\n{len(written)} plot files written to {args.plot}")
-    print("\nHigh-pressure-limit TST rates per free substrate molecule; estimates bounded by the "
-          "electronic-structure inputs.")
+    print(f"\nHigh-pressure-limit TST rates per free substrate molecule; low modes: {low_modes.label}; "
+          "estimates bounded by the electronic-structure inputs.")
     return 0

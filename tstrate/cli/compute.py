@@ -29,28 +29,35 @@ without --force; input files never.
 """
 
 
-def _common(p: argparse.ArgumentParser, *, semi_empirical: bool = True) -> None:
+def _common(p: argparse.ArgumentParser, *, semi_empirical: bool = True, charge_help: str = "",
+            multiplicity_help: str = "") -> None:
+    """Options every action has; the GFN2-xTB ones for the semi-empirical actions, whose
+    --charge and --multiplicity say what their defaults are for that action."""
+    from tstrate.cli.common import add_quiet_option
+
     p.add_argument("--traceback", action="store_true", default=argparse.SUPPRESS,
                    help="show the full Python traceback on errors")
     p.add_argument("--json", action="store_true", help="print a JSON summary instead of text")
     p.add_argument("--force", action="store_true", help="replace existing output files")
+    p.add_argument("--charge", type=int, default=None, help=charge_help)
+    p.add_argument("--multiplicity", type=int, default=None, help=multiplicity_help)
     if not semi_empirical:
         return
-    p.add_argument("--charge", type=int, default=None, help="total charge (default: from the "
-                   "SMILES with --smiles, else 0; relay: always 0)")
-    p.add_argument("--multiplicity", type=int, default=None,
-                   help="spin multiplicity 2S+1 (default: from the SMILES with --smiles, else 1; "
-                   "relay: always 1)")
     p.add_argument("--fmax", type=float, default=5e-4, metavar="EV_PER_A",
-                   help="convergence: largest force [eV/Angstrom] (default 5e-4)")
-    p.add_argument("--max-steps", type=int, default=1000, help="optimiser step limit (default 1000)")
-    p.add_argument("--seed", type=int, default=20240611, help="random seed (default 20240611)")
+                   help="convergence of every minimisation and saddle search: largest force on an "
+                        "atom in eV/Angstrom (default %(default)s)")
+    p.add_argument("--max-steps", type=int, default=1000,
+                   help="step limit of each minimisation and saddle search; not converging within it "
+                        "is an error (default %(default)s)")
+    p.add_argument("--seed", type=int, default=20240611,
+                   help="seed of every random choice: conformers embedded from a SMILES, the small "
+                        "displacements that break the symmetry of a saddle-point guess (default %(default)s)")
     p.add_argument("--cache-dir", default=None, help="cache folder (default $TSTRATE_CACHE or "
                    "~/.cache/tstrate)")
     p.add_argument("--no-cache", action="store_true", help="neither read nor write the cache")
-    p.add_argument("--quiet", action="store_true", help="no progress bar")
-    p.add_argument("--work-dir", default=".", help="folder for geometries of failed "
-                   "optimisations (default: here)")
+    add_quiet_option(p)
+    p.add_argument("--work-dir", default=".", help="folder where the last geometry of a failed or "
+                   "unconverged optimisation is written (default: the current folder)")
 
 
 def add_arguments(parser: argparse.ArgumentParser) -> None:
@@ -64,9 +71,12 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
     src.add_argument("--geometry", help="any geometry file ASE reads (last frame)")
     p.add_argument("--name", required=True, help="species name")
     p.add_argument("-o", "--output", help="species file to write (.toml); without it nothing is written, only a summary is printed")
-    p.add_argument("--conformers", type=int, default=10, help="conformers embedded from a "
-                   "SMILES (default 10)")
-    _common(p)
+    p.add_argument("--conformers", type=int, default=10, help="conformers embedded from --smiles, "
+                   "each minimised, the lowest kept (default %(default)s)")
+    _common(p, charge_help="total charge (default: the sum of the formal charges of --smiles; 0 "
+                           "with --geometry)",
+            multiplicity_help="spin multiplicity 2S+1 (default: one more than the radical electrons "
+                              "of --smiles; 1 with --geometry)")
 
     p = sub.add_parser("saddle", help="GFN2-xTB transition state from a guess or from reactant "
                        "and product", description="Find, characterise and verify a saddle point.")
@@ -77,42 +87,55 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
     p.add_argument("-o", "--output", help="species file of the transition state (.toml); without it only a summary is printed")
     p.add_argument("--reactant-output", help="species file of the reactant-side minimum")
     p.add_argument("--product-output", help="species file of the product-side minimum")
-    p.add_argument("--neb-images", type=int, default=7, help="interior NEB images (default 7)")
+    p.add_argument("--neb-images", type=int, default=7, help="interior NEB images between --reactant "
+                   "and --product (default %(default)s)")
     p.add_argument("--retries", type=int, default=3,
-                   help="re-searches to remove extra imaginary modes (default 3)")
+                   help="searches repeated after pushing along extra imaginary modes (default %(default)s)")
     p.add_argument("--cartesian", action="store_true",
                    help="let Sella work in Cartesian instead of internal coordinates")
-    _common(p)
+    _common(p, charge_help="total charge (default 0)",
+            multiplicity_help="spin multiplicity 2S+1 (default 1)")
 
     p = sub.add_parser("relay", help="water-relay transition state of H2CO3 -> CO2 + H2O",
                        description="Build the ring of carbonic acid and 0, 1 or 2 waters, optimise "
                                    "the pre-reactive complex, and find the relay saddle point.")
     p.add_argument("--waters", type=int, choices=(0, 1, 2), required=True,
                    help="relay waters: 0 (bare four-centre TS), 1 (six-membered ring), 2 (eight)")
-    p.add_argument("--name", help="name of the transition state")
-    p.add_argument("--complex-name", help="name of the pre-reactive complex")
+    p.add_argument("--name", help="name of the transition state (default TS-H2CO3, TS-H2CO3.H2O or "
+                   "TS-H2CO3.(H2O)2)")
+    p.add_argument("--complex-name", help="name of the pre-reactive complex (default H2CO3, H2CO3.H2O "
+                   "or H2CO3.(H2O)2)")
     p.add_argument("-o", "--output", help="species file of the transition state (.toml); without it only a summary is printed")
     p.add_argument("--complex-output", help="species file of the pre-reactive complex")
     p.add_argument("--product-output", help="species file of the product-side complex")
-    _common(p)
+    _common(p, charge_help="total charge: the relay (H2CO3 and water) is neutral, so only 0 is "
+                           "accepted (the default)",
+            multiplicity_help="spin multiplicity 2S+1: the relay is a singlet, so only 1 is "
+                              "accepted (the default)")
 
     p = sub.add_parser("read", help="species from a quantum-chemistry output or geometry file",
                        description="Read geometry, energy, frequencies and Hessian through cclib "
                                    "(or a geometry through ASE) and make a species file.")
-    p.add_argument("file", metavar="OUTPUT", help="output file (cclib) or geometry file (ASE)")
-    p.add_argument("--name", help="species name (default: the file's stem)")
+    p.add_argument("file", metavar="QC_FILE",
+                   help="the input: an output file of a quantum-chemistry program that cclib parses "
+                        "(geometry, energy, frequencies or Hessian), or a geometry file ASE reads "
+                        "(then give --hessian)")
+    p.add_argument("--name", help="species name (default: the stem of QC_FILE)")
     p.add_argument("--single-point", metavar="'VALUE UNIT'|FILE",
-                   help="high-level energy overriding the file's, e.g. '-264.12 hartree', or an "
-                        "output file whose last energy is used")
-    p.add_argument("--hessian", help="plain-number Hessian file [hartree/bohr^2] (xtb's 'hessian')")
+                   help="high-level energy overriding the one of QC_FILE, e.g. '-264.12 hartree', or "
+                        "an output file whose last energy is used")
+    p.add_argument("--hessian", help="Hessian file of plain numbers in hartree/bohr^2 (as xtb writes "
+                   "its 'hessian' file); needed for a geometry file; with an output file that lists "
+                   "frequencies it must reproduce them within 2 %%")
     p.add_argument("--kind", choices=("minimum", "transition_state"),
-                   help="default: from the count of imaginary modes")
-    p.add_argument("--charge", type=int, default=None, help="total charge (default: the file's)")
-    p.add_argument("--multiplicity", type=int, default=None, help="multiplicity (default: the "
-                   "file's)")
-    p.add_argument("--scale", type=float, default=1.0, help="frequency scale factor (default 1)")
+                   help="default: transition_state with exactly one imaginary mode, else minimum")
+    p.add_argument("--scale", type=float, default=1.0, help="frequency scale factor applied to every "
+                   "wavenumber, stored as frequency_scale (default 1)")
     p.add_argument("-o", "--output", help="species file to write (.toml); without it nothing is written, only a summary is printed")
-    _common(p, semi_empirical=False)
+    _common(p, semi_empirical=False,
+            charge_help="total charge (default: the one QC_FILE gives; 0 for a geometry file)",
+            multiplicity_help="spin multiplicity 2S+1 (default: the one QC_FILE gives; 1 for a "
+                              "geometry file)")
 
 
 # ---- helpers ----------------------------------------------------------------------
@@ -120,7 +143,7 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
 def _command_line(args) -> str:
     if Path(sys.argv[0]).name == "tstrate":
         return "tstrate " + shlex.join(sys.argv[1:])
-    skip = {"_run", "command", "compute_command", "traceback", "verbose"}
+    skip = {"_run", "_prog", "command", "compute_command", "traceback", "verbose"}
     parts = ["tstrate", "compute", args.compute_command]
     for key, value in vars(args).items():
         if key in skip or value is None or value is False:
@@ -173,7 +196,9 @@ def _cache(args):
 
 
 def _progress(args) -> bool:
-    return not args.quiet and sys.stderr.isatty()
+    from tstrate.cli.common import show_progress
+
+    return show_progress(args)
 
 
 def _geometry(path: str, flag: str):

@@ -26,8 +26,10 @@ below_threshold, collision_rate_constant_cm3_per_molecule_s, collision_efficienc
 collision_frequency_per_s, fraction_stern_volmer, fraction_stepwise, ...;
 altitude_km along a profile; half_quenching_pressure_bar for the scan}, warnings.
 
---plot DIR writes excite_<name>_pressure, excite_<name>_altitude and
-excite_<name>_k_of_E (PNG and SVG) into DIR.
+--plot DIR writes excitation_<name>_pressure, excitation_<name>_altitude
+(the names tstrate run uses in its plots/ folder) and excitation_<name>_k_of_E,
+each as PNG and SVG, into DIR. As in falloff, the state counts are harmonic:
+the low-mode options do not apply.
 """
 
 _CLI_FIELD = "command line"
@@ -36,6 +38,8 @@ _CLI_ONLY = ("channel", "temperature", "profile", "altitude", "delta_e_down", "c
 
 
 def add_arguments(parser) -> None:
+    from tstrate.cli.common import add_plot_option, add_quiet_option
+
     parser.add_argument("study", metavar="STUDY", help="study file (TOML)")
     g = parser.add_mutually_exclusive_group()
     g.add_argument("--wavelength", type=float, metavar="NM", help="excitation by a photon of this wavelength [nm]")
@@ -58,7 +62,8 @@ def add_arguments(parser) -> None:
     parser.add_argument("--no-pressures", action="store_true",
                         help="skip the scan over the [conditions] pressures (profile only)")
     parser.add_argument("--json", action="store_true", help="machine-readable output on stdout")
-    parser.add_argument("--plot", metavar="DIR", help="write plots (PNG and SVG) into this folder")
+    add_plot_option(parser, "the fraction reacting against pressure and altitude, and k(E), of each excitation")
+    add_quiet_option(parser)
 
 
 def _cli_spec(args, study):
@@ -190,8 +195,7 @@ def _print_result(res, rec) -> None:
 def run(args) -> int:
     import sys
 
-    from tstrate.cli.common import print_json
-    from tstrate.cli.falloff import check_plot_dir, progress_wrapper, write_figure
+    from tstrate.cli.common import check_plot_dir, print_json, progress_wrapper, write_figure
     from tstrate.errors import InputError
     from tstrate.io.study import read_study
     from tstrate.output.pressure_records import excitation_record
@@ -201,7 +205,7 @@ def run(args) -> int:
     study = read_study(args.study)
     spec = _cli_spec(args, study)
     try:
-        results = study_excitations(study, None if spec is None else [spec], progress=progress_wrapper("excite"))
+        results = study_excitations(study, None if spec is None else [spec], progress=progress_wrapper(args, "excite"))
     except InputError as exc:
         if spec is None or not (exc.field or "").startswith(_CLI_FIELD):
             raise
@@ -218,17 +222,20 @@ def run(args) -> int:
             print(f"tstrate excite: warning: {w}", file=sys.stderr)
     written = []
     if folder is not None:
-        from tstrate.output.pressure_plots import (rate_energy_figure, safe_name, yield_altitude_figure,
-                                                   yield_pressure_figure)
+        from tstrate.output.plots import figure_stem
+        from tstrate.output.pressure_plots import rate_energy_figure, yield_altitude_figure, yield_pressure_figure
 
         inputs = [study.file, *study.species_files.values()]
         for res in results:
-            stem = f"excite_{safe_name(res.spec.name)}"
+            name = res.spec.name
             if res.pressure is not None:
-                written += write_figure(yield_pressure_figure(res), folder, stem + "_pressure", inputs)
+                written += write_figure(yield_pressure_figure(res), folder,
+                                        figure_stem("excitation", name, "pressure"), inputs)
             if res.profile is not None:
-                written += write_figure(yield_altitude_figure(res), folder, stem + "_altitude", inputs)
-            written += write_figure(rate_energy_figure(res), folder, stem + "_k_of_E", inputs)
+                written += write_figure(yield_altitude_figure(res), folder,
+                                        figure_stem("excitation", name, "altitude"), inputs)
+            written += write_figure(rate_energy_figure(res), folder, figure_stem("excitation", name, "k_of_E"),
+                                    inputs)
     records = [excitation_record(r) for r in results]
     if args.json:
         from tstrate.physics.pressure import bath_parameters

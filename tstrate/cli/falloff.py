@@ -31,53 +31,22 @@ bath_gas, collision_efficiency, collisions {...}, grain_cm1, requested_grain_cm1
 barrier_zpe_kJ_per_mol, reaction_path_degeneracy, centrifugal_factor, rotors, warnings),
 "not_computed" (name, order, reason) and "warnings".
 
---plot DIR writes falloff_<channel>.png and .svg into DIR.
+The state counts are those of harmonic oscillators (and the free rotors a
+species file declares), so the low-mode options of thermo, rates, compare and
+run do not apply here; k_inf / canonical TST compares with harmonic TST.
+
+--plot DIR writes falloff_<channel>.png and .svg into DIR, the names tstrate
+run uses in its plots/ folder.
 """
 
 
 def add_arguments(parser) -> None:
+    from tstrate.cli.common import add_plot_option, add_quiet_option
+
     parser.add_argument("study", metavar="STUDY", help="study file (TOML)")
     parser.add_argument("--json", action="store_true", help="machine-readable output on stdout")
-    parser.add_argument("--plot", metavar="DIR", help="write falloff plots (PNG and SVG) into this folder")
-
-
-def progress_wrapper(desc: str):
-    """A tqdm wrapper on stderr when stderr is a terminal, else None."""
-    import sys
-
-    if not sys.stderr.isatty():
-        return None
-    from tqdm import tqdm
-
-    return lambda it: tqdm(it, desc=desc, file=sys.stderr, leave=False)
-
-
-def check_plot_dir(path):
-    """The plot folder as a Path; InputError when it is an existing file."""
-    from pathlib import Path
-
-    from tstrate.errors import InputError
-
-    p = Path(path)
-    if p.exists() and not p.is_dir():
-        raise InputError("exists and is not a folder", file=str(p), field="--plot",
-                         hint="--plot takes a folder; the plots are written into it")
-    return p
-
-
-def write_figure(fig, folder, stem: str, inputs=()) -> list:
-    """Save ``fig`` as folder/stem.png and .svg (atomic), refusing to overwrite an input file."""
-    from pathlib import Path
-
-    from tstrate.errors import InputError
-    from tstrate.output.plots import save_figure
-
-    base = Path(folder) / stem
-    resolved = {Path(p).resolve() for p in inputs if p}
-    for suffix in (".png", ".svg"):
-        if base.with_suffix(suffix).resolve() in resolved:
-            raise InputError("would overwrite an input file", file=str(base.with_suffix(suffix)), field="--plot")
-    return save_figure(fig, base, formats=["png", "svg"])
+    add_plot_option(parser, "the falloff curves of each channel")
+    add_quiet_option(parser)
 
 
 def _energy_transfer_text(settings) -> str:
@@ -102,23 +71,24 @@ def run(args) -> int:
 
     import numpy as np
 
-    from tstrate.cli.common import format_table, print_json
+    from tstrate.cli.common import check_plot_dir, format_table, print_json, progress_wrapper, write_figure
     from tstrate.io.study import read_study
     from tstrate.output.pressure_records import study_falloff_record
     from tstrate.physics.pressure import study_falloff
 
     folder = check_plot_dir(args.plot) if args.plot else None
     study = read_study(args.study)
-    result = study_falloff(study, progress=progress_wrapper("falloff"))
+    result = study_falloff(study, progress=progress_wrapper(args, "falloff"))
     for w in result.warnings:
         print(f"tstrate falloff: warning: {w}", file=sys.stderr)
     written = []
     if folder is not None:
-        from tstrate.output.pressure_plots import falloff_figure, safe_name
+        from tstrate.output.plots import figure_stem
+        from tstrate.output.pressure_plots import falloff_figure
 
         inputs = [study.file, *study.species_files.values()]
         for cf in result.channels:
-            written += write_figure(falloff_figure(cf), folder, f"falloff_{safe_name(cf.name)}", inputs)
+            written += write_figure(falloff_figure(cf), folder, figure_stem("falloff", cf.name), inputs)
     record = study_falloff_record(result, study.conditions.rate_units)
     if args.json:
         record["plots"] = [str(p) for p in written]

@@ -3,7 +3,9 @@
 Each subcommand lives in its own module under ``tstrate.cli`` and exposes
 ``HELP`` (one line), ``add_arguments(parser)`` and ``run(args) -> int``.
 Subcommand modules import heavy packages inside ``run`` only, so that
-``tstrate --help`` starts fast.
+``tstrate --help`` starts fast. Usage errors (unknown option, missing or badly
+typed argument, bad choice) are one line on stderr with exit status 2, from
+every parser (:class:`tstrate.cli.common.OneLineParser`).
 """
 
 from __future__ import annotations
@@ -30,8 +32,9 @@ SUBCOMMANDS: dict[str, str] = {
 
 def build_parser() -> argparse.ArgumentParser:
     from tstrate import __version__
+    from tstrate.cli.common import OneLineParser
 
-    parser = argparse.ArgumentParser(
+    parser = OneLineParser(
         prog="tstrate",
         description="Rate constants from the stationary points of a reaction.",
     )
@@ -57,8 +60,7 @@ def main(argv: list[str] | None = None) -> int:
     logging.basicConfig(level=logging.INFO if args.verbose else logging.WARNING,
                         format="tstrate: %(levelname)s: %(message)s")
     if not getattr(args, "_run", None):
-        parser.print_help()
-        return 2
+        parser.error("give a command: " + ", ".join(SUBCOMMANDS) + " (tstrate --help describes them)")
     try:
         return int(args._run(args) or 0)
     except InputError as exc:

@@ -15,28 +15,35 @@ reverse_rate_constant(_unit), Kc (Kc_unit), Kp_1bar, barrier_classical_kJ_per_mo
 barrier_zpe_kJ_per_mol, barrier_from_complex_*_kJ_per_mol,
 reaction_energy_zpe_kJ_per_mol, imaginary_frequency_cm1, eckart_*_kJ_per_mol,
 delta_H_activation_kJ_per_mol, delta_S_activation_J_per_mol_K,
-delta_G_activation_kJ_per_mol, reaction_path_degeneracy.
+delta_G_activation_kJ_per_mol, reaction_path_degeneracy; "low_modes"
+(method, cutoff_cm1) and "plots" (the files --plot wrote).
+
+With --plot DIR: the Arrhenius plot (log10 k against 1000/T, dashed without
+tunnelling) as DIR/arrhenius.png and .svg, the names tstrate run uses.
 """
 
 
 def add_arguments(parser) -> None:
+    from tstrate.cli.common import add_low_mode_options, add_plot_option
+
     parser.add_argument("study", metavar="STUDY", help="study file (TOML)")
     parser.add_argument("--temperature", "-T", nargs="+", type=float, metavar="K",
                         help="temperatures in K (default: the study's [conditions] temperature_K)")
-    parser.add_argument("--low-modes", choices=["harmonic", "grimme", "truhlar"], default="harmonic",
-                        help="treatment of low real modes (default harmonic)")
+    add_low_mode_options(parser)
     parser.add_argument("--json", action="store_true", help="machine-readable output on stdout")
-    parser.add_argument("--plot", metavar="FILE",
-                        help="write an Arrhenius plot (log10 k against 1000/T); format from the suffix")
+    add_plot_option(parser, "the Arrhenius plot (log10 k against 1000/T)")
 
 
 def compute(study_path, temperatures=None, low_modes="harmonic"):
+    """The study and one record per channel; ``low_modes`` a LowModes or the name of one."""
     from tstrate.errors import InputError
     from tstrate.io.study import read_study
     from tstrate.output.records import channel_rates_record
     from tstrate.physics.thermo import LowModes
     from tstrate.study.rates import study_rates
 
+    if not isinstance(low_modes, LowModes):
+        low_modes = LowModes(low_modes)
     study = read_study(study_path)
     if not study.channels:
         raise InputError("the study has no [[channel]] to compute", file=study.file, field="channel")
@@ -46,27 +53,27 @@ def compute(study_path, temperatures=None, low_modes="harmonic"):
         t = np.asarray(temperatures, dtype=float)
         if np.any(t <= 0) or not np.all(np.isfinite(t)):
             raise InputError("temperatures must be positive (kelvin)", field="--temperature")
-    results = study_rates(study, low_modes=LowModes(low_modes), temperature_K=temperatures)
+    results = study_rates(study, low_modes=low_modes, temperature_K=temperatures)
     return study, [channel_rates_record(r, study.conditions.rate_units) for r in results]
 
 
 def run(args) -> int:
-    from tstrate.cli.common import format_table, print_json
+    from tstrate.cli.common import (check_plot_dir, format_table, low_modes_from_args, low_modes_record,
+                                    print_json, write_figure)
 
     written = []
-    if args.plot:
-        from tstrate.output.plots import plot_format
+    folder = check_plot_dir(args.plot) if args.plot else None  # fails before any work
+    low_modes = low_modes_from_args(args)
+    study, records = compute(args.study, args.temperature, low_modes)
+    if folder is not None:
+        from tstrate.output.plots import arrhenius_figure, figure_stem
 
-        plot_format(args.plot)  # an unwritable format fails before any work
-    study, records = compute(args.study, args.temperature, args.low_modes)
-    if args.plot:
-        from tstrate.output.plots import arrhenius_figure, save_figure
-
-        written = save_figure(arrhenius_figure(records, study.title), args.plot)
+        written = write_figure(arrhenius_figure(records, study.title), folder, figure_stem("arrhenius"),
+                               [study.file, *study.species_files.values()])
     if args.json:
-        print_json({"study": study.file, "title": study.title,
+        print_json({"study": study.file, "title": study.title, "low_modes": low_modes_record(low_modes),
                     "temperature_K": records[0]["temperature_K"] if records else [],
-                    "channels": records})
+                    "channels": records, "plots": [str(p) for p in written]})
         return 0
     print(study.title)
     for r in records:
@@ -79,8 +86,10 @@ def run(args) -> int:
             r["delta_G_activation_kJ_per_mol"])]
         print(format_table(["T/K", f"k/({r['rate_constant_unit']})", "kappa", "k(no tunnelling)",
                             "dG‡/(kJ mol-1)"], rows, "{:.4g}"))
+    if written:
+        print()
     for path in written:
-        print(f"\nplot written to {path}")
-    print("\nEstimates bounded by the electronic-structure inputs; check against experiment and "
-          "evaluated data before use.")
+        print(f"plot written to {path}")
+    print(f"\nLow modes: {low_modes.label}. Estimates bounded by the electronic-structure inputs; check "
+          "against experiment and evaluated data before use.")
     return 0

@@ -22,13 +22,14 @@ printed on stdout.
 
 
 def add_arguments(parser) -> None:
+    from tstrate.cli.common import add_low_mode_options, add_quiet_option
+
     parser.add_argument("study", metavar="STUDY", help="study file (TOML)")
     parser.add_argument("--output", "-o", metavar="DIR",
                         help="output folder (default tstrate-output/<study name>, never reused)")
     parser.add_argument("--force", action="store_true", help="replace an existing --output folder")
-    parser.add_argument("--low-modes", choices=["harmonic", "grimme", "truhlar"], default="harmonic",
-                        help="treatment of low real modes (default harmonic)")
-    parser.add_argument("--quiet", "-q", action="store_true", help="no progress bar")
+    add_low_mode_options(parser)
+    add_quiet_option(parser)
     parser.add_argument("--json", action="store_true", help="machine-readable summary on stdout")
 
 
@@ -49,12 +50,12 @@ def run(args) -> int:
     import sys
     from pathlib import Path
 
-    from tstrate.cli.common import print_json
+    from tstrate.cli.common import low_modes_from_args, print_json, show_progress
     from tstrate.io.study import read_study
-    from tstrate.physics.thermo import LowModes
     from tstrate.output.folder import default_output_dir, write_outputs
     from tstrate.study.run import compute_study, steps
 
+    low_modes = low_modes_from_args(args)
     study = read_study(args.study)
     out = Path(args.output) if args.output else default_output_dir(study)
     if out.exists() and not args.force:
@@ -64,7 +65,7 @@ def run(args) -> int:
                          hint="pass --force to replace it, or choose another --output")
     names = steps(study) + ["tables", "plots", "report"]
     bar = None
-    if not args.quiet and sys.stderr.isatty():
+    if show_progress(args):
         from tqdm import tqdm
 
         bar = tqdm(total=len(names), desc="tstrate run", unit="step", file=sys.stderr)
@@ -75,7 +76,7 @@ def run(args) -> int:
             bar.update(1)
 
     try:
-        result = compute_study(study, low_modes=LowModes(args.low_modes), progress=progress)
+        result = compute_study(study, low_modes=low_modes, progress=progress)
         files = write_outputs(result, out, force=args.force, progress=progress)
     finally:
         if bar is not None:

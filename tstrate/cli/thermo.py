@@ -15,21 +15,20 @@ symmetry_number, reduced_moment_amu_A2; the replaced modes are not harmonic
 and have no zero-point energy), zpe_kJ_per_mol, and arrays over temperature_K:
 entropy_J_per_mol_K, heat_capacity_J_per_mol_K, enthalpy_increment_kJ_per_mol
 (H(T)-H(0)), gibbs_increment_kJ_per_mol (G(T)-H(0)); plus standard_pressure_bar
-and low_modes.
+and low_modes (method, cutoff_cm1).
 """
 
 DEFAULT_TEMPERATURES_K = [298.15]
 
 
 def add_arguments(parser) -> None:
+    from tstrate.cli.common import add_low_mode_options
+
     parser.add_argument("files", nargs="+", metavar="FILE", help="species files (TOML)")
     parser.add_argument("--temperature", "-T", nargs="+", type=float, metavar="K",
                         default=DEFAULT_TEMPERATURES_K,
                         help="temperatures in K (default 298.15)")
-    parser.add_argument("--low-modes", choices=["harmonic", "grimme", "truhlar"], default="harmonic",
-                        help="treatment of low real modes (default harmonic)")
-    parser.add_argument("--low-mode-cutoff-cm1", type=float, default=100.0, metavar="CM1",
-                        help="cut-off wavenumber of the low-mode treatment in cm-1 (default 100)")
+    add_low_mode_options(parser)
     parser.add_argument("--json", action="store_true", help="machine-readable output on stdout")
 
 
@@ -64,24 +63,17 @@ def compute(files, temperatures_K, low_modes):
 
 
 def run(args) -> int:
-    from tstrate.cli.common import format_table, print_json
-    from tstrate.physics.thermo import LowModes
-
     import math
 
+    from tstrate.cli.common import format_table, low_modes_from_args, low_modes_record, print_json
     from tstrate.errors import InputError
 
     if any(not (math.isfinite(t) and t > 0) for t in args.temperature or ()):
         raise InputError("temperatures must be positive (kelvin)", field="--temperature")
-    try:
-        low = LowModes(args.low_modes, args.low_mode_cutoff_cm1)
-    except InputError as exc:
-        raise InputError(exc.problem, field="--low-mode-cutoff-cm1", hint=exc.hint) from None
+    low = low_modes_from_args(args)
     records = compute(args.files, args.temperature, low)
     if args.json:
-        print_json({"standard_pressure_bar": 1.0, "low_modes": {"method": low.method,
-                                                               "cutoff_cm1": low.cutoff_cm1},
-                    "species": records})
+        print_json({"standard_pressure_bar": 1.0, "low_modes": low_modes_record(low), "species": records})
         return 0
     for rec in records:
         print(f"{rec['name']} ({rec['formula']}, {rec['kind']}): symmetry number "
@@ -93,5 +85,5 @@ def run(args) -> int:
         print(format_table(["T/K", "S/(J mol-1 K-1)", "Cp/(J mol-1 K-1)", "[H(T)-H(0)]/(kJ mol-1)",
                             "[G(T)-H(0)]/(kJ mol-1)"], rows, "{:.2f}"))
         print()
-    print(f"Standard state 1 bar; low modes: {low.method}. Estimates bounded by the input data.")
+    print(f"Standard state 1 bar; low modes: {low.label}. Estimates bounded by the input data.")
     return 0

@@ -205,7 +205,7 @@ def _header(fits, cn) -> list[str]:
             "# one pressure column: k independent of pressure (range 1e-30 to 1e30 Pa). Valid only "
             "inside the temperature range."]),
         "# Thermochemistry: NASA 7-coefficient polynomials fitted to tstrate's ideal-gas "
-        f"thermochemistry (low modes: {fits.low_modes.method}),",
+        f"thermochemistry (low modes: {fits.low_modes.label}),",
         "# standard state 1 bar.",
         "# Enthalpy zero: H = E + ZPE + [H(T) - H(0)] - sum_j n_j c_j with per-element offsets "
         "c_j [J/mol per atom]:",

@@ -10,6 +10,33 @@ from pathlib import Path
 
 import numpy as np
 
+#: File stems (without suffix) of every figure tstrate draws. ``tstrate run`` writes them into
+#: its plots/ folder and each command's ``--plot DIR`` into DIR, under the same names, in each
+#: of :data:`FIGURE_FORMATS`. ``{name}`` is the comparison, channel or excitation, made safe for
+#: a file name (:func:`figure_stem`); ``{panel}`` the kind of figure.
+FIGURE_STEMS = {
+    "arrhenius": "arrhenius",
+    # panels: energy_profile, ratio_vs_temperature, ratio_vs_abundance (compare_plots.comparison_figures)
+    "comparison": "compare_{name}_{panel}",
+    "falloff": "falloff_{name}",
+    # panels: pressure, altitude, k_of_E
+    "excitation": "excitation_{name}_{panel}",
+}
+#: the formats each figure is written in
+FIGURE_FORMATS = ("png", "svg")
+
+
+def figure_stem(figure: str, name: str = "", panel: str = "") -> str:
+    """The file stem of a figure of :data:`FIGURE_STEMS`, e.g. ``figure_stem("falloff", "bare")``.
+
+    The name goes through :func:`tstrate.output.tables.safe_file_stem`, and its dots become
+    ``_`` too (a dot would be taken for the start of the suffix when the formats are added).
+    """
+    from tstrate.output.tables import safe_file_stem
+
+    safe = safe_file_stem(name).replace(".", "_") if name else ""
+    return FIGURE_STEMS[figure].format(name=safe, panel=panel)
+
 
 def _plt():
     import matplotlib

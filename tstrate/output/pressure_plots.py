@@ -3,8 +3,6 @@
 
 from __future__ import annotations
 
-import re
-
 import numpy as np
 
 from tstrate.physics.falloff import troe_rate
@@ -25,11 +23,6 @@ def _pick(n: int, most: int) -> list[int]:
     if n <= most:
         return list(range(n))
     return sorted({int(round(x)) for x in np.linspace(0, n - 1, most)})
-
-
-def safe_name(name: str) -> str:
-    """A file-name fragment from a label (letters, digits, '-', '_' only)."""
-    return re.sub(r"[^A-Za-z0-9_-]+", "_", name).strip("_") or "unnamed"
 
 
 def falloff_figure(cf, title: str | None = None, max_curves: int = 5):

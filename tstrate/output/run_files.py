@@ -23,6 +23,8 @@ from typing import Callable
 import numpy as np
 
 from tstrate.output import report as rp
+from tstrate.physics.thermo import (DEFAULT_LOW_MODE_CUTOFF_CM1, LOW_MODES_FREQUENCY_FLOOR, LOW_MODES_HARMONIC,
+                                    LOW_MODES_ROTOR_ENTROPY_BLEND)
 
 CAUTION = ("Caution: every number here is an estimate bounded by the electronic-structure inputs "
            "(an error of 4 kJ/mol in a barrier changes k at 200 K about tenfold; semi-empirical "
@@ -51,10 +53,19 @@ METHODS = (
 )
 
 
-def _save(fig, folder: Path, stem: str) -> list[Path]:
-    from tstrate.output.plots import save_figure
+def low_modes_method_text(low_modes) -> str:
+    """The report's methods entry on the low-mode treatment, with the sources of the options."""
+    text = f"Low modes: {low_modes.description}."
+    if low_modes.method == LOW_MODES_HARMONIC:
+        text += (f" The quasi-harmonic alternatives are {LOW_MODES_ROTOR_ENTROPY_BLEND} (Grimme 2012) and "
+                 f"{LOW_MODES_FREQUENCY_FLOOR} (Ribeiro, Marenich, Cramer and Truhlar 2011), option --low-modes.")
+    return text
 
-    return save_figure(fig, folder / stem, formats=["png", "svg"])
+
+def _save(fig, folder: Path, stem: str) -> list[Path]:
+    from tstrate.output.plots import FIGURE_FORMATS, save_figure
+
+    return save_figure(fig, folder / stem, formats=list(FIGURE_FORMATS))
 
 
 def _results_json(result) -> dict:
@@ -127,7 +138,7 @@ def write_all(result, folder: Path, *, progress: Callable[[str], None] | None = 
     """Write every output file into ``folder``; returns the paths written."""
     from tstrate.io.files import atomic_write_text
     from tstrate.output.mechanism import write_mechanism
-    from tstrate.output.plots import arrhenius_figure
+    from tstrate.output.plots import arrhenius_figure, figure_stem
     from tstrate.output.tables import (csv_text, json_text, write_fits_csv, write_json, write_rate_tables,
                                        write_thermo_csv)
     from tstrate.io.files import file_sha256
@@ -162,43 +173,40 @@ def write_all(result, folder: Path, *, progress: Callable[[str], None] | None = 
     written.append(folder / "inputs.json")
 
     step("plots")
-    paths = _save(arrhenius_figure(doc["channels"], study.title), folder / "plots", "arrhenius")
+    paths = _save(arrhenius_figure(doc["channels"], study.title), folder / "plots", figure_stem("arrhenius"))
     written += paths
     figures.append(("rates", paths[0], "Arrhenius plot: log10 k against 1000/T; dashed lines "
                     "without tunnelling."))
     if result.comparisons is not None:
         from tstrate.output.compare_plots import comparison_figures
-        from tstrate.output.tables import safe_file_stem
 
         for cr in result.comparisons:
-            stem = safe_file_stem(cr.comparison.name)
             for key, fig in comparison_figures(cr).items():
-                paths = _save(fig, folder / "plots", f"compare_{stem}_{key}")
+                paths = _save(fig, folder / "plots", figure_stem("comparison", cr.comparison.name, key))
                 written += paths
                 figures.append(("compare", paths[0],
                                 f"{cr.comparison.name}: {key.replace('_', ' ')}"))
     if result.falloff is not None:
         from tstrate.output.pressure_plots import falloff_figure
-        from tstrate.output.tables import safe_file_stem
 
         for cf in result.falloff.channels:
-            paths = _save(falloff_figure(cf), folder / "plots", f"falloff_{safe_file_stem(cf.name)}")
+            paths = _save(falloff_figure(cf), folder / "plots", figure_stem("falloff", cf.name))
             written += paths
             figures.append(("falloff", paths[0], f"Falloff of channel {cf.name}: log10 k against "
                             "log10 p at several temperatures."))
     if result.excitations is not None:
         from tstrate.output import pressure_plots as pp
-        from tstrate.output.tables import safe_file_stem
 
         for ex in result.excitations:
-            stem = safe_file_stem(ex.spec.name)
             if ex.pressure is not None:
-                paths = _save(pp.yield_pressure_figure(ex), folder / "plots", f"excitation_{stem}_pressure")
+                paths = _save(pp.yield_pressure_figure(ex), folder / "plots",
+                              figure_stem("excitation", ex.spec.name, "pressure"))
                 written += paths
                 figures.append(("excitation", paths[0], f"{ex.spec.name}: fraction reacting "
                                 "before deactivation against pressure."))
             if ex.profile is not None:
-                paths = _save(pp.yield_altitude_figure(ex), folder / "plots", f"excitation_{stem}_altitude")
+                paths = _save(pp.yield_altitude_figure(ex), folder / "plots",
+                              figure_stem("excitation", ex.spec.name, "altitude"))
                 written += paths
                 figures.append(("excitation", paths[0], f"{ex.spec.name}: fraction reacting "
                                 "before deactivation against altitude."))
@@ -235,12 +243,14 @@ def limits(result) -> list[str]:
     if wild:
         out.append(f"Fitted expressions of {', '.join(wild)} have |n| > 10: they reproduce k only inside the "
                    "fitted temperature range and must not be extrapolated; split ranges (fits.json) fit better.")
-    if result.low_modes.method == "harmonic":
+    if result.low_modes.method == LOW_MODES_HARMONIC:
+        low = DEFAULT_LOW_MODE_CUTOFF_CM1
         soft = [n for n, sp in result.study.species.items()
-                if sp.harmonic_frequencies_cm1.size and float(sp.harmonic_frequencies_cm1.min()) < 100.0]
+                if sp.harmonic_frequencies_cm1.size and float(sp.harmonic_frequencies_cm1.min()) < low]
         if soft:
-            out.append(f"Species with real modes below 100 cm-1 treated as harmonic ({', '.join(soft)}): "
-                       "their entropies are uncertain; compare with --low-modes grimme or truhlar.")
+            out.append(f"Species with real modes below {low:g} cm-1 treated as harmonic ({', '.join(soft)}): "
+                       f"their entropies are uncertain; compare with --low-modes {LOW_MODES_ROTOR_ENTROPY_BLEND} "
+                       f"or {LOW_MODES_FREQUENCY_FLOOR}.")
     return out
 
 
@@ -284,7 +294,7 @@ def build_report(result, doc: dict, inputs: list[dict], figures) -> list:
     if result.falloff is None and result.excitations is None:
         skip.add("Falloff")
     methods = tuple(m for m in METHODS if not any(m.startswith(k) for k in skip))
-    B.append(rp.Bullets(methods + (f"Low modes: {result.low_modes.method}.",)))
+    B.append(rp.Bullets(methods + (low_modes_method_text(result.low_modes),)))
 
     B.append(rp.Heading("Thermochemistry (1 bar)"))
     rows = []

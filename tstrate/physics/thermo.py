@@ -3,15 +3,18 @@
 Model: ideal-gas translation, classical rigid rotor (atom, linear, nonlinear)
 with the external symmetry number and optical isomers, harmonic oscillators
 (partition function referenced to the zero-point level, ZPE reported apart),
-and discrete electronic levels. Quasi-harmonic options for low modes:
+and discrete electronic levels. Quasi-harmonic options for low modes
+(:class:`LowModes`, cut-off nu0, 100 cm^-1 by default):
 
-- ``"grimme"``: Grimme's quasi-rigid-rotor-harmonic-oscillator entropy,
-  S = w S_HO + (1 - w) S_free-rotor with w = 1/(1 + (nu0/nu)^4) (S. Grimme,
-  Chem. Eur. J. 18, 9955 (2012)); enthalpy and heat capacity stay harmonic.
-- ``"truhlar"``: every real mode below the cut-off is raised to the cut-off
-  (R. F. Ribeiro, A. V. Marenich, C. J. Cramer, D. G. Truhlar, J. Phys.
-  Chem. B 115, 14556 (2011)); applies to all functions except the ZPE,
-  which keeps the true wavenumbers.
+- ``"rotor-entropy-blend"``: the entropy of each real mode is blended from its
+  harmonic-oscillator value towards that of a free rotor of the same
+  wavenumber, S = w S_HO + (1 - w) S_free-rotor with w = 1/(1 + (nu0/nu)^4)
+  (S. Grimme, Chem. Eur. J. 18, 9955 (2012)); enthalpy and heat capacity stay
+  harmonic.
+- ``"frequency-floor"``: every real mode below the cut-off is raised to the
+  cut-off (R. F. Ribeiro, A. V. Marenich, C. J. Cramer, D. G. Truhlar,
+  J. Phys. Chem. B 115, 14556 (2011)); applies to all functions except the
+  ZPE, which keeps the true wavenumbers.
 
 Imaginary modes are never part of the vibrational partition function (the
 reaction coordinate of a transition state is left out).
@@ -46,28 +49,68 @@ from tstrate.errors import InputError
 from tstrate.model import Species
 from tstrate.units import CM1_J, H, K_B, N_A, P_STANDARD, R
 
-#: Grimme's average moment of inertia for the free-rotor entropy [kg m^2] (Grimme 2012)
-GRIMME_B_AV_KG_M2 = 1e-44
+#: average moment of inertia that bounds the free rotor of the entropy blend [kg m^2] (Grimme 2012)
+FREE_ROTOR_AVERAGE_MOMENT_KG_M2 = 1e-44
+
+#: the low-mode treatments (values of :attr:`LowModes.method`, the CLI's --low-modes and the
+#: "low_modes" entries of JSON output)
+LOW_MODES_HARMONIC = "harmonic"
+LOW_MODES_ROTOR_ENTROPY_BLEND = "rotor-entropy-blend"
+LOW_MODES_FREQUENCY_FLOOR = "frequency-floor"
+LOW_MODE_METHODS = (LOW_MODES_HARMONIC, LOW_MODES_ROTOR_ENTROPY_BLEND, LOW_MODES_FREQUENCY_FLOOR)
+#: what each treatment does, with its source (report and help texts)
+LOW_MODE_DESCRIPTIONS = {
+    LOW_MODES_HARMONIC: "every real mode a harmonic oscillator",
+    LOW_MODES_ROTOR_ENTROPY_BLEND: "the entropy of each real mode blended from its harmonic value towards "
+                                   "that of a free rotor, weight 1/(1 + (nu0/nu)^4) (Grimme 2012); "
+                                   "enthalpy and heat capacity harmonic",
+    LOW_MODES_FREQUENCY_FLOOR: "real modes below nu0 raised to nu0 in every function except the "
+                               "zero-point energy (Ribeiro, Marenich, Cramer and Truhlar 2011)",
+}
+#: default cut-off nu0 [cm^-1], the value both papers use
+DEFAULT_LOW_MODE_CUTOFF_CM1 = 100.0
 
 
 @dataclass(frozen=True)
 class LowModes:
     """How low real vibrational modes are treated.
 
-    method: "harmonic" (none), "grimme" (entropy interpolation) or "truhlar" (raise to cut-off).
-    cutoff_cm1: nu0 of Grimme's damping function, or the Truhlar floor [cm^-1]. 100 cm^-1 is
-        the value both papers use.
+    method: "harmonic" (none), "rotor-entropy-blend" (entropy blended towards a free rotor,
+        Grimme 2012) or "frequency-floor" (modes raised to the cut-off, Ribeiro et al. 2011).
+    cutoff_cm1: nu0 of the blend's weight 1/(1 + (nu0/nu)^4), or the floor [cm^-1].
     """
 
-    method: Literal["harmonic", "grimme", "truhlar"] = "harmonic"
-    cutoff_cm1: float = 100.0
+    method: Literal["harmonic", "rotor-entropy-blend", "frequency-floor"] = LOW_MODES_HARMONIC
+    cutoff_cm1: float = DEFAULT_LOW_MODE_CUTOFF_CM1
 
     def __post_init__(self):
-        if self.method not in ("harmonic", "grimme", "truhlar"):
-            raise InputError(f"unknown low-mode treatment {self.method!r}",
-                             field="low_modes", hint="use harmonic, grimme or truhlar")
+        if self.method not in LOW_MODE_METHODS:
+            raise InputError(f"unknown low-mode treatment {self.method!r}", field="low_modes",
+                             hint=low_mode_choices_text())
         if not self.cutoff_cm1 > 0:
             raise InputError("low-mode cut-off must be positive", field="low_modes.cutoff_cm1")
+
+    @property
+    def label(self) -> str:
+        """The treatment's name, with the cut-off unless harmonic: ``frequency-floor, nu0 = 100 cm-1``."""
+        if self.method == LOW_MODES_HARMONIC:
+            return self.method
+        return f"{self.method}, nu0 = {self.cutoff_cm1:g} cm-1"
+
+    @property
+    def description(self) -> str:
+        """One sentence: the treatment's name, what it does and its source, with the cut-off."""
+        text = f"{self.method}: {LOW_MODE_DESCRIPTIONS[self.method]}"
+        if self.method != LOW_MODES_HARMONIC:
+            text += f"; nu0 = {self.cutoff_cm1:g} cm-1"
+        return text
+
+
+def low_mode_choices_text() -> str:
+    """``use harmonic, rotor-entropy-blend (Grimme 2012) or frequency-floor (...)``: the names to use."""
+    return (f"use {LOW_MODES_HARMONIC}, {LOW_MODES_ROTOR_ENTROPY_BLEND} (entropy blended towards a free "
+            f"rotor, Grimme 2012) or {LOW_MODES_FREQUENCY_FLOOR} (low modes raised to the cut-off, "
+            "Ribeiro, Marenich, Cramer and Truhlar 2011)")
 
 
 HARMONIC = LowModes()
@@ -123,8 +166,9 @@ def harmonic_oscillators(freqs_cm1, T: np.ndarray):
     return ln_q, u, s, cv
 
 
-def free_rotor_entropy(freqs_cm1, T: np.ndarray, b_av_kg_m2: float = GRIMME_B_AV_KG_M2):
-    """S/R of Grimme's free rotor replacing a mode of the given wavenumber, shape (T, M)."""
+def free_rotor_entropy(freqs_cm1, T: np.ndarray, b_av_kg_m2: float = FREE_ROTOR_AVERAGE_MOMENT_KG_M2):
+    """S/R of the free rotor that stands in for a mode of the given wavenumber in the entropy
+    blend, its moment bounded by ``b_av_kg_m2`` (Grimme 2012), shape (T, M)."""
     nu_hz = np.asarray(freqs_cm1, dtype=float)[None, :] * CM1_J / H
     mu = H / (8 * np.pi**2 * nu_hz)
     mu_eff = mu * b_av_kg_m2 / (mu + b_av_kg_m2)
@@ -229,10 +273,10 @@ def _vibrational_parts(freqs: np.ndarray, T: np.ndarray, low_modes: LowModes):
     if freqs.size == 0:
         z = np.zeros_like(T)
         return z, z, z, z
-    if low_modes.method == "truhlar":
+    if low_modes.method == LOW_MODES_FREQUENCY_FLOOR:
         freqs = np.maximum(freqs, low_modes.cutoff_cm1)
     ln_q, u, s, cv = harmonic_oscillators(freqs, T)
-    if low_modes.method == "grimme":
+    if low_modes.method == LOW_MODES_ROTOR_ENTROPY_BLEND:
         w = 1.0 / (1.0 + (low_modes.cutoff_cm1 / freqs[None, :]) ** 4)
         s = w * s + (1 - w) * free_rotor_entropy(freqs, T)
         ln_q = s - u  # keeps G = H - TS consistent with the interpolated entropy
