@@ -55,8 +55,8 @@ class InputError(ValueError):
 
         The study and species readers call this once, at the boundary, on errors raised by
         records and physics that name only their own parameter."""
-        if self.file is not None and self.file != (None if file is None else str(file)):
-            return self  # already placed in another file (e.g. a species file named by a study)
+        if self.file is not None:
+            return self  # already placed (e.g. in a species file named by the study, or a study key)
         field = self.field
         if prefix:
             field = f"{prefix}.{field}" if field else prefix

@@ -7,7 +7,7 @@ from scipy.constants import N_A, c as c_light, h
 
 from tstrate.errors import InputError
 from tstrate.io.study import read_study
-from tstrate.physics.energised import US_STANDARD_1976
+from tstrate.model.settings import US_STANDARD_1976
 
 DATA = Path(__file__).resolve().parents[1] / "data" / "falloff"
 CM1_J_PER_MOL = h * c_light * 100 * N_A
@@ -53,7 +53,7 @@ def test_bundled_test_study_sections():
     assert fo.default.delta_E_down_cm1 == 200 and fo.default.grain_cm1 == 10
     over = fo.for_channel("bare_eckart")
     assert over.delta_E_down_cm1 == 300 and over.fit_T2 and over.grain_cm1 == 10   # merged with the defaults
-    assert over.field == "falloff.channels.bare_eckart"
+    assert over != fo.default
     assert fo.for_channel("bare") is fo.default
     ex = {e.name: e for e in st.sections["excitation"]}
     assert ex["OH overtone 2v"].energy_J_per_mol == pytest.approx(7200 * CM1_J_PER_MOL, rel=1e-12)
@@ -62,6 +62,7 @@ def test_bundled_test_study_sections():
     assert ex["near-UV"].profile == US_STANDARD_1976 and ex["near-UV"].altitude_range_km == (0.0, 86.0)
     assert ex["csv"].energy_J_per_mol == pytest.approx(260e3)
     assert Path(ex["csv"].profile) == DATA / "profile.csv"          # relative to the study file
+    assert ex["csv"].profile_table.temperature_K.size > 0            # read when the study is read
     assert ex["csv"].pressure_scan is False
 
 

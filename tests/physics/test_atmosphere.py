@@ -4,8 +4,9 @@ import numpy as np
 import pytest
 
 from tstrate.errors import InputError
+from tstrate.io.profiles import read_profile_csv
 from tstrate.physics.atmosphere import (LAYER_BASE_PRESSURE_PA, LAYER_BASE_TEMPERATURE_K, R0_M,
-                                        read_profile_csv, us_standard_atmosphere_1976)
+                                        us_standard_atmosphere_1976)
 
 # Layer-base pressures at geopotential heights 0, 11, 20, 32, 47, 51, 71, 84.852 km' (Table 4 of
 # U.S. Standard Atmosphere 1976, from memory; the first seven cross-checked to 6 digits with a

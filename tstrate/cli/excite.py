@@ -32,7 +32,6 @@ each as PNG and SVG, into DIR. As in falloff, the state counts are harmonic:
 the low-mode options do not apply.
 """
 
-_CLI_FIELD = "command line"
 _CLI_ONLY = ("channel", "temperature", "profile", "altitude", "delta_e_down", "collision_efficiency",
              "no_pressures")
 
@@ -72,7 +71,8 @@ def _cli_spec(args, study):
 
     from tstrate.errors import InputError
     from tstrate.physics.activation import photon_energy_J_per_mol
-    from tstrate.physics.energised import US_STANDARD_1976, ExcitationSpec, resolve_profile
+    from tstrate.io.profiles import read_profile_csv, resolve_profile
+    from tstrate.model.settings import US_STANDARD_1976, ExcitationSpec
     from tstrate.units import energy_to_J_per_mol
 
     given = {"--wavelength": args.wavelength, "--wavenumber": args.wavenumber, "--energy": args.energy}
@@ -129,6 +129,7 @@ def _cli_spec(args, study):
     if args.altitude is not None and not (0 <= args.altitude[0] <= args.altitude[1]):
         raise InputError(f"altitude range must be LOW HIGH in km with 0 <= LOW <= HIGH, got "
                          f"{args.altitude[0]:g} {args.altitude[1]:g}", field="--altitude")
+    table = None if profile in (None, US_STANDARD_1976) else read_profile_csv(profile)
     try:
         return ExcitationSpec(
             name=description, channel=channel, energy_J_per_mol=energy, description=description,
@@ -136,7 +137,8 @@ def _cli_spec(args, study):
             delta_E_down_cm1=args.delta_e_down, collision_efficiency=args.collision_efficiency,
             pressure_scan=False if args.no_pressures else None, profile=profile,
             altitude_range_km=tuple(args.altitude) if args.altitude else None,
-            altitude_step_km=args.altitude_step, file=None, field=_CLI_FIELD)
+            altitude_step_km=args.altitude_step,
+            profile_table=table)
     except InputError as exc:
         # name the option instead of the spec's field
         opt = {"delta_E_down_cm1": "--delta-e-down", "collision_efficiency": "--collision-efficiency",
@@ -199,7 +201,7 @@ def run(args) -> int:
     from tstrate.errors import InputError
     from tstrate.io.study import read_study
     from tstrate.output.pressure_records import excitation_record
-    from tstrate.physics.energised import study_excitations
+    from tstrate.study.excitations import study_excitations
 
     folder = check_plot_dir(args.plot) if args.plot else None
     study = read_study(args.study)
@@ -207,10 +209,10 @@ def run(args) -> int:
     try:
         results = study_excitations(study, None if spec is None else [spec], progress=progress_wrapper(args, "excite"))
     except InputError as exc:
-        if spec is None or not (exc.field or "").startswith(_CLI_FIELD):
+        if spec is None or exc.file is not None:
             raise
-        # name the option instead of the command-line spec's field
-        key = exc.field[len(_CLI_FIELD):].lstrip(".")
+        # an error about the command-line excitation names its key: name the option instead
+        key = exc.field or ""
         opt = {"channel": "--channel", "altitude_km": "--altitude", "profile": "--profile",
                "temperature_K": "--temperature", "delta_E_down_cm1": "--delta-e-down",
                "collision_efficiency": "--collision-efficiency"}.get(key)
@@ -238,7 +240,7 @@ def run(args) -> int:
                                     inputs)
     records = [excitation_record(r) for r in results]
     if args.json:
-        from tstrate.physics.pressure import bath_parameters
+        from tstrate.study.falloff import bath_parameters
 
         print_json({"study": study.file, "title": study.title, "bath_gas": bath_parameters(study).name,
                     "excitations": records, "plots": [str(p) for p in written]})

@@ -74,7 +74,7 @@ def run(args) -> int:
     from tstrate.cli.common import check_plot_dir, format_table, print_json, progress_wrapper, write_figure
     from tstrate.io.study import read_study
     from tstrate.output.pressure_records import study_falloff_record
-    from tstrate.physics.pressure import study_falloff
+    from tstrate.study.falloff import study_falloff
 
     folder = check_plot_dir(args.plot) if args.plot else None
     study = read_study(args.study)

@@ -7,9 +7,21 @@ readers in :mod:`tstrate.io` place those errors in the study file's sections.
 from __future__ import annotations
 
 import math
-from dataclasses import dataclass
+from dataclasses import dataclass, field
+
+import numpy as np
 
 from tstrate.errors import InputError
+from tstrate.units import CM1_J, N_A
+
+#: one wavenumber as a molar energy [J/mol per cm^-1]
+CM1_J_PER_MOL = CM1_J * N_A
+#: Reference temperature [K] of a temperature-dependent <dE>down = value (T / 300 K)^n.
+DELTA_E_REFERENCE_T_K = 300.0
+#: Name of the built-in altitude profile.
+US_STANDARD_1976 = "us-standard-1976"
+#: Default altitude range [km] of the built-in profile (its whole range).
+US_STANDARD_RANGE_KM = (0.0, 86.0)
 
 #: Default reference temperature T0 of the modified Arrhenius form [K].
 T0_DEFAULT_K = 298.15
@@ -64,3 +76,145 @@ class FitOptions:
                                  hint="remove it or set mechanism_form = \"chebyshev\"")
             if isinstance(n, bool) or not isinstance(n, int) or n < 1:
                 raise InputError(f"must be at least 1, got {n}", field=key)
+
+
+@dataclass(frozen=True)
+class FalloffSettings:
+    """How to compute falloff for a channel (one ``[falloff]`` table, or a per-channel override).
+
+    grain_cm1: energy grain [cm^-1] (refined when too coarse, see module docstring).
+    energy_above_barrier_cm1: how far the grid reaches above E0 [cm^-1]; None = automatic
+        (the larger of 20,000 cm^-1 and 80 k_B T at the highest temperature).
+    collision_efficiency: beta_c given directly (0 < beta_c <= 1), or
+    delta_E_down_cm1: <dE>down [cm^-1] (> 0), average energy removed in downward collisions, or
+    delta_E_all_cm1: <dE> [cm^-1] (< 0), average energy transferred over all collisions;
+        the last two give beta_c(T) by Troe's weak-collision relation (Troe 1977).
+        None of the three: strong collisions (beta_c = 1, an upper bound, with a warning).
+    delta_E_temperature_exponent: n in <dE>(T) = <dE>(300 K) (T / 300 K)^n (default 0).
+    collision_integral: "neufeld" (Neufeld, Janzen and Aziz 1972) or "troe" (Troe 1977).
+    fit_T2: also fit Troe's T** (else the exp(-T**/T) term is left out).
+    """
+
+    grain_cm1: float = 10.0
+    energy_above_barrier_cm1: float | None = None
+    collision_efficiency: float | None = None
+    delta_E_down_cm1: float | None = None
+    delta_E_all_cm1: float | None = None
+    delta_E_temperature_exponent: float = 0.0
+    collision_integral: str = "neufeld"
+    fit_T2: bool = False
+
+    def __post_init__(self):
+        def bad(key, problem, hint=None):
+            return InputError(problem, field=key, hint=hint)
+
+        if not (math.isfinite(self.grain_cm1) and self.grain_cm1 > 0):
+            raise bad("grain_cm1", f"grain must be a positive wavenumber, got {self.grain_cm1!r}")
+        span = self.energy_above_barrier_cm1
+        if span is not None and not (math.isfinite(span) and span > 0):
+            raise bad("energy_above_barrier_cm1", f"must be positive, got {span!r}")
+        given = [k for k in ("collision_efficiency", "delta_E_down_cm1", "delta_E_all_cm1")
+                 if getattr(self, k) is not None]
+        if len(given) > 1:
+            raise bad(given[1], f"give one of collision_efficiency, delta_E_down_cm1, delta_E_all_cm1 "
+                                f"(also found {given[0]})")
+        if self.collision_efficiency is not None and not 0 < self.collision_efficiency <= 1:
+            raise bad("collision_efficiency", f"beta_c must lie in (0, 1], got {self.collision_efficiency!r}")
+        if self.delta_E_down_cm1 is not None and not self.delta_E_down_cm1 > 0:
+            raise bad("delta_E_down_cm1", f"<dE>down must be positive (energy removed), got "
+                                          f"{self.delta_E_down_cm1!r}")
+        if self.delta_E_all_cm1 is not None and not self.delta_E_all_cm1 < 0:
+            raise bad("delta_E_all_cm1", f"<dE> over all collisions must be negative (energy lost), got "
+                                         f"{self.delta_E_all_cm1!r}", hint="or give delta_E_down_cm1 > 0")
+        if not math.isfinite(self.delta_E_temperature_exponent):
+            raise bad("delta_E_temperature_exponent", "must be a finite number")
+        if self.collision_integral not in ("neufeld", "troe"):
+            raise bad("collision_integral", f"unknown collision integral {self.collision_integral!r}",
+                      hint="use neufeld or troe")
+
+    @property
+    def energy_transfer(self) -> str:
+        """"efficiency", "down", "all" or "strong" (nothing given)."""
+        if self.collision_efficiency is not None:
+            return "efficiency"
+        if self.delta_E_down_cm1 is not None:
+            return "down"
+        if self.delta_E_all_cm1 is not None:
+            return "all"
+        return "strong"
+
+    def delta_E_J_per_mol(self, temperature_K) -> np.ndarray | None:
+        """<dE>down (positive) or <dE> (negative) at each temperature [J/mol]; None when not given."""
+        value = self.delta_E_down_cm1 if self.delta_E_down_cm1 is not None else self.delta_E_all_cm1
+        if value is None:
+            return None
+        t = np.atleast_1d(np.asarray(temperature_K, dtype=float))
+        return value * CM1_J_PER_MOL * (t / DELTA_E_REFERENCE_T_K) ** self.delta_E_temperature_exponent
+
+
+@dataclass(frozen=True)
+class FalloffSection:
+    """The validated ``[falloff]`` section: default settings and per-channel overrides."""
+
+    default: FalloffSettings = field(default_factory=FalloffSettings)
+    channels: dict = field(default_factory=dict)   # channel name -> FalloffSettings
+
+    def for_channel(self, name: str) -> FalloffSettings:
+        return self.channels.get(name, self.default)
+
+
+@dataclass(frozen=True)
+class ExcitationSpec:
+    """One excitation to follow.
+
+    name: label. channel: a unimolecular channel of the study.
+    energy_J_per_mol: excitation energy added to the thermal energy [J/mol].
+    description: how it was given (e.g. "wavenumber 7200 cm-1"), for output.
+    temperature_K: parent temperatures [K] of the pressure scan (None: the study's).
+    delta_E_down_cm1: <dE>down [cm^-1] for the stepwise model (None: the channel's [falloff]
+        delta_E_down_cm1, with its temperature exponent, if any).
+    collision_efficiency: beta_c of the Stern-Volmer model (None: from [falloff]).
+    pressure_scan: use the study's pressures (None: when the study gives any).
+    profile: None, "us-standard-1976" or the path of a CSV profile (its name, for output).
+    profile_table: the profile read from that CSV file (an
+        :class:`tstrate.physics.atmosphere.AtmosphereProfile`; None for the built-in one).
+    altitude_range_km: (lowest, highest) altitude [km] along the profile (None: all of it).
+    altitude_step_km: altitude step [km] of the built-in profile.
+    """
+
+    name: str
+    channel: str
+    energy_J_per_mol: float
+    description: str
+    temperature_K: tuple[float, ...] | None = None
+    delta_E_down_cm1: float | None = None
+    collision_efficiency: float | None = None
+    pressure_scan: bool | None = None
+    profile: str | None = None
+    altitude_range_km: tuple[float, float] | None = None
+    altitude_step_km: float = 1.0
+    profile_table: object = field(default=None, repr=False, compare=False)
+
+    def __post_init__(self):
+        def bad(key, problem, hint=None):
+            return InputError(problem, field=key, hint=hint)
+
+        if not (math.isfinite(self.energy_J_per_mol) and self.energy_J_per_mol > 0):
+            raise bad("energy", f"excitation energy must be positive, got {self.energy_J_per_mol!r} J/mol")
+        if self.temperature_K is not None:
+            if not self.temperature_K or any(not (math.isfinite(x) and x > 0) for x in self.temperature_K):
+                raise bad("temperature_K", "temperatures must be positive and finite (kelvin)")
+        if self.delta_E_down_cm1 is not None and not (math.isfinite(self.delta_E_down_cm1)
+                                                      and self.delta_E_down_cm1 > 0):
+            raise bad("delta_E_down_cm1", f"<dE>down must be positive, got {self.delta_E_down_cm1!r}")
+        if self.collision_efficiency is not None and not 0 < self.collision_efficiency <= 1:
+            raise bad("collision_efficiency", f"beta_c must lie in (0, 1], got {self.collision_efficiency!r}")
+        if self.altitude_range_km is not None:
+            lo, hi = self.altitude_range_km
+            if not (math.isfinite(lo) and math.isfinite(hi) and 0 <= lo <= hi):
+                raise bad("altitude_km", f"altitude range must be [lowest, highest] in km with 0 <= lowest <= "
+                                         f"highest, got {list(self.altitude_range_km)}")
+            if self.profile == US_STANDARD_1976 and hi > US_STANDARD_RANGE_KM[1]:
+                raise bad("altitude_km", f"the 1976 standard atmosphere ends at {US_STANDARD_RANGE_KM[1]:g} km")
+        if not (math.isfinite(self.altitude_step_km) and self.altitude_step_km > 0):
+            raise bad("altitude_step_km", f"altitude step must be positive, got {self.altitude_step_km!r}")

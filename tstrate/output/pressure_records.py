@@ -1,7 +1,7 @@
 """Falloff and energised-molecule results as plain records (unit-bearing keys), ready for JSON.
 
-The one place where the SI values of :mod:`tstrate.physics.pressure` and
-:mod:`tstrate.physics.energised` meet the units users see: pressures in bar,
+The one place where the SI values of :mod:`tstrate.physics.unimolecular` and
+:mod:`tstrate.physics.activation` meet the units users see: pressures in bar,
 number densities in molecule cm^-3, energies in kJ/mol and cm^-1, rate
 constants in the study's units (s^-1 for k(T, [M]) and k_inf; the bimolecular
 unit, cm3 molecule-1 s-1 by default, for k_0 and collision rate constants).

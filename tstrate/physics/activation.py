@@ -24,7 +24,9 @@ import numpy as np
 
 from tstrate.arrays import positive_array
 from tstrate.errors import InputError
+from tstrate.model.settings import ExcitationSpec, FalloffSettings
 from tstrate.physics.rrkm import MicrocanonicalRate
+from tstrate.physics.unimolecular import UnimolecularModel, collision_efficiency, collision_rate
 from tstrate.physics.states import CM1_J_PER_MOL, MODE_HINT
 from tstrate.units import C, H, N_A, R, energy_to_J_per_mol
 
@@ -141,3 +143,112 @@ def excitation_energy_J_per_mol(frequencies_cm1, temperature_K: float, **excitat
     :func:`photon_energy_J_per_mol`) plus the parent's mean thermal vibrational energy at T."""
     return photon_energy_J_per_mol(**excitation) + float(
         mean_vibrational_energy_J_per_mol(frequencies_cm1, float(temperature_K)))
+
+
+# ---------------------------------------------------------------- an excitation of a channel
+@dataclass(frozen=True)
+class YieldGrid:
+    """Fractions reacting on a set of conditions.
+
+    Pressure scan: arrays (n_T,) or (n_T, n_P); along a profile: (n_Z,) for everything
+    (each altitude has its own temperature and pressure; "n_P" is then 1 per point).
+
+    temperature_K; pressure_Pa ((n_P,) for a scan, (n_Z,) along a profile, None when the
+    study gives number densities); number_density_m3; thermal_energy_J_per_mol and
+    energy_J_per_mol (total) per temperature; rate_per_s: k(E); below_threshold (bool);
+    collision_rate_m3_per_s: Z; collision_efficiency: beta_c; collision_frequency_per_s: Z [M];
+    stern_volmer and stepwise (None without <dE>down): fractions reacting (dimensionless);
+    half_number_density_m3: [M] where the Stern-Volmer fraction is 1/2, k(E)/(beta_c Z)
+    (NaN below threshold); delta_E_down_J_per_mol: <dE>down used per temperature, or None.
+    """
+
+    temperature_K: np.ndarray = field(repr=False)
+    pressure_Pa: np.ndarray | None = field(repr=False)
+    number_density_m3: np.ndarray = field(repr=False)
+    thermal_energy_J_per_mol: np.ndarray = field(repr=False)
+    energy_J_per_mol: np.ndarray = field(repr=False)
+    rate_per_s: np.ndarray = field(repr=False)
+    below_threshold: np.ndarray = field(repr=False)
+    collision_rate_m3_per_s: np.ndarray = field(repr=False)
+    collision_efficiency: np.ndarray = field(repr=False)
+    collision_frequency_per_s: np.ndarray = field(repr=False)
+    stern_volmer: np.ndarray = field(repr=False)
+    stepwise: np.ndarray | None = field(repr=False)
+    half_number_density_m3: np.ndarray = field(repr=False)
+    delta_E_down_J_per_mol: np.ndarray | None = field(repr=False)
+
+
+@dataclass(frozen=True)
+class ExcitationResult:
+    """What happens to one excitation: k(E), the fractions against pressure and along altitude.
+
+    altitude_m: altitudes [m] of the profile (None without one); profile_source: its name.
+    pressure_curve: the pressure scan on a dense grid (8 points per decade, from 1/100 of the
+    lowest study pressure to 100 times the highest, and past the half-quenching pressure), for plots.
+    """
+
+    spec: ExcitationSpec
+    model: UnimolecularModel = field(repr=False)
+    pressure: YieldGrid | None
+    profile: YieldGrid | None
+    altitude_m: np.ndarray | None = field(repr=False, default=None)
+    profile_source: str | None = None
+    pressure_curve: YieldGrid | None = field(repr=False, default=None)
+    warnings: tuple[str, ...] = ()
+
+    @property
+    def barrier_J_per_mol(self) -> float:
+        return self.model.barrier_J_per_mol
+
+    @property
+    def below_threshold(self) -> bool:
+        """True when the excitation is below the barrier everywhere it was evaluated."""
+        flags = [g.below_threshold for g in (self.pressure, self.profile) if g is not None]
+        return bool(all(np.all(f) for f in flags))
+
+
+def mean_active_energy_J_per_mol(model: UnimolecularModel, temperature_K) -> np.ndarray:
+    """Mean thermal energy [J/mol] of the states counted in the reactant's RRKM density
+    (vibrations and the active K-rotor), from its thermal distribution on the grain."""
+    from tstrate.physics.falloff import thermal_distribution
+
+    states = model.rate.reactant
+    return thermal_distribution(states, temperature_K) @ states.energies_J_per_mol
+
+
+def delta_e_down_J_per_mol(spec: ExcitationSpec, settings: FalloffSettings, t: np.ndarray) -> np.ndarray | None:
+    """<dE>down [J/mol] at temperatures ``t`` for the stepwise model: the excitation's own value, else
+    the channel's falloff setting (with its temperature dependence), else None."""
+    if spec.delta_E_down_cm1 is not None:
+        return np.full(t.shape, spec.delta_E_down_cm1 * CM1_J_PER_MOL)
+    if settings.delta_E_down_cm1 is not None:
+        return settings.delta_E_J_per_mol(t)
+    return None
+
+
+def yields_at(model: UnimolecularModel, spec: ExcitationSpec, settings: FalloffSettings, bath, t: np.ndarray,
+            m: np.ndarray, pressures: np.ndarray | None) -> YieldGrid:
+    """Fractions reacting at temperatures ``t`` (n,) [K] and number densities ``m`` (n, n_P) [m^-3]
+    (``pressures`` [Pa] only recorded), for an excitation ``spec`` of the channel of ``model``."""
+    e_thermal = mean_active_energy_J_per_mol(model, t)
+    energy = spec.energy_J_per_mol + e_thermal
+    z = collision_rate(model.reactant, bath, t, settings)
+    beta = (np.full(t.shape, spec.collision_efficiency) if spec.collision_efficiency is not None
+            else collision_efficiency(model, settings, t).beta)
+    de_down = delta_e_down_J_per_mol(spec, settings, t)
+    sv = np.zeros(m.shape)
+    step = np.zeros(m.shape) if de_down is not None else None
+    k = np.zeros(t.shape)
+    below = np.zeros(t.shape, dtype=bool)
+    for i in range(t.size):
+        y = stern_volmer_yield(model.rate, float(energy[i]), m[i], collision_rate_m3_s=float(z[i]),
+                               collision_efficiency=float(beta[i]))
+        sv[i], k[i], below[i] = y.fraction, y.rate_per_s, y.below_threshold
+        if de_down is not None:
+            step[i] = stepwise_yield(model.rate, float(energy[i]), m[i], collision_rate_m3_s=float(z[i]),
+                                     energy_down_J_per_mol=float(de_down[i])).fraction
+    with np.errstate(divide="ignore", invalid="ignore"):
+        half = np.where(below, np.nan, k / (beta * z))
+    return YieldGrid(t, pressures, m, e_thermal, energy, k, below, z, beta, z[:, None] * m, sv, step, half, de_down)
+
+

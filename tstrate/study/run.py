@@ -105,7 +105,7 @@ def compute_study(study: Study, *, low_modes: LowModes = HARMONIC,
     pressure_fits = {}
     if study.conditions.pressure_Pa.size or study.conditions.number_density_m3.size:
         step("falloff")
-        from tstrate.physics.pressure import study_falloff
+        from tstrate.study.falloff import study_falloff
 
         falloff = study_falloff(study)
         warnings += list(falloff.warnings)
@@ -119,7 +119,7 @@ def compute_study(study: Study, *, low_modes: LowModes = HARMONIC,
     excitations = None
     if study.sections.get("excitation"):
         step("energised molecules")
-        from tstrate.physics.energised import study_excitations
+        from tstrate.study.excitations import study_excitations
 
         excitations = tuple(study_excitations(study))
         for ex in excitations:

@@ -43,8 +43,8 @@ from tstrate.errors import InputError
 from tstrate.io.tables import Table
 from tstrate.model import Study
 from tstrate.physics.activation import photon_energy_J_per_mol
-from tstrate.physics.energised import US_STANDARD_1976, ExcitationSpec, resolve_profile
-from tstrate.physics.pressure import FalloffSection, FalloffSettings
+from tstrate.io.profiles import read_profile_csv, resolve_profile
+from tstrate.model.settings import US_STANDARD_1976, ExcitationSpec, FalloffSection, FalloffSettings
 from tstrate.units import energy_to_J_per_mol
 
 _SETTING_KEYS = ("grain_cm1", "energy_above_barrier_cm1", "collision_efficiency", "delta_E_down_cm1",
@@ -65,7 +65,7 @@ def read_falloff(t: Table, study: Study) -> FalloffSection:
     """Read ``[falloff]`` with its optional ``[falloff.channels.<name>]`` overrides."""
     ft = t.table("falloff")
     values = _settings_values(ft)
-    default = FalloffSettings(**values, file=ft.file, field=ft.prefix)
+    default = ft.build(FalloffSettings, **values)
     channels = {}
     if "channels" in ft:
         ct = ft.table("channels")
@@ -81,7 +81,7 @@ def read_falloff(t: Table, study: Study) -> FalloffSection:
                 for k in _TRANSFER_KEYS:
                     merged.pop(k, None)
             merged.update(own)
-            channels[name] = FalloffSettings(**merged, file=sub.file, field=sub.prefix)
+            channels[name] = sub.build(FalloffSettings, **merged)
     ft.reject_unknown()
     return FalloffSection(default, channels)
 
@@ -151,12 +151,15 @@ def read_excitations(t: Table, study: Study) -> tuple[ExcitationSpec, ...]:
                 raise et.error("altitude_km", "an altitude range needs a profile",
                                hint=f"add profile = \"{US_STANDARD_1976}\"")
             rng = (vals[0], vals[1])
-        spec = ExcitationSpec(
-            name=name, channel=channel, energy_J_per_mol=energy, description=description,
+        table = None
+        if profile is not None and profile != US_STANDARD_1976:
+            table = read_profile_csv(profile)
+        spec = et.build(
+            ExcitationSpec, name=name, channel=channel, energy_J_per_mol=energy, description=description,
             temperature_K=temps, delta_E_down_cm1=et.get("delta_E_down_cm1", float, None),
             collision_efficiency=et.get("collision_efficiency", float, None),
             pressure_scan=et.get("pressures", bool, None), profile=profile, altitude_range_km=rng,
-            altitude_step_km=et.get("altitude_step_km", float, 1.0), file=et.file, field=et.prefix)
+            altitude_step_km=et.get("altitude_step_km", float, 1.0), profile_table=table)
         et.reject_unknown()
         if spec.pressure_scan and not (study.conditions.pressure_Pa.size or study.conditions.number_density_m3.size):
             raise et.error("pressures", "a pressure scan needs pressures in [conditions], and the study gives none")

@@ -1,9 +1,9 @@
-"""Falloff of a study's unimolecular channels: RRKM k(E) from the species, k(T, [M]) on the study grid.
+"""A unimolecular channel's RRKM k(E) from its species, and its falloff k(T, [M]) on a grid.
 
 This module joins the pure functions of :mod:`tstrate.physics.states`,
 :mod:`~tstrate.physics.rrkm`, :mod:`~tstrate.physics.falloff` and
-:mod:`~tstrate.physics.collisions` to a study's species, channels and
-``[conditions]``. For every channel with one reactant (order 1) it builds
+:mod:`~tstrate.physics.collisions` to a channel's species and falloff settings
+(:mod:`tstrate.study.falloff` walks a study's channels, bath gas and pressures). For every channel with one reactant (order 1) it builds
 
 * the reactant's density of states and the transition state's sum of states
   (scaled harmonic wavenumbers, electronic levels, the active K-rotor and any declared
@@ -60,124 +60,29 @@ from __future__ import annotations
 import logging
 import math
 from dataclasses import dataclass, field
-from typing import Callable, Iterable
+from typing import Mapping
 
 import numpy as np
 
+from tstrate.arrays import temperatures_K
 from tstrate.errors import InputError
-from tstrate.model import Channel, Species, Study
+from tstrate.model import Channel, Species
+from tstrate.model.settings import FalloffSettings
 from tstrate.physics import collisions as coll
 from tstrate.physics.falloff import (TroeFit, fit_troe, lindemann_hinshelwood, strong_collision_falloff,
                                      thermal_distribution, troe_center_broadening, troe_rate)
 from tstrate.physics.rrkm import ExternalRotation, MicrocanonicalRate, microcanonical_rate
 from tstrate.physics.states import (CM1_J_PER_MOL, GRAIN_FRACTION_OF_LOWEST, Rotor, StateCounts,
                                     convolve_counts, count_states)
-from tstrate.units import C, H, K_B, R, number_density_m3
+from tstrate.units import C, H, K_B, R
+from tstrate.units import number_density_m3 as ideal_gas_number_density_m3
 
 log = logging.getLogger(__name__)
-
-#: Reference temperature [K] of a temperature-dependent <dE>down = value (T / 300 K)^n.
-DELTA_E_REFERENCE_T_K = 300.0
 
 #: The energy grid reaches at least this far above the barrier [cm^-1] ...
 MIN_SPAN_CM1 = 20000.0
 #: ... and at least this many k_B T (highest temperature) above it.
 SPAN_IN_KT = 80.0
-
-
-# ---------------------------------------------------------------- settings
-@dataclass(frozen=True)
-class FalloffSettings:
-    """How to compute falloff for a channel (one ``[falloff]`` table, or a per-channel override).
-
-    grain_cm1: energy grain [cm^-1] (refined when too coarse, see module docstring).
-    energy_above_barrier_cm1: how far the grid reaches above E0 [cm^-1]; None = automatic
-        (the larger of 20,000 cm^-1 and 80 k_B T at the highest temperature).
-    collision_efficiency: beta_c given directly (0 < beta_c <= 1), or
-    delta_E_down_cm1: <dE>down [cm^-1] (> 0), average energy removed in downward collisions, or
-    delta_E_all_cm1: <dE> [cm^-1] (< 0), average energy transferred over all collisions;
-        the last two give beta_c(T) by Troe's weak-collision relation (Troe 1977).
-        None of the three: strong collisions (beta_c = 1, an upper bound, with a warning).
-    delta_E_temperature_exponent: n in <dE>(T) = <dE>(300 K) (T / 300 K)^n (default 0).
-    collision_integral: "neufeld" (Neufeld, Janzen and Aziz 1972) or "troe" (Troe 1977).
-    fit_T2: also fit Troe's T** (else the exp(-T**/T) term is left out).
-    file, field: where these settings came from (for error messages).
-    """
-
-    grain_cm1: float = 10.0
-    energy_above_barrier_cm1: float | None = None
-    collision_efficiency: float | None = None
-    delta_E_down_cm1: float | None = None
-    delta_E_all_cm1: float | None = None
-    delta_E_temperature_exponent: float = 0.0
-    collision_integral: str = "neufeld"
-    fit_T2: bool = False
-    file: str | None = None
-    field: str = "falloff"
-
-    def __post_init__(self):
-        def bad(key, problem, hint=None):
-            return InputError(problem, file=self.file, field=f"{self.field}.{key}", hint=hint)
-
-        if not (math.isfinite(self.grain_cm1) and self.grain_cm1 > 0):
-            raise bad("grain_cm1", f"grain must be a positive wavenumber, got {self.grain_cm1!r}")
-        span = self.energy_above_barrier_cm1
-        if span is not None and not (math.isfinite(span) and span > 0):
-            raise bad("energy_above_barrier_cm1", f"must be positive, got {span!r}")
-        given = [k for k in ("collision_efficiency", "delta_E_down_cm1", "delta_E_all_cm1")
-                 if getattr(self, k) is not None]
-        if len(given) > 1:
-            raise bad(given[1], f"give one of collision_efficiency, delta_E_down_cm1, delta_E_all_cm1 "
-                                f"(also found {given[0]})")
-        if self.collision_efficiency is not None and not 0 < self.collision_efficiency <= 1:
-            raise bad("collision_efficiency", f"beta_c must lie in (0, 1], got {self.collision_efficiency!r}")
-        if self.delta_E_down_cm1 is not None and not self.delta_E_down_cm1 > 0:
-            raise bad("delta_E_down_cm1", f"<dE>down must be positive (energy removed), got "
-                                          f"{self.delta_E_down_cm1!r}")
-        if self.delta_E_all_cm1 is not None and not self.delta_E_all_cm1 < 0:
-            raise bad("delta_E_all_cm1", f"<dE> over all collisions must be negative (energy lost), got "
-                                         f"{self.delta_E_all_cm1!r}", hint="or give delta_E_down_cm1 > 0")
-        if not math.isfinite(self.delta_E_temperature_exponent):
-            raise bad("delta_E_temperature_exponent", "must be a finite number")
-        if self.collision_integral not in ("neufeld", "troe"):
-            raise bad("collision_integral", f"unknown collision integral {self.collision_integral!r}",
-                      hint="use neufeld or troe")
-
-    @property
-    def energy_transfer(self) -> str:
-        """"efficiency", "down", "all" or "strong" (nothing given)."""
-        if self.collision_efficiency is not None:
-            return "efficiency"
-        if self.delta_E_down_cm1 is not None:
-            return "down"
-        if self.delta_E_all_cm1 is not None:
-            return "all"
-        return "strong"
-
-    def delta_E_J_per_mol(self, temperature_K) -> np.ndarray | None:
-        """<dE>down (positive) or <dE> (negative) at each temperature [J/mol]; None when not given."""
-        value = self.delta_E_down_cm1 if self.delta_E_down_cm1 is not None else self.delta_E_all_cm1
-        if value is None:
-            return None
-        t = np.atleast_1d(np.asarray(temperature_K, dtype=float))
-        return value * CM1_J_PER_MOL * (t / DELTA_E_REFERENCE_T_K) ** self.delta_E_temperature_exponent
-
-
-@dataclass(frozen=True)
-class FalloffSection:
-    """The validated ``[falloff]`` section: default settings and per-channel overrides."""
-
-    default: FalloffSettings = field(default_factory=FalloffSettings)
-    channels: dict = field(default_factory=dict)   # channel name -> FalloffSettings
-
-    def for_channel(self, name: str) -> FalloffSettings:
-        return self.channels.get(name, self.default)
-
-
-def falloff_section(study: Study) -> FalloffSection:
-    """The study's ``[falloff]`` section, or the defaults when it has none."""
-    section = study.sections.get("falloff")
-    return section if section is not None else FalloffSection(FalloffSettings(file=study.file))
 
 
 # ---------------------------------------------------------------- rotors
@@ -233,6 +138,8 @@ class UnimolecularModel:
     tunnelling: "eckart" (Eckart-corrected N_TS) or "none" as used in k(E).
     imaginary_frequency_cm1, eckart_V1_J_per_mol, eckart_V2_J_per_mol: Eckart inputs.
     warnings: plain sentences for the user.
+    grain_note: why the grain was refined (None when the requested one was used); the study
+        step says it with the file and key of the grain.
     """
 
     channel: Channel
@@ -251,6 +158,7 @@ class UnimolecularModel:
     eckart_V1_J_per_mol: float | None
     eckart_V2_J_per_mol: float | None
     warnings: tuple[str, ...] = ()
+    grain_note: str | None = None
 
 
 def _electronic_counts(species: Species, n: int, grain_J_per_mol: float) -> np.ndarray:
@@ -271,7 +179,7 @@ def _counts(species: Species, freqs: np.ndarray, e_max: float, grain_cm1: float,
     return StateCounts(sc.grain_J_per_mol, convolve_counts(sc.counts, elec))
 
 
-def unimolecular_model(study: Study, channel: Channel, settings: FalloffSettings, *,
+def unimolecular_model(channel: Channel, species: Mapping[str, Species], settings: FalloffSettings, *,
                        max_temperature_K: float, min_top_energy_J_per_mol: float = 0.0) -> UnimolecularModel:
     """Build k(E) for a channel with one reactant (see the module docstring for every choice).
 
@@ -283,8 +191,7 @@ def unimolecular_model(study: Study, channel: Channel, settings: FalloffSettings
 
     if channel.order != 1:
         raise InputError(f"channel {channel.name!r} has {channel.order} reactants; falloff is computed for "
-                         "unimolecular channels only", file=study.file, field="channel")
-    species = study.species
+                         "unimolecular channels only", field="reactants")
     reac = species[channel.reactants[0]]
     ts = species[channel.transition_state]
     warnings: list[str] = []
@@ -297,18 +204,18 @@ def unimolecular_model(study: Study, channel: Channel, settings: FalloffSettings
     e0 = zpe_level_J_per_mol(ts) - zpe_level_J_per_mol(reac)
     if not e0 > 0:
         raise InputError(f"channel {channel.name!r}: the ZPE-corrected barrier is {e0 / 1e3:.2f} kJ/mol; "
-                         "falloff needs a barrier above the reactant", file=study.file, field="channel",
+                         "falloff needs a barrier above the reactant", field="transition_state",
                          hint="barrierless and submerged barriers are not treated")
 
     # grain: refine for the softest mode, then make E0 a whole number of grains
     rf, tf = reac.harmonic_frequencies_cm1, ts.harmonic_frequencies_cm1
     lowest = float(np.min(np.concatenate([rf, tf]))) if rf.size + tf.size else math.inf
     grain = settings.grain_cm1
+    grain_note = None
     limit = GRAIN_FRACTION_OF_LOWEST * lowest
     if grain > limit * (1 + 1e-12):
-        warnings.append(f"{settings.file or 'study'} [{settings.field}.grain_cm1]: grain {grain:g} cm-1 is "
-                        f"coarser than a third of the lowest wavenumber of {reac.name}/{ts.name} "
-                        f"({lowest:.4g} cm-1); refined to {limit:.4g} cm-1")
+        grain_note = (f"grain {grain:g} cm-1 is coarser than a third of the lowest wavenumber of "
+                      f"{reac.name}/{ts.name} ({lowest:.4g} cm-1); refined to {limit:.4g} cm-1")
         grain = limit
     e0_cm1 = e0 / CM1_J_PER_MOL
     grain = e0_cm1 / math.ceil(e0_cm1 / grain - 1e-9)
@@ -349,7 +256,7 @@ def unimolecular_model(study: Study, channel: Channel, settings: FalloffSettings
         v2 = zpe_level_J_per_mol(ts) - sum(zpe_level_J_per_mol(species[p]) for p in channel.products)
         if not v2 > 0:
             raise InputError(f"channel {channel.name!r}: reverse ZPE-corrected barrier is {v2 / 1e3:.2f} kJ/mol; "
-                             "eckart needs V1 > 0 and V2 > 0", file=study.file, field="channel.tunnelling",
+                             "eckart needs V1 > 0 and V2 > 0", field="tunnelling",
                              hint="use tunnelling = \"none\" for this channel")
         imag = ts.imaginary_frequency_cm1
 
@@ -379,33 +286,10 @@ def unimolecular_model(study: Study, channel: Channel, settings: FalloffSettings
         log.debug(w)
     return UnimolecularModel(channel, reac, ts, rate, grain, settings.grain_cm1, rate.barrier_J_per_mol,
                              degeneracy, r_rot, t_rot, external if both_k_rotors else None, used,
-                             ts.imaginary_frequency_cm1, v1, v2, tuple(warnings))
+                             ts.imaginary_frequency_cm1, v1, v2, tuple(warnings), grain_note)
 
 
 # ---------------------------------------------------------------- collisions
-def bath_parameters(study: Study, name: str | None = None) -> coll.LennardJones:
-    """Lennard-Jones parameters of the study's bath gas (``[conditions] bath_gas``, or ``name``).
-
-    A built-in name (:data:`tstrate.physics.collisions.BATH_GASES`, case-insensitive) or a
-    species of the study that has ``lennard_jones`` in its file.
-    """
-    name = study.conditions.bath_gas if name is None else name
-    if name is None:
-        raise InputError("falloff needs a bath gas", file=study.file, field="conditions.bath_gas",
-                         hint="add bath_gas = \"N2\" (or O2, air, CO2, Ar, He, H2O) to [conditions]")
-    for key, value in coll.BATH_GASES.items():
-        if key.lower() == str(name).lower():
-            return value
-    sp = study.species.get(name)
-    if sp is not None and sp.lennard_jones is not None:
-        sigma, eps = sp.lennard_jones
-        return coll.LennardJones(name, float(sigma), float(eps), f"species file {sp.source}",
-                                 mass_amu=float(np.sum(sp.masses_amu)))
-    raise InputError(f"unknown bath gas {name!r}", file=study.file, field="conditions.bath_gas",
-                     hint="use one of " + ", ".join(coll.BATH_GASES) + ", or a species of the study with "
-                          "lennard_jones in its file")
-
-
 def reactant_parameters(species: Species) -> coll.LennardJones:
     """Lennard-Jones parameters of a species from its file; InputError naming the file when missing."""
     if species.lennard_jones is None:
@@ -516,49 +400,7 @@ class ChannelFalloff:
         return self.efficiency.beta
 
 
-@dataclass(frozen=True)
-class SkippedChannel:
-    """A channel without a falloff treatment, and why."""
-
-    name: str
-    order: int
-    reason: str
-
-
-@dataclass(frozen=True)
-class StudyFalloff:
-    """Falloff of every unimolecular channel of a study."""
-
-    study_file: str | None
-    title: str
-    bath: coll.LennardJones
-    channels: tuple[ChannelFalloff, ...]
-    skipped: tuple[SkippedChannel, ...]
-    warnings: tuple[str, ...] = ()
-
-
 # ---------------------------------------------------------------- grid and computation
-def study_number_densities(study: Study, temperature_K) -> tuple[np.ndarray | None, np.ndarray]:
-    """(pressures [Pa] or None, [M] (n_T, n_P) [m^-3]) from ``[conditions]``; InputError when there are none."""
-    cond = study.conditions
-    t = np.atleast_1d(np.asarray(temperature_K, dtype=float))
-    if cond.pressure_Pa.size:
-        p = np.asarray(cond.pressure_Pa, dtype=float)
-        if np.any(~np.isfinite(p)) or np.any(p <= 0):
-            raise InputError("pressures must be positive", file=study.file, field="conditions.pressure_bar")
-        return p, number_density_m3(p[None, :], t[:, None])
-    if cond.number_density_m3.size:
-        m = np.asarray(cond.number_density_m3, dtype=float)
-        if np.any(~np.isfinite(m)) or np.any(m <= 0):
-            raise InputError("number densities must be positive", file=study.file,
-                             field="conditions.number_density_per_cm3")
-        return None, np.broadcast_to(m, (t.size, m.size)).copy()
-    raise InputError("falloff needs pressures, and the study gives none", file=study.file,
-                     field="conditions.pressure_bar",
-                     hint="add pressure_bar = [...] (or pressure_Pa, pressure_Torr, number_density_per_cm3) "
-                          "to [conditions]")
-
-
 def _log_grid(lo: float, hi: float, per_decade: int, minimum: int) -> np.ndarray:
     lo, hi = math.log10(lo), math.log10(hi)
     if hi - lo < 1e-9:
@@ -567,17 +409,21 @@ def _log_grid(lo: float, hi: float, per_decade: int, minimum: int) -> np.ndarray
     return np.logspace(lo, hi, n)
 
 
-def channel_falloff(study: Study, channel: Channel, *, settings: FalloffSettings | None = None,
-                    temperature_K=None, bath: coll.LennardJones | None = None) -> ChannelFalloff:
-    """Falloff of one unimolecular channel at the study's temperatures and pressures (or the ones given)."""
-    settings = settings or falloff_section(study).for_channel(channel.name)
-    t = np.atleast_1d(np.asarray(study.conditions.temperature_K if temperature_K is None else temperature_K,
-                                 dtype=float))
-    if t.size == 0 or np.any(~np.isfinite(t)) or np.any(t <= 0):
-        raise InputError("temperatures must be positive", file=study.file, field="conditions.temperature_K")
-    pressures, m = study_number_densities(study, t)
-    bath = bath or bath_parameters(study)
-    model = unimolecular_model(study, channel, settings, max_temperature_K=float(t.max()))
+def falloff_on_grid(model: UnimolecularModel, settings: FalloffSettings, bath: coll.LennardJones,
+                    temperature_K, number_density_m3, pressure_Pa=None,
+                    canonical_tst_per_s=None) -> ChannelFalloff:
+    """Falloff of one unimolecular channel on a temperature x [M] grid.
+
+    model: the channel's k(E) (:func:`unimolecular_model`); settings: energy transfer and fit
+    choices; bath: the collision partner; temperature_K (n_T,) [K]; number_density_m3
+    (n_T, n_P) [m^-3]; pressure_Pa (n_P,) [Pa] or None when [M] is given directly;
+    canonical_tst_per_s (n_T,) [s^-1], canonical TST with the same tunnelling for comparison
+    (NaN when not given).
+    """
+    t = temperatures_K(temperature_K, ndim=1)
+    m = np.asarray(number_density_m3, dtype=float)
+    pressures = None if pressure_Pa is None else np.asarray(pressure_Pa, dtype=float)
+    channel = model.channel
     warnings = list(model.warnings)
     z = collision_rate(model.reactant, bath, t, settings)
     eff = collision_efficiency(model, settings, t)
@@ -609,7 +455,7 @@ def channel_falloff(study: Study, channel: Channel, *, settings: FalloffSettings
     # dense curve for plots, two decades beyond the study's range on each side
     if pressures is not None:
         p_curve = _log_grid(float(pressures.min()) / 100, float(pressures.max()) * 100, 8, 33)
-        m_curve = number_density_m3(p_curve[None, :], t[:, None])
+        m_curve = ideal_gas_number_density_m3(p_curve[None, :], t[:, None])
     else:
         m_line = _log_grid(float(m.min()) / 100, float(m.max()) * 100, 8, 33)
         p_curve = np.full(m_line.size, np.nan)
@@ -621,7 +467,9 @@ def channel_falloff(study: Study, channel: Channel, *, settings: FalloffSettings
         model=model, settings=settings, bath=bath, temperature_K=t, pressure_Pa=pressures,
         number_density_m3=m, rate_constant_per_s=fo.rate_per_s, k_high_pressure_per_s=k_inf,
         k_low_pressure_m3_per_s=k0, lindemann_per_s=lind, troe=troe, troe_per_s=troe_k, troe_Fcent=fcent,
-        troe_fit_number_density_m3=m_fit, troe_k0_m3_per_s=k0_troe, canonical_tst_per_s=canonical_tst(study, channel, t, model.tunnelling),
+        troe_fit_number_density_m3=m_fit, troe_k0_m3_per_s=k0_troe,
+        canonical_tst_per_s=(np.full(t.shape, np.nan) if canonical_tst_per_s is None
+                             else np.asarray(canonical_tst_per_s, dtype=float)),
         collision_rate_m3_per_s=z, efficiency=eff, curve_pressure_Pa=p_curve, curve_number_density_m3=m_curve,
         curve_rate_per_s=fo_curve.rate_per_s, warnings=tuple(warnings))
 
@@ -676,36 +524,3 @@ def fit_troe_effective_k0(temperature_K, number_density_m3, rate, k0, k_inf, *,
     return TroeFit(float(a), t3, t1, t2, float(np.max(np.abs(dev))), float(np.sqrt(np.mean(dev**2)))), k0e
 
 
-def canonical_tst(study: Study, channel: Channel, temperature_K, tunnelling: str = "none") -> np.ndarray:
-    """k_TST(T) [s^-1] of the channel from :func:`tstrate.physics.tst.channel_rates`, with Eckart
-    tunnelling when ``tunnelling == "eckart"`` and without tunnelling otherwise."""
-    from dataclasses import replace
-
-    from tstrate.physics.tst import channel_rates
-
-    ch = replace(channel, tunnelling="eckart" if tunnelling == "eckart" else "none")
-    return channel_rates(ch, study.species, temperature_K).k
-
-
-def study_falloff(study: Study, *, temperature_K=None,
-                  progress: Callable[[Iterable], Iterable] | None = None) -> StudyFalloff:
-    """Falloff of every unimolecular channel of ``study``; other channels are listed as skipped.
-
-    ``progress`` may wrap the iterable of channels (e.g. a tqdm progress bar).
-    """
-    if not study.channels:
-        raise InputError("the study has no [[channel]]", file=study.file, field="channel")
-    t = study.conditions.temperature_K if temperature_K is None else temperature_K
-    study_number_densities(study, np.atleast_1d(np.asarray(t, dtype=float)))  # no pressures: fail first
-    bath = bath_parameters(study)
-    section = falloff_section(study)
-    uni = [c for c in study.channels if c.order == 1]
-    skipped = tuple(SkippedChannel(c.name, c.order,
-                                   f"falloff is not computed for channels of order {c.order}; "
-                                   "only unimolecular channels have a falloff treatment here")
-                    for c in study.channels if c.order != 1)
-    out = []
-    for ch in (progress(uni) if progress else uni):
-        out.append(channel_falloff(study, ch, settings=section.for_channel(ch.name), temperature_K=t, bath=bath))
-    warnings = tuple(w for r in out for w in r.warnings)
-    return StudyFalloff(study.file, study.title, bath, tuple(out), skipped, warnings)

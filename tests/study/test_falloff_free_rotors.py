@@ -23,7 +23,9 @@ from scipy.constants import N_A, c as c_light, h, k as kB, physical_constants
 
 from tstrate.io.study import read_study
 from tstrate.model import FreeRotor
-from tstrate.physics.pressure import FalloffSettings, channel_falloff, unimolecular_model
+from tstrate.model.settings import FalloffSettings
+from tstrate.physics.unimolecular import unimolecular_model
+from tstrate.study.falloff import channel_falloff
 
 DATA = Path(__file__).resolve().parents[1] / "data" / "falloff"
 C2_CM_K = physical_constants["second radiation constant"][0] * 100   # hc/k [cm K] (CODATA)
@@ -89,9 +91,9 @@ def test_k_inf_equals_tst_with_free_rotors_in_reactant_and_transition_state(stud
 
 def test_rotor_counts_carry_their_symmetry_number(study):
     # sigma = 3 divides the reactant's state counts (and its q) by 3: k(E) triples at every energy
-    one = unimolecular_model(with_rotors(study, H2CO3=FreeRotor(220.0, 1, 0.85)), study.channel("bare"),
+    one = unimolecular_model(study.channel("bare"), with_rotors(study, H2CO3=FreeRotor(220.0, 1, 0.85)).species,
                              FalloffSettings(grain_cm1=10.0), max_temperature_K=300.0)
-    three = unimolecular_model(with_rotors(study, H2CO3=FreeRotor(220.0, 3, 0.85)), study.channel("bare"),
+    three = unimolecular_model(study.channel("bare"), with_rotors(study, H2CO3=FreeRotor(220.0, 3, 0.85)).species,
                                FalloffSettings(grain_cm1=10.0), max_temperature_K=300.0)
     has = one.rate.rate_per_s > 0
     np.testing.assert_allclose(three.rate.rate_per_s[has], 3 * one.rate.rate_per_s[has], rtol=1e-12)

@@ -1,4 +1,4 @@
-"""Study-level falloff glue (tstrate.physics.pressure) on the invented carbonic-acid test study.
+"""Study-level falloff (tstrate.study.falloff, on tstrate.physics.unimolecular) on the invented carbonic-acid test study.
 
 The pure physics (state counts, RRKM, strong-collision sums, Troe forms) is tested in
 test_states.py, test_rrkm.py and test_falloff.py; here: that a study channel is turned into
@@ -16,8 +16,9 @@ from scipy.constants import N_A, c as c_light, h, k as kB, physical_constants
 
 from tstrate.errors import InputError
 from tstrate.io.study import read_study
-from tstrate.physics.pressure import (FalloffSettings, bath_parameters, channel_falloff, rotational_constants_cm1,
-                                      split_rotation, study_falloff, unimolecular_model)
+from tstrate.model.settings import FalloffSettings
+from tstrate.physics.unimolecular import rotational_constants_cm1, split_rotation, unimolecular_model
+from tstrate.study.falloff import bath_parameters, channel_falloff, channel_model, study_falloff
 
 DATA = Path(__file__).resolve().parents[1] / "data" / "falloff"
 C2_CM_K = physical_constants["second radiation constant"][0] * 100   # hc/k [cm K] (CODATA)
@@ -172,12 +173,14 @@ def test_skipped_channels_are_named(result):
 # ---------------------------------------------------------------- settings and errors
 def test_coarse_grain_is_refined_with_a_warning(study):
     ch = study.channel("bare")
-    model = unimolecular_model(study, ch, FalloffSettings(grain_cm1=200.0, file="x.toml"), max_temperature_K=300)
+    model = channel_model(study, ch, FalloffSettings(grain_cm1=200.0), max_temperature_K=300)
     # lowest real wavenumber 220 cm-1 -> at most 73.3 cm-1, then lowered so E0 is on the grid
     assert model.grain_cm1 <= 220 / 3
     assert model.barrier_J_per_mol / (model.grain_cm1 * CM1_J_PER_MOL) == pytest.approx(
         round(13780 / model.grain_cm1), abs=1e-6)
-    assert any("refined" in w and "x.toml [falloff.grain_cm1]" in w for w in model.warnings)
+    # the physics says why; the study step says where the grain is set
+    assert "refined" in model.grain_note and "[" not in model.grain_note
+    assert any("refined" in w and f"{study.file} [falloff.grain_cm1]" in w for w in model.warnings)
 
 
 def test_missing_lennard_jones_names_the_species_file(study, tmp_path):
@@ -217,13 +220,14 @@ def test_number_densities_instead_of_pressures(study):
 
 
 def test_settings_validation():
-    with pytest.raises(InputError, match=r"\[falloff.delta_E_down_cm1\]: give one of"):
+    """The record names its own keys; the study reader places them in [falloff] (tests/io)."""
+    with pytest.raises(InputError, match=r"^\[delta_E_down_cm1\]: give one of"):
         FalloffSettings(collision_efficiency=0.3, delta_E_down_cm1=100)
-    with pytest.raises(InputError, match=r"\[falloff.delta_E_all_cm1\]: <dE> over all collisions must be negative"):
+    with pytest.raises(InputError, match=r"^\[delta_E_all_cm1\]: <dE> over all collisions must be negative"):
         FalloffSettings(delta_E_all_cm1=50)
-    with pytest.raises(InputError, match=r"\[falloff.collision_efficiency\]"):
+    with pytest.raises(InputError, match=r"^\[collision_efficiency\]"):
         FalloffSettings(collision_efficiency=1.5)
-    with pytest.raises(InputError, match=r"\[falloff.grain_cm1\]"):
+    with pytest.raises(InputError, match=r"^\[grain_cm1\]"):
         FalloffSettings(grain_cm1=0)
     assert FalloffSettings().energy_transfer == "strong"
 
@@ -255,7 +259,7 @@ def test_linear_reactant_with_a_bent_transition_state():
     ch = Channel("iso", ("HCN",), "TSi", ("HCN",))
     st = Study(None, "linear test", {"HCN": hcn, "TSi": ts}, (ch,),
                Conditions(np.array([300.0]), pressure_Pa=np.array([1e5]), bath_gas="N2"))
-    m = unimolecular_model(st, ch, FalloffSettings(), max_temperature_K=300.0)
+    m = unimolecular_model(ch, st.species, FalloffSettings(), max_temperature_K=300.0)
     assert m.reactant_rotors.axis == "linear" and m.reactant_rotors.K_cm1 is None
     (b_r,) = rotational_constants_cm1(hcn)
     a, b, c = rotational_constants_cm1(ts)
