@@ -132,7 +132,7 @@ HESSIAN_KEYS = Keys(("hessian",), "[hessian]",
                             unit="`unit`"),
                     ))
 PROVENANCE_KEYS = Keys(("provenance",), "[provenance]",
-                       "Free-form notes, kept with the species and shown in the report.",
+                       "Free-form notes, kept with the species (the report lists `method`).",
                        any_key=Key("<any name>", "string", "a note: method, program, source, command, ..."))
 
 #: every table of a species file, in the order the documentation lists them

@@ -55,9 +55,9 @@ STUDY_KEYS = Keys((), "top level", "A study names its species files and links th
                   ))
 SPECIES_MAP_KEYS = Keys(("species",), "[species]",
                         "One line per species: the name the study uses (quote names with dots or "
-                        "parentheses, `\"H2CO3.H2O\" = ...`) and its species file (`docs/species-file.md`).",
+                        "parentheses, `\"H2CO3.H2O\" = ...`) and its [species file](species-file.md).",
                         any_key=Key("<species name>", "string", "path of the species file, relative to the "
-                                    "study file"))
+                                    "study file", required="at least one species"))
 CONDITIONS_KEYS = Keys(("conditions",), "[conditions]", "The grid every step is computed on.", (
     Key("temperature_K", "list of numbers", "temperatures, each positive", required=True, unit="K"),
     Key("pressure_bar", "list of numbers", "total pressures, for falloff and energised molecules",
@@ -72,7 +72,7 @@ CONDITIONS_KEYS = Keys(("conditions",), "[conditions]", "The grid every step is 
         choices=tuple(BATH_GASES), choices_note="or the name of a species of the study whose file gives "
         "`lennard_jones`"),
     Key("rate_units", "table", "units of the rate constants written out (`[conditions.rate_units]` below)",
-        default_text=", ".join(DEFAULT_RATE_UNIT.values())),
+        default_text=", ".join(DEFAULT_RATE_UNIT.values()) + " (by molecularity)"),
 ))
 RATE_UNITS_KEYS = Keys(("conditions", "rate_units"), "[conditions.rate_units]",
                        "Output units by molecularity, e.g. `rate_units = { bimolecular = \"L mol-1 s-1\" }`; "
