@@ -152,7 +152,7 @@ class Table:
         if extra:
             raise self.error(extra[0], "unknown key", hint="check the spelling against the documentation")
 
-    def quantity(self, name: str, convert, default: Any = _MISSING, *, keys: Keys | None = None):
+    def quantity(self, name: str, convert, default: Any = _MISSING, *, keys: Keys):
         """A ``{ value = ..., unit = "..." }`` table converted by ``convert(value, unit, file=, field=)``;
         ``keys`` documents the sub-table (e.g. :func:`energy_keys`)."""
         sub = self.table(name, default)
