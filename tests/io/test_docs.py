@@ -397,3 +397,14 @@ def test_every_reader_refuses_with_its_key_table():
     assert len(calls) >= 15
     bare = [c for c in calls if ".reject_unknown()" in c[2]]
     assert not bare, f"reject_unknown() without a key table: {bare}"
+
+
+def test_readme_examples_use_only_documented_keys():
+    readme = (ROOT / "README.md").read_text()
+    blocks = re.findall(r"```toml\n(.*?)```", readme, flags=re.S)
+    assert len(blocks) >= 2
+    for block in blocks:
+        data = tomllib.loads(block)
+        tables = docs.STUDY_FILE if "species" in data else docs.SPECIES_FILE
+        assert undocumented(data, tables) == [], block[:60]
+    assert "docs/species-file.md" in readme and "docs/study-file.md" in readme
