@@ -44,9 +44,9 @@ from tstrate.io.keys import Key, Keys, field_default
 from tstrate.io.tables import Table, energy_keys
 from tstrate.model import Study
 from tstrate.physics.activation import photon_energy_J_per_mol
+from tstrate.physics.collisions import _OMEGA as _COLLISION_INTEGRALS  # the integrals collision rates know
 from tstrate.physics.energised import US_STANDARD_1976, ExcitationSpec, resolve_profile
 from tstrate.physics.pressure import FalloffSection, FalloffSettings
-from tstrate.physics.collisions import _OMEGA as _COLLISION_INTEGRALS  # the integrals collision rates know
 from tstrate.physics.pressure import DELTA_E_REFERENCE_T_K, MIN_SPAN_CM1, SPAN_IN_KT
 from tstrate.units import PRESSURE_UNITS_PA, energy_to_J_per_mol
 
@@ -64,8 +64,8 @@ def _setting(name: str) -> object:
 
 
 _SETTINGS = (
-    Key("grain_cm1", "number", "energy grain of the state counts; refined to a third of the lowest real "
-        "wavenumber when coarser", default=_setting("grain_cm1"), unit="cm-1"),
+    Key("grain_cm1", "number", "energy grain of the state counts; refined (with a warning) when too coarse "
+        "for the lowest real wavenumbers", default=_setting("grain_cm1"), unit="cm-1"),
     Key("energy_above_barrier_cm1", "number", "how far the energy grid reaches above the barrier",
         default_text=f"the larger of {MIN_SPAN_CM1:g} cm-1 and {SPAN_IN_KT:g} k_B T at the highest temperature",
         unit="cm-1"),
