@@ -1,46 +1,8 @@
 """Species files (TOML, tstrate's own format): read, validate, build, write.
 
-A complete example, with every key (only ``name``, ``charge``,
-``multiplicity``, ``geometry`` and one of ``frequencies_cm1`` / ``[hessian]``
-are required)::
-
-    name = "H2CO3"
-    charge = 0
-    multiplicity = 1
-    kind = "minimum"                  # or "transition_state"
-    geometry = '''
-    C   0.000  0.000  0.000
-    O   ...
-    '''                               # or a path to any file ASE reads, e.g. "h2co3.xyz"
-    frequencies_cm1 = [ ... ]         # 3N-6 (3N-5 linear); imaginary as negative numbers
-    frequency_scale = 1.0             # multiplies every wavenumber before use
-    energy = { value = -264.39, unit = "hartree" }       # geometry-level energy
-    single_point = { value = -264.12, unit = "hartree", method = "CCSD(T)/CBS" }
-    symmetry_number = 2               # optional: overrides detection from the geometry
-    optical_isomers = 1               # optional: overrides detection from the geometry
-    linear = false                    # optional: overrides detection from the geometry
-    allow_imaginary_below_cm1 = 0     # minima: small imaginary modes tolerated (treated as real)
-    isotopes = { 3 = 2 }              # 1-based atom index -> mass number (needs [hessian])
-    masses_amu = [ ... ]              # optional: every atom's mass [u]; default most common isotope
-    lennard_jones = { sigma_A = 4.0, epsilon_K = 300.0 }  # for falloff
-
-    [[electronic_levels]]             # optional; default one level, degeneracy = multiplicity
-    energy_cm1 = 0.0
-    degeneracy = 1
-
-    [[free_rotors]]                   # optional; one table per free internal rotor
-    replaces_cm1 = 220.0              # the harmonic mode it replaces, unscaled, as listed in
-                                      # frequencies_cm1 or computed from the [hessian]
-    symmetry_number = 1               # integer >= 1 (3 for a methyl group)
-    reduced_moment_amu_A2 = 0.85      # or: rotational_constant_cm1 = 19.8  (one of the two)
-
-    [hessian]                         # optional Cartesian Hessian (3N x 3N, nested or flat)
-    unit = "hartree/bohr2"            # hartree/bohr2, eV/A2, kJ/mol/A2, kcal/mol/A2, J/m2
-    values = [[...], ...]
-
-    [provenance]                      # free-form strings
-    method = "GFN2-xTB"
-    source = "..."
+Every key a species file may hold is listed, with its type, default, unit and meaning, in the
+:class:`~tstrate.io.keys.Keys` tables of this module (:data:`SPECIES_FILE`); the user page
+``docs/species-file.md`` is generated from them (``python -m tstrate.io.docs --write docs/``).
 
 Free rotors: each ``replaces_cm1`` must lie within :data:`tstrate.model.species.ROTOR_MATCH_CM1` (1 cm^-1) of
 exactly one real mode (tolerated small imaginary modes of a minimum count by their
@@ -64,8 +26,10 @@ import numpy as np
 from tstrate.arrays import finite_or_nan
 from tstrate.errors import InputError
 from tstrate.geometry import DEFAULT_TOLERANCE_A, is_linear
-from tstrate.io.tables import Table, load_toml
-from tstrate.model.species import ElectronicLevel, FreeRotor, Species, check_geometry
+from tstrate.io.keys import Key, Keys
+from tstrate.io.tables import Table, energy_keys, load_toml
+from tstrate.model.species import (KINDS, ROTOR_MATCH_CM1, ElectronicLevel, FreeRotor, Species,
+                                   check_geometry)
 from tstrate.physics import symmetry as sym
 from tstrate.physics.vibrations import (HESSIAN_UNITS_J_PER_M2, default_masses_amu,
                                         isotope_mass_amu, vibrational_analysis)
@@ -75,10 +39,105 @@ log = logging.getLogger(__name__)
 
 _BARE_KEY = re.compile(r"[A-Za-z0-9_-]+")
 
-KNOWN_KEYS = {"name", "charge", "multiplicity", "kind", "geometry", "frequencies_cm1",
-              "frequency_scale", "energy", "single_point", "symmetry_number", "optical_isomers",
-              "linear", "allow_imaginary_below_cm1", "isotopes", "masses_amu", "lennard_jones",
-              "electronic_levels", "free_rotors", "hessian", "provenance"}
+# ---- the keys of a species file --------------------------------------------------
+
+SPECIES_KEYS = Keys((), "top level", "One species: a minimum or a transition state.", (
+    Key("name", "string", "label of the species; a study's `[species]` name replaces it", required=True),
+    Key("charge", "integer", "total charge", required=True, unit="e"),
+    Key("multiplicity", "integer", "spin multiplicity 2S+1", required=True, unit="1"),
+    Key("kind", "string", "`\"transition_state\"` for a saddle point (exactly one imaginary frequency)",
+        default=KINDS[0], choices=KINDS),
+    Key("geometry", "string", "Cartesian coordinates: inline lines `Symbol x y z`, or the path (relative to "
+        "this file) of any geometry file ASE reads", required=True, unit="Angstrom"),
+    Key("frequencies_cm1", "list of numbers", "harmonic wavenumbers, 3N-6 (3N-5 linear), unscaled; imaginary "
+        "ones as negative numbers. With a `[hessian]` they are computed from it and a list given here is "
+        "only checked for its length", required="one of `frequencies_cm1` / `[hessian]`", unit="cm-1"),
+    Key("frequency_scale", "number", "factor applied to every wavenumber before use", default=1.0, unit="1"),
+    Key("energy", "table", "electronic energy at the geometry's level, `{ value = ..., unit = \"...\" }` "
+        "(table `energy` below); needed for barriers and reaction energies"),
+    Key("single_point", "table", "a higher-level energy `{ value, unit, method }` (table `single_point` "
+        "below) that replaces `energy` for barriers and reaction energies"),
+    Key("symmetry_number", "integer", "external rotational symmetry number", default_text="detected from "
+        "the geometry", unit="1"),
+    Key("optical_isomers", "integer", "number of optical isomers (2 for a chiral structure)",
+        default_text="detected from the geometry", unit="1"),
+    Key("linear", "true or false", "whether the species is linear", default_text="detected from the geometry"),
+    Key("allow_imaginary_below_cm1", "number", "a minimum may have imaginary modes smaller than this; they "
+        "are treated as real (with a warning). 0: any imaginary mode of a minimum is an error",
+        default=0.0, unit="cm-1"),
+    Key("isotopes", "table", "isotopes of single atoms, `{ 3 = 2 }` (table `isotopes` below); needs a "
+        "`[hessian]`, from which the frequencies are recomputed"),
+    Key("masses_amu", "list of numbers", "every atom's mass, in the order of `geometry`",
+        default_text="the most common isotope of each element", unit="u"),
+    Key("lennard_jones", "table", "collision parameters for falloff, `{ sigma_A = ..., epsilon_K = ... }` "
+        "(table `lennard_jones` below)"),
+    Key("electronic_levels", "array of tables", "the electronic levels, ground level included "
+        "(`[[electronic_levels]]` below)",
+        default_text="one level of degeneracy `multiplicity`"),
+    Key("free_rotors", "array of tables", "free internal rotors in place of harmonic modes "
+        "(`[[free_rotors]]` below)"),
+    Key("hessian", "table", "Cartesian Hessian (`[hessian]` below)", required="one of `frequencies_cm1` / "
+        "`[hessian]`"),
+    Key("provenance", "table", "free-form notes on where the data come from (`[provenance]` below)"),
+))
+
+ENERGY_KEYS = energy_keys(("energy",), "energy = { value, unit }",
+                          "The electronic energy at the level of the geometry.")
+SINGLE_POINT_KEYS = energy_keys(
+    ("single_point",), "single_point = { value, unit, method }",
+    "A higher-level single-point energy at the same geometry; barriers and reaction energies use it "
+    "instead of `energy`.",
+    Key("method", "string", "the level of theory, kept in the provenance as `single_point_method`"))
+ISOTOPES_KEYS = Keys(("isotopes",), "isotopes = { ... }",
+                     "Atoms made another isotope, by their 1-based number in `geometry`; the masses come "
+                     "from RDKit's periodic table and the frequencies are recomputed from the `[hessian]`.",
+                     any_key=Key("<atom number>", "integer", "mass number of that atom (`2` for deuterium "
+                                 "on a hydrogen)", unit="1"))
+LENNARD_JONES_KEYS = Keys(("lennard_jones",), "lennard_jones = { sigma_A, epsilon_K }",
+                          "Lennard-Jones 12-6 parameters of the species, for collision rates in falloff.", (
+                              Key("sigma_A", "number", "collision diameter sigma", required=True,
+                                  unit="Angstrom"),
+                              Key("epsilon_K", "number", "well depth epsilon / k_B", required=True, unit="K"),
+                          ))
+ELECTRONIC_LEVELS_KEYS = Keys(("electronic_levels", "[]"), "[[electronic_levels]]",
+                              "One table per electronic level; the lowest must be at 0 cm-1.", (
+                                  Key("energy_cm1", "number", "energy of the level above the ground level",
+                                      required=True, unit="cm-1"),
+                                  Key("degeneracy", "integer", "degeneracy of the level", required=True,
+                                      unit="1"),
+                              ))
+FREE_ROTORS_KEYS = Keys(
+    ("free_rotors", "[]"), "[[free_rotors]]",
+    f"One table per free internal rotor. Each `replaces_cm1` must lie within {ROTOR_MATCH_CM1:g} cm-1 of "
+    "exactly one real mode (tolerated small imaginary modes of a minimum count by their magnitude; the "
+    "imaginary mode of a transition state cannot be replaced), and no mode may be replaced twice. The "
+    "mode leaves the harmonic set everywhere (partition function, zero-point energy, RRKM state counts); "
+    "a classical 1-D free rotor, without zero-point energy, takes its place.", (
+        Key("replaces_cm1", "number", "the harmonic mode the rotor replaces, unscaled, as listed in "
+            "`frequencies_cm1` or computed from the `[hessian]`", required=True, unit="cm-1"),
+        Key("symmetry_number", "integer", "symmetry number of the rotor, at least 1 (3 for a methyl group)",
+            required=True, unit="1"),
+        Key("reduced_moment_amu_A2", "number", "reduced moment of inertia of the rotor",
+            required="one of `reduced_moment_amu_A2` / `rotational_constant_cm1`", unit="u Angstrom^2"),
+        Key("rotational_constant_cm1", "number", "rotational constant B = h / (8 pi^2 c I) of the rotor",
+            required="one of `reduced_moment_amu_A2` / `rotational_constant_cm1`", unit="cm-1"),
+    ))
+HESSIAN_KEYS = Keys(("hessian",), "[hessian]",
+                    "The Cartesian Hessian at the geometry; the frequencies are computed from it (mass "
+                    "weighting, translations and rotations projected out).", (
+                        Key("unit", "string", "the unit of `values`", required=True,
+                            choices=tuple(HESSIAN_UNITS_J_PER_M2)),
+                        Key("values", "list of numbers", "the 3N x 3N matrix, as a list of rows or one flat "
+                            "list, in the order of `geometry` (x, y, z of each atom)", required=True,
+                            unit="`unit`"),
+                    ))
+PROVENANCE_KEYS = Keys(("provenance",), "[provenance]",
+                       "Free-form notes, kept with the species (the report lists `method`).",
+                       any_key=Key("<any name>", "string", "a note: method, program, source, command, ..."))
+
+#: every table of a species file, in the order the documentation lists them
+SPECIES_FILE = (SPECIES_KEYS, ENERGY_KEYS, SINGLE_POINT_KEYS, ISOTOPES_KEYS, LENNARD_JONES_KEYS,
+                ELECTRONIC_LEVELS_KEYS, FREE_ROTORS_KEYS, HESSIAN_KEYS, PROVENANCE_KEYS)
 
 
 # ---- geometry ---------------------------------------------------------------------
@@ -230,14 +289,14 @@ def read_species(path: str | Path, *, name: str | None = None) -> Species:
     fname = t.get("name", str)
     symbols, positions = read_geometry(t.get("geometry", str), path.parent, file=file)
 
-    energy = t.quantity("energy", energy_to_J_per_mol, None)
+    energy = t.quantity("energy", energy_to_J_per_mol, None, keys=ENERGY_KEYS)
     single = None
     if "single_point" in t:
         sp = t.table("single_point")
         single = energy_to_J_per_mol(sp.get("value", float), sp.get("unit", str), file=file,
                                      field="single_point.unit")
-        method = sp.get("method", str, None)
-        sp.reject_unknown()
+        method = sp.get("method", str, SINGLE_POINT_KEYS.default("method"))
+        sp.reject_unknown(SINGLE_POINT_KEYS)
     else:
         method = None
 
@@ -260,7 +319,7 @@ def read_species(path: str | Path, *, name: str | None = None) -> Species:
         if not np.all(np.isfinite(arr)):
             raise ht.error("values", "Hessian holds NaN or infinite values")
         hess = arr.reshape(n3, n3) * HESSIAN_UNITS_J_PER_M2[unit]
-        ht.reject_unknown()
+        ht.reject_unknown(HESSIAN_KEYS)
 
     isotopes = {}
     if "isotopes" in t:
@@ -271,11 +330,12 @@ def read_species(path: str | Path, *, name: str | None = None) -> Species:
             except ValueError:
                 raise it.error(key, "isotope keys are 1-based atom numbers") from None
             isotopes[idx] = it.get(key, int)
+        it.reject_unknown(ISOTOPES_KEYS)
 
     levels = []
     for lt in t.tables("electronic_levels"):
         levels.append(ElectronicLevel(lt.get("energy_cm1", float), lt.get("degeneracy", int)))
-        lt.reject_unknown()
+        lt.reject_unknown(ELECTRONIC_LEVELS_KEYS)
 
     rotors = []
     for rt in t.tables("free_rotors"):
@@ -289,7 +349,7 @@ def read_species(path: str | Path, *, name: str | None = None) -> Species:
         value = rt.get(given[0], float)
         if not value > 0:
             raise rt.error(given[0], f"must be positive, got {value!r}")
-        rt.reject_unknown()
+        rt.reject_unknown(FREE_ROTORS_KEYS)
         rotors.append(FreeRotor(replaces, sigma, value) if given[0] == "reduced_moment_amu_A2"
                       else FreeRotor.from_rotational_constant(replaces, sigma, value))
 
@@ -299,11 +359,13 @@ def read_species(path: str | Path, *, name: str | None = None) -> Species:
         lj = (lt.get("sigma_A", float), lt.get("epsilon_K", float))
         if lj[0] <= 0 or lj[1] <= 0:
             raise lt.error(None, "sigma_A and epsilon_K must be positive")
-        lt.reject_unknown()
+        lt.reject_unknown(LENNARD_JONES_KEYS)
 
     provenance = {}
     if "provenance" in t:
-        provenance = {k: str(v) for k, v in t.get("provenance", dict).items()}
+        pt = t.table("provenance")
+        pt.reject_unknown(PROVENANCE_KEYS)
+        provenance = {k: str(v) for k, v in pt.data.items()}
     if method:
         provenance.setdefault("single_point_method", method)
 
@@ -312,18 +374,19 @@ def read_species(path: str | Path, *, name: str | None = None) -> Species:
     if masses is not None and (len(masses) != len(symbols) or min(masses) <= 0):
         raise t.error("masses_amu", f"expected {len(symbols)} positive masses, got {len(masses)}")
     linear = t.get("linear", bool, None)
-    t.reject_unknown(KNOWN_KEYS)
+    t.reject_unknown(SPECIES_KEYS)
     return build_species(
         name or fname, symbols, positions,
         charge=t.get("charge", int), multiplicity=t.get("multiplicity", int),
-        kind=t.get("kind", str, "minimum"), frequencies_cm1=freqs, hessian_J_per_m2=hess,
+        kind=t.get("kind", str, SPECIES_KEYS.default("kind")), frequencies_cm1=freqs, hessian_J_per_m2=hess,
         energy_J_per_mol=single if single is not None else energy,
         geometry_energy_J_per_mol=energy,
-        frequency_scale=t.get("frequency_scale", float, 1.0),
+        frequency_scale=t.get("frequency_scale", float, SPECIES_KEYS.default("frequency_scale")),
         symmetry_number=t.get("symmetry_number", int, None),
         optical_isomers=t.get("optical_isomers", int, None), linear=linear,
         masses_amu=masses, isotopes=isotopes, electronic_levels=levels,
-        allow_imaginary_below_cm1=t.get("allow_imaginary_below_cm1", float, 0.0),
+        allow_imaginary_below_cm1=t.get("allow_imaginary_below_cm1", float,
+                                        SPECIES_KEYS.default("allow_imaginary_below_cm1")),
         lennard_jones=lj, provenance=provenance, source=file, free_rotors=rotors,
     )
 

@@ -1,30 +1,8 @@
 """Study files (TOML, tstrate's own format): species, channels, conditions.
 
-A complete example::
-
-    title = "H2CO3 -> CO2 + H2O"
-
-    [species]                      # name -> species file, relative to this file
-    H2CO3 = "carbonic_acid/h2co3.toml"
-    TS = "carbonic_acid/ts_bare.toml"
-    CO2 = "carbonic_acid/co2.toml"
-    H2O = "carbonic_acid/h2o.toml"
-
-    [conditions]
-    temperature_K = [150, 200, 250, 300]
-    pressure_bar = [1e-5, 1e-3, 0.1, 1.0]            # for falloff (optional)
-    bath_gas = "CO2"                                 # for falloff (optional)
-    rate_units = { bimolecular = "cm3 molecule-1 s-1" }  # optional output units
-
-    [[channel]]
-    name = "bare"
-    reactants = ["H2CO3"]
-    transition_state = "TS"
-    products = ["CO2", "H2O"]
-    complex = "H2CO3_H2O"          # optional pre-reactive complex
-    tunnelling = "eckart"          # none, wigner, skodje-truhlar, eckart
-    degeneracy = 1                 # optional: overrides the symmetry-number count
-    tunnelling_floor = "reactants" # or "complex" (channels with a complex)
+Every key a study file may hold is listed, with its type, default, unit and meaning, in the
+:class:`~tstrate.io.keys.Keys` tables of this module and of :mod:`tstrate.io.sections`; the user
+page ``docs/study-file.md`` is generated from them (``python -m tstrate.io.docs --write docs/``).
 
 Further sections (``[[comparison]]``, falloff and excitation settings, fits)
 are read by the modules listed in :data:`SECTION_READERS`; each gets the whole
@@ -41,10 +19,12 @@ from pathlib import Path
 import numpy as np
 
 from tstrate.errors import InputError
+from tstrate.io.keys import Key, Keys, field_default
 from tstrate.io.species import read_species
 from tstrate.io.tables import Table, load_toml
-from tstrate.model import Channel, Conditions, Study
-from tstrate.units import PRESSURE_UNITS_PA, RATE_UNITS
+from tstrate.model import TUNNELLING_FLOORS, TUNNELLING_MODELS, Channel, Conditions, Study
+from tstrate.physics.collisions import BATH_GASES
+from tstrate.units import DEFAULT_RATE_UNIT, PRESSURE_UNITS_PA, RATE_UNITS
 
 #: top-level section -> "module:function" that reads it (called with (table, study) -> object)
 SECTION_READERS: dict[str, str] = {"comparison": "tstrate.io.sections.comparison:read_comparisons",
@@ -52,10 +32,76 @@ SECTION_READERS: dict[str, str] = {"comparison": "tstrate.io.sections.comparison
                                   "excitation": "tstrate.io.sections.pressure:read_excitations",
                                   "fits": "tstrate.io.sections.fits:read_fit_options"}
 
-CORE_KEYS = {"title", "species", "conditions", "channel"}
-CONDITION_KEYS = {"temperature_K", "pressure_bar", "pressure_Pa", "pressure_Torr",
-                  "number_density_per_cm3", "bath_gas", "rate_units"}
 _ORDER_NAMES = {"unimolecular": 1, "bimolecular": 2, "termolecular": 3}
+#: the keys that give the pressures of [conditions] (at most one)
+PRESSURE_KEYS = ("pressure_bar", "pressure_Pa", "pressure_Torr", "number_density_per_cm3")
+
+# ---- the keys of a study file ---------------------------------------------------------
+
+STUDY_KEYS = Keys((), "top level", "A study names its species files and links them by channels; the "
+                  "other sections are optional.", (
+                      Key("title", "string", "title of the study (report, output folder)",
+                          default_text="the file name without `.toml`"),
+                      Key("species", "table", "species name -> species file (`[species]` below)", required=True),
+                      Key("conditions", "table", "temperatures, pressures, bath gas, output units "
+                          "(`[conditions]` below)", required=True),
+                      Key("channel", "array of tables", "the elementary channels (`[[channel]]` below)"),
+                      Key("comparison", "array of tables", "bare against catalysed routes "
+                          "(`[[comparison]]` below)"),
+                      Key("falloff", "table", "pressure dependence of unimolecular channels "
+                          "(`[falloff]` below)"),
+                      Key("excitation", "array of tables", "energised molecules (`[[excitation]]` below)"),
+                      Key("fits", "table", "how rate constants are fitted and exported (`[fits]` below)"),
+                  ))
+SPECIES_MAP_KEYS = Keys(("species",), "[species]",
+                        "One line per species: the name the study uses (quote names with dots or "
+                        "parentheses, `\"H2CO3.H2O\" = ...`) and its [species file](species-file.md).",
+                        any_key=Key("<species name>", "string", "path of the species file, relative to the "
+                                    "study file", required="at least one species"))
+CONDITIONS_KEYS = Keys(("conditions",), "[conditions]", "The grid every step is computed on.", (
+    Key("temperature_K", "list of numbers", "temperatures, each positive", required=True, unit="K"),
+    Key("pressure_bar", "list of numbers", "total pressures, for falloff and energised molecules",
+        required="at most one of the four pressure keys", unit="bar"),
+    Key("pressure_Pa", "list of numbers", "the same in pascal", required="at most one of the four pressure keys",
+        unit="Pa"),
+    Key("pressure_Torr", "list of numbers", "the same in Torr", required="at most one of the four pressure keys",
+        unit="Torr"),
+    Key("number_density_per_cm3", "list of numbers", "bath-gas number densities instead of pressures",
+        required="at most one of the four pressure keys", unit="cm-3"),
+    Key("bath_gas", "string", "the collision partner of falloff; a built-in name (case-insensitive)",
+        choices=tuple(BATH_GASES), choices_note="or the name of a species of the study whose file gives "
+        "`lennard_jones`"),
+    Key("rate_units", "table", "units of the rate constants written out (`[conditions.rate_units]` below)",
+        default_text=", ".join(DEFAULT_RATE_UNIT.values()) + " (by molecularity)"),
+))
+RATE_UNITS_KEYS = Keys(("conditions", "rate_units"), "[conditions.rate_units]",
+                       "Output units by molecularity, e.g. `rate_units = { bimolecular = \"L mol-1 s-1\" }`; "
+                       "inside, rate constants are SI per molecule.", tuple(
+                           Key(word, "string", f"unit of the rate constants of {word} channels",
+                               default=DEFAULT_RATE_UNIT[order],
+                               choices=[u for u, (o, _) in RATE_UNITS.items() if o == order])
+                           for word, order in _ORDER_NAMES.items()))
+CHANNEL_KEYS = Keys(("channel", "[]"), "[[channel]]",
+                    "One table per elementary channel, reactants -> [complex] -> transition state -> "
+                    "products. Atoms and charge must balance across reactants, complex, transition state "
+                    "and products.", (
+                        Key("name", "string", "label of the channel (unique)", required=True),
+                        Key("reactants", "list of strings", "species names; repeat a name for two molecules "
+                            "(1 to 3 reactants)", required=True),
+                        Key("transition_state", "string", "species name of the saddle point (`kind = "
+                            "\"transition_state\"`)", required=True),
+                        Key("products", "list of strings", "species names", required=True),
+                        Key("complex", "string", "a pre-reactive complex between reactants and transition "
+                            "state (a minimum), in equilibrium with the reactants"),
+                        Key("tunnelling", "string", "tunnelling correction",
+                            default=field_default(Channel, "tunnelling"), choices=TUNNELLING_MODELS),
+                        Key("degeneracy", "number", "reaction-path degeneracy; overrides the count from the "
+                            "symmetry numbers", default_text="from the symmetry numbers", unit="1"),
+                        Key("tunnelling_floor", "string", "where the tunnelling integral starts in a channel "
+                            "with a complex: no tunnelling below the separated reactants, or down to the "
+                            "complex", default=field_default(Channel, "tunnelling_floor"),
+                            choices=TUNNELLING_FLOORS),
+                    ))
 
 
 def _read_conditions(t: Table) -> Conditions:
@@ -64,7 +110,7 @@ def _read_conditions(t: Table) -> Conditions:
         raise t.error("temperature_K", "temperatures must be positive (kelvin)")
     pressures = np.zeros(0)
     densities = np.zeros(0)
-    given = [k for k in ("pressure_bar", "pressure_Pa", "pressure_Torr", "number_density_per_cm3") if k in t]
+    given = [k for k in PRESSURE_KEYS if k in t]
     if len(given) > 1:
         raise t.error(given[1], f"give pressures one way only (also found {given[0]})")
     if given:
@@ -77,7 +123,7 @@ def _read_conditions(t: Table) -> Conditions:
         else:
             unit = key.split("_", 1)[1]
             pressures = vals * PRESSURE_UNITS_PA[unit]
-    bath = t.get("bath_gas", str, None)
+    bath = t.get("bath_gas", str, CONDITIONS_KEYS.default("bath_gas"))
     rate_units = {}
     if "rate_units" in t:
         rt = t.table("rate_units")
@@ -89,7 +135,8 @@ def _read_conditions(t: Table) -> Conditions:
                 ok = [u for u, (o, _) in RATE_UNITS.items() if o == _ORDER_NAMES[key]]
                 raise rt.error(key, f"unknown {key} rate unit {unit!r}", hint="use one of " + ", ".join(ok))
             rate_units[_ORDER_NAMES[key]] = unit
-    t.reject_unknown(CONDITION_KEYS)
+        rt.reject_unknown(RATE_UNITS_KEYS)
+    t.reject_unknown(CONDITIONS_KEYS)
     return Conditions(temperature_K=temps, pressure_Pa=pressures, number_density_m3=densities,
                       bath_gas=bath, rate_units=rate_units)
 
@@ -128,7 +175,7 @@ def _read_channel(t: Table, species: dict, file: str) -> Channel:
     ts = known("transition_state", t.get("transition_state", str))
     if species[ts].kind != "transition_state":
         raise t.error("transition_state", f"species {ts!r} is not declared kind = \"transition_state\"")
-    cx = t.get("complex", str, None)
+    cx = t.get("complex", str, CHANNEL_KEYS.default("complex"))
     if cx is not None:
         known("complex", cx)
         if species[cx].kind != "minimum":
@@ -137,10 +184,10 @@ def _read_channel(t: Table, species: dict, file: str) -> Channel:
         for n in names:
             if species[n].kind != "minimum":
                 raise t.error(key, f"species {n!r} is a transition state")
-    tunnelling = t.get("tunnelling", str, "none")
-    degeneracy = t.get("degeneracy", float, None)
-    floor = t.get("tunnelling_floor", str, "reactants")
-    t.reject_unknown()
+    tunnelling = t.get("tunnelling", str, CHANNEL_KEYS.default("tunnelling"))
+    degeneracy = t.get("degeneracy", float, CHANNEL_KEYS.default("degeneracy"))
+    floor = t.get("tunnelling_floor", str, CHANNEL_KEYS.default("tunnelling_floor"))
+    t.reject_unknown(CHANNEL_KEYS)
     channel = t.build(Channel, name=name, reactants=tuple(reactants), transition_state=ts,
                       products=tuple(products), complex=cx, tunnelling=tunnelling, degeneracy=degeneracy,
                       tunnelling_floor=floor)
@@ -164,6 +211,7 @@ def read_study(path: str | Path) -> Study:
     title = t.get("title", str, path.stem)
     st = t.table("species")
     species, species_files = {}, {}
+    st.reject_unknown(SPECIES_MAP_KEYS)
     for name in list(st.data):
         rel = st.get(name, str)
         spath = Path(rel) if Path(rel).is_absolute() else path.parent / rel
@@ -179,7 +227,7 @@ def read_study(path: str | Path) -> Study:
     dup = [n for n, k in Counter(names).items() if k > 1]
     if dup:
         raise t.error("channel", f"channel name {dup[0]!r} used twice")
-    t.reject_unknown(CORE_KEYS | set(SECTION_READERS))
+    t.reject_unknown(STUDY_KEYS)
     reference = {}
     bath = conditions.bath_gas
     if bath is not None and bath not in species:

@@ -2,7 +2,8 @@
 
 Every reader goes through :class:`Table`, so a wrong type, a missing key or a
 key nobody knows is reported the same way everywhere: one line with the file,
-the dotted key and what was expected.
+the dotted key and what was expected. Which keys a table may hold is said by the
+reader's :class:`~tstrate.io.keys.Keys` table, passed to :meth:`Table.reject_unknown`.
 """
 
 from __future__ import annotations
@@ -13,6 +14,8 @@ from pathlib import Path
 from typing import Any
 
 from tstrate.errors import InputError
+from tstrate.io.keys import Key, Keys
+from tstrate.units import ENERGY_UNITS_J_PER_MOL
 
 _MISSING = object()
 
@@ -128,19 +131,43 @@ class Table:
             out.append(Table(v, self.file, f"{self.key(name)}[{i}]"))
         return out
 
-    def reject_unknown(self, known: set[str] | None = None) -> None:
-        """Raise on keys that no reader asked for (typos should not pass silently)."""
-        known = self._used if known is None else known | self._used
-        extra = sorted(set(self.data) - known)
+    def reject_unknown(self, known: Keys | set[str] | None = None) -> None:
+        """Raise on keys the table may not hold (typos should not pass silently).
+
+        With a :class:`~tstrate.io.keys.Keys` table the file may hold only the keys it documents
+        (any key, for a table of user-chosen names), and a reader that asked for a key the table
+        does not document is a bug. With a set (or nothing), the keys of the set and those the
+        reader asked for are accepted.
+        """
+        if isinstance(known, Keys):
+            if known.any_key is not None:
+                return
+            asked = sorted(self._used - set(known))
+            if asked:
+                raise AssertionError(f"the reader of {known.title} asked for undocumented key {asked[0]!r}")
+            extra = sorted(k for k in self.data if k not in known)
+        else:
+            known = self._used if known is None else set(known) | self._used
+            extra = sorted(set(self.data) - known)
         if extra:
             raise self.error(extra[0], "unknown key", hint="check the spelling against the documentation")
 
-    def quantity(self, name: str, convert, default: Any = _MISSING):
-        """A ``{ value = ..., unit = "..." }`` table converted by ``convert(value, unit, file=, field=)``."""
+    def quantity(self, name: str, convert, default: Any = _MISSING, *, keys: Keys):
+        """A ``{ value = ..., unit = "..." }`` table converted by ``convert(value, unit, file=, field=)``;
+        ``keys`` documents the sub-table (e.g. :func:`energy_keys`)."""
         sub = self.table(name, default)
         if sub is default and default is not _MISSING:
             return default
         value = sub.get("value", float)
         unit = sub.get("unit", str)
-        sub.reject_unknown()
+        sub.reject_unknown(keys)
         return convert(value, unit, file=self.file, field=self.key(name) + ".unit")
+
+
+def energy_keys(path: tuple[str, ...], title: str, summary: str, *extra: Key) -> Keys:
+    """The keys of an energy written as ``{ value = ..., unit = "..." }`` (read by
+    :meth:`Table.quantity` with :func:`tstrate.units.energy_to_J_per_mol`), and ``extra`` ones."""
+    return Keys(path, title, summary, (
+        Key("value", "number", "the energy, in the unit given by `unit`", required=True, unit="`unit`"),
+        Key("unit", "string", "the unit of `value`", required=True, choices=tuple(ENERGY_UNITS_J_PER_MOL)),
+        *extra))

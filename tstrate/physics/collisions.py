@@ -128,6 +128,8 @@ def omega22_troe(reduced_temperature):
 
 
 _OMEGA = {"neufeld": omega22_neufeld, "troe": omega22_troe}
+#: names of the collision-integral approximations collision rates accept
+COLLISION_INTEGRALS = tuple(_OMEGA)
 
 
 def collision_rate_m3_s(temperature_K, sigma_A: float, epsilon_K: float, reduced_mass_amu: float,

@@ -3,7 +3,8 @@
 This module joins the pure functions of :mod:`tstrate.physics.states`,
 :mod:`~tstrate.physics.rrkm`, :mod:`~tstrate.physics.falloff` and
 :mod:`~tstrate.physics.collisions` to a channel's species and falloff settings
-(:mod:`tstrate.study.falloff` walks a study's channels, bath gas and pressures). For every channel with one reactant (order 1) it builds
+(:mod:`tstrate.study.falloff` walks a study's channels, bath gas and pressures). For every
+channel with one reactant (order 1) it builds
 
 * the reactant's density of states and the transition state's sum of states
   (scaled harmonic wavenumbers, electronic levels, the active K-rotor and any declared
@@ -428,7 +429,7 @@ def falloff_on_grid(model: UnimolecularModel, settings: FalloffSettings, bath: c
     z = collision_rate(model.reactant, bath, t, settings)
     eff = collision_efficiency(model, settings, t)
     if eff.kind == "strong":
-        warnings.append(f"channel {channel.name!r}: no collision efficiency or <dE> in [falloff]; strong "
+        warnings.append(f"channel {channel.name!r}: no collision efficiency or <dE>down is set; strong "
                         "collisions (beta_c = 1) give an upper bound of k(T, [M])")
 
     # grid check: the thermal population in the top tenth of the grid must be negligible

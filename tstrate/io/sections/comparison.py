@@ -19,7 +19,8 @@ Example (H2CO3 -> CO2 + H2O, bare and with one or two waters)::
     description = "free text"                          # optional
 
 Each abundance key takes a number or a list (several scenarios); with a mixing
-ratio, ``total_pressure_*`` is a number or a list of the same length.
+ratio, ``total_pressure_*`` is a number or a list of the same length. Every key is
+listed in :data:`COMPARISON_KEYS` (from which ``docs/study-file.md`` is generated).
 
 Checks (each failure is a one-line InputError naming the file and key):
 unknown channels or species; a reference that is not the unimolecular
@@ -37,6 +38,7 @@ import logging
 from collections import Counter
 
 from tstrate.errors import InputError
+from tstrate.io.keys import Key, Keys
 from tstrate.io.study import check_balance
 from tstrate.io.tables import Table
 from tstrate.physics.catalysis import CatalystAbundance, Comparison, classify_route
@@ -48,9 +50,44 @@ log = logging.getLogger(__name__)
 #: keys that give the catalyst abundance (exactly one per comparison)
 ABUNDANCE_KEYS = ("number_density_per_cm3", "partial_pressure_Pa", "partial_pressure_bar",
                   "mixing_ratio", "relative_humidity_percent")
-KNOWN_KEYS = {"name", "reference", "assisted", "catalyst", "catalyst_dimer", "substrate",
-              "total_pressure_bar", "total_pressure_Pa", "over", "temperature_K",
-              "abundance_labels", "description", *ABUNDANCE_KEYS}
+_ONE_ABUNDANCE = "exactly one of the five abundance keys"
+_TOTAL = "with `mixing_ratio`: one of `total_pressure_bar` / `total_pressure_Pa`"
+COMPARISON_KEYS = Keys(
+    ("comparison", "[]"), "[[comparison]]",
+    "One table per comparison of a bare route with routes assisted by one or two catalyst molecules "
+    "(usually water) or the catalyst dimer, at given catalyst abundances. The reference must be the "
+    "unimolecular channel of the substrate; each assisted channel's reactants must be the substrate "
+    "plus one or two catalysts (or the dimer) and balance with them. Each abundance key takes a number "
+    "or a list (several scenarios); a relative humidity above 100 % is accepted with a warning "
+    "(supersaturation).", (
+        Key("name", "string", "label of the comparison (unique)", required=True),
+        Key("description", "string", "free text for the report", default=""),
+        Key("reference", "string", "the bare channel: the substrate's unimolecular reaction", required=True),
+        Key("assisted", "list of strings", "the catalysed channels (each listed once)", required=True),
+        Key("catalyst", "string", "species name of the catalyst monomer (a minimum)", required=True),
+        Key("catalyst_dimer", "string", "species name of the catalyst dimer; its abundance follows from the "
+            "equilibrium 2 X <=> X2"),
+        Key("substrate", "string", "species name of the substrate", default_text="the reference "
+            "channel's reactant"),
+        Key("number_density_per_cm3", "number or list of numbers", "catalyst number density",
+            required=_ONE_ABUNDANCE, unit="cm-3"),
+        Key("partial_pressure_Pa", "number or list of numbers", "catalyst partial pressure",
+            required=_ONE_ABUNDANCE, unit="Pa"),
+        Key("partial_pressure_bar", "number or list of numbers", "catalyst partial pressure",
+            required=_ONE_ABUNDANCE, unit="bar"),
+        Key("mixing_ratio", "number or list of numbers", "catalyst mole fraction (5e-6 for 5 ppmv), with a "
+            "total pressure", required=_ONE_ABUNDANCE, unit="mol/mol"),
+        Key("relative_humidity_percent", "number or list of numbers", "relative humidity (water only), with "
+            "`over`", required=_ONE_ABUNDANCE, unit="%"),
+        Key("total_pressure_bar", "number or list of numbers", "total pressure for `mixing_ratio`: one value "
+            "or one per mixing ratio", required=_TOTAL, unit="bar"),
+        Key("total_pressure_Pa", "number or list of numbers", "the same in pascal", required=_TOTAL, unit="Pa"),
+        Key("over", "string", "the phase the saturation pressure refers to (Murphy and Koop 2005)",
+            required="with `relative_humidity_percent`", choices=PHASES),
+        Key("temperature_K", "number or list of numbers", "temperatures of this comparison",
+            default_text="`[conditions] temperature_K`", unit="K"),
+        Key("abundance_labels", "list of strings", "one name per abundance, for tables and plots"),
+    ))
 
 
 def _numbers(t: Table, key: str) -> list[float]:
@@ -166,7 +203,7 @@ def _read_one(t: Table, study) -> Comparison:
         raise t.error("assisted", f"channel {dup[0]!r} listed twice")
     catalyst = t.get("catalyst", str)
     cat_sp = known_species("catalyst", catalyst)
-    substrate = t.get("substrate", str, None)
+    substrate = t.get("substrate", str, COMPARISON_KEYS.default("substrate"))
     if substrate is None:
         if len(ref.reactants) != 1:
             raise t.error("reference", f"reference channel {ref.name!r} has "
@@ -179,7 +216,7 @@ def _read_one(t: Table, study) -> Comparison:
                       f"{' + '.join(ref.reactants)}; the bare route must be {substrate} -> products")
     if substrate == catalyst:
         raise t.error("catalyst", "the catalyst and the substrate are the same species")
-    dimer = t.get("catalyst_dimer", str, None)
+    dimer = t.get("catalyst_dimer", str, COMPARISON_KEYS.default("catalyst_dimer"))
     if dimer is not None:
         known_species("catalyst_dimer", dimer)
         check_balance(f"catalyst dimer {dimer!r}", [catalyst, catalyst], [dimer], species,
@@ -211,8 +248,8 @@ def _read_one(t: Table, study) -> Comparison:
         if any(x <= 0 for x in temps):
             raise t.error("temperature_K", "temperatures must be positive (kelvin)")
         temps = tuple(temps)
-    description = t.get("description", str, "")
-    t.reject_unknown(KNOWN_KEYS)
+    description = t.get("description", str, COMPARISON_KEYS.default("description"))
+    t.reject_unknown(COMPARISON_KEYS)
     return Comparison(name=name, reference=ref.name, assisted=tuple(routes), substrate=substrate,
                       catalyst=catalyst, abundances=abundances, catalyst_dimer=dimer,
                       temperature_K=temps, description=description)

@@ -40,16 +40,98 @@ from __future__ import annotations
 from pathlib import Path
 
 from tstrate.errors import InputError
-from tstrate.io.tables import Table
-from tstrate.model import Study
-from tstrate.physics.activation import photon_energy_J_per_mol
+from tstrate.io.keys import Key, Keys, field_default
 from tstrate.io.profiles import read_profile_csv, resolve_profile
-from tstrate.model.settings import US_STANDARD_1976, ExcitationSpec, FalloffSection, FalloffSettings
-from tstrate.units import energy_to_J_per_mol
+from tstrate.io.tables import Table, energy_keys
+from tstrate.model import Study
+from tstrate.model.settings import (DELTA_E_REFERENCE_T_K, US_STANDARD_1976, ExcitationSpec, FalloffSection,
+                                    FalloffSettings)
+from tstrate.physics.activation import photon_energy_J_per_mol
+from tstrate.physics.collisions import COLLISION_INTEGRALS as _COLLISION_INTEGRALS
+from tstrate.physics.unimolecular import MIN_SPAN_CM1, SPAN_IN_KT
+from tstrate.units import PRESSURE_UNITS_PA, energy_to_J_per_mol
 
 _SETTING_KEYS = ("grain_cm1", "energy_above_barrier_cm1", "collision_efficiency", "delta_E_down_cm1",
                  "delta_E_all_cm1", "delta_E_temperature_exponent", "collision_integral", "fit_T2")
 _TRANSFER_KEYS = ("collision_efficiency", "delta_E_down_cm1", "delta_E_all_cm1")
+
+# ---- the keys of [falloff] and [[excitation]] (docs/study-file.md is generated from these)
+
+_ONE_TRANSFER = "at most one of the three; none: strong collisions"
+
+
+def _setting(name: str) -> object:
+    return field_default(FalloffSettings, name)
+
+
+_SETTINGS = (
+    Key("grain_cm1", "number", "energy grain of the state counts; refined (with a warning) when too coarse "
+        "for the lowest real wavenumbers", default=_setting("grain_cm1"), unit="cm-1"),
+    Key("energy_above_barrier_cm1", "number", "how far the energy grid reaches above the barrier",
+        default_text=f"the larger of {MIN_SPAN_CM1:g} cm-1 and {SPAN_IN_KT:g} k_B T at the highest temperature",
+        unit="cm-1"),
+    Key("delta_E_down_cm1", "number", "<dE>down, the mean energy removed in downward collisions (positive); "
+        "gives the collision efficiency by Troe's weak-collision relation", required=_ONE_TRANSFER,
+        unit="cm-1"),
+    Key("delta_E_all_cm1", "number", "<dE>, the mean energy transferred over all collisions (negative)",
+        required=_ONE_TRANSFER, unit="cm-1"),
+    Key("collision_efficiency", "number", "the collision efficiency beta_c itself, 0 < beta_c <= 1",
+        required=_ONE_TRANSFER, unit="1"),
+    Key("delta_E_temperature_exponent", "number", f"n in <dE>(T) = <dE> (T / {DELTA_E_REFERENCE_T_K:g} K)^n",
+        default=_setting("delta_E_temperature_exponent"), unit="1"),
+    Key("collision_integral", "string", "the Lennard-Jones collision integral: Neufeld, Janzen and Aziz "
+        "(1972) or Troe (1977)", default=_setting("collision_integral"), choices=tuple(_COLLISION_INTEGRALS)),
+    Key("fit_T2", "true or false", "also fit Troe's T** (else the exp(-T**/T) term is left out)",
+        default=_setting("fit_T2")),
+)
+FALLOFF_KEYS = Keys(("falloff",), "[falloff]",
+                    "Pressure dependence of the unimolecular channels: RRKM k(E), strong collisions scaled "
+                    "by a collision efficiency, Lindemann and fitted Troe parameters. Pressures and the bath "
+                    "gas come from `[conditions]`; the reactant's species file needs `lennard_jones`. Every "
+                    "key is optional.", _SETTINGS + (
+                        Key("channels", "table", "per-channel overrides (`[falloff.channels.<channel>]` below)"),
+                    ))
+FALLOFF_CHANNELS_KEYS = Keys(("falloff", "channels"), "[falloff.channels]",
+                             "Overrides by channel name.",
+                             any_key=Key("<channel>", "table", "the settings of that channel "
+                                         "(`[falloff.channels.<channel>]` below)"))
+FALLOFF_CHANNEL_KEYS = Keys(("falloff", "channels", "*"), "[falloff.channels.<channel>]",
+                            "The keys of `[falloff]` for one channel; each replaces the `[falloff]` value, "
+                            "and any of the three energy-transfer keys replaces the `[falloff]` choice of "
+                            "energy transfer.", _SETTINGS)
+EXCITATION_KEYS = Keys(
+    ("excitation", "[]"), "[[excitation]]",
+    "One table per excitation: molecules of a unimolecular channel's reactant energised by a given "
+    "energy (plus their mean thermal energy) react or are deactivated by collisions; followed against "
+    "pressure (Stern-Volmer and a stepwise deactivation model) and along an altitude profile.", (
+        Key("name", "string", "label of the excitation (unique)", default_text="`\"excitation <n>\"`"),
+        Key("channel", "string", "a unimolecular channel", required="when the study has more than one "
+            "unimolecular channel", default_text="the study's only unimolecular channel"),
+        Key("wavenumber_cm1", "number", "the excitation energy as a photon wavenumber",
+            required="one of `wavenumber_cm1` / `wavelength_nm` / `energy`", unit="cm-1"),
+        Key("wavelength_nm", "number", "the excitation energy as a photon wavelength",
+            required="one of `wavenumber_cm1` / `wavelength_nm` / `energy`", unit="nm"),
+        Key("energy", "table", "the excitation energy `{ value = ..., unit = \"...\" }` (below)",
+            required="one of `wavenumber_cm1` / `wavelength_nm` / `energy`"),
+        Key("temperature_K", "number or list of numbers", "parent temperatures of the pressure scan",
+            default_text="`[conditions] temperature_K`", unit="K"),
+        Key("delta_E_down_cm1", "number", "<dE>down of the stepwise deactivation model",
+            default_text="the channel's `[falloff]` value", unit="cm-1"),
+        Key("collision_efficiency", "number", "beta_c of the Stern-Volmer model",
+            default_text="from `[falloff]`", unit="1"),
+        Key("pressures", "true or false", "scan the `[conditions]` pressures",
+            default_text="true when `[conditions]` gives pressures"),
+        Key("profile", "string", "an altitude profile", choices=(US_STANDARD_1976,),
+            choices_note="or a CSV file, relative to the study file, with columns `altitude_km` (or "
+            "`altitude_m`), `temperature_K` and `pressure_<unit>` (unit one of "
+            + ", ".join(PRESSURE_UNITS_PA) + ")"),
+        Key("altitude_km", "list of numbers", "[lowest, highest] altitude along the profile (needs `profile`)",
+            default_text="the whole profile", unit="km"),
+        Key("altitude_step_km", "number", "altitude step along the built-in profile",
+            default=field_default(ExcitationSpec, "altitude_step_km"), unit="km"),
+    ))
+EXCITATION_ENERGY_KEYS = energy_keys(("excitation", "[]", "energy"), "[[excitation]] energy = { value, unit }",
+                                     "The excitation energy, added to the mean thermal energy of the reactant.")
 
 
 def _settings_values(t: Table) -> dict:
@@ -69,20 +151,21 @@ def read_falloff(t: Table, study: Study) -> FalloffSection:
     channels = {}
     if "channels" in ft:
         ct = ft.table("channels")
+        ct.reject_unknown(FALLOFF_CHANNELS_KEYS)
         names = {c.name for c in study.channels}
         for name in list(ct.data):
             if name not in names:
                 raise ct.error(name, f"unknown channel {name!r}", hint="use one of " + ", ".join(sorted(names)))
             sub = ct.table(name)
             own = _settings_values(sub)
-            sub.reject_unknown()
+            sub.reject_unknown(FALLOFF_CHANNEL_KEYS)
             merged = dict(values)
             if any(k in own for k in _TRANSFER_KEYS):  # an override replaces the energy-transfer choice
                 for k in _TRANSFER_KEYS:
                     merged.pop(k, None)
             merged.update(own)
             channels[name] = sub.build(FalloffSettings, **merged)
-    ft.reject_unknown()
+    ft.reject_unknown(FALLOFF_KEYS)
     return FalloffSection(default, channels)
 
 
@@ -96,7 +179,7 @@ def _excitation_energy(t: Table) -> tuple[float, str]:
     if key == "energy":
         sub = t.table("energy")
         value, unit = sub.get("value", float), sub.get("unit", str)
-        sub.reject_unknown()
+        sub.reject_unknown(EXCITATION_ENERGY_KEYS)
         energy = energy_to_J_per_mol(value, unit, file=t.file, field=t.key("energy.unit"))
         if not energy > 0:
             raise t.error("energy.value", "excitation energy must be positive")
@@ -159,8 +242,9 @@ def read_excitations(t: Table, study: Study) -> tuple[ExcitationSpec, ...]:
             temperature_K=temps, delta_E_down_cm1=et.get("delta_E_down_cm1", float, None),
             collision_efficiency=et.get("collision_efficiency", float, None),
             pressure_scan=et.get("pressures", bool, None), profile=profile, altitude_range_km=rng,
-            altitude_step_km=et.get("altitude_step_km", float, 1.0), profile_table=table)
-        et.reject_unknown()
+            altitude_step_km=et.get("altitude_step_km", float, field_default(ExcitationSpec, "altitude_step_km")),
+            profile_table=table)
+        et.reject_unknown(EXCITATION_KEYS)
         if spec.pressure_scan and not (study.conditions.pressure_Pa.size or study.conditions.number_density_m3.size):
             raise et.error("pressures", "a pressure scan needs pressures in [conditions], and the study gives none")
         out.append(spec)
