@@ -245,6 +245,10 @@ TROE_T_BOUNDS_K = (1.0, 1e8)
 #: A fitted parameter this close to a bound sits at it: 1e-6 in a (a weight that changes
 #: F_cent by at most 1e-6), 1e-6 in ln T for a temperature.
 TROE_BOUND_TOLERANCE = 1e-6
+#: T*** and T* closer than this in ln T make one decaying term: a is then not determined
+#: (a change of a by 1 moves F_cent by less than 1e-4 T/T*** exp(-T/T***)), and merging the
+#: two terms into one changes F_cent by at most about 0.02 (1e-4 T/T***)^2 relative.
+TROE_MERGE_TOLERANCE = 1e-4
 
 _TROE_LABELS = {"a": "a", "T3_K": "T***", "T1_K": "T*", "T2_K": "T**"}
 
@@ -256,11 +260,12 @@ def canonical_troe(a, T3, T1) -> tuple[float, float, float]:
     a -> 1-a and T*** <-> T* are swapped together, so every F_cent(T) has two exact labels
     (twins) and a least-squares fit may land on either. The canonical twin is:
 
-    1. a within :data:`TROE_BOUND_TOLERANCE` of 0 or 1 (one decaying term has no weight)
-       or T*** == T* (F_cent does not depend on a): F_cent = exp(-T/T_live) (+ exp(-T**/T))
-       with a single decaying term, written as a = 0, T*** = T* = T_live. The weightless
-       term's temperature, which the data do not determine, is dropped; a fitted weight
-       below the tolerance changes F_cent by less than 1e-6.
+    1. one decaying term - a within :data:`TROE_BOUND_TOLERANCE` of 0 or 1 (one term has
+       no weight) or T*** and T* within :data:`TROE_MERGE_TOLERANCE` in ln T (then any a
+       gives the same curve): written a = 0, T*** = T* = T_1, with 1/T_1 = (1-a)/T*** + a/T*
+       (the live temperature when one weight is 0). The data do not determine a or the
+       second temperature then, and these labels make the one curve one record; F_cent
+       changes by less than 1e-6 relative at the temperatures of a fit.
     2. otherwise the twin with T*** < T* (the term that dies first with rising T comes
        first, as Troe parameters are usually quoted): a -> 1-a and T*** <-> T* when T*** > T*.
 
@@ -269,10 +274,13 @@ def canonical_troe(a, T3, T1) -> tuple[float, float, float]:
     is mapped by the same rule. T** has no twin and is not touched.
     """
     a, T3, T1 = float(a), float(T3), float(T1)
-    if abs(a) <= TROE_BOUND_TOLERANCE or T3 == T1:
+    if abs(a) <= TROE_BOUND_TOLERANCE:
         return 0.0, T3, T3
     if abs(1.0 - a) <= TROE_BOUND_TOLERANCE:
         return 0.0, T1, T1
+    if abs(math.log(T1 / T3)) <= TROE_MERGE_TOLERANCE:
+        t = 1.0 / ((1.0 - a) / T3 + a / T1)
+        return 0.0, t, t
     return (1.0 - a, T1, T3) if T3 > T1 else (a, T3, T1)
 
 
@@ -337,8 +345,8 @@ def troe_bound_notes(fit: TroeFit) -> tuple[str, ...]:
         if name == "a":
             live, dead, value = (("T***", "T*", fit.T3_K) if bound == TROE_A_BOUNDS[0]
                                  else ("T*", "T***", fit.T1_K))
-            notes.append(f"Troe fit: a sits at its bound {bound:g}: F_cent has the single decaying term "
-                         f"exp(-T/{live}), {live} = {value:.4g} K; {dead} carries no information")
+            notes.append(f"Troe fit: F_cent has a single decaying term exp(-T/{live}) with {live} = "
+                         f"{value:.4g} K (a at its bound {bound:g}); {dead} carries no information")
             continue
         label = _TROE_LABELS[name]
         low = bound == TROE_T_BOUNDS_K[0]
