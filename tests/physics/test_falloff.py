@@ -16,6 +16,8 @@ from tstrate.physics.rrkm import rrkm_rate
 from tstrate.physics.states import CM1_J_PER_MOL
 from tstrate.units import RATE_UNITS
 
+pytestmark = pytest.mark.fitting     # rerun by .ci/run with 1 and 2 BLAS threads
+
 # Invented demo wavenumbers (cm-1) and barrier for carbonic acid -> CO2 + H2O (see test_rrkm.py).
 H2CO3_CM1 = [3640, 3630, 1830, 1450, 1380, 1180, 1010, 790, 670, 580, 550, 220]
 TS_CM1 = [3700, 2600, 1900, 1400, 1150, 940, 800, 650, 560, 480, 300]

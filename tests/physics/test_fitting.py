@@ -21,6 +21,8 @@ from tstrate.physics.fitting import (
 )
 from tstrate.units import CM1_J, K_B, R
 
+pytestmark = pytest.mark.fitting     # rerun by .ci/run with 1 and 2 BLAS threads
+
 # Exact synthetic data are recovered to round-off; ln k spans ~20 units, so the least-squares
 # solution carries ~1e-13 relative error. 1e-9 leaves a wide margin without hiding a real bug.
 EXACT_RTOL = 1e-9

@@ -19,6 +19,8 @@ from tstrate.io.study import read_study
 from tstrate.physics.pressure import (FalloffSettings, bath_parameters, channel_falloff, rotational_constants_cm1,
                                       split_rotation, study_falloff, unimolecular_model)
 
+pytestmark = pytest.mark.fitting     # rerun by .ci/run with 1 and 2 BLAS threads
+
 DATA = Path(__file__).resolve().parents[1] / "data" / "falloff"
 C2_CM_K = physical_constants["second radiation constant"][0] * 100   # hc/k [cm K] (CODATA)
 CM1_J_PER_MOL = h * c_light * 100 * N_A                                 # one cm-1 as J/mol
