@@ -168,6 +168,14 @@ def _labels(fit):
     return fit.a, fit.T3_K, fit.T1_K, fit.T2_K
 
 
+def _same_labels(got, expected, rel):
+    """(a, T***, T*, T**) equal within rel; T** may be None in both."""
+    assert got[:3] == pytest.approx(expected[:3], rel=rel)
+    assert (got[3] is None) == (expected[3] is None)
+    if expected[3] is not None:
+        assert got[3] == pytest.approx(expected[3], rel=rel)
+
+
 @pytest.mark.parametrize("params", [(0.4, 400.0, 2500.0, None)] + TWINS,
                          ids=["3-parameter", "4-parameter", "4-parameter-twin"])
 def test_troe_fit_recovers_exact_synthetic_curves(params):
@@ -192,7 +200,7 @@ def test_troe_fit_returns_the_canonical_twin_from_either_start():
     fits = [_fit_synthetic(TWINS[0], starts=[s]) for s in TWINS]
     for fit in fits:
         assert fit.max_relative_deviation < 1e-6
-        assert _labels(fit) == pytest.approx(TWINS[0], rel=1e-6)
+        _same_labels(_labels(fit), TWINS[0], rel=1e-6)
 
 
 def test_canonical_troe_maps_every_twin_pair_to_one_representative():
@@ -201,23 +209,47 @@ def test_canonical_troe_maps_every_twin_pair_to_one_representative():
     def fc(p):
         return troe_center_broadening(t, *p)
 
-    for p in [(0.6, 200.0, 1500.0), (0.4, 1500.0, 200.0), (0.25, 3000.0, 90.0), (1.3, 900.0, 300.0)]:
-        twin = (1 - p[0], p[2], p[1])
+    for p in [(0.6, 200.0, 1500.0, None), (0.4, 1500.0, 200.0, 4000.0), (0.25, 3000.0, 90.0, None),
+              (1.3, 900.0, 300.0, None)]:
+        twin = (1 - p[0], p[2], p[1], p[3])
         c = canonical_troe(*p)
-        assert canonical_troe(*twin) == pytest.approx(c, rel=1e-12)
-        assert canonical_troe(*c) == pytest.approx(c, rel=1e-12)            # a fixed point
-        assert c[1] < c[2]                                                   # T*** < T*
+        _same_labels(canonical_troe(*twin), c, rel=1e-12)
+        _same_labels(canonical_troe(*c), c, rel=1e-12)                       # a fixed point
+        assert c[1] < c[2] and c[3] == p[3]                                  # T*** < T*, T** untouched
         np.testing.assert_allclose(fc(c), fc(p), rtol=1e-12)                 # the same curve
-    assert canonical_troe(0.4, 1500.0, 200.0) == pytest.approx((0.6, 200.0, 1500.0), rel=1e-12)
+    _same_labels(canonical_troe(0.4, 1500.0, 200.0), (0.6, 200.0, 1500.0, None), rel=1e-12)
     # a outside [0, 1]: its twin is outside too; the same rule picks T*** < T* (a = -0.3 here)
-    assert canonical_troe(1.3, 900.0, 300.0) == pytest.approx((-0.3, 300.0, 900.0), rel=1e-12)
+    _same_labels(canonical_troe(1.3, 900.0, 300.0), (-0.3, 300.0, 900.0, None), rel=1e-12)
     # one decaying term: a at 0 or 1 (the other temperature means nothing) or T*** = T* (a means
     # nothing) are all written a = 0, T*** = T*
     for p in [(1.0, 481.0, 151.7), (0.0, 151.7, 481.0), (1.0 - 1e-9, 3.0, 151.7), (0.7, 151.7, 151.7),
               (0.3, 151.7, 151.7 * (1 + 1e-7))]:
         c = canonical_troe(*p)
-        assert c == pytest.approx((0.0, 151.7, 151.7), rel=1e-6)
-        np.testing.assert_allclose(fc(c), fc(p), rtol=1e-6)
+        _same_labels(c, (0.0, 151.7, 151.7, None), rel=1e-6)
+        np.testing.assert_allclose(fc(c), fc(p + (None,)), rtol=1e-6)
+
+
+def test_canonical_troe_at_the_fitted_temperatures_drops_terms_that_do_not_count():
+    # 150-300 K. Each of these changes F_cent by less than TROE_NEGLIGIBLE_TERM = 1e-4 there, so
+    # the data of a fit cannot tell it from the canonical form, which is written instead.
+    t = np.linspace(150.0, 300.0, 16)
+    cases = [
+        # a second decaying term of weight 4e-6: one term, a = 0 (the optimiser's a and T*** vary)
+        ((0.999996, 97.96, 100.96, None), (0.0, 100.96, 100.96, None)),
+        ((0.999999, 81.57, 100.96, None), (0.0, 100.96, 100.96, None)),
+        # T*** = 5 K: its term is below 1e-13 of F_cent; T*** goes to its lower bound 1 K
+        ((0.5, 5.0, 400.0, None), (0.5, 1.0, 400.0, None)),
+        ((0.5, 400.0, 5.0, None), (0.5, 1.0, 400.0, None)),          # the same, other twin
+        # T** = 1e4 K: exp(-T**/T) < 4e-15 here; T** goes to its upper bound 1e8 K
+        ((0.6, 200.0, 1500.0, 1e4), (0.6, 200.0, 1500.0, 1e8)),
+        ((0.6, 200.0, 1500.0, 4.5e5), (0.6, 200.0, 1500.0, 1e8)),
+    ]
+    for given, expected in cases:
+        c = canonical_troe(*given, temperature_K=t)
+        _same_labels(c, expected, rel=1e-4)
+        np.testing.assert_allclose(troe_center_broadening(t, *c), troe_center_broadening(t, *given), rtol=1e-4)
+    # a second term that counts stays: weight 0.01 on exp(-T/150 K) is 7 % of F_cent at 150 K
+    _same_labels(canonical_troe(0.99, 50.0, 150.0, temperature_K=t), (0.99, 50.0, 150.0, None), rel=1e-12)
 
 
 def test_troe_fit_names_parameters_at_a_bound():

@@ -19,9 +19,11 @@ higher order are listed as not computed.
 Also given: the limits k_inf(T) and k_0(T), the Lindemann-Hinshelwood curve,
 a Troe fit (a, T***, T*, optionally T**, Fcent(T)) with its error, and
 k_inf / canonical TST as a check. The Troe labels are canonical: T*** < T*
-(a and 1 - a swapped with them when needed, which leaves Fcent unchanged),
-and a fit with one decaying term has a = 0 and T* = T***; parameters at a
-bound of the fit are named in parameters_at_bound and in a warning.
+(a and 1 - a swapped with them when needed, which leaves Fcent unchanged);
+a fit with one decaying term has a = 0 and T* = T***, and terms below 1e-4
+of Fcent at every temperature are written at the bound where they vanish.
+Parameters at a bound of the fit are named in parameters_at_bound and in a
+warning.
 
 JSON output (--json): "study", "title", "bath_gas", "bath_gas_lennard_jones",
 "channels" (each: name, order, temperature_K, pressure_bar (a list over pressure, or

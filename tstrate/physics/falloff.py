@@ -249,39 +249,85 @@ TROE_BOUND_TOLERANCE = 1e-6
 #: (a change of a by 1 moves F_cent by less than 1e-4 T/T*** exp(-T/T***)), and merging the
 #: two terms into one changes F_cent by at most about 0.02 (1e-4 T/T***)^2 relative.
 TROE_MERGE_TOLERANCE = 1e-4
+#: At the temperatures of a fit, a term of F_cent that changes it by less than this (relative)
+#: everywhere is not determined by the data, and the fit is written without it (see
+#: :func:`canonical_troe`). Troe fits of computed falloff curves deviate by 1e-3 to 1e-1.
+TROE_NEGLIGIBLE_TERM = 1e-4
 
 _TROE_LABELS = {"a": "a", "T3_K": "T***", "T1_K": "T*", "T2_K": "T**"}
 
 
-def canonical_troe(a, T3, T1) -> tuple[float, float, float]:
-    """The one representative (a, T***, T*) of a set of Troe parameters giving the same F_cent.
+def _fcent_terms(t, a, T3, T1, T2):
+    with np.errstate(over="ignore", under="ignore", divide="ignore"):
+        return ((1.0 - a) * np.exp(-t / T3), a * np.exp(-t / T1),
+                np.exp(-T2 / t) if T2 is not None else np.zeros_like(t))
+
+
+def canonical_troe(a, T3, T1, T2=None, *, temperature_K=None) -> tuple[float, float, float, float | None]:
+    """The one representative (a, T***, T*, T**) of Troe parameters that give the same F_cent.
 
     F_cent = (1-a) exp(-T/T***) + a exp(-T/T*) (+ exp(-T**/T)) does not change when
     a -> 1-a and T*** <-> T* are swapped together, so every F_cent(T) has two exact labels
-    (twins) and a least-squares fit may land on either. The canonical twin is:
+    (twins) and a least-squares fit may land on either; and where a term hardly counts, its
+    parameters are not determined at all. The canonical labels are:
 
-    1. one decaying term - a within :data:`TROE_BOUND_TOLERANCE` of 0 or 1 (one term has
-       no weight) or T*** and T* within :data:`TROE_MERGE_TOLERANCE` in ln T (then any a
-       gives the same curve): written a = 0, T*** = T* = T_1, with 1/T_1 = (1-a)/T*** + a/T*
-       (the live temperature when one weight is 0). The data do not determine a or the
-       second temperature then, and these labels make the one curve one record; F_cent
-       changes by less than 1e-6 relative at the temperatures of a fit.
+    1. one decaying term - a within :data:`TROE_BOUND_TOLERANCE` of 0 or 1, T*** and T*
+       within :data:`TROE_MERGE_TOLERANCE` in ln T, or (with ``temperature_K``) a single
+       term exp(-T/T_1) giving F_cent within :data:`TROE_NEGLIGIBLE_TERM` at every one of
+       those temperatures - is written a = 0, T*** = T* = T_1, with 1/T_1 = (1-a)/T*** + a/T*
+       or, with temperatures, whichever of that, T*** and T* is closest;
     2. otherwise the twin with T*** < T* (the term that dies first with rising T comes
-       first, as Troe parameters are usually quoted): a -> 1-a and T*** <-> T* when T*** > T*.
+       first, as Troe parameters are usually quoted): a -> 1-a and T*** <-> T* when T*** > T*;
+       with ``temperature_K``, a decaying term below :data:`TROE_NEGLIGIBLE_TERM` of F_cent
+       at every temperature is put first with T*** at its lower bound (1 K, where it vanishes);
+    3. with ``temperature_K``, T** with exp(-T**/T) below :data:`TROE_NEGLIGIBLE_TERM` of
+       F_cent everywhere is written at its upper bound (1e8 K, where the term vanishes).
 
-    a and 1 - a are both in [0, 1] or both outside, so the rule keeps a fitted a in its
-    bounds [0, 1]; an a given outside [0, 1] (F_cent may still be a valid broadening)
-    is mapped by the same rule. T** has no twin and is not touched.
+    Rules that use ``temperature_K`` change F_cent there by less than
+    :data:`TROE_NEGLIGIBLE_TERM` (relative). a and 1 - a are both in [0, 1] or both
+    outside, so a fitted a stays in its bounds [0, 1]; an a given outside [0, 1] (F_cent may
+    still be a valid broadening) is mapped by the same rules.
     """
     a, T3, T1 = float(a), float(T3), float(T1)
+    T2 = None if T2 is None else float(T2)
+    t = None if temperature_K is None else np.atleast_1d(np.asarray(temperature_K, dtype=float))
+    if abs(1.0 - a) < abs(a):                      # the twin with the smaller |a|
+        a, T3, T1 = 1.0 - a, T1, T3
     if abs(a) <= TROE_BOUND_TOLERANCE:
-        return 0.0, T3, T3
-    if abs(1.0 - a) <= TROE_BOUND_TOLERANCE:
-        return 0.0, T1, T1
-    if abs(math.log(T1 / T3)) <= TROE_MERGE_TOLERANCE:
-        t = 1.0 / ((1.0 - a) / T3 + a / T1)
-        return 0.0, t, t
-    return (1.0 - a, T1, T3) if T3 > T1 else (a, T3, T1)
+        return 0.0, T3, T3, _canonical_T2(t, 0.0, T3, T3, T2)
+    single = 1.0 / ((1.0 - a) / T3 + a / T1) if (1.0 - a) / T3 + a / T1 > 0 else None
+    if abs(math.log(T1 / T3)) <= TROE_MERGE_TOLERANCE and single is not None:
+        return 0.0, single, single, _canonical_T2(t, 0.0, single, single, T2)
+    if t is not None:
+        e3, e1, e2 = _fcent_terms(t, a, T3, T1, T2)
+        fc = e3 + e1 + e2
+        if np.all(fc > 0):
+            best = None
+            for cand in ([single] if single is not None else []) + [T3, T1]:
+                err = float(np.max(np.abs(np.exp(-t / cand) + e2 - fc) / fc))
+                if best is None or err < best[0]:
+                    best = (err, cand)
+            if best[0] <= TROE_NEGLIGIBLE_TERM:
+                return 0.0, best[1], best[1], _canonical_T2(t, 0.0, best[1], best[1], T2)
+            dead3, dead1 = (np.all(np.abs(e) <= TROE_NEGLIGIBLE_TERM * fc) for e in (e3, e1))
+            if dead1 and not dead3:                # put the dead term first
+                a, T3, T1 = 1.0 - a, T1, T3
+                dead3, dead1 = True, False
+            if dead3 and not dead1:
+                return a, TROE_T_BOUNDS_K[0], T1, _canonical_T2(t, a, TROE_T_BOUNDS_K[0], T1, T2)
+    if T3 > T1:
+        a, T3, T1 = 1.0 - a, T1, T3
+    return a, T3, T1, _canonical_T2(t, a, T3, T1, T2)
+
+
+def _canonical_T2(t, a, T3, T1, T2):
+    if T2 is None or t is None:
+        return T2
+    e3, e1, e2 = _fcent_terms(t, a, T3, T1, T2)
+    fc = e3 + e1 + e2
+    if np.all(fc > 0) and np.all(e2 <= TROE_NEGLIGIBLE_TERM * fc):
+        return TROE_T_BOUNDS_K[1]
+    return T2
 
 
 def troe_parameters_at_bound(a, T3, T1, T2=None) -> tuple[tuple[str, float], ...]:
@@ -324,15 +370,15 @@ class TroeFit:
     at_bound: tuple[tuple[str, float], ...] = ()
 
 
-def troe_fit_result(a, T3, T1, T2, relative_deviation) -> TroeFit:
-    """The :class:`TroeFit` of fitted parameters: canonical twin, deviations, bounds reached.
+def troe_fit_result(a, T3, T1, T2, relative_deviation, temperature_K) -> TroeFit:
+    """The :class:`TroeFit` of fitted parameters: canonical labels, deviations, bounds reached.
 
-    ``relative_deviation(a, T3, T1, T2)`` gives k_fit/k - 1 on the fitted grid; it is
-    evaluated with the canonical parameters, so the deviations are those of the labels
+    ``relative_deviation(a, T3, T1, T2)`` gives k_fit/k - 1 on the fitted grid, whose
+    temperatures are ``temperature_K`` [K]; it is evaluated with the canonical parameters
+    (:func:`canonical_troe` at those temperatures), so the deviations are those of the labels
     reported.
     """
-    a, T3, T1 = canonical_troe(a, T3, T1)
-    T2 = None if T2 is None else float(T2)
+    a, T3, T1, T2 = canonical_troe(a, T3, T1, T2, temperature_K=temperature_K)
     dev = np.asarray(relative_deviation(a, T3, T1, T2), dtype=float)
     return TroeFit(a, T3, T1, T2, float(np.max(np.abs(dev))), float(np.sqrt(np.mean(dev**2))),
                    troe_parameters_at_bound(a, T3, T1, T2))
@@ -364,8 +410,9 @@ def fit_troe(temperature_K, number_density_m3, rate, k0, k_inf, *, fit_T2: bool 
              starts=None) -> TroeFit:
     """Least-squares fit of Troe parameters (a, T***, T*, optional T**) on log k.
 
-    The result is the canonical twin of :func:`canonical_troe` whichever twin the optimiser
-    reaches, and names the parameters that sit at a bound of the fit (``at_bound``).
+    The result has the canonical labels of :func:`canonical_troe` at the fitted temperatures,
+    whichever twin the optimiser reaches, and names the parameters that sit at a bound of the
+    fit (``at_bound``).
 
     Parameters
     ----------
@@ -432,4 +479,4 @@ def fit_troe(temperature_K, number_density_m3, rate, k0, k_inf, *, fit_T2: bool 
             best = sol
     p = best.x
     return troe_fit_result(p[0], math.exp(p[1]), math.exp(p[2]), math.exp(p[3]) if fit_T2 else None,
-                           lambda a, t3, t1, t2: model(a, t3, t1, t2) / k - 1.0)
+                           lambda a, t3, t1, t2: model(a, t3, t1, t2) / k - 1.0, t)

@@ -681,7 +681,7 @@ def fit_troe_effective_k0(temperature_K, number_density_m3, rate, k0, k_inf, *,
     def deviation(a, t3, t1, t2):
         return troe_rate(k0e[:, None], kinf[:, None], m[None, :], t[:, None], a, t3, t1, t2) / k - 1.0
 
-    return troe_fit_result(a, t3, t1, t2, deviation), k0e
+    return troe_fit_result(a, t3, t1, t2, deviation, t), k0e
 
 
 def canonical_tst(study: Study, channel: Channel, temperature_K, tunnelling: str = "none") -> np.ndarray:
