@@ -7,6 +7,8 @@ import pytest
 
 from tstrate.cli.main import main
 
+pytestmark = pytest.mark.fitting     # rerun by .ci/run with 1 and 2 BLAS threads
+
 DATA = Path(__file__).resolve().parents[1] / "data" / "falloff"
 TOY = Path(__file__).resolve().parents[1] / "data" / "toy" / "study.toml"
 

@@ -61,6 +61,11 @@ def test_run_writes_every_output_and_leaves_inputs_alone(study, tmp_path, capsys
     limits = report[report.index("## Limits of these results"):]
     assert "Channel bare: deep tunnelling" in limits
     assert "high-pressure limit" in limits
+    # the demo's bare-channel falloff fits best with one decaying term (a at its bound 0): fits.json
+    # names the parameter at the bound and the report's warnings say what it means
+    bare = next(c for c in json.loads((out / "fits.json").read_text())["channels"] if c["name"] == "bare")
+    assert bare["falloff_troe"]["parameters_at_bound"] == {"a": 0.0}
+    assert "channel 'bare': Troe fit: F_cent has a single decaying term exp(-T/T***)" in report
     # inputs with their hashes
     inputs = json.loads((out / "inputs.json").read_text())["inputs"]
     assert {Path(i["file"]).name for i in inputs} >= {"study.toml", "h2co3.toml", "ts_bare.toml"}

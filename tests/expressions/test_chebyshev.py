@@ -19,6 +19,8 @@ import pytest
 from tstrate.errors import InputError
 from tstrate.expressions.chebyshev import ChebyshevFit, fit_chebyshev
 
+pytestmark = pytest.mark.fitting     # rerun by .ci/run with 1 and 2 BLAS threads
+
 T_GRID = np.arange(150.0, 301.0, 10.0)                 # the demo study's temperatures [K]
 P_GRID = np.array([0.1, 0.3, 1, 3, 10, 30, 100, 300, 1e3, 3e3, 1e4, 3e4, 1e5])  # [Pa]
 

@@ -28,6 +28,8 @@ from tstrate.output.mechanism import mechanism_yaml, write_mechanism
 from tstrate.output.tables import fits_csv_text
 from tstrate.units import N_A
 
+pytestmark = pytest.mark.fitting     # rerun by .ci/run with 1 and 2 BLAS threads
+
 ct = pytest.importorskip("cantera")
 
 ROOT = Path(__file__).resolve().parents[2]

@@ -27,6 +27,8 @@ from tstrate.physics.thermo import thermochemistry
 from tstrate.study.rates import study_rates
 from tstrate.units import R
 
+pytestmark = pytest.mark.fitting     # rerun by .ci/run with 1 and 2 BLAS threads
+
 ROOT = Path(__file__).resolve().parents[2]
 TOY = ROOT / "tests" / "data" / "toy" / "study.toml"
 CARBONIC = Path(__file__).resolve().parent / "data" / "carbonic" / "study.toml"

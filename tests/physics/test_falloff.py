@@ -8,13 +8,15 @@ from scipy.constants import k as kB, physical_constants
 
 from tstrate.errors import InputError
 from tstrate.physics.collisions import bath_gas, pair_collision_rate_m3_s, LennardJones
-from tstrate.physics.falloff import (fit_troe, high_pressure_limit, jpl_termolecular_rate,
-                                     lindemann_hinshelwood, low_pressure_limit, number_density_from,
-                                     strong_collision_falloff, thermal_distribution, troe_center_broadening,
-                                     troe_rate)
+from tstrate.physics.falloff import (TROE_T_BOUNDS_K, canonical_troe, fit_troe, high_pressure_limit,
+                                     jpl_termolecular_rate, lindemann_hinshelwood, low_pressure_limit,
+                                     number_density_from, strong_collision_falloff, thermal_distribution,
+                                     troe_bound_notes, troe_center_broadening, troe_rate)
 from tstrate.physics.rrkm import rrkm_rate
 from tstrate.physics.states import CM1_J_PER_MOL
 from tstrate.units import RATE_UNITS
+
+pytestmark = pytest.mark.fitting     # rerun by .ci/run with 1 and 2 BLAS threads
 
 # Invented demo wavenumbers (cm-1) and barrier for carbonic acid -> CO2 + H2O (see test_rrkm.py).
 H2CO3_CM1 = [3640, 3630, 1830, 1450, 1380, 1180, 1010, 790, 670, 580, 550, 220]
@@ -139,23 +141,141 @@ def test_number_density_conversions():
         number_density_from(1.0, "psi", 300.0)
 
 
-@pytest.mark.parametrize("params", [(0.4, 400.0, 2500.0, None), (0.6, 200.0, 1500.0, 4000.0)],
-                         ids=["3-parameter", "4-parameter"])
-def test_troe_fit_recovers_exact_synthetic_parameters(params):
-    a, t3, t1, t2 = params
-    t = np.linspace(200.0, 1500.0, 12)
-    m = np.logspace(20, 28, 15)
-    k0 = 1e-16 * (t / 300.0) ** -3
-    kinf = 1e5 * np.exp(-1000.0 / t)
-    k = troe_rate(k0[:, None], kinf[:, None], m[None, :], t[:, None], a, t3, t1, t2)
-    fit = fit_troe(t, m, k, k0, kinf, fit_T2=t2 is not None)
-    assert fit.a == pytest.approx(a, rel=1e-4)
-    assert fit.T3_K == pytest.approx(t3, rel=1e-4)
-    assert fit.T1_K == pytest.approx(t1, rel=1e-4)
-    if t2 is not None:
-        assert fit.T2_K == pytest.approx(t2, rel=1e-4)
+# Troe fits. F_cent = (1-a) exp(-T/T***) + a exp(-T/T*) (+ exp(-T**/T)) has two exact labels
+# (a, T***, T*) and (1-a, T*, T***); what a fit determines is the curve, so the fits are checked on
+# F_cent(T) and k(T, [M]). The canonical labels themselves are checked separately below.
+SYNTHETIC_T = np.linspace(200.0, 1500.0, 12)
+SYNTHETIC_M = np.logspace(20, 28, 15)
+TWINS = [(0.6, 200.0, 1500.0, 4000.0), (0.4, 1500.0, 200.0, 4000.0)]   # the same F_cent(T)
+
+
+def _synthetic_limits(t):
+    return 1e-16 * (t / 300.0) ** -3, 1e5 * np.exp(-1000.0 / t)      # k0 [m^3 s^-1], k_inf [s^-1]
+
+
+def _synthetic_troe(params, t=SYNTHETIC_T, m=SYNTHETIC_M):
+    k0, kinf = _synthetic_limits(t)
+    return troe_rate(k0[:, None], kinf[:, None], m[None, :], t[:, None], *params)
+
+
+def _fit_synthetic(params, **kwargs):
+    k0, kinf = _synthetic_limits(SYNTHETIC_T)
+    return fit_troe(SYNTHETIC_T, SYNTHETIC_M, _synthetic_troe(params), k0, kinf,
+                    fit_T2=params[3] is not None, **kwargs)
+
+
+def _labels(fit):
+    return fit.a, fit.T3_K, fit.T1_K, fit.T2_K
+
+
+def _same_labels(got, expected, rel):
+    """(a, T***, T*, T**) equal within rel; T** may be None in both."""
+    assert got[:3] == pytest.approx(expected[:3], rel=rel)
+    assert (got[3] is None) == (expected[3] is None)
+    if expected[3] is not None:
+        assert got[3] == pytest.approx(expected[3], rel=rel)
+
+
+@pytest.mark.parametrize("params", [(0.4, 400.0, 2500.0, None)] + TWINS,
+                         ids=["3-parameter", "4-parameter", "4-parameter-twin"])
+def test_troe_fit_recovers_exact_synthetic_curves(params):
+    fit = _fit_synthetic(params)
+    # Exact Troe data fitted on ln k to 1e-14: the curves come back to round-off (observed
+    # max |k_fit/k - 1| ~ 1e-15). Checked on grids 10 and 5 times finer than the fitted one,
+    # inside its range; 1e-6 leaves room for round-off only, not for another curve.
+    t_fine = np.linspace(200.0, 1500.0, 111)
+    m_fine = np.logspace(20, 28, 71)
+    np.testing.assert_allclose(troe_center_broadening(t_fine, *_labels(fit)),
+                               troe_center_broadening(t_fine, *params), rtol=1e-6)
+    np.testing.assert_allclose(_synthetic_troe(_labels(fit), t_fine, m_fine),
+                               _synthetic_troe(params, t_fine, m_fine), rtol=1e-6)
     assert fit.max_relative_deviation < 1e-6
     assert fit.rms_relative_deviation <= fit.max_relative_deviation
+    assert fit.T3_K < fit.T1_K and fit.at_bound == ()      # canonical order, nothing at a bound
+
+
+def test_troe_fit_returns_the_canonical_twin_from_either_start():
+    # Started on each exact twin, the optimiser stays there (zero residual); the fit must still
+    # report one set of labels, the canonical twin T*** < T* (canonical_troe): (0.6, 200, 1500, 4000).
+    fits = [_fit_synthetic(TWINS[0], starts=[s]) for s in TWINS]
+    for fit in fits:
+        assert fit.max_relative_deviation < 1e-6
+        _same_labels(_labels(fit), TWINS[0], rel=1e-6)
+
+
+def test_canonical_troe_maps_every_twin_pair_to_one_representative():
+    t = np.linspace(100.0, 3000.0, 59)
+
+    def fc(p):
+        return troe_center_broadening(t, *p)
+
+    for p in [(0.6, 200.0, 1500.0, None), (0.4, 1500.0, 200.0, 4000.0), (0.25, 3000.0, 90.0, None),
+              (1.3, 900.0, 300.0, None)]:
+        twin = (1 - p[0], p[2], p[1], p[3])
+        c = canonical_troe(*p)
+        _same_labels(canonical_troe(*twin), c, rel=1e-12)
+        _same_labels(canonical_troe(*c), c, rel=1e-12)                       # a fixed point
+        assert c[1] < c[2] and c[3] == p[3]                                  # T*** < T*, T** untouched
+        np.testing.assert_allclose(fc(c), fc(p), rtol=1e-12)                 # the same curve
+    _same_labels(canonical_troe(0.4, 1500.0, 200.0), (0.6, 200.0, 1500.0, None), rel=1e-12)
+    # a outside [0, 1]: its twin is outside too; the same rule picks T*** < T* (a = -0.3 here)
+    _same_labels(canonical_troe(1.3, 900.0, 300.0), (-0.3, 300.0, 900.0, None), rel=1e-12)
+    # one decaying term: a at 0 or 1 (the other temperature means nothing) or T*** = T* (a means
+    # nothing) are all written a = 0, T*** = T*
+    for p in [(1.0, 481.0, 151.7), (0.0, 151.7, 481.0), (1.0 - 1e-9, 3.0, 151.7), (0.7, 151.7, 151.7),
+              (0.3, 151.7, 151.7 * (1 + 1e-7))]:
+        c = canonical_troe(*p)
+        _same_labels(c, (0.0, 151.7, 151.7, None), rel=1e-6)
+        np.testing.assert_allclose(fc(c), fc(p + (None,)), rtol=1e-6)
+
+
+def test_canonical_troe_at_the_fitted_temperatures_drops_terms_that_do_not_count():
+    # 150-300 K. Each of these changes F_cent by less than TROE_NEGLIGIBLE_TERM = 1e-4 there, so
+    # the data of a fit cannot tell it from the canonical form, which is written instead.
+    t = np.linspace(150.0, 300.0, 16)
+    cases = [
+        # a second decaying term of weight 4e-6: one term, a = 0 (the optimiser's a and T*** vary)
+        ((0.999996, 97.96, 100.96, None), (0.0, 100.96, 100.96, None)),
+        ((0.999999, 81.57, 100.96, None), (0.0, 100.96, 100.96, None)),
+        # T*** = 5 K: its term is below 1e-13 of F_cent; T*** goes to its lower bound 1 K
+        ((0.5, 5.0, 400.0, None), (0.5, 1.0, 400.0, None)),
+        ((0.5, 400.0, 5.0, None), (0.5, 1.0, 400.0, None)),          # the same, other twin
+        # T** = 1e4 K: exp(-T**/T) < 4e-15 here; T** goes to its upper bound 1e8 K
+        ((0.6, 200.0, 1500.0, 1e4), (0.6, 200.0, 1500.0, 1e8)),
+        ((0.6, 200.0, 1500.0, 4.5e5), (0.6, 200.0, 1500.0, 1e8)),
+    ]
+    for given, expected in cases:
+        c = canonical_troe(*given, temperature_K=t)
+        _same_labels(c, expected, rel=1e-4)
+        np.testing.assert_allclose(troe_center_broadening(t, *c), troe_center_broadening(t, *given), rtol=1e-4)
+    # a second term that counts stays: weight 0.01 on exp(-T/150 K) is 7 % of F_cent at 150 K
+    _same_labels(canonical_troe(0.99, 50.0, 150.0, temperature_K=t), (0.99, 50.0, 150.0, None), rel=1e-12)
+
+
+def test_troe_fit_names_parameters_at_a_bound():
+    # data with T* = 1e12 K: the best fit pushes T* to the upper bound of the fit (1e8 K), where
+    # exp(-T/T*) differs from 1 by T/1e8 <= 1.5e-5, and says so
+    params = (0.3, 300.0, 1e12, None)
+    fit = _fit_synthetic(params)
+    assert fit.at_bound == (("T1_K", TROE_T_BOUNDS_K[1]),)
+    (note,) = troe_bound_notes(fit)
+    assert "T* sits at its upper bound 1e+08 K" in note
+    # the curve is still the data's: F_cent moves by at most 0.3 * 1.5e-5 = 4.5e-6
+    np.testing.assert_allclose(_synthetic_troe(_labels(fit)), _synthetic_troe(params), rtol=1e-5)
+    # a single decaying term (any a with T*** = T*): a = 0, T*** = T* = 300 K, a named at its bound 0
+    fit = _fit_synthetic((0.5, 300.0, 300.0, None))
+    assert fit.at_bound == (("a", 0.0),)
+    assert (fit.a, fit.T1_K) == (0.0, fit.T3_K)
+    assert fit.T3_K == pytest.approx(300.0, rel=1e-6)     # the one temperature is determined
+    (note,) = troe_bound_notes(fit)
+    assert "single decaying term exp(-T/T***) with T*** = 300 K" in note and "T* carries no" in note
+
+
+def test_troe_fit_rejects_bad_starting_points():
+    with pytest.raises(InputError, match="starting point needs 3 finite numbers"):
+        _fit_synthetic((0.4, 400.0, 2500.0, None), starts=[(0.5, 300.0)])
+    with pytest.raises(InputError, match="no Troe starting point"):
+        _fit_synthetic((0.4, 400.0, 2500.0, None), starts=[])
 
 
 def test_troe_fit_of_a_computed_falloff_curve(rate, z_co2):
@@ -166,6 +286,10 @@ def test_troe_fit_of_a_computed_falloff_curve(rate, z_co2):
     fit = fit_troe(t, m, res.rate_per_s, res.low_pressure_m3_s, res.high_pressure_per_s)
     assert 0 <= fit.a <= 1
     assert fit.max_relative_deviation < 0.1
+    # the stated deviation is the one of the labels reported (curve against data)
+    k_fit = troe_rate(res.low_pressure_m3_s[:, None], res.high_pressure_per_s[:, None], m[None, :], t[:, None],
+                      *_labels(fit))
+    assert np.max(np.abs(k_fit / res.rate_per_s - 1)) == pytest.approx(fit.max_relative_deviation, rel=1e-9)
     fc = troe_center_broadening(t, fit.a, fit.T3_K, fit.T1_K)
     assert np.all((fc > 0) & (fc <= 1))
 

@@ -30,7 +30,6 @@ The data are the invented test studies in tests/data/toy and tests/data/tst (not
 from __future__ import annotations
 
 import dataclasses
-import functools
 import math
 from pathlib import Path
 
@@ -63,19 +62,14 @@ P0 = 1e5  # 1 bar [Pa], IUPAC standard pressure (definition)
 TEMPS = np.array([50.0, 150.0, 200.0, 298.15, 500.0, 1000.0, 3000.0])
 
 
-@functools.lru_cache(maxsize=None)
-def _study(path: Path):
-    return read_study(path)
-
-
 @pytest.fixture(scope="module")
 def toy():
-    return _study(TOY_STUDY)
+    return read_study(TOY_STUDY)
 
 
 @pytest.fixture(scope="module")
 def carbonic():
-    return _study(TST_STUDY)
+    return read_study(TST_STUDY)
 
 
 # ---- textbook pieces, written out independently of tstrate.physics.thermo --------------------
@@ -534,9 +528,9 @@ def test_eckart_without_complex_uses_the_separated_reactants(carbonic):
 
 # ---- property tests ------------------------------------------------------------------------------
 
-def _modified_channel(channel_name: str, barrier_J_per_mol: float, imag_cm1: float, model: str):
-    """Toy channel whose TS has the given ZPE-corrected barrier and imaginary wavenumber."""
-    toy = _study(TOY_STUDY)
+def _modified_channel(toy, channel_name: str, barrier_J_per_mol: float, imag_cm1: float, model: str):
+    """Toy channel whose TS has the given ZPE-corrected barrier and imaginary wavenumber (copies; the
+    toy study is not changed)."""
     ch = dataclasses.replace(toy.channel(channel_name), tunnelling=model)
     sp = dict(toy.species)
     ts = sp[ch.transition_state]
@@ -553,10 +547,10 @@ def _modified_channel(channel_name: str, barrier_J_per_mol: float, imag_cm1: flo
        temps=st.lists(st.floats(50.0, 3000.0), min_size=1, max_size=6),
        model=st.sampled_from(["none", "wigner", "eckart"]),
        channel=st.sampled_from(["inversion", "exchange"]))
-def test_rates_finite_and_positive(barrier_kJ, imag_cm1, temps, model, channel):
+def test_rates_finite_and_positive(toy, barrier_kJ, imag_cm1, temps, model, channel):
     # barriers within rounding of zero (|E0| ~ 1e-10 J/mol out of ~1e5) could land on either side
     assume(model != "eckart" or abs(barrier_kJ) > 1e-6)
-    ch, sp = _modified_channel(channel, barrier_kJ * 1e3, imag_cm1, model)
+    ch, sp = _modified_channel(toy, channel, barrier_kJ * 1e3, imag_cm1, model)
     T = np.array(temps)
     if model == "eckart" and barrier_kJ <= 0:
         # products = reactants in the toy channels, so V1 = V2 = the barrier

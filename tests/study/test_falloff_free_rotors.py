@@ -27,6 +27,8 @@ from tstrate.model.settings import FalloffSettings
 from tstrate.physics.unimolecular import unimolecular_model
 from tstrate.study.falloff import channel_falloff
 
+pytestmark = pytest.mark.fitting     # rerun by .ci/run with 1 and 2 BLAS threads
+
 DATA = Path(__file__).resolve().parents[1] / "data" / "falloff"
 C2_CM_K = physical_constants["second radiation constant"][0] * 100   # hc/k [cm K] (CODATA)
 CM1_J_PER_MOL = h * c_light * 100 * N_A                                 # one cm-1 as J/mol

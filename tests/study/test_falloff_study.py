@@ -20,6 +20,8 @@ from tstrate.model.settings import FalloffSettings
 from tstrate.physics.unimolecular import rotational_constants_cm1, split_rotation, unimolecular_model
 from tstrate.study.falloff import bath_parameters, channel_falloff, channel_model, study_falloff
 
+pytestmark = pytest.mark.fitting     # rerun by .ci/run with 1 and 2 BLAS threads
+
 DATA = Path(__file__).resolve().parents[1] / "data" / "falloff"
 C2_CM_K = physical_constants["second radiation constant"][0] * 100   # hc/k [cm K] (CODATA)
 CM1_J_PER_MOL = h * c_light * 100 * N_A                                 # one cm-1 as J/mol
@@ -153,6 +155,41 @@ def test_troe_fit_is_reported_with_its_error(result):
     assert bare.troe.max_relative_deviation < 0.2
     # the per-channel override asked for T** on the Eckart channel
     assert _channel(result, "bare_eckart").troe.T2_K is not None
+
+
+def test_troe_parameters_at_a_bound_reach_the_warnings(result):
+    # the test study's bare channel (strong collisions, no tunnelling) fits best with one decaying
+    # term: a at its bound 0, T* = T***; every parameter at a bound gets one warning sentence
+    assert _channel(result, "bare").troe.at_bound == (("a", 0.0),)
+    for cf in result.channels:
+        notes = [w for w in cf.warnings if "Troe fit:" in w]
+        assert len(notes) == len(cf.troe.at_bound)
+        assert all(w.startswith(f"channel {cf.name!r}: Troe fit: ") for w in notes)
+        assert all(w in result.warnings for w in notes)
+    assert any("single decaying term exp(-T/T***)" in w for w in result.warnings)
+
+
+@pytest.mark.parametrize("twin", [(0.6, 200.0, 1500.0), (0.4, 1500.0, 200.0)], ids=["canonical", "swapped"])
+def test_effective_k0_troe_fit_gives_the_curve_in_canonical_order(twin):
+    from tstrate.physics.falloff import troe_center_broadening, troe_rate
+    from tstrate.physics.unimolecular import fit_troe_effective_k0
+
+    # exact Troe data whose k0 is 5 times the classical one handed to the fit (as for Eckart
+    # channels); both twins give the same data, and the fit must give back the curve with
+    # T*** < T*
+    t = np.linspace(150.0, 300.0, 7)
+    m = np.logspace(18, 26, 17)
+    kinf = 1e3 * np.exp(-2000.0 / t)
+    k0_true = 5e-17 * (t / 300.0) ** -4
+    k = troe_rate(k0_true[:, None], kinf[:, None], m[None, :], t[:, None], *twin)
+    fit, k0e = fit_troe_effective_k0(t, m, k, k0_true / 5, kinf)
+    # exact data, least squares to 1e-12 on ln k; 1e-6 is round-off headroom
+    assert fit.max_relative_deviation < 1e-6
+    k_fit = troe_rate(k0e[:, None], kinf[:, None], m[None, :], t[:, None], fit.a, fit.T3_K, fit.T1_K, fit.T2_K)
+    np.testing.assert_allclose(k_fit, k, rtol=1e-6)
+    np.testing.assert_allclose(troe_center_broadening(t, fit.a, fit.T3_K, fit.T1_K),
+                               troe_center_broadening(t, *twin), rtol=1e-6)
+    assert fit.T3_K < fit.T1_K and fit.at_bound == ()
 
 
 def test_collision_efficiency_from_delta_e_down(result):

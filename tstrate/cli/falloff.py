@@ -18,14 +18,20 @@ higher order are listed as not computed.
 
 Also given: the limits k_inf(T) and k_0(T), the Lindemann-Hinshelwood curve,
 a Troe fit (a, T***, T*, optionally T**, Fcent(T)) with its error, and
-k_inf / canonical TST as a check.
+k_inf / canonical TST as a check. The Troe labels are canonical: T*** < T*
+(a and 1 - a swapped with them when needed, which leaves Fcent unchanged);
+a fit with one decaying term has a = 0 and T* = T***, and terms below 1e-4
+of Fcent at every temperature are written at the bound where they vanish.
+Parameters at a bound of the fit are named in parameters_at_bound and in a
+warning.
 
 JSON output (--json): "study", "title", "bath_gas", "bath_gas_lennard_jones",
 "channels" (each: name, order, temperature_K, pressure_bar (a list over pressure, or
 over temperature of lists when the study gives number densities), number_density_per_cm3,
 rate_constant [T][p], rate_constant_unit, k_high_pressure(_unit), k_low_pressure(_unit),
 lindemann_rate_constant, canonical_tst_rate_constant, k_high_pressure_over_canonical_tst,
-troe {a, T3_K, T1_K, T2_K, Fcent, k_low_pressure(_unit, _kind), max_relative_deviation,
+troe {a, T3_K, T1_K, T2_K, parameters_at_bound (name -> bound: a 0 or 1, temperatures in K),
+Fcent, k_low_pressure(_unit, _kind), max_relative_deviation,
 rms_relative_deviation, fitted_on, rate_constant, max_relative_deviation_on_study_grid},
 bath_gas, collision_efficiency, collisions {...}, grain_cm1, requested_grain_cm1,
 barrier_zpe_kJ_per_mol, reaction_path_degeneracy, centrifugal_factor, rotors, warnings),

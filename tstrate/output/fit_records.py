@@ -87,6 +87,7 @@ def _troe_record(t: TroeData, rate_units) -> dict:
         "Fcent_formula": "(1-a) exp(-T/T3) + a exp(-T/T1) + exp(-T2/T) (last term only with T2)",
         "fit_max_deviation_percent": _pct(t.max_rel_deviation),
         "fit_rms_deviation_percent": _pct(t.rms_rel_deviation),
+        "parameters_at_bound": {name: bound for name, bound in t.at_bound},
         "bath_gas": t.bath_gas,
         "source": t.source,
     }

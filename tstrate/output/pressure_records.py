@@ -71,6 +71,7 @@ def falloff_channel_record(cf, rate_units: dict | None = None) -> dict:
         "k_high_pressure_over_canonical_tst": cf.k_high_pressure_per_s / cf.canonical_tst_per_s,
         "troe": {
             "a": fit.a, "T3_K": fit.T3_K, "T1_K": fit.T1_K, "T2_K": fit.T2_K,
+            "parameters_at_bound": {name: bound for name, bound in fit.at_bound},
             "Fcent": cf.troe_Fcent,
             "k_low_pressure": _rate_in(cf.troe_k0_m3_per_s, 2, u2),
             "k_low_pressure_unit": u2,

@@ -70,8 +70,9 @@ from tstrate.errors import InputError
 from tstrate.model import Channel, Species
 from tstrate.model.settings import FalloffSettings
 from tstrate.physics import collisions as coll
-from tstrate.physics.falloff import (TroeFit, fit_troe, lindemann_hinshelwood, strong_collision_falloff,
-                                     thermal_distribution, troe_center_broadening, troe_rate)
+from tstrate.physics.falloff import (TROE_A_BOUNDS, TROE_T_BOUNDS_K, TroeFit, fit_troe, lindemann_hinshelwood,
+                                     strong_collision_falloff, thermal_distribution, troe_bound_notes,
+                                     troe_center_broadening, troe_fit_result, troe_rate)
 from tstrate.physics.rrkm import ExternalRotation, MicrocanonicalRate, microcanonical_rate
 from tstrate.physics.states import (CM1_J_PER_MOL, GRAIN_FRACTION_OF_LOWEST, Rotor, StateCounts,
                                     convolve_counts, count_states)
@@ -449,6 +450,7 @@ def falloff_on_grid(model: UnimolecularModel, settings: FalloffSettings, bath: c
         troe, k0_troe = fit_troe_effective_k0(t, m_fit, fo_fit.rate_per_s, k0, k_inf, fit_T2=settings.fit_T2)
     else:
         troe, k0_troe = fit_troe(t, m_fit, fo_fit.rate_per_s, k0, k_inf, fit_T2=settings.fit_T2), k0
+    warnings += [f"channel {channel.name!r}: {note}" for note in troe_bound_notes(troe)]
     troe_k = troe_rate(k0_troe[:, None], k_inf[:, None], m, t[:, None], troe.a, troe.T3_K, troe.T1_K, troe.T2_K)
     lind = lindemann_hinshelwood(k0_troe[:, None], k_inf[:, None], m)
     fcent = troe_center_broadening(t, troe.a, troe.T3_K, troe.T1_K, troe.T2_K)
@@ -486,7 +488,10 @@ def fit_troe_effective_k0(temperature_K, number_density_m3, rate, k0, k_inf, *,
     then does not describe the curve, so an effective k_0(T) is fitted together with
     a, T***, T* (and T**) on log k (least squares), the usual practice when a limit is not
     reached in the fitted range. Starts from :func:`tstrate.physics.falloff.fit_troe` with
-    k_0 = max(k_0 classical, k([M]_min)/[M]_min). Returns (fit, k_0 effective [m^3 s^-1]).
+    k_0 = max(k_0 classical, k([M]_min)/[M]_min). The Troe parameters have the bounds of
+    ``fit_troe`` and come back as its canonical twin (:func:`tstrate.physics.falloff.canonical_troe`),
+    with the parameters at a bound named in ``at_bound`` (k_0 does not take part in the swap).
+    Returns (fit, k_0 effective [m^3 s^-1]).
     """
     from scipy.optimize import least_squares
 
@@ -512,16 +517,19 @@ def fit_troe_effective_k0(temperature_K, number_density_m3, rate, k0, k_inf, *,
 
     x0 = [first.a, math.log(first.T3_K), math.log(first.T1_K)] + \
         ([math.log(first.T2_K)] if fit_T2 else []) + list(np.log(guess))
-    lo = [0.0, 0.0, 0.0] + ([0.0] if fit_T2 else []) + list(np.log(guess) - 40.0)
-    hi = [1.0, math.log(1e8), math.log(1e8)] + ([math.log(1e8)] if fit_T2 else []) + list(np.log(guess) + 40.0)
+    ln_lo, ln_hi = math.log(TROE_T_BOUNDS_K[0]), math.log(TROE_T_BOUNDS_K[1])
+    lo = [TROE_A_BOUNDS[0]] + [ln_lo] * (n_p - 1) + list(np.log(guess) - 40.0)
+    hi = [TROE_A_BOUNDS[1]] + [ln_hi] * (n_p - 1) + list(np.log(guess) + 40.0)
     x0 = np.clip(x0, lo, hi)
     sol = least_squares(residual, x0, bounds=(lo, hi), x_scale="jac", xtol=1e-12, ftol=1e-12, gtol=1e-12,
                         max_nfev=4000)
     if 0.5 * np.sum(residual(x0) ** 2) <= sol.cost:
         return first, guess
     a, t3, t1, t2, k0e = unpack(sol.x)
-    dev = np.exp(-residual(sol.x).reshape(k.shape))
-    dev = 1.0 / dev - 1.0
-    return TroeFit(float(a), t3, t1, t2, float(np.max(np.abs(dev))), float(np.sqrt(np.mean(dev**2)))), k0e
+
+    def deviation(a, t3, t1, t2):
+        return troe_rate(k0e[:, None], kinf[:, None], m[None, :], t[:, None], a, t3, t1, t2) / k - 1.0
+
+    return troe_fit_result(a, t3, t1, t2, deviation, t), k0e
 
 

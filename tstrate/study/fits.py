@@ -143,6 +143,8 @@ class TroeData:
         + a exp(-T/T*) + exp(-T**/T) (Troe 1983).
     max_rel_deviation, rms_rel_deviation: quality of the Troe fit against the
         underlying k(T, [M]) (fractions), if known.
+    at_bound: (parameter, bound) for each of a, T3_K, T1_K, T2_K that sits at a bound of
+        the fit (the data do not determine its value), if known.
     bath_gas: the collision partner the parameters were computed for, if known.
     source: free text (e.g. "RRKM strong-collision falloff, tstrate").
     """
@@ -157,6 +159,7 @@ class TroeData:
     rms_rel_deviation: float | None = None
     bath_gas: str | None = None
     source: str | None = None
+    at_bound: tuple[tuple[str, float], ...] = ()
 
     def __post_init__(self):
         for name in ("k0", "kinf"):
@@ -180,7 +183,7 @@ class TroeData:
 
         ``params`` may be the falloff module's fit result (attributes ``a``,
         ``T3_K``, ``T1_K``, ``T2_K``, ``max_relative_deviation``,
-        ``rms_relative_deviation``) or a mapping with the same keys.
+        ``rms_relative_deviation``, ``at_bound``) or a mapping with the same keys.
         """
         def get(key, default=None):
             if isinstance(params, Mapping):
@@ -194,7 +197,8 @@ class TroeData:
                    T1_K=float(get("T1_K")), T2_K=None if t2 is None else float(t2),
                    max_rel_deviation=None if dev is None else float(dev),
                    rms_rel_deviation=None if rms is None else float(rms),
-                   bath_gas=bath_gas, source=source)
+                   bath_gas=bath_gas, source=source,
+                   at_bound=tuple((str(n), float(b)) for n, b in dict(get("at_bound") or {}).items()))
 
 
 def arrhenius_expression(A_SI: float, n: float, Ea_J_per_mol: float, *, order: int,
