@@ -51,7 +51,7 @@ def test_falloff_json_keys(falloff_json):
                     "troe", "bath_gas", "collision_efficiency", "grain_cm1", "lindemann_rate_constant",
                     "canonical_tst_rate_constant", "collisions", "warnings"):
             assert key in ch, key
-        for key in ("a", "T3_K", "T1_K", "T2_K", "Fcent", "max_relative_deviation", "rms_relative_deviation"):
+        for key in ("a", "T3_K", "T1_K", "T2_K", "Fcent", "max_deviation_percent", "rms_deviation_percent"):
             assert key in ch["troe"], key
         assert ch["rate_constant_unit"] == "s-1" and ch["k_low_pressure_unit"] == "cm3 molecule-1 s-1"
         assert ch["pressure_bar"] == [1e-6, 1e-4, 1e-2, 1.0]

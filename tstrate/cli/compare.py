@@ -98,16 +98,16 @@ def _print_scenario(rec) -> None:
     print(f"free {rec['substrate']} (not held in the complexes): {min(free):.3g} to {max(free):.3g} "
           "of the total; rates above are per free molecule")
     print(f"\ncrossover abundance (route = bare), {rec['catalyst']} molecule cm-3"
-          + ("" if rec["abundance"]["kind"] == "number_density_m3"
-             else f" and {routes[1]['crossover_given_unit']}") + ":")
+          + ("" if rec["abundance"]["kind"] == "number_density"
+             else f" and {routes[1]['crossover_abundance_unit']}") + ":")
     header = ["T/K"] + [r["channel"] for r in routes[1:]]
     rows = []
     for i, t in enumerate(rec["temperature_K"]):
         row = [f"{t:g}"]
         for r in routes[1:]:
             text = f"{r['crossover_number_density_per_cm3'][i]:.3g}"
-            if rec["abundance"]["kind"] != "number_density_m3":
-                text += f" ({r['crossover_in_given_unit'][i]:.3g})"
+            if rec["abundance"]["kind"] != "number_density":
+                text += f" ({r['crossover_abundance'][i]:.3g})"
             row.append(text)
         rows.append(row)
     print(format_table(header, rows))
@@ -159,7 +159,9 @@ def run(args) -> int:
     records = comparison_records(results, study.conditions.rate_units)
     written = write_plots(results, args.plot) if args.plot else []
     if args.json:
-        print_json({"study": study.file, "title": study.title, "comparisons": records})
+        from tstrate.output.compare_records import comparison_document
+
+        print_json(comparison_document(study, records))
         return 0
     print(study.title)
     shown = set()

@@ -229,12 +229,12 @@ def run(args) -> int:
             if res.profile is not None:
                 written += write_figure(yield_altitude_figure(res), folder, stem + "_altitude", inputs)
             written += write_figure(rate_energy_figure(res), folder, stem + "_k_of_E", inputs)
-    records = [excitation_record(r) for r in results]
+    records = [excitation_record(r, study.conditions.rate_units) for r in results]
     if args.json:
+        from tstrate.output.pressure_records import excitation_document
         from tstrate.physics.pressure import bath_parameters
 
-        print_json({"study": study.file, "title": study.title, "bath_gas": bath_parameters(study).name,
-                    "excitations": records, "plots": [str(p) for p in written]})
+        print_json(excitation_document(study, records, bath_parameters(study).name, written))
         return 0
     print(study.title)
     for res, rec in zip(results, records):

@@ -64,9 +64,9 @@ def run(args) -> int:
 
         written = save_figure(arrhenius_figure(records, study.title), args.plot)
     if args.json:
-        print_json({"study": study.file, "title": study.title,
-                    "temperature_K": records[0]["temperature_K"] if records else [],
-                    "channels": records})
+        from tstrate.output.records import rates_document
+
+        print_json(rates_document(study, records))
         return 0
     print(study.title)
     for r in records:
