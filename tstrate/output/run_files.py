@@ -94,7 +94,7 @@ def fits_document(result) -> dict:
     if result.pressure_fits:
         doc["fits_at_each_pressure"] = {
             name: [{"pressure_bar": None if p is None else p / 1e5,
-                    "number_density_per_cm3_at_highest_T": n * 1e-6,
+                    "number_density_at_highest_T_per_cm3": n * 1e-6,
                     **arrhenius_record(fit)} for p, n, fit in entries]
             for name, entries in result.pressure_fits.items()}
     return doc
