@@ -14,7 +14,7 @@ are canonical TST in the high-pressure limit, per free substrate molecule.
 
 JSON output (--json): one object with "study", "title" and a list
 "comparisons" with one entry per comparison and abundance (a scenario). Each
-has name, abundance (kind, value, unit, label, phase, total_pressure_Pa,
+has name, abundance (kind, value, unit, label, phase, total_pressure_bar,
 text), reference, substrate, catalyst, catalyst_dimer, temperature_K,
 catalyst_number_density_per_cm3, dimer_number_density_per_cm3,
 dimer_Kp_per_bar, free_substrate_fraction, barriers (per channel:
@@ -25,9 +25,10 @@ delta_G_activation_from_complex_kJ_per_mol) and routes (per channel: kind,
 catalyst_power, rate_constant with rate_constant_unit, complex, complex_Kc with
 complex_Kc_unit, complex_Kp with complex_Kp_unit, k_unimolecular_from_complex_per_s,
 complex_per_free_substrate, pseudo_first_order_per_s, ratio_to_bare,
-crossover_number_density_per_cm3, crossover_in_given_unit with
-crossover_given_unit, faster_than_bare_K: a list of {low_K, high_K,
-low_at_grid_edge, high_at_grid_edge}). Arrays run over temperature_K.
+crossover_number_density_per_cm3, crossover_abundance with
+crossover_abundance_unit, faster_than_bare_K: a list of {low_K, high_K,
+low_at_grid_edge, high_at_grid_edge}). Arrays run over temperature_K. Every
+key with its unit: docs/outputs/command-json.md.
 
 With --plot DIR: for each comparison, an energy profile, the ratio against
 temperature and the ratio against the catalyst abundance, as PNG and SVG.

@@ -22,9 +22,10 @@ name, channel, excitation, excitation_energy_kJ_per_mol/_cm1, below_threshold,
 barrier_zpe_kJ_per_mol, grain_cm1, k_of_E {energy_kJ_per_mol, energy_cm1,
 rate_constant_per_s}, pressure_scan and altitude_profile {temperature_K,
 pressure_bar, number_density_per_cm3, energy_kJ_per_mol, rate_constant_per_s,
-below_threshold, collision_rate_constant_cm3_per_molecule_s, collision_efficiency,
+below_threshold, collision_rate_constant(_unit), collision_efficiency,
 collision_frequency_per_s, fraction_stern_volmer, fraction_stepwise, ...;
 altitude_km along a profile; half_quenching_pressure_bar for the scan}, warnings.
+Every key with its unit: docs/outputs/command-json.md.
 
 --plot DIR writes excite_<name>_pressure, excite_<name>_altitude and
 excite_<name>_k_of_E (PNG and SVG) into DIR.

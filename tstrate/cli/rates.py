@@ -13,9 +13,10 @@ JSON output (--json): one object with "study", "temperature_K" and a list
 rate_constant_unit, rate_constant_no_tunnelling, kappa, tunnelling,
 reverse_rate_constant(_unit), Kc (Kc_unit), Kp_1bar, barrier_classical_kJ_per_mol,
 barrier_zpe_kJ_per_mol, barrier_from_complex_*_kJ_per_mol,
-reaction_energy_zpe_kJ_per_mol, imaginary_frequency_cm1, eckart_*_kJ_per_mol,
+reaction_energy_zpe_kJ_per_mol, imaginary_frequency_cm1, tunnelling_*_kJ_per_mol,
 delta_H_activation_kJ_per_mol, delta_S_activation_J_per_mol_K,
-delta_G_activation_kJ_per_mol, reaction_path_degeneracy.
+delta_G_activation_kJ_per_mol, reaction_path_degeneracy. Every key with its
+unit: docs/outputs/command-json.md.
 """
 
 

@@ -17,7 +17,7 @@ replaced only with --force. Outputs are written atomically: an interrupted run
 leaves nothing half-written. Inputs are never overwritten.
 
 With --json, a summary (output folder, files, fitted expressions, warnings) is
-printed on stdout.
+printed on stdout. Every key of every file, with its unit: docs/outputs/.
 """
 
 

@@ -15,7 +15,7 @@ symmetry_number, reduced_moment_amu_A2; the replaced modes are not harmonic
 and have no zero-point energy), zpe_kJ_per_mol, and arrays over temperature_K:
 entropy_J_per_mol_K, heat_capacity_J_per_mol_K, enthalpy_increment_kJ_per_mol
 (H(T)-H(0)), gibbs_increment_kJ_per_mol (G(T)-H(0)); plus standard_pressure_bar
-and low_modes.
+and low_modes. Every key with its unit: docs/outputs/command-json.md.
 """
 
 DEFAULT_TEMPERATURES_K = [298.15]

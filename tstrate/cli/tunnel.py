@@ -19,9 +19,10 @@ channel whose barriers are measured from a pre-reactive complex).
 
 JSON output (--json): one object with temperature_K (list), kappa (a list for
 one model, or an object keyed by model for --model all), model, and the
-inputs: imaginary_frequency_cm1, forward_barrier_kJ_per_mol,
-reverse_barrier_kJ_per_mol, energy_floor_kJ_per_mol (the start of the energy
-integral actually used, measured from the reactant side).
+inputs: imaginary_frequency_cm1, tunnelling_forward_barrier_kJ_per_mol,
+tunnelling_reverse_barrier_kJ_per_mol, tunnelling_energy_floor_kJ_per_mol (the
+start of the energy integral actually used, measured from the reactant side).
+Every key with its unit: docs/outputs/command-json.md.
 """
 
 MODEL_CHOICES = ("wigner", "skodje-truhlar", "eckart", "all")
