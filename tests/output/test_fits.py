@@ -345,6 +345,15 @@ def test_json_has_units_in_keys(carbonic_fits):
             "max_deviation_cp_percent", "max_abs_deviation_h_kJ_per_mol", "max_deviation_s_percent",
             "max_deviation_h_percent"} <= set(sp)
     assert len(sp["low_range_coefficients"]) == 7
+    # molar energies in kJ/mol, deviations in percent (the fits hold J/mol and fractions)
+    fit, rec = carbonic_fits.species[0], js["species"][0]
+    assert rec["electronic_energy_kJ_per_mol"] == pytest.approx(fit.energy_J_per_mol / 1e3, rel=1e-15)
+    assert rec["zpe_kJ_per_mol"] == pytest.approx(fit.zpe_J_per_mol / 1e3, rel=1e-15)
+    assert rec["H0K_exported_kJ_per_mol"] == pytest.approx(fit.h0_exported_J_per_mol / 1e3, rel=1e-15)
+    assert rec["enthalpy_offset_kJ_per_mol"] == pytest.approx(fit.enthalpy_offset_J_per_mol / 1e3, rel=1e-15)
+    assert sp["max_abs_deviation_h_kJ_per_mol"] == pytest.approx(fit.nasa7.max_abs_error_h_J_per_mol / 1e3,
+                                                                 rel=1e-15)
+    assert sp["max_deviation_cp_percent"] == pytest.approx(100 * fit.nasa7.max_rel_error_cp, rel=1e-15)
     units = fits_to_json(carbonic_fits, rate_units={2: "L mol-1 s-1"})
     rec = units["channels"][1]["modified_arrhenius"]
     assert rec["A_unit"] == "L mol-1 s-1"
