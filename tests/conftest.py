@@ -84,3 +84,52 @@ def water_terms(k_bend=WATER_K_BEND_J_PER_RAD2):
     """Valence terms of the H2O model (two O-H stretches, one bend) for the functions above."""
     return dict(bonds=[(1, 0, WATER_K_OH_N_PER_M), (2, 0, WATER_K_OH_N_PER_M)],
                 angles=[(1, 0, 2, k_bend)])
+
+
+# ---------------------------------------------------------------------------------------
+# one run of the demo study per test session
+# ---------------------------------------------------------------------------------------
+
+import contextlib  # noqa: E402
+import io  # noqa: E402
+import json  # noqa: E402
+import shutil  # noqa: E402
+from pathlib import Path  # noqa: E402
+
+import pytest  # noqa: E402
+
+DEMO = Path(__file__).resolve().parents[1] / "molecules" / "carbonic_acid"
+
+
+def reduced_demo(folder: Path) -> Path:
+    """A copy of the bundled GFN2-xTB carbonic-acid demo in ``folder`` with fewer temperatures
+    (the rest of the study as bundled); returns the study file."""
+    shutil.copytree(DEMO, folder, ignore=shutil.ignore_patterns("inputs", "*.sh", "*.md"))
+    path = folder / "study.toml"
+    text = path.read_text()
+    start = text.index("temperature_K = [150")
+    end = text.index("]", start) + 1
+    path.write_text(text[:start] + "temperature_K = [200, 215, 230, 245, 260, 275, 290, 300]" + text[end:])
+    return path
+
+
+def run_cli_json(argv: list[str]):
+    """``tstrate ARGV`` in this process; its exit status must be 0 and its stdout JSON."""
+    from tstrate.cli.main import main
+
+    buf = io.StringIO()
+    with contextlib.redirect_stdout(buf):
+        code = main(argv)
+    assert code == 0, (argv, buf.getvalue())
+    return json.loads(buf.getvalue())
+
+
+@pytest.fixture(scope="session")
+def demo_run(tmp_path_factory):
+    """``tstrate run STUDY --output OUT --json`` of the reduced demo, once per test session:
+    (study file, output folder, the --json summary). Tests only read the folder."""
+    base = tmp_path_factory.mktemp("demo_run")
+    study = reduced_demo(base / "study")
+    out = base / "out"
+    summary = run_cli_json(["run", str(study), "--output", str(out), "--quiet", "--json"])
+    return study, out, summary

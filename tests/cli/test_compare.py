@@ -52,10 +52,10 @@ def test_json_layout_and_values(capsys, library_results):
     np.testing.assert_allclose(one["crossover_number_density_per_cm3"],
                                res.route("one_water").crossover_catalyst_m3 * 1e-6, rtol=1e-12)
     # crossover in the user's unit: a mixing ratio at the same total pressure (0.01 bar)
-    np.testing.assert_allclose(one["crossover_in_given_unit"],
+    np.testing.assert_allclose(one["crossover_abundance"],
                                np.array(one["crossover_number_density_per_cm3"]) * 1e6 * sc.k
                                * np.array(dry5["temperature_K"]) / 1e3, rtol=1e-12)
-    assert one["crossover_given_unit"] == "mol/mol"
+    assert one["crossover_abundance_unit"] == "mol mol-1"
     # rate constants in the trade's units: m^3 s^-1 -> cm^3 molecule^-1 s^-1 is x 1e6, m^6 -> cm^6 x 1e12
     assert one["rate_constant_unit"] == "cm3 molecule-1 s-1"
     assert two["rate_constant_unit"] == "cm6 molecule-2 s-1"
@@ -80,9 +80,11 @@ def test_json_layout_and_values(capsys, library_results):
     assert b["one_water"]["barrier_from_complex_classical_kJ_per_mol"] == pytest.approx(110.0)
     assert b["bare"]["barrier_from_complex_zpe_kJ_per_mol"] is None
     assert len(b["two_water"]["delta_G_activation_kJ_per_mol"]) == len(T)
+    assert dry5["abundance"]["kind"] == "mixing_ratio" and dry5["abundance"]["unit"] == "mol mol-1"
+    assert dry5["abundance"]["total_pressure_bar"] == pytest.approx(0.01, rel=1e-12)
     humid = comps[2]
     assert humid["abundance"]["unit"] == "%" and humid["abundance"]["phase"] == "liquid"
-    assert humid["routes"][1]["crossover_given_unit"] == "%"
+    assert humid["routes"][1]["crossover_abundance_unit"] == "%"
 
 
 def test_text_output(capsys):
@@ -158,8 +160,8 @@ temperature_K = [150, 160, 170, 180, 190, 200, 210, 220]
     (rng,) = rec["routes"][1]["faster_than_bare_K"]
     assert rng["low_K"] == 150.0 and rng["low_at_grid_edge"] and not rng["high_at_grid_edge"]
     assert 170.0 < rng["high_K"] < 190.0
-    assert rec["abundance"] == {"kind": "number_density_m3", "value": 2e10, "unit": "molecule cm-3",
-                                "label": "", "phase": None, "total_pressure_Pa": None,
+    assert rec["abundance"] == {"kind": "number_density", "value": 2e10, "unit": "molecule cm-3",
+                                "label": "", "phase": None, "total_pressure_bar": None,
                                 "text": "[H2O] = 2e+10 molecule cm-3"}
     assert main(["compare", str(path)]) == 0
     assert "two_water faster than bare: 150.0 K (grid start) to 179.5 K" in capsys.readouterr().out

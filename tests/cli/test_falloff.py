@@ -3,6 +3,7 @@
 import json
 from pathlib import Path
 
+import numpy as np
 import pytest
 
 from tstrate.cli.main import main
@@ -53,12 +54,15 @@ def test_falloff_json_keys(falloff_json):
                     "troe", "bath_gas", "collision_efficiency", "grain_cm1", "lindemann_rate_constant",
                     "canonical_tst_rate_constant", "collisions", "warnings"):
             assert key in ch, key
-        for key in ("a", "T3_K", "T1_K", "T2_K", "Fcent", "max_relative_deviation", "rms_relative_deviation"):
+        for key in ("a", "T3_K", "T1_K", "T2_K", "Fcent", "max_deviation_percent", "rms_deviation_percent"):
             assert key in ch["troe"], key
         assert ch["rate_constant_unit"] == "s-1" and ch["k_low_pressure_unit"] == "cm3 molecule-1 s-1"
         assert ch["pressure_bar"] == [1e-6, 1e-4, 1e-2, 1.0]
         assert len(ch["rate_constant"]) == 3 and all(len(row) == 4 for row in ch["rate_constant"])
         assert len(ch["collision_efficiency"]) == 3
+        # deviations in percent: the Troe form against k(T, p) at the study's points
+        dev = np.abs(np.array(ch["troe"]["rate_constant"]) / np.array(ch["rate_constant"]) - 1)
+        assert ch["troe"]["max_deviation_on_study_grid_percent"] == pytest.approx(100 * dev.max(), rel=1e-9)
     bare = doc["channels"][0]
     assert bare["grain_cm1"] == pytest.approx(10.0)
     # k0 in cm3 molecule-1 s-1 is 1e6 times the SI value; k(T, p) never exceeds k_inf

@@ -75,6 +75,10 @@ def test_json_output(capsys, library_results):
         np.testing.assert_allclose(rec["rate_constant"], cr.k * per_cm3, rtol=1e-12)
         np.testing.assert_allclose(rec["kappa"], cr.kappa, rtol=1e-12)
         assert rec["barrier_zpe_kJ_per_mol"] == pytest.approx(cr.barrier_zpe_J_per_mol / 1e3, rel=1e-12)
+        # ln Kc in the unit of Kc, (molecule cm-3)^dn: the SI value less dn ln(1e6 cm3 per m3)
+        dn = cr.reverse_order - cr.order
+        np.testing.assert_allclose(rec["ln_Kc"], cr.ln_kc - dn * np.log(1e6), rtol=1e-12)
+        assert rec["Kc_unit"] == f"(molecule cm-3)^{dn}"
     units = {c["name"]: (c["rate_constant_unit"], c["reverse_rate_constant_unit"]) for c in doc["channels"]}
     assert units == {"bare": ("s-1", "cm3 molecule-1 s-1"),
                      "water": ("cm3 molecule-1 s-1", "cm6 molecule-2 s-1"),

@@ -38,9 +38,9 @@ def test_json_all_models_keyed_by_model(capsys):
     assert set(data["kappa"]) == {"wigner", "skodje-truhlar", "eckart"}
     assert data["model"] == "all"
     assert data["imaginary_frequency_cm1"] == 1800.0
-    assert data["forward_barrier_kJ_per_mol"] == pytest.approx(60.0)
-    assert data["reverse_barrier_kJ_per_mol"] == pytest.approx(80.0)
-    assert data["energy_floor_kJ_per_mol"] == 0.0
+    assert data["tunnelling_forward_barrier_kJ_per_mol"] == pytest.approx(60.0)
+    assert data["tunnelling_reverse_barrier_kJ_per_mol"] == pytest.approx(80.0)
+    assert data["tunnelling_energy_floor_kJ_per_mol"] == 0.0
     T = np.array([200.0, 300.0])
     np.testing.assert_allclose(data["kappa"]["wigner"], tn.wigner(T, 1800.0), rtol=1e-14)
     np.testing.assert_allclose(data["kappa"]["skodje-truhlar"],
@@ -66,19 +66,19 @@ def test_energy_units_convert_to_the_same_result(capsys, unit, V1, V2):
     data = run_json(capsys, ["tunnel", "--imaginary-cm1", "1800", "--forward-barrier", repr(V1),
                              "--reverse-barrier", repr(V2), "--energy-unit", unit,
                              "--model", "eckart", "-T", "250"])
-    assert data["forward_barrier_kJ_per_mol"] == pytest.approx(60.0, rel=1e-12)
+    assert data["tunnelling_forward_barrier_kJ_per_mol"] == pytest.approx(60.0, rel=1e-12)
     assert data["kappa"][0] == pytest.approx(ref["kappa"][0], rel=1e-9)
 
 
 def test_energy_floor_is_reported_and_lowers_eckart(capsys):
     plain = run_json(capsys, BASE + ["--model", "eckart", "-T", "200"])
     floored = run_json(capsys, BASE + ["--model", "eckart", "-T", "200", "--energy-floor", "20"])
-    assert floored["energy_floor_kJ_per_mol"] == pytest.approx(20.0)
+    assert floored["tunnelling_energy_floor_kJ_per_mol"] == pytest.approx(20.0)
     assert floored["kappa"][0] < plain["kappa"][0]
     # endoergic barrier: the default floor is the product asymptote, V1 - V2 above the reactants
     endo = run_json(capsys, ["tunnel", "--imaginary-cm1", "1800", "--forward-barrier", "80",
                              "--reverse-barrier", "60", "--model", "eckart", "-T", "200"])
-    assert endo["energy_floor_kJ_per_mol"] == pytest.approx(20.0)
+    assert endo["tunnelling_energy_floor_kJ_per_mol"] == pytest.approx(20.0)
 
 
 @pytest.mark.parametrize("argv, pattern", [

@@ -194,7 +194,8 @@ def test_cold_study_extends_low_range(carbonic):
     assert fits_mod.nasa_range([300.0, 3456.0]) == (200.0, 3500.0)
     rec = fits_to_json(fits)["species"][0]
     assert rec["nasa7"]["Tmin_K"] == 100.0
-    assert set(rec["nasa7_errors_at_fitted_temperatures_percent"]) == {"cp", "h_of_max_abs_H_or_RT", "s"}
+    assert set(rec["nasa7_deviations_at_fitted_temperatures"]) == {
+        "max_deviation_cp_percent", "max_deviation_h_percent", "max_deviation_s_percent"}
 
 
 # H2O (g) from NIST-JANAF (Chase 1998, 4th ed., table for H2O ideal gas), 1 bar, FROM MEMORY;
@@ -270,7 +271,8 @@ def test_enthalpy_offsets_make_enthalpies_small_and_keep_kc(carbonic_fits, carbo
         np.testing.assert_allclose(ln_kc, rates[c.name].ln_kc, rtol=0, atol=1e-3)
         assert c.max_abs_ln_kc_error < 1e-3
     js = fits_to_json(carbonic_fits)
-    assert js["enthalpy_zero"]["element_offsets_J_per_mol"] == offsets
+    assert js["enthalpy_zero"]["element_offsets_kJ_per_mol"] == pytest.approx(
+        {e: c / 1e3 for e, c in offsets.items()}, rel=1e-15)
     assert "not enthalpies of formation" in js["enthalpy_zero"]["description"]
 
 
@@ -297,7 +299,7 @@ def test_troe_data_written_to_json(carbonic, carbonic_fits):
     assert rec["k0_low_pressure"]["A_unit"] == "cm3 molecule-1 s-1"
     assert rec["k0_low_pressure"]["A"] == pytest.approx(1e-10)      # 1e-16 m^3 = 1e-10 cm^3
     assert rec["kinf_high_pressure"]["A_unit"] == "s-1"
-    assert rec["fit_max_deviation_percent"] == pytest.approx(2.0)
+    assert rec["max_deviation_percent"] == pytest.approx(2.0)
     assert fits.bath_gas == "CO2"              # a study species already: not added twice
     assert [f.name for f in fits.species].count("CO2") == 1
 
@@ -342,8 +344,18 @@ def test_json_has_units_in_keys(carbonic_fits):
                 "warning"} <= keys
     sp = js["species"][0]["nasa7"]
     assert {"Tmin_K", "Tmid_K", "Tmax_K", "low_range_coefficients", "high_range_coefficients",
-            "max_error_cp_percent", "max_abs_error_h_J_per_mol", "max_error_s_percent"} <= set(sp)
+            "max_deviation_cp_percent", "max_abs_deviation_h_kJ_per_mol", "max_deviation_s_percent",
+            "max_deviation_h_percent"} <= set(sp)
     assert len(sp["low_range_coefficients"]) == 7
+    # molar energies in kJ/mol, deviations in percent (the fits hold J/mol and fractions)
+    fit, rec = carbonic_fits.species[0], js["species"][0]
+    assert rec["electronic_energy_kJ_per_mol"] == pytest.approx(fit.energy_J_per_mol / 1e3, rel=1e-15)
+    assert rec["zpe_kJ_per_mol"] == pytest.approx(fit.zpe_J_per_mol / 1e3, rel=1e-15)
+    assert rec["H0K_exported_kJ_per_mol"] == pytest.approx(fit.h0_exported_J_per_mol / 1e3, rel=1e-15)
+    assert rec["enthalpy_offset_kJ_per_mol"] == pytest.approx(fit.enthalpy_offset_J_per_mol / 1e3, rel=1e-15)
+    assert sp["max_abs_deviation_h_kJ_per_mol"] == pytest.approx(fit.nasa7.max_abs_error_h_J_per_mol / 1e3,
+                                                                 rel=1e-15)
+    assert sp["max_deviation_cp_percent"] == pytest.approx(100 * fit.nasa7.max_rel_error_cp, rel=1e-15)
     units = fits_to_json(carbonic_fits, rate_units={2: "L mol-1 s-1"})
     rec = units["channels"][1]["modified_arrhenius"]
     assert rec["A_unit"] == "L mol-1 s-1"

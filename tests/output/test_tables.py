@@ -43,7 +43,7 @@ def test_thermo_csv_values_and_units(carbonic, tmp_path):
     assert float(row[4]) == pytest.approx(th.enthalpy_increment_J_per_mol[1] / 1e3, rel=1e-15)
     assert float(row[header.index("H(T) [kJ mol-1]")]) == pytest.approx(
         th.enthalpy_J_per_mol[1] / 1e3, rel=1e-15)
-    assert float(row[header.index("p_standard [Pa]")]) == 1e5
+    assert float(row[header.index("p_standard [bar]")]) == 1.0               # 1e5 Pa
 
 
 def test_thermo_csv_without_energy_leaves_cells_empty(carbonic):
@@ -94,7 +94,7 @@ def test_fits_csv_and_json(carbonic, tmp_path):
     path = tables.write_fits_json(tmp_path / "fits.json", fits)
     data = json.loads(path.read_text())
     assert data["channels"][0]["modified_arrhenius"]["A_unit"] == "s-1"
-    assert data["species"][0]["nasa7"]["reference_pressure_Pa"] == 1e5
+    assert data["species"][0]["nasa7"]["reference_pressure_bar"] == 1.0     # 1e5 Pa
     tables.write_fits_csv(tmp_path / "fits.csv", fits)
     assert (tmp_path / "fits.csv").read_text().startswith("channel,")
 

@@ -120,11 +120,6 @@ def low_modes_from_args(args):
         raise InputError(exc.problem, field=field, hint=exc.hint) from None
 
 
-def low_modes_record(low_modes) -> dict:
-    """The "low_modes" entry of JSON output: {"method", "cutoff_cm1"}."""
-    return {"method": low_modes.method, "cutoff_cm1": low_modes.cutoff_cm1}
-
-
 def add_quiet_option(parser) -> None:
     """--quiet/-q for every command that shows a progress bar (on stderr, only on a terminal)."""
     parser.add_argument("--quiet", "-q", action="store_true",

@@ -14,7 +14,7 @@ are canonical TST in the high-pressure limit, per free substrate molecule.
 
 JSON output (--json): one object with "study", "title" and a list
 "comparisons" with one entry per comparison and abundance (a scenario). Each
-has name, abundance (kind, value, unit, label, phase, total_pressure_Pa,
+has name, abundance (kind, value, unit, label, phase, total_pressure_bar,
 text), reference, substrate, catalyst, catalyst_dimer, temperature_K,
 catalyst_number_density_per_cm3, dimer_number_density_per_cm3,
 dimer_Kp_per_bar, free_substrate_fraction, barriers (per channel:
@@ -25,10 +25,11 @@ delta_G_activation_from_complex_kJ_per_mol) and routes (per channel: kind,
 catalyst_power, rate_constant with rate_constant_unit, complex, complex_Kc with
 complex_Kc_unit, complex_Kp with complex_Kp_unit, k_unimolecular_from_complex_per_s,
 complex_per_free_substrate, pseudo_first_order_per_s, ratio_to_bare,
-crossover_number_density_per_cm3, crossover_in_given_unit with
-crossover_given_unit, faster_than_bare_K: a list of {low_K, high_K,
+crossover_number_density_per_cm3, crossover_abundance with
+crossover_abundance_unit, faster_than_bare_K: a list of {low_K, high_K,
 low_at_grid_edge, high_at_grid_edge}). Arrays run over temperature_K. Also
-"low_modes" (method, cutoff_cm1).
+"low_modes" (method, cutoff_cm1) and "plots". Every
+key with its unit: docs/outputs/command-json.md.
 
 With --plot DIR: for each comparison, an energy profile, the ratio against
 temperature and the ratio against the catalyst abundance, as PNG and SVG,
@@ -100,16 +101,16 @@ def _print_scenario(rec) -> None:
     print(f"free {rec['substrate']} (not held in the complexes): {min(free):.3g} to {max(free):.3g} "
           "of the total; rates above are per free molecule")
     print(f"\ncrossover abundance (route = bare), {rec['catalyst']} molecule cm-3"
-          + ("" if rec["abundance"]["kind"] == "number_density_m3"
-             else f" and {routes[1]['crossover_given_unit']}") + ":")
+          + ("" if rec["abundance"]["kind"] == "number_density"
+             else f" and {routes[1]['crossover_abundance_unit']}") + ":")
     header = ["T/K"] + [r["channel"] for r in routes[1:]]
     rows = []
     for i, t in enumerate(rec["temperature_K"]):
         row = [f"{t:g}"]
         for r in routes[1:]:
             text = f"{r['crossover_number_density_per_cm3'][i]:.3g}"
-            if rec["abundance"]["kind"] != "number_density_m3":
-                text += f" ({r['crossover_in_given_unit'][i]:.3g})"
+            if rec["abundance"]["kind"] != "number_density":
+                text += f" ({r['crossover_abundance'][i]:.3g})"
             row.append(text)
         rows.append(row)
     print(format_table(header, rows))
@@ -150,7 +151,7 @@ def _print_barriers(rec) -> None:
 
 
 def run(args) -> int:
-    from tstrate.cli.common import (check_plot_dir, low_modes_from_args, low_modes_record, print_json,
+    from tstrate.cli.common import (check_plot_dir, low_modes_from_args, print_json,
                                     progress_wrapper)
 
     folder = check_plot_dir(args.plot) if args.plot else None
@@ -162,8 +163,9 @@ def run(args) -> int:
     written = [] if folder is None else write_plots(
         results, folder, [study.file, *study.species_files.values()], progress_wrapper(args, "compare plots"))
     if args.json:
-        print_json({"study": study.file, "title": study.title, "low_modes": low_modes_record(low_modes),
-                    "comparisons": records, "plots": [str(p) for p in written]})
+        from tstrate.output.compare_records import comparison_document
+
+        print_json(comparison_document(study, records, low_modes, plots=written))
         return 0
     print(study.title)
     shown = set()

@@ -210,15 +210,6 @@ def _geometry(path: str, flag: str):
         raise exc.located(field=flag) from None
 
 
-def _species_summary(sp) -> dict:
-    return {"name": sp.name, "formula": sp.formula, "kind": sp.kind,
-            "energy_hartree": None if sp.energy_J_per_mol is None else
-            sp.energy_J_per_mol / _hartree_J_per_mol(),
-            "frequencies_cm1": [round(float(f), 2) for f in sp.frequencies_cm1],
-            "symmetry_number": sp.symmetry_number, "linear": sp.linear,
-            "has_hessian": sp.hessian_J_per_m2 is not None}
-
-
 def _hartree_J_per_mol() -> float:
     from tstrate.units import ENERGY_UNITS_J_PER_MOL
 
@@ -261,25 +252,25 @@ def _run_minimum(args) -> int:
     if args.json:
         from tstrate.cli.common import print_json
 
-        print_json({"species": _species_summary(res.species), "output": out,
-                    "conformer_energies_kJ_per_mol": [e / 1e3 for e in
-                                                      res.conformer_energies_J_per_mol],
-                    "gradient_calls_hessian": res.gradient_calls_hessian,
-                    "from_cache": res.from_cache})
+        from tstrate.output.compute_records import minimum_document
+
+        print_json(minimum_document(res, out))
     else:
         _print_text([_describe(res.species, out)] + (["(from cache)"] if res.from_cache else []))
     return 0
 
 
 def _saddle_text(res, outs) -> list[str]:
-    s = res.summary()
+    from tstrate.output.compute_records import saddle_record
+
+    s = saddle_record(res)
     return [
         _describe(res.ts, outs[0]), _describe(res.reactant, outs[1]),
         _describe(res.product, outs[2]),
         f"imaginary frequency {s['imaginary_frequency_cm1']:.0f}i cm-1; {s['bond_changes']}",
-        f"barrier {s['barrier_kJ_per_mol']:.2f} kJ/mol classical, "
+        f"barrier {s['barrier_classical_kJ_per_mol']:.2f} kJ/mol classical, "
         f"{s['barrier_zpe_kJ_per_mol']:.2f} kJ/mol with zero-point energies; reverse "
-        f"{s['reverse_barrier_kJ_per_mol']:.2f} / {s['reverse_barrier_zpe_kJ_per_mol']:.2f} kJ/mol",
+        f"{s['reverse_barrier_classical_kJ_per_mol']:.2f} / {s['reverse_barrier_zpe_kJ_per_mol']:.2f} kJ/mol",
     ] + (["(from cache)"] if res.from_cache else [])
 
 
@@ -305,10 +296,9 @@ def _run_saddle(args) -> int:
         _write(sp, path)
     if args.json:
         from tstrate.cli.common import print_json
+        from tstrate.output.compute_records import saddle_document
 
-        print_json(res.summary() | {"outputs": outs,
-                                    "species": [_species_summary(s) for s in
-                                                (res.ts, res.reactant, res.product)]})
+        print_json(saddle_document(res, outs))
     else:
         _print_text(_saddle_text(res, outs))
     return 0
@@ -328,15 +318,11 @@ def _run_relay(args) -> int:
     sad = res.saddle
     for sp, path in zip((sad.ts, res.complex.species, sad.product), outs):
         _write(sp, path)
-    summary = sad.summary() | {
-        "complex": res.complex.species.name,
-        "barrier_from_complex_kJ_per_mol": res.barrier_J_per_mol / 1e3,
-        "barrier_zpe_from_complex_kJ_per_mol": res.barrier_zpe_J_per_mol / 1e3,
-        "outputs": outs}
     if args.json:
         from tstrate.cli.common import print_json
+        from tstrate.output.compute_records import relay_document
 
-        print_json(summary)
+        print_json(relay_document(res, outs))
     else:
         _print_text([_describe(res.complex.species, outs[1])] + _saddle_text(sad, [outs[0], None,
                                                                                     outs[2]])
@@ -361,7 +347,9 @@ def _run_read(args) -> int:
     if args.json:
         from tstrate.cli.common import print_json
 
-        print_json({"species": _species_summary(sp), "output": out})
+        from tstrate.output.compute_records import read_document
+
+        print_json(read_document(sp, out))
     else:
         _print_text([_describe(sp, out)])
     return 0

@@ -22,9 +22,10 @@ name, channel, excitation, excitation_energy_kJ_per_mol/_cm1, below_threshold,
 barrier_zpe_kJ_per_mol, grain_cm1, k_of_E {energy_kJ_per_mol, energy_cm1,
 rate_constant_per_s}, pressure_scan and altitude_profile {temperature_K,
 pressure_bar, number_density_per_cm3, energy_kJ_per_mol, rate_constant_per_s,
-below_threshold, collision_rate_constant_cm3_per_molecule_s, collision_efficiency,
+below_threshold, collision_rate_constant(_unit), collision_efficiency,
 collision_frequency_per_s, fraction_stern_volmer, fraction_stepwise, ...;
 altitude_km along a profile; half_quenching_pressure_bar for the scan}, warnings.
+Every key with its unit: docs/outputs/command-json.md.
 
 --plot DIR writes excitation_<name>_pressure, excitation_<name>_altitude
 (the names tstrate run uses in its plots/ folder) and excitation_<name>_k_of_E,
@@ -238,12 +239,12 @@ def run(args) -> int:
                                         figure_stem("excitation", name, "altitude"), inputs)
             written += write_figure(rate_energy_figure(res), folder, figure_stem("excitation", name, "k_of_E"),
                                     inputs)
-    records = [excitation_record(r) for r in results]
+    records = [excitation_record(r, study.conditions.rate_units) for r in results]
     if args.json:
+        from tstrate.output.pressure_records import excitation_document
         from tstrate.study.falloff import bath_parameters
 
-        print_json({"study": study.file, "title": study.title, "bath_gas": bath_parameters(study).name,
-                    "excitations": records, "plots": [str(p) for p in written]})
+        print_json(excitation_document(study, records, bath_parameters(study).name, written))
         return 0
     print(study.title)
     for res, rec in zip(results, records):

@@ -30,12 +30,13 @@ JSON output (--json): "study", "title", "bath_gas", "bath_gas_lennard_jones",
 over temperature of lists when the study gives number densities), number_density_per_cm3,
 rate_constant [T][p], rate_constant_unit, k_high_pressure(_unit), k_low_pressure(_unit),
 lindemann_rate_constant, canonical_tst_rate_constant, k_high_pressure_over_canonical_tst,
-troe {a, T3_K, T1_K, T2_K, parameters_at_bound (name -> bound: a 0 or 1, temperatures in K),
-Fcent, k_low_pressure(_unit, _kind), max_relative_deviation,
-rms_relative_deviation, fitted_on, rate_constant, max_relative_deviation_on_study_grid},
+troe {a, T3_K, T1_K, T2_K, parameters_at_bound (names of the parameters at a bound of the fit),
+Fcent, k_low_pressure(_unit, _kind), max_deviation_percent,
+rms_deviation_percent, fitted_on, rate_constant, max_deviation_on_study_grid_percent},
 bath_gas, collision_efficiency, collisions {...}, grain_cm1, requested_grain_cm1,
 barrier_zpe_kJ_per_mol, reaction_path_degeneracy, centrifugal_factor, rotors, warnings),
-"not_computed" (name, order, reason) and "warnings".
+"not_computed" (name, order, reason) and "warnings". Every key with its unit:
+docs/outputs/command-json.md.
 
 The state counts are those of harmonic oscillators (and the free rotors a
 species file declares), so the low-mode options of thermo, rates, compare and

@@ -13,10 +13,11 @@ JSON output (--json): one object with "study", "temperature_K" and a list
 rate_constant_unit, rate_constant_no_tunnelling, kappa, tunnelling,
 reverse_rate_constant(_unit), Kc (Kc_unit), Kp_1bar, barrier_classical_kJ_per_mol,
 barrier_zpe_kJ_per_mol, barrier_from_complex_*_kJ_per_mol,
-reaction_energy_zpe_kJ_per_mol, imaginary_frequency_cm1, eckart_*_kJ_per_mol,
+reaction_energy_zpe_kJ_per_mol, imaginary_frequency_cm1, tunnelling_*_kJ_per_mol,
 delta_H_activation_kJ_per_mol, delta_S_activation_J_per_mol_K,
 delta_G_activation_kJ_per_mol, reaction_path_degeneracy; "low_modes"
-(method, cutoff_cm1) and "plots" (the files --plot wrote).
+(method, cutoff_cm1) and "plots" (the files --plot wrote). Every key with its
+unit: docs/outputs/command-json.md.
 
 With --plot DIR: the Arrhenius plot (log10 k against 1000/T, dashed without
 tunnelling) as DIR/arrhenius.png and .svg, the names tstrate run uses.
@@ -58,7 +59,7 @@ def compute(study_path, temperatures=None, low_modes="harmonic"):
 
 
 def run(args) -> int:
-    from tstrate.cli.common import (check_plot_dir, format_table, low_modes_from_args, low_modes_record,
+    from tstrate.cli.common import (check_plot_dir, format_table, low_modes_from_args,
                                     print_json, write_figure)
 
     written = []
@@ -71,9 +72,9 @@ def run(args) -> int:
         written = write_figure(arrhenius_figure(records, study.title), folder, figure_stem("arrhenius"),
                                [study.file, *study.species_files.values()])
     if args.json:
-        print_json({"study": study.file, "title": study.title, "low_modes": low_modes_record(low_modes),
-                    "temperature_K": records[0]["temperature_K"] if records else [],
-                    "channels": records, "plots": [str(p) for p in written]})
+        from tstrate.output.records import rates_document
+
+        print_json(rates_document(study, records, low_modes, plots=written))
         return 0
     print(study.title)
     for r in records:

@@ -17,7 +17,7 @@ replaced only with --force. Outputs are written atomically: an interrupted run
 leaves nothing half-written. Inputs are never overwritten.
 
 With --json, a summary (output folder, files, fitted expressions, warnings) is
-printed on stdout.
+printed on stdout. Every key of every file, with its unit: docs/outputs/.
 """
 
 
@@ -31,19 +31,6 @@ def add_arguments(parser) -> None:
     add_low_mode_options(parser)
     add_quiet_option(parser)
     parser.add_argument("--json", action="store_true", help="machine-readable summary on stdout")
-
-
-def mechanism_record(cf, rate_units=None) -> dict:
-    """The fitted expression the mechanism file holds for one channel, units in the keys."""
-    from tstrate.output.fit_records import arrhenius_record, chebyshev_record
-    from tstrate.output.records import rate_unit
-
-    kind = cf.mechanism_kind
-    if kind == "chebyshev_falloff":
-        return chebyshev_record(cf.chebyshev_falloff, rate_unit(cf.order, rate_units))
-    if kind == "chebyshev":
-        return chebyshev_record(cf.chebyshev, rate_unit(cf.order, rate_units))
-    return arrhenius_record(cf.expression, rate_unit(cf.order, rate_units))
 
 
 def run(args) -> int:
@@ -82,13 +69,9 @@ def run(args) -> int:
         if bar is not None:
             bar.close()
     if args.json:
-        print_json({
-            "study": study.file, "output_dir": str(out), "files": [str(f) for f in files],
-            "channels": [{"name": c.name, "mechanism_kind": c.mechanism_kind,
-                          "mechanism_expression": mechanism_record(c, study.conditions.rate_units),
-                          "warnings": list(c.warnings)} for c in result.fits.channels],
-            "warnings": list(result.warnings),
-        })
+        from tstrate.output.run_files import run_summary
+
+        print_json(run_summary(result, out, files))
         return 0
     from tstrate.output.records import rate_unit
 

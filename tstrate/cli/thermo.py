@@ -15,7 +15,7 @@ symmetry_number, reduced_moment_amu_A2; the replaced modes are not harmonic
 and have no zero-point energy), zpe_kJ_per_mol, and arrays over temperature_K:
 entropy_J_per_mol_K, heat_capacity_J_per_mol_K, enthalpy_increment_kJ_per_mol
 (H(T)-H(0)), gibbs_increment_kJ_per_mol (G(T)-H(0)); plus standard_pressure_bar
-and low_modes (method, cutoff_cm1).
+and low_modes (method, cutoff_cm1). Every key with its unit: docs/outputs/command-json.md.
 """
 
 DEFAULT_TEMPERATURES_K = [298.15]
@@ -37,35 +37,20 @@ def compute(files, temperatures_K, low_modes):
     from tstrate.io.species import read_species
     from tstrate.physics.thermo import thermochemistry
 
+    from tstrate.output.records import thermo_record
+
     out = []
     for f in files:
         sp = read_species(f)
         th = thermochemistry(sp, temperatures_K, low_modes=low_modes)
-        out.append({
-            "name": sp.name,
-            "file": str(f),
-            "formula": sp.formula,
-            "kind": sp.kind,
-            "symmetry_number": sp.symmetry_number,
-            "optical_isomers": sp.optical_isomers,
-            "linear": sp.linear,
-            "frequencies_cm1": sp.scaled_frequencies_cm1,
-            "free_rotors": [{"replaces_cm1": r.replaces_cm1, "symmetry_number": r.symmetry_number,
-                             "reduced_moment_amu_A2": r.reduced_moment_amu_A2} for r in sp.free_rotors],
-            "zpe_kJ_per_mol": th.zpe_J_per_mol / 1e3,
-            "temperature_K": th.temperature_K,
-            "entropy_J_per_mol_K": th.entropy_J_per_mol_K,
-            "heat_capacity_J_per_mol_K": th.heat_capacity_J_per_mol_K,
-            "enthalpy_increment_kJ_per_mol": th.enthalpy_increment_J_per_mol / 1e3,
-            "gibbs_increment_kJ_per_mol": th.gibbs_increment_J_per_mol / 1e3,
-        })
+        out.append({"file": str(f), **thermo_record(th, sp)})
     return out
 
 
 def run(args) -> int:
     import math
 
-    from tstrate.cli.common import format_table, low_modes_from_args, low_modes_record, print_json
+    from tstrate.cli.common import format_table, low_modes_from_args, print_json
     from tstrate.errors import InputError
 
     if any(not (math.isfinite(t) and t > 0) for t in args.temperature or ()):
@@ -73,7 +58,9 @@ def run(args) -> int:
     low = low_modes_from_args(args)
     records = compute(args.files, args.temperature, low)
     if args.json:
-        print_json({"standard_pressure_bar": 1.0, "low_modes": low_modes_record(low), "species": records})
+        from tstrate.output.records import thermo_document
+
+        print_json(thermo_document(records, low))
         return 0
     for rec in records:
         print(f"{rec['name']} ({rec['formula']}, {rec['kind']}): symmetry number "

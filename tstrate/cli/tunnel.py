@@ -19,9 +19,10 @@ channel whose barriers are measured from a pre-reactive complex).
 
 JSON output (--json): one object with temperature_K (list), kappa (a list for
 one model, or an object keyed by model for --model all), model, and the
-inputs: imaginary_frequency_cm1, forward_barrier_kJ_per_mol,
-reverse_barrier_kJ_per_mol, energy_floor_kJ_per_mol (the start of the energy
-integral actually used, measured from the reactant side).
+inputs: imaginary_frequency_cm1, tunnelling_forward_barrier_kJ_per_mol,
+tunnelling_reverse_barrier_kJ_per_mol, tunnelling_energy_floor_kJ_per_mol (the
+start of the energy integral actually used, measured from the reactant side).
+Every key with its unit: docs/outputs/command-json.md.
 """
 
 MODEL_CHOICES = ("wigner", "skodje-truhlar", "eckart", "all")
@@ -61,8 +62,9 @@ def add_arguments(parser) -> None:
 
 
 def compute(imag_freq_cm1: float, V1_J_per_mol: float, V2_J_per_mol: float, models: list[str],
-            temperatures_K, energy_floor_J_per_mol=None) -> dict:
-    """kappa of each model on the temperatures; plain numbers with units in the keys."""
+            temperatures_K, energy_floor_J_per_mol=None, model: str = "all") -> dict:
+    """kappa of each model on the temperatures as the ``--json`` document (see
+    :func:`tstrate.output.records.tunnelling_record`; ``model`` is "all" or the one model)."""
     import numpy as np
 
     from tstrate.errors import InputError
@@ -77,8 +79,8 @@ def compute(imag_freq_cm1: float, V1_J_per_mol: float, V2_J_per_mol: float, mode
         raise InputError("the energy floor must be a finite number", field="--energy-floor")
     kappas = {}
     try:
-        for model in models:
-            kappas[model] = tunnelling.kappa(model, T, imag_freq_cm1, V1_J_per_mol, V2_J_per_mol,
+        for name in models:
+            kappas[name] = tunnelling.kappa(name, T, imag_freq_cm1, V1_J_per_mol, V2_J_per_mol,
                                              energy_floor=energy_floor_J_per_mol)
     except InputError as exc:
         option = _OPTION_OF_FIELD.get(exc.field)
@@ -88,14 +90,9 @@ def compute(imag_freq_cm1: float, V1_J_per_mol: float, V2_J_per_mol: float, mode
     floor = max(0.0, V1_J_per_mol - V2_J_per_mol)
     if energy_floor_J_per_mol is not None:
         floor = max(floor, energy_floor_J_per_mol)
-    return {
-        "imaginary_frequency_cm1": imag_freq_cm1,
-        "forward_barrier_kJ_per_mol": V1_J_per_mol / 1e3,
-        "reverse_barrier_kJ_per_mol": V2_J_per_mol / 1e3,
-        "energy_floor_kJ_per_mol": floor / 1e3,
-        "temperature_K": T,
-        "kappa": kappas,
-    }
+    from tstrate.output.records import tunnelling_record
+
+    return tunnelling_record(imag_freq_cm1, V1_J_per_mol, V2_J_per_mol, floor, T, kappas, model)
 
 
 def run(args) -> int:
@@ -108,22 +105,19 @@ def run(args) -> int:
     floor = (None if args.energy_floor is None
              else energy_to_J_per_mol(args.energy_floor, unit, field="--energy-floor"))
     models = ["wigner", "skodje-truhlar", "eckart"] if args.model == "all" else [args.model]
-    res = compute(args.imaginary_cm1, V1, V2, models, args.temperature, floor)
+    res = compute(args.imaginary_cm1, V1, V2, models, args.temperature, floor, model=args.model)
 
     if args.json:
-        out = dict(res)
-        out["model"] = args.model
-        if args.model != "all":
-            out["kappa"] = res["kappa"][args.model]
-        print_json(out)
+        print_json(res)
         return 0
+    kappa = res["kappa"] if args.model == "all" else {args.model: res["kappa"]}
     line = (f"imaginary frequency {res['imaginary_frequency_cm1']:g}i cm-1, "
-            f"forward barrier {res['forward_barrier_kJ_per_mol']:.4g} kJ/mol, "
-            f"reverse barrier {res['reverse_barrier_kJ_per_mol']:.4g} kJ/mol")
+            f"forward barrier {res['tunnelling_forward_barrier_kJ_per_mol']:.4g} kJ/mol, "
+            f"reverse barrier {res['tunnelling_reverse_barrier_kJ_per_mol']:.4g} kJ/mol")
     if args.model != "wigner":
-        line += f", energy integral from {res['energy_floor_kJ_per_mol']:.4g} kJ/mol"
+        line += f", energy integral from {res['tunnelling_energy_floor_kJ_per_mol']:.4g} kJ/mol"
     print(line)
-    rows = [[float(t)] + [float(res["kappa"][m][i]) for m in models]
+    rows = [[float(t)] + [float(kappa[m][i]) for m in models]
             for i, t in enumerate(res["temperature_K"])]
     print(format_table(["T/K"] + [f"kappa({m})" for m in models], rows))
     return 0

@@ -79,19 +79,6 @@ class SaddleResult:
     from_cache: bool = False
     details: dict = field(default_factory=dict)
 
-    def summary(self) -> dict:
-        """Plain numbers for printing or JSON (energies in kJ/mol for reading)."""
-        return {
-            "ts": self.ts.name, "reactant": self.reactant.name, "product": self.product.name,
-            "imaginary_frequency_cm1": self.imaginary_frequency_cm1,
-            "barrier_kJ_per_mol": self.barrier_J_per_mol / 1e3,
-            "barrier_zpe_kJ_per_mol": self.barrier_zpe_J_per_mol / 1e3,
-            "reverse_barrier_kJ_per_mol": self.reverse_barrier_J_per_mol / 1e3,
-            "reverse_barrier_zpe_kJ_per_mol": self.reverse_barrier_zpe_J_per_mol / 1e3,
-            "bond_changes": self.bond_changes, "retries": self.retries,
-            "gradient_calls_hessian": self.gradient_calls_hessian, "from_cache": self.from_cache,
-        }
-
 
 def check_same_atoms(reactant, product, *, names=("reactant", "product")) -> None:
     """InputError unless both geometries list the same elements in the same order."""

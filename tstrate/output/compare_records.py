@@ -6,6 +6,25 @@ Shared by ``tstrate compare`` and ``tstrate run``.
 from __future__ import annotations
 
 
+#: abundance kind of the physics -> (kind written, unit written, factor from the internal value)
+_ABUNDANCE_OUT = {
+    "number_density_m3": ("number_density", "molecule cm-3", 1e-6),
+    "partial_pressure_Pa": ("partial_pressure", "bar", 1e-5),
+    "mixing_ratio": ("mixing_ratio", "mol mol-1", 1.0),
+    "relative_humidity_percent": ("relative_humidity", "%", 1.0),
+}
+
+
+def abundance_in_output_units(kind: str, value):
+    """(kind, value, unit) of an abundance as written: number densities in molecule cm-3,
+    partial pressures in bar, mixing ratios in mol/mol, relative humidities in %."""
+    import numpy as np
+
+    out_kind, unit, factor = _ABUNDANCE_OUT[kind]
+    v = np.asarray(value, dtype=float) * factor
+    return out_kind, (float(v) if v.ndim == 0 else v), unit
+
+
 def _kc_unit(delta_n: int) -> str:
     n = -delta_n
     return "cm3 molecule-1" if n == 1 else f"cm{3 * n} molecule-{n}"
@@ -58,25 +77,21 @@ def scenario_records(result, rate_units=None) -> list[dict]:
             }
             if r.catalyst_power:
                 rec["crossover_number_density_per_cm3"] = r.crossover_catalyst_m3 * 1e-6
-                given = result.crossover_in_given_unit(r, a)
-                unit_given = ab.unit
-                if ab.kind == "number_density_m3":
-                    given, unit_given = given * 1e-6, "molecule cm-3"
-                rec["crossover_in_given_unit"] = given
-                rec["crossover_given_unit"] = unit_given
+                _, given, unit_given = abundance_in_output_units(ab.kind, result.crossover_in_given_unit(r, a))
+                rec["crossover_abundance"] = given
+                rec["crossover_abundance_unit"] = unit_given
                 rec["faster_than_bare_K"] = [
                     {"low_K": x.low_K, "high_K": x.high_K, "low_at_grid_edge": x.low_at_grid_edge,
                      "high_at_grid_edge": x.high_at_grid_edge} for x in r.faster_ranges[a]]
             routes.append(rec)
-        value, unit = ab.value, ab.unit
-        if ab.kind == "number_density_m3":
-            value, unit = value * 1e-6, "molecule cm-3"
+        kind, value, unit = abundance_in_output_units(ab.kind, ab.value)
         out.append({
             "name": comp.name,
             "description": comp.description,
-            "abundance": {"kind": ab.kind, "value": value, "unit": unit, "label": ab.label,
+            "abundance": {"kind": kind, "value": value, "unit": unit, "label": ab.label,
                           "phase": ab.abundance.phase if ab.kind == "relative_humidity_percent" else None,
-                          "total_pressure_Pa": ab.total_pressure_Pa, "text": ab.describe()},
+                          "total_pressure_bar": None if ab.total_pressure_Pa is None
+                          else ab.total_pressure_Pa / 1e5, "text": ab.describe()},
             "reference": comp.reference, "substrate": comp.substrate, "catalyst": comp.catalyst,
             "catalyst_dimer": comp.catalyst_dimer,
             "temperature_K": T,
@@ -99,6 +114,15 @@ def _opt(v, factor):
 def comparison_records(results, rate_units=None) -> list[dict]:
     """Scenario records of every comparison result (one per comparison and abundance)."""
     return [rec for res in results for rec in scenario_records(res, rate_units)]
+
+
+def comparison_document(study, records: list[dict], low_modes, plots=()) -> dict:
+    """The ``tstrate compare --json`` document (``records`` from :func:`comparison_records`), with the
+    low-mode treatment and the plot files written."""
+    from tstrate.output.records import low_modes_record
+
+    return {"study": study.file, "title": study.title, "low_modes": low_modes_record(low_modes),
+            "comparisons": records, "plots": [str(p) for p in plots]}
 
 
 def comparison_report_blocks(results, records) -> list:

@@ -1,4 +1,7 @@
-"""fits.json: the fitted expressions of a study as plain records in users' units."""
+"""fits.json: the fitted expressions of a study as plain records in users' units.
+
+Every key is listed, with its unit, in :mod:`tstrate.output.schema` (docs/outputs/fits-json.md).
+"""
 
 from __future__ import annotations
 
@@ -11,6 +14,9 @@ from tstrate.expressions.nasa7 import Nasa7Fit
 from tstrate.output.records import to_jsonable
 from tstrate.study.fits import StudyFits, TroeData
 from tstrate.units import P_STANDARD, rate_from_SI
+
+_KJ = 1e-3   # J/mol -> kJ/mol
+_BAR = 1e5   # Pa per bar
 
 def _pct(x):
     return None if x is None or not math.isfinite(x) else 100.0 * float(x)
@@ -32,7 +38,7 @@ def arrhenius_record(fit: ArrheniusFit, unit: str | None = None) -> dict:
         "A_SI_unit": {1: "s-1", 2: "m3 molecule-1 s-1", 3: "m6 molecule-2 s-1"}[fit.order],
         "n": fit.n,
         "T0_K": fit.T0_K,
-        "Ea_kJ_per_mol": fit.Ea_J_per_mol / 1e3,
+        "Ea_kJ_per_mol": fit.Ea_J_per_mol * _KJ,
         "Ea_over_R_K": fit.Ea_over_R_K,
         "order": fit.order,
         "Tmin_K": fit.Tmin_K,
@@ -67,8 +73,8 @@ def chebyshev_record(fit: ChebyshevFit, unit: str | None = None) -> dict:
         "Tmin_K": fit.Tmin_K,
         "Tmax_K": fit.Tmax_K,
         "pressure_dependent": fit.pressure_dependent,
-        "Pmin_Pa": fit.Pmin_Pa,
-        "Pmax_Pa": fit.Pmax_Pa,
+        "Pmin_bar": None if fit.Pmin_Pa is None else fit.Pmin_Pa / _BAR,
+        "Pmax_bar": None if fit.Pmax_Pa is None else fit.Pmax_Pa / _BAR,
         "n_points": fit.n_points,
         "max_deviation_percent": _pct(fit.max_rel_deviation),
         "rms_deviation_percent": _pct(fit.rms_rel_deviation),
@@ -85,9 +91,9 @@ def _troe_record(t: TroeData, rate_units) -> dict:
         "T1_K": t.T1_K,
         "T2_K": t.T2_K,
         "Fcent_formula": "(1-a) exp(-T/T3) + a exp(-T/T1) + exp(-T2/T) (last term only with T2)",
-        "fit_max_deviation_percent": _pct(t.max_rel_deviation),
-        "fit_rms_deviation_percent": _pct(t.rms_rel_deviation),
-        "parameters_at_bound": {name: bound for name, bound in t.at_bound},
+        "max_deviation_percent": _pct(t.max_rel_deviation),
+        "rms_deviation_percent": _pct(t.rms_rel_deviation),
+        "parameters_at_bound": [name for name, _ in t.at_bound],
         "bath_gas": t.bath_gas,
         "source": t.source,
     }
@@ -103,13 +109,28 @@ def _nasa_record(n: Nasa7Fit) -> dict:
         "Tmax_K": n.Tmax_K,
         "low_range_coefficients": list(n.low),
         "high_range_coefficients": list(n.high),
-        "reference_pressure_Pa": P_STANDARD,
-        "max_error_cp_percent": _pct(n.max_rel_error_cp),
-        "max_error_h_percent_of_max_abs_H_or_RT": _pct(n.max_rel_error_h),
-        "max_abs_error_h_J_per_mol": n.max_abs_error_h_J_per_mol,
-        "max_error_s_percent": _pct(n.max_rel_error_s),
+        "reference_pressure_bar": P_STANDARD / _BAR,
+        "max_deviation_cp_percent": _pct(n.max_rel_error_cp),
+        "max_deviation_h_percent": _pct(n.max_rel_error_h),
+        "max_abs_deviation_h_kJ_per_mol": n.max_abs_error_h_J_per_mol * _KJ,
+        "max_deviation_s_percent": _pct(n.max_rel_error_s),
         "n_points": n.n_points,
     }
+
+
+def mechanism_fit_record(cf, rate_units: Mapping[int, str] | None = None) -> dict:
+    """The fitted expression the mechanism file holds for one channel (``cf`` a channel of
+    :class:`tstrate.study.fits.StudyFits`): a Chebyshev record for the Chebyshev forms, else
+    the Arrhenius record of the channel's expression (for a Troe channel, its Arrhenius form)."""
+    from tstrate.output.records import rate_unit
+
+    unit = rate_unit(cf.order, rate_units)
+    kind = cf.mechanism_kind
+    if kind == "chebyshev_falloff":
+        return chebyshev_record(cf.chebyshev_falloff, unit)
+    if kind == "chebyshev":
+        return chebyshev_record(cf.chebyshev, unit)
+    return arrhenius_record(cf.expression, unit)
 
 
 def fits_to_json(fits: StudyFits, rate_units: Mapping[int, str] | None = None) -> dict:
@@ -164,17 +185,17 @@ def fits_to_json(fits: StudyFits, rate_units: Mapping[int, str] | None = None) -
             "composition": s.composition,
             "role": s.role,
             "source": s.source,
-            "electronic_energy_J_per_mol": s.energy_J_per_mol,
-            "zpe_J_per_mol": s.zpe_J_per_mol,
-            "enthalpy_offset_J_per_mol": s.enthalpy_offset_J_per_mol,
-            "H0K_exported_J_per_mol": s.h0_exported_J_per_mol,
-            "H298_exported_kJ_per_mol": float(s.nasa7.h_J_per_mol(298.15)) / 1e3
+            "electronic_energy_kJ_per_mol": s.energy_J_per_mol * _KJ,
+            "zpe_kJ_per_mol": s.zpe_J_per_mol * _KJ,
+            "enthalpy_offset_kJ_per_mol": s.enthalpy_offset_J_per_mol * _KJ,
+            "H0K_exported_kJ_per_mol": s.h0_exported_J_per_mol * _KJ,
+            "H298_exported_kJ_per_mol": float(s.nasa7.h_J_per_mol(298.15)) * _KJ
             if s.nasa7.Tmin_K <= 298.15 <= s.nasa7.Tmax_K else None,
             "nasa7": _nasa_record(s.nasa7),
-            "nasa7_errors_at_fitted_temperatures_percent": None if s.errors_at_extra is None
-            else {"cp": _pct(s.errors_at_extra["cp"]),
-                  "h_of_max_abs_H_or_RT": _pct(s.errors_at_extra["h"]),
-                  "s": _pct(s.errors_at_extra["s"])},
+            "nasa7_deviations_at_fitted_temperatures": None if s.errors_at_extra is None
+            else {"max_deviation_cp_percent": _pct(s.errors_at_extra["cp"]),
+                  "max_deviation_h_percent": _pct(s.errors_at_extra["h"]),
+                  "max_deviation_s_percent": _pct(s.errors_at_extra["s"])},
             "note": s.note,
         })
     out = {
@@ -191,7 +212,7 @@ def fits_to_json(fits: StudyFits, rate_units: Mapping[int, str] | None = None) -
                            "offsets c_j (least squares over the exported study species); "
                            "reaction energies and Kc are unchanged; values are not enthalpies "
                            "of formation",
-            "element_offsets_J_per_mol": fits.element_offsets_J_per_mol,
+            "element_offsets_kJ_per_mol": {e: c * _KJ for e, c in fits.element_offsets_J_per_mol.items()},
         },
         "standard_state": "1 bar (NASA polynomials); rate constants per molecule",
         "bath_gas": fits.bath_gas,
@@ -202,4 +223,4 @@ def fits_to_json(fits: StudyFits, rate_units: Mapping[int, str] | None = None) -
     return to_jsonable(out)
 
 
-__all__ = ["arrhenius_record", "chebyshev_record", "fits_to_json"]
+__all__ = ["arrhenius_record", "chebyshev_record", "fits_to_json", "mechanism_fit_record"]

@@ -208,8 +208,8 @@ def _header(fits, cn) -> list[str]:
         f"thermochemistry (low modes: {fits.low_modes.label}),",
         "# standard state 1 bar.",
         "# Enthalpy zero: H = E + ZPE + [H(T) - H(0)] - sum_j n_j c_j with per-element offsets "
-        "c_j [J/mol per atom]:",
-        "#   " + ", ".join(f"{e}: {_num(c)}" for e, c in fits.element_offsets_J_per_mol.items()),
+        "c_j [kJ/mol per atom]:",
+        "#   " + ", ".join(f"{e}: {_num(c * 1e-3)}" for e, c in fits.element_offsets_J_per_mol.items()),
         "# (reaction energies and equilibrium constants are unchanged; these are not enthalpies "
         "of formation).",
     ]
@@ -230,8 +230,8 @@ def _species_block(s, cn) -> list[str]:
     note = f"tstrate species {s.name} ({s.role}); source: {s.source}"
     if s.note:
         note += f"; {s.note}"
-    note += (f"; fit errors: Cp {100 * n.max_rel_error_cp:.3f} %, "
-             f"H {n.max_abs_error_h_J_per_mol:.3g} J/mol, S {100 * n.max_rel_error_s:.3f} %")
+    note += (f"; max fit deviations: Cp {100 * n.max_rel_error_cp:.3f} %, "
+             f"H {1e-3 * n.max_abs_error_h_J_per_mol:.3g} kJ/mol, S {100 * n.max_rel_error_s:.3f} %")
     return [
         f"- name: {_q(cn[s.name])}",
         f"  composition: {{{comp}}}",
@@ -254,7 +254,7 @@ def _reaction_block(c, cn, duplicate: bool) -> list[str]:
         note = (f"channel {c.name}; Chebyshev fit ({f.n_temperature} x {f.n_pressure} terms) of "
                 f"{'k(T, P)' if f.pressure_dependent else 'k(T)'} over {f.Tmin_K:g}-{f.Tmax_K:g} K")
         if f.pressure_dependent:
-            note += f" and {f.Pmin_Pa:g}-{f.Pmax_Pa:g} Pa"
+            note += f" and {f.Pmin_Pa / 1e5:g}-{f.Pmax_Pa / 1e5:g} bar"
             if c.troe is not None and c.troe.bath_gas:
                 note += f" (falloff computed for bath gas {c.troe.bath_gas})"
         note += f", max deviation {100 * f.max_rel_deviation:.2f} %"

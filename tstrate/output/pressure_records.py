@@ -71,20 +71,20 @@ def falloff_channel_record(cf, rate_units: dict | None = None) -> dict:
         "k_high_pressure_over_canonical_tst": cf.k_high_pressure_per_s / cf.canonical_tst_per_s,
         "troe": {
             "a": fit.a, "T3_K": fit.T3_K, "T1_K": fit.T1_K, "T2_K": fit.T2_K,
-            "parameters_at_bound": {name: bound for name, bound in fit.at_bound},
+            "parameters_at_bound": [name for name, _ in fit.at_bound],
             "Fcent": cf.troe_Fcent,
             "k_low_pressure": _rate_in(cf.troe_k0_m3_per_s, 2, u2),
             "k_low_pressure_unit": u2,
             "k_low_pressure_kind": ("fitted effective k0 (Eckart tunnelling)" if cf.model.tunnelling == "eckart"
                                     else "strong-collision low-pressure limit"),
             "k_high_pressure_kind": "strong-collision high-pressure limit",
-            "max_relative_deviation": fit.max_relative_deviation,
-            "rms_relative_deviation": fit.rms_relative_deviation,
-            "fitted_on": {"number_density_per_cm3_min": float(m_fit.min() * _CM3),
-                          "number_density_per_cm3_max": float(m_fit.max() * _CM3),
+            "max_deviation_percent": 100.0 * fit.max_relative_deviation,
+            "rms_deviation_percent": 100.0 * fit.rms_relative_deviation,
+            "fitted_on": {"min_number_density_per_cm3": float(m_fit.min() * _CM3),
+                          "max_number_density_per_cm3": float(m_fit.max() * _CM3),
                           "points_per_temperature": int(m_fit.size)},
             "rate_constant": _rate_in(cf.troe_per_s, 1, u1),
-            "max_relative_deviation_on_study_grid": float(np.max(np.abs(troe_dev))),
+            "max_deviation_on_study_grid_percent": 100.0 * float(np.max(np.abs(troe_dev))),
         },
         "bath_gas": cf.bath.name,
         "collision_efficiency": eff.beta,
@@ -125,7 +125,7 @@ def study_falloff_record(result, rate_units: dict | None = None) -> dict:
     }
 
 
-def _grid_record(g, profile: bool) -> dict:
+def _grid_record(g, profile: bool, rate_units: dict | None = None) -> dict:
     de = g.delta_E_down_J_per_mol
     half = g.half_number_density_m3
     rec = {
@@ -137,7 +137,8 @@ def _grid_record(g, profile: bool) -> dict:
         "energy_cm1": g.energy_J_per_mol / CM1_J_PER_MOL,
         "rate_constant_per_s": g.rate_per_s,
         "below_threshold": [bool(b) for b in np.atleast_1d(g.below_threshold)],
-        "collision_rate_constant_cm3_per_molecule_s": g.collision_rate_m3_per_s * 1e6,
+        "collision_rate_constant": _rate_in(g.collision_rate_m3_per_s, 2, rate_unit(2, rate_units)),
+        "collision_rate_constant_unit": rate_unit(2, rate_units),
         "collision_efficiency": g.collision_efficiency,
         "collision_frequency_per_s": g.collision_frequency_per_s,
         "fraction_stern_volmer": g.stern_volmer,
@@ -150,7 +151,7 @@ def _grid_record(g, profile: bool) -> dict:
     return rec
 
 
-def excitation_record(res, *, k_of_e_points: int = 200) -> dict:
+def excitation_record(res, rate_units: dict | None = None, *, k_of_e_points: int = 200) -> dict:
     """One excitation: k(E) (sampled), fractions against pressure and along altitude."""
     model = res.model
     rate = model.rate
@@ -163,7 +164,7 @@ def excitation_record(res, *, k_of_e_points: int = 200) -> dict:
         "excitation_energy_kJ_per_mol": res.spec.energy_J_per_mol * 1e-3,
         "excitation_energy_cm1": res.spec.energy_J_per_mol / CM1_J_PER_MOL,
         "below_threshold": res.below_threshold,
-        "pressure_scan": None if res.pressure is None else _grid_record(res.pressure, False),
+        "pressure_scan": None if res.pressure is None else _grid_record(res.pressure, False, rate_units),
         "altitude_profile": None,
         "k_of_E": {"energy_kJ_per_mol": rate.energies_J_per_mol[idx] * 1e-3,
                    "energy_cm1": rate.energies_J_per_mol[idx] / CM1_J_PER_MOL,
@@ -172,8 +173,14 @@ def excitation_record(res, *, k_of_e_points: int = 200) -> dict:
         "warnings": list(res.warnings),
     }
     if res.profile is not None:
-        prof = _grid_record(res.profile, True)
+        prof = _grid_record(res.profile, True, rate_units)
         prof = {"source": res.profile_source, "altitude_km": res.altitude_m * 1e-3, **prof}
         rec["altitude_profile"] = prof
     rec.update(model_record(model))
     return rec
+
+
+def excitation_document(study, records: list[dict], bath_gas: str, plots=()) -> dict:
+    """The ``tstrate excite --json`` document (``records`` from :func:`excitation_record`)."""
+    return {"study": study.file, "title": study.title, "bath_gas": bath_gas,
+            "excitations": records, "plots": [str(p) for p in plots]}

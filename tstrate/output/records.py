@@ -1,7 +1,10 @@
 """Results as plain records: numbers with unit-bearing keys, ready for JSON and CSV.
 
 Every converter here is the single place where a result's internal SI values
-meet the units users see.
+meet the units users see. The conventions of every output file (molar energies
+in kJ/mol, deviations in percent, pressures in bar, the unit in every numeric
+key's name or in a ``*_unit`` sibling) are written down in
+:mod:`tstrate.output.schema`, which lists every key.
 """
 
 from __future__ import annotations
@@ -51,9 +54,9 @@ def channel_rates_record(cr, rate_units: dict | None = None) -> dict:
         "tunnelling": cr.tunnelling,
         "reverse_rate_constant": _rate_in(cr.k_reverse, cr.reverse_order, runit),
         "reverse_rate_constant_unit": runit,
-        "ln_Kc": cr.ln_kc,
+        "ln_Kc": _ln_kc_cm3(cr),
         "Kc_unit": f"(molecule cm-3)^{cr.reverse_order - cr.order}",
-        "Kc": _kc_cm3(cr),
+        "Kc": _exp(_ln_kc_cm3(cr)),
         "Kp_1bar": _exp(cr.ln_kp),
         "barrier_classical_kJ_per_mol": cr.barrier_classical_J_per_mol * kj,
         "barrier_zpe_kJ_per_mol": cr.barrier_zpe_J_per_mol * kj,
@@ -61,8 +64,8 @@ def channel_rates_record(cr, rate_units: dict | None = None) -> dict:
         "barrier_from_complex_zpe_kJ_per_mol": _opt(cr.barrier_from_complex_zpe_J_per_mol, kj),
         "reaction_energy_zpe_kJ_per_mol": cr.reaction_energy_zpe_J_per_mol * kj,
         "imaginary_frequency_cm1": cr.imaginary_frequency_cm1,
-        "eckart_forward_barrier_kJ_per_mol": cr.eckart_V1_J_per_mol * kj,
-        "eckart_reverse_barrier_kJ_per_mol": cr.eckart_V2_J_per_mol * kj,
+        "tunnelling_forward_barrier_kJ_per_mol": cr.eckart_V1_J_per_mol * kj,
+        "tunnelling_reverse_barrier_kJ_per_mol": cr.eckart_V2_J_per_mol * kj,
         "tunnelling_energy_floor_kJ_per_mol": cr.energy_floor_J_per_mol * kj,
         "delta_H_activation_kJ_per_mol": cr.delta_H_J_per_mol * kj,
         "delta_S_activation_J_per_mol_K": cr.delta_S_J_per_mol_K,
@@ -72,17 +75,73 @@ def channel_rates_record(cr, rate_units: dict | None = None) -> dict:
     }
 
 
+def thermo_record(th, sp) -> dict:
+    """One species' thermochemistry (``th`` from :func:`tstrate.physics.thermo.thermochemistry`
+    of the species ``sp``) with units in the keys; arrays run over ``temperature_K``."""
+    kj = 1e-3
+    return {
+        "name": th.species, "formula": sp.formula, "kind": sp.kind,
+        "symmetry_number": sp.symmetry_number, "optical_isomers": sp.optical_isomers,
+        "linear": sp.linear,
+        "frequencies_cm1": sp.scaled_frequencies_cm1, "zpe_kJ_per_mol": th.zpe_J_per_mol * kj,
+        "free_rotors": [{"replaces_cm1": r.replaces_cm1, "symmetry_number": r.symmetry_number,
+                         "reduced_moment_amu_A2": r.reduced_moment_amu_A2} for r in sp.free_rotors],
+        "temperature_K": th.temperature_K, "entropy_J_per_mol_K": th.entropy_J_per_mol_K,
+        "heat_capacity_J_per_mol_K": th.heat_capacity_J_per_mol_K,
+        "enthalpy_increment_kJ_per_mol": th.enthalpy_increment_J_per_mol * kj,
+        "gibbs_increment_kJ_per_mol": th.gibbs_increment_J_per_mol * kj,
+    }
+
+
+def low_modes_record(low_modes) -> dict:
+    """The "low_modes" entry of JSON output: {"method", "cutoff_cm1"}."""
+    return {"method": low_modes.method, "cutoff_cm1": low_modes.cutoff_cm1}
+
+
+def thermo_document(records: list[dict], low_modes) -> dict:
+    """The ``tstrate thermo --json`` document: one :func:`thermo_record` per species file
+    (each with its ``file``), the standard pressure and the low-mode treatment."""
+    from tstrate.units import P_STANDARD
+
+    return {"standard_pressure_bar": P_STANDARD / 1e5,
+            "low_modes": low_modes_record(low_modes),
+            "species": records}
+
+
+def rates_document(study, records: list[dict], low_modes, plots=()) -> dict:
+    """The ``tstrate rates --json`` document: :func:`channel_rates_record` of every channel, the
+    low-mode treatment and the plot files written."""
+    return {"study": study.file, "title": study.title, "low_modes": low_modes_record(low_modes),
+            "temperature_K": records[0]["temperature_K"] if records else [],
+            "channels": records, "plots": [str(p) for p in plots]}
+
+
+def tunnelling_record(imaginary_frequency_cm1: float, V1_J_per_mol: float, V2_J_per_mol: float,
+                      energy_floor_J_per_mol: float, temperature_K, kappas: dict, model: str) -> dict:
+    """The ``tstrate tunnel --json`` document: kappa of one model (a list) or, for ``model``
+    "all", an object keyed by model; the barrier heights and energy floor in kJ/mol."""
+    kj = 1e-3
+    return {
+        "model": model,
+        "imaginary_frequency_cm1": imaginary_frequency_cm1,
+        "tunnelling_forward_barrier_kJ_per_mol": V1_J_per_mol * kj,
+        "tunnelling_reverse_barrier_kJ_per_mol": V2_J_per_mol * kj,
+        "tunnelling_energy_floor_kJ_per_mol": energy_floor_J_per_mol * kj,
+        "temperature_K": temperature_K,
+        "kappa": kappas if model == "all" else kappas[model],
+    }
+
+
 def _exp(x):
     import numpy as np
 
     return np.exp(x)
 
 
-def _kc_cm3(cr):
-    import numpy as np
-
+def _ln_kc_cm3(cr):
+    """ln of Kc in (molecule cm-3)^dn (from molecule m-3 units)."""
     dn = cr.reverse_order - cr.order
-    return np.exp(cr.ln_kc - dn * np.log(1e6))  # (m^-3)^dn -> (cm^-3)^dn
+    return np.asarray(cr.ln_kc, dtype=float) - dn * np.log(1e6)
 
 
 def _opt(v, factor):

@@ -69,7 +69,7 @@ def _save(fig, folder: Path, stem: str) -> list[Path]:
 
 
 def _results_json(result) -> dict:
-    from tstrate.output.records import channel_rates_record
+    from tstrate.output.records import channel_rates_record, thermo_record
 
     study = result.study
     units = study.conditions.rate_units
@@ -77,7 +77,7 @@ def _results_json(result) -> dict:
         "study": study.file,
         "title": study.title,
         "low_modes": {"method": result.low_modes.method, "cutoff_cm1": result.low_modes.cutoff_cm1},
-        "thermochemistry": [_thermo_record(t, study.species[t.species]) for t in result.thermo],
+        "thermochemistry": [thermo_record(t, study.species[t.species]) for t in result.thermo],
         "channels": [channel_rates_record(r, units) for r in result.rates],
         "warnings": list(result.warnings),
     }
@@ -92,7 +92,7 @@ def _results_json(result) -> dict:
     if result.excitations is not None:
         from tstrate.output.pressure_records import excitation_record
 
-        doc["excitations"] = [excitation_record(e) for e in result.excitations]
+        doc["excitations"] = [excitation_record(e, units) for e in result.excitations]
     return doc
 
 
@@ -105,10 +105,25 @@ def fits_document(result) -> dict:
     if result.pressure_fits:
         doc["fits_at_each_pressure"] = {
             name: [{"pressure_bar": None if p is None else p / 1e5,
-                    "number_density_per_cm3_at_highest_T": n * 1e-6,
+                    "number_density_at_highest_T_per_cm3": n * 1e-6,
                     **arrhenius_record(fit)} for p, n, fit in entries]
             for name, entries in result.pressure_fits.items()}
     return doc
+
+
+def run_summary(result, output_dir, files) -> dict:
+    """The ``tstrate run --json`` summary: the folder, the files written, and per channel the
+    kind of expression in mechanism.yaml with its fitted record."""
+    from tstrate.output.fit_records import mechanism_fit_record
+
+    units = result.study.conditions.rate_units
+    return {
+        "study": result.study.file, "output_dir": str(output_dir), "files": [str(f) for f in files],
+        "channels": [{"name": c.name, "mechanism_kind": c.mechanism_kind,
+                      "mechanism_fit": mechanism_fit_record(c, units),
+                      "warnings": list(c.warnings)} for c in result.fits.channels],
+        "warnings": list(result.warnings),
+    }
 
 
 def pressure_fit_rows(result):
@@ -118,20 +133,6 @@ def pressure_fit_rows(result):
              f.Tmax_K, 100 * f.max_rel_deviation, 100 * f.rms_rel_deviation]
             for name, entries in result.pressure_fits.items() for p, _, f in entries]
     return header, rows
-
-
-def _thermo_record(th, sp) -> dict:
-    return {
-        "name": th.species, "formula": sp.formula, "kind": sp.kind,
-        "symmetry_number": sp.symmetry_number, "optical_isomers": sp.optical_isomers,
-        "frequencies_cm1": sp.scaled_frequencies_cm1, "zpe_kJ_per_mol": th.zpe_J_per_mol / 1e3,
-        "free_rotors": [{"replaces_cm1": r.replaces_cm1, "symmetry_number": r.symmetry_number,
-                         "reduced_moment_amu_A2": r.reduced_moment_amu_A2} for r in sp.free_rotors],
-        "temperature_K": th.temperature_K, "entropy_J_per_mol_K": th.entropy_J_per_mol_K,
-        "heat_capacity_J_per_mol_K": th.heat_capacity_J_per_mol_K,
-        "enthalpy_increment_kJ_per_mol": th.enthalpy_increment_J_per_mol / 1e3,
-        "gibbs_increment_kJ_per_mol": th.gibbs_increment_J_per_mol / 1e3,
-    }
 
 
 def write_all(result, folder: Path, *, progress: Callable[[str], None] | None = None) -> list[Path]:
@@ -372,13 +373,16 @@ def build_report(result, doc: dict, inputs: list[dict], figures) -> list:
         B += [rp.Figure(p, c) for s, p, c in figures if s == "excitation"]
 
     B.append(rp.Heading("Fitted parameters"))
+    from tstrate.output.records import rate_unit
+
     rows = []
     for cf in result.fits.channels:
         for label, fit in (("Arrhenius", cf.arrhenius), ("modified Arrhenius", cf.modified)):
-            rows.append((cf.name, label, f"{fit.A_in():.4g}", f"{fit.n:.3g}",
+            unit = rate_unit(fit.order, study.conditions.rate_units)
+            rows.append((cf.name, label, f"{fit.A_in(unit):.4g}", unit, f"{fit.n:.3g}",
                          f"{fit.Ea_J_per_mol / 1e3:.3f}", f"{fit.Tmin_K:g}-{fit.Tmax_K:g}",
                          f"{100 * fit.max_rel_deviation:.2f}", f"{100 * fit.rms_rel_deviation:.2f}"))
-    B.append(rp.Table(("channel", "form", "A (k's unit)", "n", "Ea / kJ mol-1", "range / K",
+    B.append(rp.Table(("channel", "form", "A", "A unit", "n", "Ea / kJ mol-1", "range / K",
                        "max deviation / %", "rms deviation / %"), tuple(rows),
                       f"k = A (T/T0)^n exp(-Ea/RT), T0 = {result.fits.channels[0].modified.T0_K:g} K "
                       "for the modified form; the mechanism file uses the "

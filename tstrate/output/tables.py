@@ -1,8 +1,11 @@
 """CSV tables and JSON dumps of thermochemistry, rate constants and fits, written atomically.
 
-Every column name carries its unit in brackets, e.g. ``k [cm3 molecule-1 s-1]``;
-rate-constant units follow the study's ``rate_units`` (else the trade's
-defaults), converted by :mod:`tstrate.output.records`. Files go through
+Every numeric column name carries its unit in brackets, e.g. ``k [cm3 molecule-1 s-1]``
+(``[1]`` for dimensionless numbers); a column whose unit changes from row to row
+(``A`` in fits.csv) has its unit in the next column (``A unit``). Rate-constant
+units follow the study's ``rate_units`` (else the trade's defaults), converted by
+:mod:`tstrate.output.records`; pressures are in bar. Every column is listed in
+:mod:`tstrate.output.schema` (docs/outputs/csv-tables.md). Files go through
 :func:`tstrate.io.files.atomic_write_text` (temporary file + rename: an
 interrupted or failed write leaves the previous file or none, never half a
 file), and a writer refuses a path that is one of the given input files.
@@ -68,7 +71,7 @@ def safe_file_stem(name: str) -> str:
 THERMO_COLUMNS = ["species", "T [K]", "Cp [J mol-1 K-1]", "S [J mol-1 K-1]",
                   "H(T)-H(0) [kJ mol-1]", "G(T)-H(0) [kJ mol-1]", "ZPE [kJ mol-1]",
                   "E_electronic [kJ mol-1]", "H(T) [kJ mol-1]", "G(T) [kJ mol-1]",
-                  "p_standard [Pa]"]
+                  "p_standard [bar]"]
 
 
 def thermo_csv_text(thermos) -> str:
@@ -88,7 +91,7 @@ def thermo_csv_text(thermos) -> str:
                          th.gibbs_increment_J_per_mol[i] / 1e3, th.zpe_J_per_mol / 1e3,
                          th.energy_J_per_mol / 1e3 if has_e else None,
                          h[i] / 1e3 if has_e else None, g[i] / 1e3 if has_e else None,
-                         th.pressure_Pa])
+                         th.pressure_Pa / 1e5])
     return csv_text(THERMO_COLUMNS, rows)
 
 
@@ -115,7 +118,7 @@ def rates_csv_text(cr, rate_units=None) -> str:
     u, ru = rec["rate_constant_unit"], rec["reverse_rate_constant_unit"]
     dn = cr.reverse_order - cr.order
     header = ["channel", "T [K]", f"k [{u}]", f"k_no_tunnelling [{u}]", "kappa [1]",
-              f"k_reverse [{ru}]", f"Kc [(molecule cm-3)^{dn}]", "Kp [1] (1 bar)",
+              f"k_reverse [{ru}]", f"Kc [(molecule cm-3)^{dn}]", "Kp(1 bar) [1]",
               "dH_activation [kJ mol-1]", "dS_activation [J mol-1 K-1]",
               "dG_activation [kJ mol-1]"]
     rows = []
@@ -161,10 +164,9 @@ def write_rate_tables(folder, rates, rate_units=None, *, inputs=(), prefix: str 
 # fits
 # ============================================================================
 
-FIT_COLUMNS = ["channel", "expression", "range", "order", "A", "A unit", "n [1]", "T0 [K]",
+FIT_COLUMNS = ["channel", "expression", "range", "order [1]", "A", "A unit", "n [1]", "T0 [K]",
                "Ea [kJ mol-1]", "Ea/R [K]", "Tmin [K]", "Tmax [K]", "max deviation [%]",
-               "rms deviation [%]", "Pmin [Pa]", "Pmax [Pa]",
-               "Chebyshev log10 k coefficients (k in A unit; rows 1/T terms, columns log P terms)"]
+               "rms deviation [%]", "Pmin [bar]", "Pmax [bar]", "Chebyshev coefficients [1]"]
 
 
 def fits_csv_text(fits, rate_units=None) -> str:
@@ -187,7 +189,7 @@ def fits_csv_text(fits, rate_units=None) -> str:
         rng = "all T" + (", P range" if fit.pressure_dependent else ", any P")
         rows.append([channel, label, rng, fit.order, None, r["k_unit"], None, None, None, None,
                      r["Tmin_K"], r["Tmax_K"], r["max_deviation_percent"],
-                     r["rms_deviation_percent"], r["Pmin_Pa"], r["Pmax_Pa"],
+                     r["rms_deviation_percent"], r["Pmin_bar"], r["Pmax_bar"],
                      json.dumps(r["coefficients_log10_k"])])
 
     for c in fits.channels:
