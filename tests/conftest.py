@@ -12,6 +12,12 @@ these helpers directly (``from tests.conftest import ...``).
 from __future__ import annotations
 
 import numpy as np
+from hypothesis import settings as _hypothesis_settings
+
+# property-based tests draw the same examples on every run and machine (no example database
+# replaying old failures), so that the suite's result does not depend on where it ran before
+_hypothesis_settings.register_profile("tstrate", derandomize=True, database=None)
+_hypothesis_settings.load_profile("tstrate")
 
 
 def _unit(v):
