@@ -360,3 +360,20 @@ def test_negative_imaginary_allowance_is_refused():
     with pytest.raises(InputError, match=r"allow_imaginary_below_cm1"):
         build_species("w", ["O", "H", "H"], [[0, 0, 0], [0, 0.757, 0.586], [0, -0.757, 0.586]],
                       frequencies_cm1=[1595, 3657, 3756], allow_imaginary_below_cm1=-5.0)
+
+
+def test_special_and_oversized_files_are_refused_before_reading(tmp_path, monkeypatch):
+    """A pipe would block and a huge file would fill memory: both are refused up front."""
+    import os
+
+    from tstrate.io import tables
+
+    fifo = tmp_path / "pipe.toml"
+    os.mkfifo(fifo)
+    with pytest.raises(InputError, match=r"pipe\.toml: is not a regular file"):
+        read_species(fifo)
+    big = tmp_path / "big.toml"
+    big.write_text("name = 'x'\n" + "# padding\n" * 200)
+    monkeypatch.setattr(tables, "MAX_TOML_BYTES", 1000)
+    with pytest.raises(InputError, match=r"big\.toml: is larger than"):
+        read_species(big)

@@ -23,10 +23,28 @@ _TYPE_NAMES = {int: "an integer", float: "a number", str: "a string", bool: "tru
                list: "a list", dict: "a table"}
 
 
+#: a species or study file larger than this is refused before it is read [bytes] (a Hessian of
+#: 200 atoms written out in full is about 8 MiB)
+MAX_TOML_BYTES = 64 * 2**20
+
+
 def load_toml(path: str | Path) -> dict:
-    """Parse a TOML file; a missing file or a syntax error is an InputError."""
+    """Parse a TOML file; a missing, special, oversized or malformed file is an InputError.
+
+    Only regular files are opened (a pipe or a device could block or never end), and a file
+    larger than :data:`MAX_TOML_BYTES` is refused before it is read."""
+    import stat
+
     path = Path(path)
     try:
+        info = path.stat()
+        if stat.S_ISDIR(info.st_mode):
+            raise IsADirectoryError
+        if not stat.S_ISREG(info.st_mode):
+            raise InputError("is not a regular file (TOML expected)", file=str(path))
+        if info.st_size > MAX_TOML_BYTES:
+            raise InputError(f"is larger than {MAX_TOML_BYTES // 2**20} MiB; a species or study file is far smaller",
+                             file=str(path))
         with open(path, "rb") as fh:
             return tomllib.load(fh)
     except FileNotFoundError:
