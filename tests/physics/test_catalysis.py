@@ -364,3 +364,31 @@ def test_zero_abundance_gives_no_assisted_loss(study):
     assert r.faster_ranges == ((),)
     assert np.all(np.isfinite(r.crossover_catalyst_m3))
 
+
+
+# ---- plausibility: water above saturation ----------------------------------------------------
+
+def _ln_p_ice_murphy_koop(T):
+    """ln p_ice [Pa], Murphy and Koop, Q. J. R. Meteorol. Soc. 131, 1539 (2005), eq. 7, written out here."""
+    return 9.550426 - 5723.265 / T + 3.53068 * np.log(T) - 0.00728332 * T
+
+
+def test_water_above_saturation_over_ice_is_said(study):
+    from tstrate.physics.catalysis import supersaturation_warnings
+
+    T = np.array([150.0, 180.0, 200.0, 230.0])
+    x, p_total = 2e-6, 1000.0                       # 2 ppmv at 10 hPa (the demo's cold, dry scenario)
+    comp = _comparison([("one_water", 1)], [CatalystAbundance(Abundance.from_mixing_ratio(x), p_total)],
+                       temps=tuple(T))
+    res = compare_routes(comp, study.species, study.channels)
+    (w,) = res.warnings
+    ratio = x * p_total / np.exp(_ln_p_ice_murphy_koop(T))     # partial pressure over p_ice
+    assert ratio[0] > 300 and ratio[-1] < 1                      # supersaturated when cold only
+    assert f"up to {ratio[0]:.3g} times" in w and "over ice at 150 K" in w
+    assert f"at {int(np.sum(ratio > 1.01))} of 4 temperatures" in w
+    # the same water at 50 % relative humidity over ice is never above saturation
+    rh = _comparison([("one_water", 1)], [CatalystAbundance(Abundance.from_relative_humidity(50.0, "ice"))],
+                     temps=tuple(T))
+    assert compare_routes(rh, study.species, study.channels).warnings == ()
+    n = np.array([[2e-6 * 1000.0 / (1.380649e-23 * t) for t in T]])
+    assert supersaturation_warnings(comp, n, T) == res.warnings

@@ -446,3 +446,26 @@ def test_enthalpy_and_gibbs_need_an_energy(reference_species):
 def test_bad_temperatures(reference_species, bad):
     with pytest.raises(InputError, match=r"\[temperature_K\]"):
         thermochemistry(reference_species["n2"], [300.0, bad])
+
+
+def test_open_shell_diatomic_without_levels_is_said():
+    """NO (X 2Pi) has its 2Pi3/2 level about 121 cm-1 above 2Pi1/2 (spin-orbit splitting; Huber and
+    Herzberg 1979, value from memory). Leaving it out lowers S(298 K) by about 5.4 J/(mol K): the
+    warning asks for the levels; with them, or for a closed-shell molecule, nothing is said."""
+    from tstrate.physics.thermo import electronic_level_warning
+
+    def no(levels=()):
+        return build_species("NO", ["N", "O"], [[0, 0, 0], [0, 0, 1.1508]], multiplicity=2,
+                             frequencies_cm1=[1876.0], electronic_levels=levels)
+
+    bare, full = no(), no((ElectronicLevel(0.0, 2), ElectronicLevel(121.0, 2)))
+    assert "open-shell diatomic" in electronic_level_warning(bare)
+    assert electronic_level_warning(full) is None
+    gap = (thermochemistry(full, 298.15).entropy_J_per_mol_K[0]
+           - thermochemistry(bare, 298.15).entropy_J_per_mol_K[0])
+    assert 5.0 < gap < 5.8
+    o_atom = build_species("O", ["O"], [[0, 0, 0]], multiplicity=3, frequencies_cm1=[])
+    assert "open-shell atom" in electronic_level_warning(o_atom)
+    h2o = build_species("H2O", ["O", "H", "H"], [[0, 0, 0], [0, 0.75695, 0.585882], [0, -0.75695, 0.585882]],
+                        frequencies_cm1=[1594.7, 3657.1, 3755.9])
+    assert electronic_level_warning(h2o) is None

@@ -151,6 +151,8 @@ def _print_barriers(rec) -> None:
 
 
 def run(args) -> int:
+    import sys
+
     from tstrate.cli.common import (check_plot_dir, low_modes_from_args, print_json,
                                     progress_wrapper)
 
@@ -158,6 +160,10 @@ def run(args) -> int:
     low_modes = low_modes_from_args(args)
     study, results = compute(args.study, low_modes)
     from tstrate.output.compare_records import comparison_records
+
+    for res in results:
+        for w in res.warnings:
+            print(f"tstrate compare: warning: {w}", file=sys.stderr)
 
     records = comparison_records(results, study.conditions.rate_units)
     written = [] if folder is None else write_plots(

@@ -34,14 +34,18 @@ def add_arguments(parser) -> None:
 
 def compute(files, temperatures_K, low_modes):
     """Read the files and return one record per species (plain numbers, units in the keys)."""
-    from tstrate.io.species import read_species
-    from tstrate.physics.thermo import thermochemistry
+    import sys
 
+    from tstrate.io.species import read_species
     from tstrate.output.records import thermo_record
+    from tstrate.physics.thermo import electronic_level_warning, thermochemistry
 
     out = []
     for f in files:
         sp = read_species(f)
+        warning = electronic_level_warning(sp)
+        if warning:
+            print(f"tstrate thermo: warning: {f}: {warning}", file=sys.stderr)
         th = thermochemistry(sp, temperatures_K, low_modes=low_modes)
         out.append({"file": str(f), **thermo_record(th, sp)})
     return out

@@ -33,7 +33,10 @@ CAUTION = ("Caution: every number here is an estimate bounded by the electronic-
 
 METHODS = (
     "Thermochemistry: ideal gas, rigid rotor, harmonic oscillator, electronic levels; 1 bar standard "
-    "state; symmetry numbers and optical isomers from the geometry unless overridden.",
+    "state; symmetry numbers and optical isomers from the geometry unless overridden. Atomic masses "
+    "are those of the most common isotope of each element (as quantum-chemistry programs use), not "
+    "the natural-abundance average masses of thermochemical tables; the difference in S is small "
+    "(about 0.005 J/(mol K) for H2O at 298 K) but isotopologues must be given explicitly.",
     "Rate constants: canonical transition-state theory (Eyring) from partition functions per unit "
     "volume and the zero-point-corrected barrier, in logarithms; reaction-path degeneracy carried by "
     "the symmetry numbers unless overridden; channels through a pre-reactive complex in the "

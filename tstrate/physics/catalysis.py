@@ -473,6 +473,7 @@ class ComparisonResult:
     barriers: one row per route, same order.
     profiles: one energy profile per route, same order, all relative to the substrate plus the
         catalyst monomers at infinity.
+    warnings: plain sentences for the user (e.g. a water abundance above saturation).
     """
 
     comparison: Comparison
@@ -484,6 +485,7 @@ class ComparisonResult:
     free_substrate_fraction: np.ndarray
     barriers: tuple[BarrierRow, ...]
     profiles: tuple[RouteProfile, ...] = field(default=())
+    warnings: tuple[str, ...] = ()
 
     @property
     def bare(self) -> RouteResult:
@@ -662,12 +664,57 @@ def compare_routes(comparison: Comparison, species: Mapping[str, Species], chann
             log.info("comparison %s: complex %s holds up to %.3g substrate per free substrate; "
                      "rates here are per free substrate", comparison.name, r.complex,
                      float(np.nanmax(r.complex_per_free_substrate)))
+    warnings = ()
+    if species[comparison.catalyst].formula == "H2O":
+        warnings = supersaturation_warnings(comparison, n_cat, T)
     return ComparisonResult(comparison=comparison, temperature_K=T, catalyst_m3=n_cat,
                             dimer_equilibrium=dimer_eq, dimer_m3=n_dim, routes=tuple(routes),
-                            free_substrate_fraction=free, barriers=barriers, profiles=profiles)
+                            free_substrate_fraction=free, barriers=barriers, profiles=profiles,
+                            warnings=warnings)
+
+
+#: below this temperature [K] ice is the stable condensed phase of water (its normal melting point)
+ICE_MELTING_K = 273.15
+#: a water abundance more than this factor above saturation is said in a warning (1 % above: not
+#: round-off of a relative humidity of 100 %)
+SUPERSATURATION_WARN_RATIO = 1.01
+
+
+def supersaturation_warnings(comparison: Comparison, water_m3, temperature_K) -> tuple[str, ...]:
+    """Sentences for each abundance of water that exceeds saturation over ice (below 273.15 K,
+    where ice is the stable phase) or over liquid water (Murphy and Koop 2005) at some temperature.
+
+    water_m3: (A, T) water number densities [m^-3]; temperature_K: (T,) [K]. Such air would
+    condense (or deposit ice) until it is saturated, so the assumed water abundance cannot last;
+    a relative humidity given over liquid water below 0 C is supersaturated over ice as well.
+    """
+    from tstrate.physics.humidity import number_density_from_partial_pressure
+
+    T = np.asarray(temperature_K, dtype=float)
+    out = []
+    cold = T < ICE_MELTING_K
+    p_sat = np.empty_like(T)
+    if np.any(cold):
+        p_sat[cold] = saturation_pressure_Pa(T[cold], "ice")
+    if np.any(~cold):
+        p_sat[~cold] = saturation_pressure_Pa(T[~cold], "liquid")
+    n_sat = number_density_from_partial_pressure(p_sat, T)
+    for abundance, n in zip(comparison.abundances, np.atleast_2d(water_m3)):
+        ratio = np.asarray(n, dtype=float) / n_sat
+        bad = ratio > SUPERSATURATION_WARN_RATIO
+        if not np.any(bad):
+            continue
+        worst = int(np.nanargmax(np.where(bad, ratio, -np.inf)))
+        phase = "ice" if cold[worst] else "liquid water"
+        out.append(f"comparison {comparison.name!r}: {abundance.describe()} is above saturation at "
+                   f"{int(np.sum(bad))} of {T.size} temperatures, up to {ratio[worst]:.3g} times the "
+                   f"saturation vapour pressure over {phase} at {T[worst]:g} K (Murphy and Koop 2005); "
+                   "such air would condense or deposit ice, so this water abundance cannot persist there")
+    return tuple(out)
 
 
 __all__ = ["ROUTE_KINDS", "ABUNDANCE_UNITS", "CatalystAbundance", "AssistedRoute", "Comparison",
            "classify_route", "ComplexEquilibrium", "complex_equilibrium", "TemperatureRange",
            "faster_temperature_ranges", "RouteResult", "BarrierRow", "ProfileLevel", "RouteProfile",
-           "route_profile", "ComparisonResult", "k_unimolecular_from_complex", "compare_routes"]
+           "route_profile", "ComparisonResult", "k_unimolecular_from_complex", "compare_routes",
+           "supersaturation_warnings"]

@@ -283,6 +283,24 @@ def _vibrational_parts(freqs: np.ndarray, T: np.ndarray, low_modes: LowModes):
     return ln_q.sum(axis=1), u.sum(axis=1), s.sum(axis=1), cv.sum(axis=1)
 
 
+def electronic_level_warning(species: Species) -> str | None:
+    """A sentence when an open-shell atom or diatomic carries only its spin multiplicity as
+    electronic levels, or None.
+
+    Open-shell atoms and diatomics usually have levels within a few hundred cm^-1 of the ground
+    level (spin-orbit components of 2Pi and 3P terms: NO, OH, ClO, O, Cl ...), which add R ln of
+    the extra degeneracy to S and a bump to Cp at the temperatures of the atmosphere. With only
+    the multiplicity, S of NO at 298 K comes out about 5.5 J/(mol K) low (common practice: give
+    the levels from spectroscopic tables).
+    """
+    if species.electronic_levels or species.multiplicity == 1 or species.natoms > 2:
+        return None
+    what = "atom" if species.is_atom else "diatomic"
+    return (f"species {species.name}: an open-shell {what} (multiplicity {species.multiplicity}) with no "
+            "[[electronic_levels]]: only the spin degeneracy is counted; low-lying spin-orbit levels are "
+            "common for such species and change S and Cp (give them in its species file)")
+
+
 def thermochemistry(species: Species, temperature_K, *, low_modes: LowModes = HARMONIC,
                     pressure_Pa: float = P_STANDARD) -> Thermo:
     """Partition functions and H, S, Cp, G of one species on a temperature grid.

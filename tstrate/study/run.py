@@ -25,7 +25,7 @@ from typing import Callable
 import numpy as np
 
 from tstrate.model import Study
-from tstrate.physics.thermo import HARMONIC, LowModes, Thermo, thermochemistry
+from tstrate.physics.thermo import HARMONIC, LowModes, Thermo, electronic_level_warning, thermochemistry
 
 log = logging.getLogger(__name__)
 
@@ -88,6 +88,7 @@ def compute_study(study: Study, *, low_modes: LowModes = HARMONIC,
 
     step("thermochemistry")
     thermo = tuple(thermochemistry(sp, T_thermo, low_modes=low_modes) for sp in study.species.values())
+    warnings += [w for w in (electronic_level_warning(sp) for sp in study.species.values()) if w]
 
     step("rate constants")
     rates = tuple(study_rates(study, low_modes=low_modes))
@@ -98,6 +99,8 @@ def compute_study(study: Study, *, low_modes: LowModes = HARMONIC,
         from tstrate.study.routes import study_comparisons
 
         comparisons = tuple(study_comparisons(study, low_modes=low_modes))
+        for comp in comparisons:
+            warnings += list(comp.warnings)
 
     falloff = None
     troe = {}
