@@ -41,7 +41,7 @@ def compute(study_path, temperatures=None, low_modes="harmonic"):
     from tstrate.io.study import read_study
     from tstrate.output.records import channel_rates_record
     from tstrate.physics.thermo import LowModes
-    from tstrate.study.rates import study_rates
+    from tstrate.study.rates import capture_limits, study_rates
 
     if not isinstance(low_modes, LowModes):
         low_modes = LowModes(low_modes)
@@ -55,6 +55,10 @@ def compute(study_path, temperatures=None, low_modes="harmonic"):
         if np.any(t <= 0) or not np.all(np.isfinite(t)):
             raise InputError("temperatures must be positive (kelvin)", field="--temperature")
     results = study_rates(study, low_modes=low_modes, temperature_K=temperatures)
+    import sys
+
+    for w in capture_limits(study, results)[1]:
+        print(f"tstrate rates: warning: {w}", file=sys.stderr)
     return study, [channel_rates_record(r, study.conditions.rate_units) for r in results]
 
 

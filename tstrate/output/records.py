@@ -98,6 +98,22 @@ def low_modes_record(low_modes) -> dict:
     return {"method": low_modes.method, "cutoff_cm1": low_modes.cutoff_cm1}
 
 
+def capture_limit_record(lim, rate_units: dict | None = None) -> dict:
+    """One bimolecular channel's TST rate constant against the capture ceiling of its reactants."""
+    unit = rate_unit(2, rate_units)
+    return {
+        "channel": lim.channel,
+        "model": lim.model,
+        "temperature_K": lim.temperature_K,
+        "rate_constant_unit": unit,
+        "tst_rate_constant": _rate_in(lim.k_tst_m3_per_s, 2, unit),
+        "capture_rate_constant": _rate_in(lim.k_capture_m3_per_s, 2, unit),
+        "capped_rate_constant": _rate_in(lim.k_series_m3_per_s, 2, unit),
+        "tst_over_capture": lim.ratio,
+        "exceeds_capture": lim.exceeded,
+    }
+
+
 def thermo_document(records: list[dict], low_modes) -> dict:
     """The ``tstrate thermo --json`` document: one :func:`thermo_record` per species file
     (each with its ``file``), the standard pressure and the low-mode treatment."""

@@ -72,7 +72,7 @@ def _save(fig, folder: Path, stem: str) -> list[Path]:
 
 
 def _results_json(result) -> dict:
-    from tstrate.output.records import channel_rates_record, thermo_record
+    from tstrate.output.records import capture_limit_record, channel_rates_record, thermo_record
 
     study = result.study
     units = study.conditions.rate_units
@@ -82,6 +82,7 @@ def _results_json(result) -> dict:
         "low_modes": {"method": result.low_modes.method, "cutoff_cm1": result.low_modes.cutoff_cm1},
         "thermochemistry": [thermo_record(t, study.species[t.species]) for t in result.thermo],
         "channels": [channel_rates_record(r, units) for r in result.rates],
+        "capture_limits": [capture_limit_record(c, units) for c in result.capture],
         "warnings": list(result.warnings),
     }
     if result.comparisons is not None:

@@ -39,6 +39,9 @@ import sys
 from dataclasses import dataclass
 from pathlib import Path
 
+from tstrate.model.species import TUNNELLING_MODELS
+from tstrate.physics.thermo import LOW_MODE_METHODS
+
 TEXT, FLAG, ONE, OBJ, LIST = "text", "true/false", "1", "object", "list"
 KJ, JK, CM1, K, BAR, PCT = "kJ mol-1", "J mol-1 K-1", "cm-1", "K", "bar", "%"
 PER_S, PER_CM3 = "s-1", "molecule cm-3"
@@ -138,7 +141,7 @@ def _record(name, title, rows, about=""):
 
 
 _record("low_modes", "Low-mode treatment", [
-    ("method", TEXT, "treatment of low real modes: harmonic, grimme or truhlar"),
+    ("method", TEXT, "treatment of low real modes: " + " or ".join(LOW_MODE_METHODS)),
     ("cutoff_cm1", CM1, "cut-off wavenumber of the low-mode treatment"),
 ])
 
@@ -172,7 +175,7 @@ _record("channel_rates", "Rate constants of one channel (transition-state theory
     ("rate_constant_unit", TEXT, "unit of the forward rate constants (follows the order and the "
                                  "study's rate_units)"),
     ("kappa", ONE, "tunnelling factor, per temperature"),
-    ("tunnelling", TEXT, "tunnelling model: none, wigner, skodje-truhlar or eckart"),
+    ("tunnelling", TEXT, "tunnelling model: " + " or ".join(TUNNELLING_MODELS)),
     ("reverse_rate_constant", "@reverse_rate_constant_unit", "reverse rate constant by detailed balance"),
     ("reverse_rate_constant_unit", TEXT, "unit of the reverse rate constant (order of the products)"),
     ("ln_Kc", ONE, "natural logarithm of Kc expressed in Kc_unit (finite where Kc overflows)"),
@@ -505,6 +508,22 @@ _record("saddle", "A verified saddle point", [
 # documents
 # =====================================================================================
 
+_record("capture_limit", "Capture limit of a bimolecular channel", [
+    ("channel", TEXT, "channel name"),
+    ("model", TEXT, "the capture model: Lennard-Jones collisions when both reactants have Lennard-Jones "
+                    "parameters, else gas-kinetic hard spheres"),
+    ("temperature_K", K, "the temperatures"),
+    ("rate_constant_unit", TEXT, "unit of the rate constants below"),
+    ("tst_rate_constant", "@rate_constant_unit", "canonical TST rate constant (uncapped), per temperature"),
+    ("capture_rate_constant", "@rate_constant_unit", "capture (collision) rate constant of the reactants, "
+                                                      "per temperature"),
+    ("capped_rate_constant", "@rate_constant_unit", "(1/k_TST + 1/k_capture)^-1, the two bottlenecks in "
+                                                     "series, per temperature"),
+    ("tst_over_capture", ONE, "k_TST / k_capture, per temperature"),
+    ("exceeds_capture", FLAG, "whether k_TST exceeds the capture limit, per temperature"),
+], "A rate constant cannot exceed the rate at which its reactants meet; a TST value above it "
+   "means the TST bottleneck is not rate-limiting (e.g. a submerged barrier).")
+
 _RESULTS = Document("results.json", "results-json.md", """\
 Every number `tstrate run` computed, in one JSON document. The sections `comparisons`,
 `falloff` and `excitations` appear only when the study asks for them.""", _keys(
@@ -515,6 +534,8 @@ Every number `tstrate run` computed, in one JSON document. The sections `compari
     ("thermochemistry[]", OBJ, "one species", "thermo"),
     ("channels", LIST, "one entry per [[channel]]"),
     ("channels[]", OBJ, "one channel", "channel_rates"),
+    ("capture_limits", LIST, "one entry per bimolecular channel"),
+    ("capture_limits[]", OBJ, "one channel", "capture_limit"),
     ("warnings", TEXT, "warnings of the run (list)"),
     ("comparisons", LIST, "one entry per comparison and abundance"),
     ("comparisons[]", OBJ, "one scenario", "scenario"),

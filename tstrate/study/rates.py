@@ -2,6 +2,8 @@
 
 from __future__ import annotations
 
+import numpy as np
+
 from tstrate.arrays import temperatures_K
 from tstrate.errors import InputError
 from tstrate.physics.thermo import HARMONIC, LowModes
@@ -18,3 +20,26 @@ def study_rates(study, *, low_modes: LowModes = HARMONIC, temperature_K=None) ->
         except InputError as exc:  # a problem of the channel: its key in the study file
             raise exc.within(file=study.file, prefix=f"channel[{i}]") from None
     return out
+
+
+def capture_limits(study, rates) -> tuple[tuple, list[str]]:
+    """The capture ceiling of every bimolecular channel (:mod:`tstrate.physics.capture`) against its
+    TST rate constant, and a warning for each channel whose k_TST exceeds it somewhere."""
+    from tstrate.physics.capture import capture_limit
+
+    out, warnings = [], []
+    for ch, cr in zip(study.channels, rates):
+        if ch.order != 2:
+            continue
+        first, second = (study.species[n] for n in ch.reactants)
+        lim = capture_limit(ch.name, first, second, cr.temperature_K, cr.k)
+        out.append(lim)
+        if lim.exceeded.any():
+            i = int(np.argmax(lim.ratio))
+            warnings.append(
+                f"channel {ch.name}: the TST rate constant exceeds the capture limit of its reactants at "
+                f"{int(lim.exceeded.sum())} of {lim.exceeded.size} temperatures, up to {lim.ratio[i]:.3g} times "
+                f"at {lim.temperature_K[i]:g} K ({lim.model}); no rate constant can exceed it: the TST "
+                "bottleneck is not rate-limiting there (a submerged barrier?); results.json gives the "
+                "capped value (1/k_TST + 1/k_capture)^-1 beside the uncapped one")
+    return tuple(out), warnings

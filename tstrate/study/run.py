@@ -46,6 +46,7 @@ class StudyResult:
     pressure_fits: channel -> list of (pressure [Pa] or None, [M] [m^-3] at the highest
         temperature, modified Arrhenius fit of k(T) at that pressure), for falloff channels.
     warnings: sentences for the report.
+    capture: physics.capture.CaptureLimit per bimolecular channel (TST against the capture ceiling).
     """
 
     study: Study
@@ -58,6 +59,7 @@ class StudyResult:
     fits: object
     pressure_fits: dict = field(default_factory=dict)
     warnings: tuple[str, ...] = field(default=())
+    capture: tuple = field(default=())
 
 
 def steps(study: Study) -> list[str]:
@@ -75,7 +77,7 @@ def steps(study: Study) -> list[str]:
 def compute_study(study: Study, *, low_modes: LowModes = HARMONIC,
                   progress: Callable[[str], None] | None = None) -> StudyResult:
     """Compute everything ``study`` asks for. ``progress(step)`` is called before each step."""
-    from tstrate.study.rates import study_rates
+    from tstrate.study.rates import capture_limits, study_rates
 
     def step(name):
         log.info("%s", name)
@@ -92,6 +94,8 @@ def compute_study(study: Study, *, low_modes: LowModes = HARMONIC,
 
     step("rate constants")
     rates = tuple(study_rates(study, low_modes=low_modes))
+    capture, w = capture_limits(study, rates)
+    warnings += w
 
     comparisons = None
     if study.sections.get("comparison"):
@@ -143,7 +147,7 @@ def compute_study(study: Study, *, low_modes: LowModes = HARMONIC,
         warnings += list(cf.warnings)
     return StudyResult(study=study, low_modes=low_modes, thermo=thermo, rates=rates,
                        comparisons=comparisons, falloff=falloff, excitations=excitations, fits=fits,
-                       pressure_fits=pressure_fits, warnings=tuple(dict.fromkeys(warnings)))
+                       pressure_fits=pressure_fits, warnings=tuple(dict.fromkeys(warnings)), capture=capture)
 
 
 def troe_data(cf, study):
