@@ -351,7 +351,7 @@ def build_report(result, doc: dict, inputs: list[dict], figures) -> list:
             t = cf.troe
             rows.append((cf.name, f"{t.a:.3g}", f"{t.T3_K:.3g}", f"{t.T1_K:.3g}",
                          "-" if t.T2_K is None else f"{t.T2_K:.3g}",
-                         f"{100 * t.max_relative_deviation:.2f}", f"{100 * t.rms_relative_deviation:.2f}"))
+                         f"{100 * t.max_rel_deviation:.2f}", f"{100 * t.rms_rel_deviation:.2f}"))
         B.append(rp.Table(("channel", "a", "T*** / K", "T* / K", "T** / K", "max deviation / %",
                            "rms deviation / %"), tuple(rows), "Troe parameters fitted to the computed "
                           "falloff curves."))

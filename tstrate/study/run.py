@@ -110,7 +110,8 @@ def compute_study(study: Study, *, low_modes: LowModes = HARMONIC,
         falloff = study_falloff(study)
         warnings += list(falloff.warnings)
         for cf in falloff.channels:
-            troe[cf.name] = troe_data(cf, study)
+            if cf.troe.k0 is not None:  # the Troe expression with its limits, for the mechanism
+                troe[cf.name] = cf.troe
             if cf.pressure_Pa is not None:  # k(T, P) on the study's grid, for Chebyshev fits
                 grid[cf.name] = (cf.pressure_Pa, cf.rate_constant_per_s)
             pressure_fits[cf.name], w = fits_at_each_pressure(cf)
@@ -141,35 +142,6 @@ def compute_study(study: Study, *, low_modes: LowModes = HARMONIC,
     return StudyResult(study=study, low_modes=low_modes, thermo=thermo, rates=rates,
                        comparisons=comparisons, falloff=falloff, excitations=excitations, fits=fits,
                        pressure_fits=pressure_fits, warnings=tuple(dict.fromkeys(warnings)))
-
-
-def troe_data(cf, study):
-    """Troe data for the mechanism from one channel's falloff result.
-
-    k0 and k_inf are fitted in the modified Arrhenius form; when that form is
-    unrepresentable in a mechanism (A (1 K / T0)^n beyond the float range, as
-    happens for an effective k0 over a short temperature range), the
-    two-parameter form is used instead and its larger deviation is reported.
-    """
-    from tstrate.study.fits import TroeData
-
-    k0 = _limit_fit(cf.temperature_K, cf.troe_k0_m3_per_s, order=2)
-    kinf = _limit_fit(cf.temperature_K, cf.k_high_pressure_per_s, order=1)
-    return TroeData.from_parts(k0, kinf, cf.troe, bath_gas=study.conditions.bath_gas)
-
-
-def _limit_fit(T, k, order):
-    import math
-
-    from tstrate.expressions.arrhenius import fit_arrhenius
-    from tstrate.units import rate_from_SI
-
-    if len(T) >= 3:
-        fit = fit_arrhenius(T, k, order=order, modified=True)
-        ln_a = math.log(float(rate_from_SI(fit.A, order))) - fit.n * math.log(fit.T0_K)
-        if abs(ln_a) < 600:
-            return fit
-    return fit_arrhenius(T, k, order=order)
 
 
 def fits_at_each_pressure(cf, *, max_deviation: float | None = None):
