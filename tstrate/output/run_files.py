@@ -106,8 +106,8 @@ def fits_document(result) -> dict:
         doc["fits_at_each_pressure"] = {
             name: [{"pressure_bar": None if p is None else p / 1e5,
                     "number_density_at_highest_T_per_cm3": n * 1e-6,
-                    **arrhenius_record(fit)} for p, n, fit in entries]
-            for name, entries in result.pressure_fits.items()}
+                    **arrhenius_record(fit)} for p, n, fit in table.rows()]
+            for name, table in result.pressure_fits.items()}
     return doc
 
 
@@ -131,7 +131,7 @@ def pressure_fit_rows(result):
               "Tmax [K]", "max deviation [%]", "rms deviation [%]"]
     rows = [[name, None if p is None else p / 1e5, f.A, f.n, f.T0_K, f.Ea_J_per_mol / 1e3, f.Tmin_K,
              f.Tmax_K, 100 * f.max_rel_deviation, 100 * f.rms_rel_deviation]
-            for name, entries in result.pressure_fits.items() for p, _, f in entries]
+            for name, table in result.pressure_fits.items() for p, _, f in table.rows()]
     return header, rows
 
 
