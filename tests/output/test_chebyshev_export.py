@@ -23,7 +23,8 @@ import pytest
 from tstrate.errors import InputError
 from tstrate.io.study import read_study
 from tstrate.output.fit_records import fits_to_json
-from tstrate.study.fits import TroeData, arrhenius_expression, fit_study
+from tstrate.expressions.troe import TroeFit
+from tstrate.study.fits import arrhenius_expression, fit_study
 from tstrate.output.mechanism import mechanism_yaml, write_mechanism
 from tstrate.output.tables import fits_csv_text
 from tstrate.units import N_A
@@ -111,7 +112,7 @@ def test_troe_channel_without_grid_keeps_troe(carbonic, carbonic_troe):
 def carbonic_troe(carbonic):
     kinf = fit_study(carbonic).channel_fit("bare").modified
     k0 = arrhenius_expression(1e-16, -3.0, 150e3, order=2)      # invented, SI m^3 s^-1
-    return TroeData(k0=k0, kinf=kinf, a=0.6, T3_K=300.0, T1_K=3000.0, bath_gas="CO2")
+    return TroeFit(k0=k0, kinf=kinf, a=0.6, T3_K=300.0, T1_K=3000.0, bath_gas="CO2")
 
 
 # ----------------------------------------------------------------------------- JSON and CSV

@@ -21,7 +21,8 @@ from tstrate.io.species import read_species
 from tstrate.io.study import read_study
 from tstrate.study import fits as fits_mod
 from tstrate.output.fit_records import fits_to_json
-from tstrate.study.fits import TroeData, arrhenius_expression, fit_species_nasa, fit_study
+from tstrate.expressions.troe import TroeFit
+from tstrate.study.fits import arrhenius_expression, fit_species_nasa, fit_study
 from tstrate.expressions.arrhenius import fit_arrhenius
 from tstrate.physics.thermo import thermochemistry
 from tstrate.study.rates import study_rates
@@ -291,7 +292,7 @@ def test_offsets_are_a_least_squares_fit_of_zero_point_levels():
 def test_troe_data_written_to_json(carbonic, carbonic_fits):
     kinf = carbonic_fits.channel_fit("bare").modified
     k0 = arrhenius_expression(1e-16, -3.0, 150e3, order=2)
-    troe = TroeData(k0=k0, kinf=kinf, a=0.6, T3_K=300.0, T1_K=3000.0, T2_K=None,
+    troe = TroeFit(k0=k0, kinf=kinf, a=0.6, T3_K=300.0, T1_K=3000.0, T2_K=None,
                     max_rel_deviation=0.02, bath_gas="CO2")
     fits = fit_study(carbonic, troe={"bare": troe})
     rec = fits_to_json(fits)["channels"][0]["falloff_troe"]
@@ -304,31 +305,29 @@ def test_troe_data_written_to_json(carbonic, carbonic_fits):
     assert [f.name for f in fits.species].count("CO2") == 1
 
 
-def test_troe_from_falloff_like_result():
-    """Troe parameters from any object with the falloff module's attribute names, or a mapping."""
-    class FitLike:
-        a, T3_K, T1_K, T2_K = 0.4, 150.0, 2500.0, 4000.0
-        max_relative_deviation, rms_relative_deviation = 0.01, 0.004
-
+def test_troe_joined_to_its_limits_or_read_from_a_record():
+    """Troe parameters fitted without limits take their Arrhenius limits later, or come from a record."""
     k0 = arrhenius_expression(1e-16, -2.0, 1e5, order=2)
     kinf = arrhenius_expression(1e13, 0.0, 1.2e5, order=1)
-    t = TroeData.from_parts(k0, kinf, FitLike(), bath_gas="N2")
+    fitted = TroeFit(a=0.4, T3_K=150.0, T1_K=2500.0, T2_K=4000.0, max_rel_deviation=0.01, rms_rel_deviation=0.004)
+    t = fitted.with_limits(k0, kinf, bath_gas="N2")
     assert (t.a, t.T3_K, t.T1_K, t.T2_K, t.max_rel_deviation) == (0.4, 150.0, 2500.0, 4000.0, 0.01)
-    t2 = TroeData.from_parts(k0, kinf, {"a": 0.5, "T3_K": 100.0, "T1_K": 1000.0})
+    assert t.bath_gas == "N2" and t.k0 is k0 and t.kinf is kinf
+    t2 = TroeFit.from_record({"a": 0.5, "T3_K": 100.0, "T1_K": 1000.0})
     assert t2.T2_K is None and t2.max_rel_deviation is None
     with pytest.raises(InputError, match="one order more"):
-        TroeData(k0=kinf, kinf=kinf, a=0.5, T3_K=100.0, T1_K=1000.0)
+        TroeFit(k0=kinf, kinf=kinf, a=0.5, T3_K=100.0, T1_K=1000.0)
     with pytest.raises(InputError, match="T3_K must be positive"):
-        TroeData(k0=k0, kinf=kinf, a=0.5, T3_K=-1.0, T1_K=1000.0)
+        TroeFit(k0=k0, kinf=kinf, a=0.5, T3_K=-1.0, T1_K=1000.0)
 
 
 def test_troe_for_unknown_channel_or_wrong_order(carbonic, carbonic_fits):
     k0 = arrhenius_expression(1e-16, -2.0, 1e5, order=2)
     kinf = arrhenius_expression(1e13, 0.0, 1.2e5, order=1)
     with pytest.raises(InputError, match="unknown channel 'nope'"):
-        fit_study(carbonic, troe={"nope": TroeData(k0=k0, kinf=kinf, a=0.5, T3_K=1e2, T1_K=1e3)})
+        fit_study(carbonic, troe={"nope": TroeFit(k0=k0, kinf=kinf, a=0.5, T3_K=1e2, T1_K=1e3)})
     with pytest.raises(InputError, match="channel water.*order 1 but the channel has 2"):
-        fit_study(carbonic, troe={"water": TroeData(k0=k0, kinf=kinf, a=0.5, T3_K=1e2, T1_K=1e3)})
+        fit_study(carbonic, troe={"water": TroeFit(k0=k0, kinf=kinf, a=0.5, T3_K=1e2, T1_K=1e3)})
 
 
 def test_json_has_units_in_keys(carbonic_fits):
@@ -365,7 +364,7 @@ def test_json_has_units_in_keys(carbonic_fits):
 # ----------------------------------------------------------------------------- bath gas
 
 def test_bath_gas_from_reference_species(carbonic, carbonic_fits):
-    troe = TroeData(k0=arrhenius_expression(1e-16, -3.0, 1.5e5, order=2),
+    troe = TroeFit(k0=arrhenius_expression(1e-16, -3.0, 1.5e5, order=2),
                     kinf=carbonic_fits.channel_fit("bare").modified, a=0.6, T3_K=300.0, T1_K=3000.0)
     # the reference species ship inside the package (tstrate.io.reference); read_study attaches the
     # study's own bath gas, and a caller naming another one passes its species
@@ -467,7 +466,7 @@ def test_complex_and_study_bath_gas_are_exported(tmp_path):
     cx = base.species_fit("H2CO3_H2O")
     assert cx.role == "complex" and cx.composition == {"C": 1, "H": 4, "O": 4}
     assert "N2" not in [s.name for s in base.species]        # no falloff: no bath gas needed
-    troe = TroeData(k0=arrhenius_expression(1e-16, -3.0, 1.5e5, order=2),
+    troe = TroeFit(k0=arrhenius_expression(1e-16, -3.0, 1.5e5, order=2),
                     kinf=base.channel_fit("bare").modified, a=0.6, T3_K=300.0, T1_K=3000.0)
     fits = fit_study(study, troe={"bare": troe})
     n2 = fits.species_fit("N2")

@@ -19,7 +19,8 @@ import pytest
 
 from tstrate.errors import InputError
 from tstrate.io.study import read_study
-from tstrate.study.fits import TroeData, arrhenius_expression, fit_study
+from tstrate.expressions.troe import TroeFit
+from tstrate.study.fits import arrhenius_expression, fit_study
 from tstrate.output.mechanism import UNITS_LINE, cantera_names, mechanism_yaml, write_mechanism
 from tstrate.physics.thermo import thermochemistry
 from tstrate.study.rates import study_rates
@@ -141,7 +142,7 @@ def _troe_formula(k0, kinf, M, T, a, T3, T1, T2):
 def test_falloff_reaction_matches_troe_formula(carbonic, carbonic_fits, tmp_path, T2, bath):
     kinf = carbonic_fits.channel_fit("bare").modified
     k0 = arrhenius_expression(1e-16, -3.0, 150e3, order=2)     # invented, SI m^3 s^-1
-    troe = TroeData(k0=k0, kinf=kinf, a=0.6, T3_K=300.0, T1_K=3000.0, T2_K=T2, bath_gas="CO2")
+    troe = TroeFit(k0=k0, kinf=kinf, a=0.6, T3_K=300.0, T1_K=3000.0, T2_K=T2, bath_gas="CO2")
     from tstrate.io.reference import reference_species
 
     fits = fit_study(carbonic, troe={"bare": troe}, bath_gas=bath,

@@ -83,11 +83,12 @@ def outputs(demo_run, tmp_path_factory):
     got.append(("fits.json", json.loads(json_text(fits_document(variant)))))
     got.append(("mechanism.yaml", _yaml(mechanism_yaml(variant.fits))))
     # Troe with T** (the demo's falloff fits have none): given Troe data on the invented test study
-    from tstrate.study.fits import TroeData, arrhenius_expression, fit_study
+    from tstrate.expressions.troe import TroeFit
+    from tstrate.study.fits import arrhenius_expression, fit_study
 
     carbonic = read_study(ROOT / "tests/output/data/carbonic/study.toml")
     kinf = fit_study(carbonic).channel_fit("bare").modified
-    troe = TroeData(k0=arrhenius_expression(1e-16, -3.0, 150e3, order=2), kinf=kinf, a=0.6, T3_K=300.0,
+    troe = TroeFit(k0=arrhenius_expression(1e-16, -3.0, 150e3, order=2), kinf=kinf, a=0.6, T3_K=300.0,
                     T1_K=3000.0, T2_K=5000.0, bath_gas="CO2")
     got.append(("mechanism.yaml", _yaml(mechanism_yaml(fit_study(carbonic, troe={"bare": troe})))))
 

@@ -128,8 +128,8 @@ def run(args) -> int:
         print(f"Troe: a = {fit.a:.4g}, T*** = {fit.T3_K:.4g} K, T* = {fit.T1_K:.4g} K{t2}; Fcent = "
               + ", ".join(f"{f:.3g}" for f in cf.troe_Fcent)
               + f" at T = {', '.join(f'{t:g}' for t in cf.temperature_K)} K")
-        print(f"Troe fit error: max {100 * fit.max_relative_deviation:.2g} %, rms "
-              f"{100 * fit.rms_relative_deviation:.2g} % over {cf.troe_fit_number_density_m3.size} densities per "
+        print(f"Troe fit error: max {100 * fit.max_rel_deviation:.2g} %, rms "
+              f"{100 * fit.rms_rel_deviation:.2g} % over {cf.troe_fit_number_density_m3.size} densities per "
               f"temperature ({rec['troe']['k_low_pressure_kind']})")
         if np.any(cf.troe_k0_m3_per_s != cf.k_low_pressure_m3_per_s):
             print("  effective k_0 of the fit / " + rec["k_low_pressure_unit"] + ": "

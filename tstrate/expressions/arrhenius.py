@@ -20,6 +20,7 @@ import numpy as np
 
 from tstrate.arrays import temperatures_K
 from tstrate.errors import InputError
+from tstrate.expressions.mechanism_text import yaml_number
 from tstrate.model.settings import MAX_DEVIATION_DEFAULT, T0_DEFAULT_K  # noqa: F401 (defaults of the fits)
 from tstrate.units import R, rate_from_SI
 
@@ -86,10 +87,55 @@ class ArrheniusFit:
         ln_k = math.log(self.A) + self.n * np.log(T / self.T0_K) - self.Ea_J_per_mol / (R * T)
         return float(ln_k) if np.ndim(ln_k) == 0 else ln_k
 
-    def rate(self, temperature_K):
-        """k [SI per molecule] at temperature(s) [K]."""
+    def rate(self, temperature_K, pressure_Pa=None):
+        """k [SI per molecule] at temperature(s) [K]; ``pressure_Pa`` is accepted for the common
+        signature of the rate forms and does not change k (broadcast against T when given)."""
         k = np.exp(self.ln_rate(temperature_K))
+        if pressure_Pa is not None:
+            k = np.broadcast_arrays(k, np.asarray(pressure_Pa, dtype=float))[0].copy()
         return float(k) if np.ndim(k) == 0 else k
+
+    def to_record(self) -> dict:
+        """A plain dict in SI (A in SI per molecule for ``order``; deviations as fractions);
+        :meth:`from_record` gives the same expression back."""
+        return {"form": "modified Arrhenius" if self.modified else "Arrhenius",
+                "A_SI": float(self.A), "A_SI_unit": _SI_RATE_UNIT[self.order],
+                "n": float(self.n), "Ea_J_per_mol": float(self.Ea_J_per_mol), "T0_K": float(self.T0_K),
+                "order": int(self.order), "modified": bool(self.modified),
+                "Tmin_K": float(self.Tmin_K), "Tmax_K": float(self.Tmax_K),
+                "max_rel_deviation": float(self.max_rel_deviation),
+                "rms_rel_deviation": float(self.rms_rel_deviation),
+                "n_points": int(self.n_points), "warning": self.warning}
+
+    @classmethod
+    def from_record(cls, record) -> "ArrheniusFit":
+        """The expression of a :meth:`to_record` dict."""
+        return cls(A=float(record["A_SI"]), n=float(record["n"]), Ea_J_per_mol=float(record["Ea_J_per_mol"]),
+                   T0_K=float(record["T0_K"]), order=_check_order(record["order"]),
+                   modified=bool(record["modified"]), Tmin_K=float(record["Tmin_K"]),
+                   Tmax_K=float(record["Tmax_K"]), max_rel_deviation=float(record["max_rel_deviation"]),
+                   rms_rel_deviation=float(record["rms_rel_deviation"]), n_points=int(record["n_points"]),
+                   warning=record.get("warning"))
+
+    def cantera_rate(self) -> str:
+        """Cantera's rate mapping ``{A: ..., b: ..., Ea: ...}`` in the mechanism units
+        (:data:`~tstrate.expressions.mechanism_text.UNITS_LINE`): A in molecule-cm-s units for
+        the order, b = n with T in K (A (T/T0)^n = A T0^-n T^n), Ea as Ea/R in K."""
+        ln_a = math.log(float(rate_from_SI(self.A, self.order))) - self.n * math.log(self.T0_K)
+        if abs(ln_a) > 700:
+            raise InputError(f"the fitted expression (n = {self.n:.3g}) gives A = exp({ln_a:.0f}) with "
+                             "T0 = 1 K, beyond what a mechanism file can hold", field="mechanism",
+                             hint="fit the two-parameter Arrhenius form or a narrower temperature range")
+        return (f"{{A: {yaml_number(math.exp(ln_a))}, b: {yaml_number(self.n)}, "
+                f"Ea: {yaml_number(self.Ea_over_R_K)}}}")
+
+    def mechanism_block(self, indent: str = "  ") -> list[str]:
+        """The type and rate lines of a Cantera ``elementary`` reaction with this rate."""
+        return [f"{indent}type: elementary", f"{indent}rate-constant: {self.cantera_rate()}"]
+
+
+#: Units of rate constants in SI per molecule, by reaction order.
+_SI_RATE_UNIT = {1: "s-1", 2: "m3 molecule-1 s-1", 3: "m6 molecule-2 s-1"}
 
 
 @dataclass(frozen=True)

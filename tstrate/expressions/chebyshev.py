@@ -28,7 +28,12 @@ import numpy as np
 from tstrate.errors import InputError
 from tstrate.units import rate_from_SI
 
-from tstrate.expressions.arrhenius import MAX_DEVIATION_DEFAULT, _check_order
+from tstrate.expressions.arrhenius import _SI_RATE_UNIT, MAX_DEVIATION_DEFAULT, _check_order
+from tstrate.expressions.mechanism_text import yaml_number
+
+#: Pressure range [Pa] written for Chebyshev reactions that do not depend on pressure (one
+#: pressure column: T_0(P~) = 1, so any range gives the same k; Cantera 3.2 does not clip P).
+CHEBYSHEV_ANY_PRESSURE_PA = (1e-30, 1e30)
 
 
 @dataclass(frozen=True)
@@ -128,6 +133,47 @@ class ChebyshevFit:
         """k [SI per molecule] at temperature(s) [K] (and pressure(s) [Pa]); see :meth:`log10_rate`."""
         out = 10.0 ** np.asarray(self.log10_rate(temperature_K, pressure_Pa))
         return float(out) if np.ndim(out) == 0 else out
+
+    def to_record(self) -> dict:
+        """A plain dict in SI (coefficients of log10 k with k in SI per molecule, pressures in Pa,
+        deviations as fractions); :meth:`from_record` gives the same expression back."""
+        return {"form": "Chebyshev", "coefficients_log10_k_SI": self.coefficients.tolist(),
+                "k_SI_unit": _SI_RATE_UNIT[self.order], "order": int(self.order),
+                "Tmin_K": float(self.Tmin_K), "Tmax_K": float(self.Tmax_K),
+                "Pmin_Pa": None if self.Pmin_Pa is None else float(self.Pmin_Pa),
+                "Pmax_Pa": None if self.Pmax_Pa is None else float(self.Pmax_Pa),
+                "max_rel_deviation": float(self.max_rel_deviation),
+                "rms_rel_deviation": float(self.rms_rel_deviation),
+                "n_points": int(self.n_points), "warning": self.warning}
+
+    @classmethod
+    def from_record(cls, record) -> "ChebyshevFit":
+        """The expression of a :meth:`to_record` dict."""
+        c = np.array(record["coefficients_log10_k_SI"], dtype=float)
+        if c.ndim != 2 or c.size == 0:
+            raise InputError("Chebyshev coefficients must be a non-empty matrix (rows: 1/T terms)",
+                             field="coefficients_log10_k_SI")
+        c.setflags(write=False)
+        pmin, pmax = record.get("Pmin_Pa"), record.get("Pmax_Pa")
+        return cls(coefficients=c, order=_check_order(record["order"]), Tmin_K=float(record["Tmin_K"]),
+                   Tmax_K=float(record["Tmax_K"]), Pmin_Pa=None if pmin is None else float(pmin),
+                   Pmax_Pa=None if pmax is None else float(pmax),
+                   max_rel_deviation=float(record["max_rel_deviation"]),
+                   rms_rel_deviation=float(record["rms_rel_deviation"]), n_points=int(record["n_points"]),
+                   warning=record.get("warning"))
+
+    def mechanism_block(self, indent: str = "  ") -> list[str]:
+        """The type and rate lines of a Cantera ``Chebyshev`` reaction: temperature-range [K],
+        pressure-range with its unit (Pa; :data:`CHEBYSHEV_ANY_PRESSURE_PA` without pressure
+        dependence) and data, log10 k with k in the mechanism's molecule-cm-s units (rows: 1/T
+        terms, columns: log P terms)."""
+        coeffs = self.coefficients_in(None)
+        lo, hi = ((self.Pmin_Pa, self.Pmax_Pa) if self.pressure_dependent else CHEBYSHEV_ANY_PRESSURE_PA)
+        return ([f"{indent}type: Chebyshev",
+                 f"{indent}temperature-range: [{yaml_number(self.Tmin_K)}, {yaml_number(self.Tmax_K)}]",
+                 f"{indent}pressure-range: [{yaml_number(lo)} Pa, {yaml_number(hi)} Pa]",
+                 f"{indent}data:"]
+                + [f"{indent}- [" + ", ".join(yaml_number(a) for a in row) + "]" for row in coeffs])
 
 
 def _reduce(x, x_low, x_high):

@@ -24,7 +24,8 @@ from scipy.linalg import null_space
 
 from tstrate.arrays import temperatures_K
 from tstrate.errors import InputError
-from tstrate.units import R
+from tstrate.expressions.mechanism_text import yaml_number
+from tstrate.units import P_STANDARD, R
 
 #: Temperature scale used internally by the NASA fit [K].
 _NASA_T_SCALE_K = 1000.0
@@ -132,6 +133,42 @@ class Nasa7Fit:
     def g_J_per_mol(self, temperature_K):
         """G = H - T S [J/mol] at temperature(s) [K]."""
         return self._piecewise(nasa7_g_J_per_mol, temperature_K)
+
+    def to_record(self) -> dict:
+        """A plain dict (coefficients for T in K, errors as fractions, J/mol);
+        :meth:`from_record` gives the same polynomials back."""
+        return {"form": "NASA7", "low_range_coefficients": [float(a) for a in self.low],
+                "high_range_coefficients": [float(a) for a in self.high],
+                "Tmin_K": float(self.Tmin_K), "Tmid_K": float(self.Tmid_K), "Tmax_K": float(self.Tmax_K),
+                "max_rel_error_cp": float(self.max_rel_error_cp),
+                "max_rel_error_h": float(self.max_rel_error_h),
+                "max_rel_error_s": float(self.max_rel_error_s),
+                "max_abs_error_h_J_per_mol": float(self.max_abs_error_h_J_per_mol),
+                "n_points": int(self.n_points)}
+
+    @classmethod
+    def from_record(cls, record) -> "Nasa7Fit":
+        """The polynomials of a :meth:`to_record` dict."""
+        low = tuple(float(a) for a in _nasa_coeffs(record["low_range_coefficients"]))
+        high = tuple(float(a) for a in _nasa_coeffs(record["high_range_coefficients"]))
+        return cls(low=low, high=high, Tmin_K=float(record["Tmin_K"]), Tmid_K=float(record["Tmid_K"]),
+                   Tmax_K=float(record["Tmax_K"]), max_rel_error_cp=float(record["max_rel_error_cp"]),
+                   max_rel_error_h=float(record["max_rel_error_h"]),
+                   max_rel_error_s=float(record["max_rel_error_s"]),
+                   max_abs_error_h_J_per_mol=float(record["max_abs_error_h_J_per_mol"]),
+                   n_points=int(record["n_points"]))
+
+    def mechanism_block(self, reference_pressure_Pa: float = P_STANDARD, indent: str = "  ") -> list[str]:
+        """The ``thermo`` lines of a Cantera species with these polynomials (``model: NASA7``;
+        ``reference_pressure_Pa``: the standard pressure of the fitted data [Pa], 1 bar by default)."""
+        return [f"{indent}thermo:",
+                f"{indent}  model: NASA7",
+                f"{indent}  reference-pressure: {yaml_number(reference_pressure_Pa)}",
+                f"{indent}  temperature-ranges: [{yaml_number(self.Tmin_K)}, {yaml_number(self.Tmid_K)}, "
+                f"{yaml_number(self.Tmax_K)}]",
+                f"{indent}  data:",
+                f"{indent}  - [" + ", ".join(yaml_number(a) for a in self.low) + "]",
+                f"{indent}  - [" + ", ".join(yaml_number(a) for a in self.high) + "]"]
 
 
 def _nasa_rows(tau: np.ndarray):

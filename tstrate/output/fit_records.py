@@ -11,8 +11,9 @@ from typing import Mapping
 from tstrate.expressions.arrhenius import ArrheniusFit
 from tstrate.expressions.chebyshev import ChebyshevFit
 from tstrate.expressions.nasa7 import Nasa7Fit
+from tstrate.expressions.troe import TroeFit
 from tstrate.output.records import to_jsonable
-from tstrate.study.fits import StudyFits, TroeData
+from tstrate.study.fits import StudyFits
 from tstrate.units import P_STANDARD, rate_from_SI
 
 _KJ = 1e-3   # J/mol -> kJ/mol
@@ -82,7 +83,7 @@ def chebyshev_record(fit: ChebyshevFit, unit: str | None = None) -> dict:
     }
 
 
-def _troe_record(t: TroeData, rate_units) -> dict:
+def _troe_record(t: TroeFit, rate_units) -> dict:
     return {
         "k0_low_pressure": arrhenius_record(t.k0, (rate_units or {}).get(t.k0.order)),
         "kinf_high_pressure": arrhenius_record(t.kinf, (rate_units or {}).get(t.kinf.order)),

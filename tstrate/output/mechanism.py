@@ -66,12 +66,12 @@ from collections import Counter
 from pathlib import Path
 
 from tstrate.errors import InputError
+from tstrate.expressions.chebyshev import CHEBYSHEV_ANY_PRESSURE_PA
+from tstrate.expressions.mechanism_text import UNITS_LINE
+from tstrate.expressions.mechanism_text import yaml_number as _num
 from tstrate.io.files import atomic_write_text
 from tstrate.output.tables import check_not_input
-from tstrate.units import P_STANDARD, rate_from_SI
-
-#: The units block of every file written here.
-UNITS_LINE = "units: {length: cm, time: s, quantity: molec, activation-energy: K}"
+from tstrate.units import P_STANDARD
 CAUTION = ("CAUTION: these rate constants and thermochemical data are estimates from "
            "transition-state theory on computed stationary points, not measurements; check "
            "them against experiments before relying on them.")
@@ -127,19 +127,6 @@ def _balanced(s: str) -> bool:
     return depth == 0
 
 
-def _num(x) -> str:
-    """A float as a YAML number (always with a decimal point)."""
-    x = float(x)
-    if not math.isfinite(x):
-        raise InputError(f"cannot write the non-finite number {x!r} to a mechanism file",
-                         field="mechanism")
-    s = repr(x)
-    mant, _, exp = s.partition("e")
-    if "." not in mant:
-        mant += ".0"
-    return mant + ("e" + exp if exp else "")
-
-
 def _q(s: str) -> str:
     """A YAML double-quoted string (JSON escapes are valid YAML escapes)."""
     return json.dumps(str(s), ensure_ascii=True)
@@ -152,31 +139,6 @@ def _side(names, cn) -> str:
         c = counts[n]
         parts.append(f"{c} {cn[n]}" if c > 1 else cn[n])
     return " + ".join(parts)
-
-
-def _arrhenius_flow(fit, order: int) -> str:
-    """Cantera rate mapping: A in molec-cm-s units, b = n, Ea as Ea/R in K."""
-    ln_a = math.log(float(rate_from_SI(fit.A, order))) - fit.n * math.log(fit.T0_K)
-    if abs(ln_a) > 700:
-        raise InputError(f"the fitted expression (n = {fit.n:.3g}) gives A = exp({ln_a:.0f}) with T0 = 1 K, "
-                         "beyond what a mechanism file can hold", field="mechanism",
-                         hint="fit the two-parameter Arrhenius form or a narrower temperature range")
-    a = math.exp(ln_a)
-    return f"{{A: {_num(a)}, b: {_num(fit.n)}, Ea: {_num(fit.Ea_over_R_K)}}}"
-
-
-#: Pressure range [Pa] written for Chebyshev reactions that do not depend on pressure.
-CHEBYSHEV_ANY_PRESSURE_PA = (1e-30, 1e30)
-
-
-def _chebyshev_lines(fit) -> list[str]:
-    """temperature-range, pressure-range and data of a Cantera Chebyshev reaction."""
-    coeffs = fit.coefficients_in(None)          # log10 k in molec-cm-s units (the file's units)
-    lo, hi = ((fit.Pmin_Pa, fit.Pmax_Pa) if fit.pressure_dependent
-              else CHEBYSHEV_ANY_PRESSURE_PA)
-    return [f"  temperature-range: [{_num(fit.Tmin_K)}, {_num(fit.Tmax_K)}]",
-            f"  pressure-range: [{_num(lo)} Pa, {_num(hi)} Pa]",
-            "  data:"] + ["  - [" + ", ".join(_num(a) for a in row) + "]" for row in coeffs]
 
 
 # ============================================================================
@@ -232,18 +194,8 @@ def _species_block(s, cn) -> list[str]:
         note += f"; {s.note}"
     note += (f"; max fit deviations: Cp {100 * n.max_rel_error_cp:.3f} %, "
              f"H {1e-3 * n.max_abs_error_h_J_per_mol:.3g} kJ/mol, S {100 * n.max_rel_error_s:.3f} %")
-    return [
-        f"- name: {_q(cn[s.name])}",
-        f"  composition: {{{comp}}}",
-        "  thermo:",
-        "    model: NASA7",
-        f"    reference-pressure: {_num(P_STANDARD)}",
-        f"    temperature-ranges: [{_num(n.Tmin_K)}, {_num(n.Tmid_K)}, {_num(n.Tmax_K)}]",
-        "    data:",
-        "    - [" + ", ".join(_num(a) for a in n.low) + "]",
-        "    - [" + ", ".join(_num(a) for a in n.high) + "]",
-        f"  note: {_q(note)}",
-    ]
+    return ([f"- name: {_q(cn[s.name])}", f"  composition: {{{comp}}}"]
+            + n.mechanism_block(P_STANDARD) + [f"  note: {_q(note)}"])
 
 
 def _reaction_block(c, cn, duplicate: bool) -> list[str]:
@@ -258,23 +210,17 @@ def _reaction_block(c, cn, duplicate: bool) -> list[str]:
             if c.troe is not None and c.troe.bath_gas:
                 note += f" (falloff computed for bath gas {c.troe.bath_gas})"
         note += f", max deviation {100 * f.max_rel_deviation:.2f} %"
-        lines = [f"- equation: {_q(f'{lhs} <=> {rhs}')}",
-                 "  type: Chebyshev"] + _chebyshev_lines(f)
+        lines = [f"- equation: {_q(f'{lhs} <=> {rhs}')}"] + f.mechanism_block()
     elif c.troe is None:
         e = c.expression
         note = (f"channel {c.name}; {'modified ' if e.modified else ''}Arrhenius fit over "
                 f"{e.Tmin_K:g}-{e.Tmax_K:g} K, max deviation {100 * e.max_rel_deviation:.2f} %")
-        lines = [f"- equation: {_q(f'{lhs} <=> {rhs}')}",
-                 "  type: elementary",
-                 f"  rate-constant: {_arrhenius_flow(e, c.order)}"]
+        lines = [f"- equation: {_q(f'{lhs} <=> {rhs}')}"] + e.mechanism_block()
     else:
         t = c.troe
         if c.order + 1 > 3:
             raise InputError(f"channel {c.name!r}: a falloff reaction with {c.order} reactants "
                              "would need a low-pressure limit of order 4", field="troe")
-        troe = f"A: {_num(t.a)}, T3: {_num(t.T3_K)}, T1: {_num(t.T1_K)}"
-        if t.T2_K is not None:
-            troe += f", T2: {_num(t.T2_K)}"
         note = f"channel {c.name}; Troe falloff"
         if t.max_rel_deviation is not None and math.isfinite(t.max_rel_deviation):
             note += f", fit max deviation {100 * t.max_rel_deviation:.2f} %"
@@ -282,11 +228,7 @@ def _reaction_block(c, cn, duplicate: bool) -> list[str]:
             note += f", computed for bath gas {t.bath_gas}"
         if t.source:
             note += f"; {t.source}"
-        lines = [f"- equation: {_q(f'{lhs} (+M) <=> {rhs} (+M)')}",
-                 "  type: falloff",
-                 f"  low-P-rate-constant: {_arrhenius_flow(t.k0, t.k0.order)}",
-                 f"  high-P-rate-constant: {_arrhenius_flow(t.kinf, t.kinf.order)}",
-                 f"  Troe: {{{troe}}}"]
+        lines = [f"- equation: {_q(f'{lhs} (+M) <=> {rhs} (+M)')}"] + t.mechanism_block()
     if duplicate:
         lines.append("  duplicate: true")
     lines.append(f"  note: {_q(note)}")

@@ -84,7 +84,7 @@ def falloff_figure(cf, title: str | None = None, max_curves: int = 5):
                      label="Lindemann-Hinshelwood" + (" (effective $k_0$)" if cf.model.tunnelling == "eckart"
                                                       else "")),
               Line2D([], [], color="k", ls=":", lw=1.3,
-                     label=f"Troe fit (max dev. {100 * cf.troe.max_relative_deviation:.2g} %)")]
+                     label=f"Troe fit (max dev. {100 * cf.troe.max_rel_deviation:.2g} %)")]
     fig.legend(handles=handles, loc="lower center", bbox_to_anchor=(0.5, 0.05), ncol=len(handles), fontsize=8,
                frameon=False)
     fig.legend(handles=styles, loc="lower center", bbox_to_anchor=(0.5, 0.0), ncol=len(styles), fontsize=8,

@@ -78,8 +78,8 @@ def falloff_channel_record(cf, rate_units: dict | None = None) -> dict:
             "k_low_pressure_kind": ("fitted effective k0 (Eckart tunnelling)" if cf.model.tunnelling == "eckart"
                                     else "strong-collision low-pressure limit"),
             "k_high_pressure_kind": "strong-collision high-pressure limit",
-            "max_deviation_percent": 100.0 * fit.max_relative_deviation,
-            "rms_deviation_percent": 100.0 * fit.rms_relative_deviation,
+            "max_deviation_percent": 100.0 * fit.max_rel_deviation,
+            "rms_deviation_percent": 100.0 * fit.rms_rel_deviation,
             "fitted_on": {"min_number_density_per_cm3": float(m_fit.min() * _CM3),
                           "max_number_density_per_cm3": float(m_fit.max() * _CM3),
                           "points_per_temperature": int(m_fit.size)},

@@ -110,8 +110,8 @@ def fits_document(result) -> dict:
         doc["fits_at_each_pressure"] = {
             name: [{"pressure_bar": None if p is None else p / 1e5,
                     "number_density_at_highest_T_per_cm3": n * 1e-6,
-                    **arrhenius_record(fit)} for p, n, fit in entries]
-            for name, entries in result.pressure_fits.items()}
+                    **arrhenius_record(fit)} for p, n, fit in table.rows()]
+            for name, table in result.pressure_fits.items()}
     return doc
 
 
@@ -135,7 +135,7 @@ def pressure_fit_rows(result):
               "Tmax [K]", "max deviation [%]", "rms deviation [%]"]
     rows = [[name, None if p is None else p / 1e5, f.A, f.n, f.T0_K, f.Ea_J_per_mol / 1e3, f.Tmin_K,
              f.Tmax_K, 100 * f.max_rel_deviation, 100 * f.rms_rel_deviation]
-            for name, entries in result.pressure_fits.items() for p, _, f in entries]
+            for name, table in result.pressure_fits.items() for p, _, f in table.rows()]
     return header, rows
 
 
@@ -355,7 +355,7 @@ def build_report(result, doc: dict, inputs: list[dict], figures) -> list:
             t = cf.troe
             rows.append((cf.name, f"{t.a:.3g}", f"{t.T3_K:.3g}", f"{t.T1_K:.3g}",
                          "-" if t.T2_K is None else f"{t.T2_K:.3g}",
-                         f"{100 * t.max_relative_deviation:.2f}", f"{100 * t.rms_relative_deviation:.2f}"))
+                         f"{100 * t.max_rel_deviation:.2f}", f"{100 * t.rms_rel_deviation:.2f}"))
         B.append(rp.Table(("channel", "a", "T*** / K", "T* / K", "T** / K", "max deviation / %",
                            "rms deviation / %"), tuple(rows), "Troe parameters fitted to the computed "
                           "falloff curves."))

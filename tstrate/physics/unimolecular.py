@@ -14,8 +14,9 @@ channel with one reactant (order 1) it builds
 * E0, the zero-point-corrected barrier (:func:`tstrate.physics.tst.zpe_level_J_per_mol`);
 * k(E) = L * (I_TS/I_R) * N_TS(E - E0) / (h rho_R(E)) (RRKM; Marcus 1952), with an
   Eckart-corrected sum of states when the channel's tunnelling is "eckart";
-* k(T, [M]) in the strong-collision picture scaled by beta_c (Troe 1977), its
-  limits k_inf(T) and k_0(T), the Lindemann-Hinshelwood curve and a Troe fit.
+* k(T, [M]) in the strong-collision picture scaled by beta_c (Troe 1977) and its
+  limits k_inf(T) and k_0(T) (the study step fits Troe's form to them:
+  :mod:`tstrate.study.falloff`, :mod:`tstrate.expressions.troe`).
 
 Reaction-path degeneracy and external symmetry
 ----------------------------------------------
@@ -70,9 +71,7 @@ from tstrate.errors import InputError
 from tstrate.model import Channel, Species
 from tstrate.model.settings import FalloffSettings
 from tstrate.physics import collisions as coll
-from tstrate.physics.falloff import (TROE_A_BOUNDS, TROE_T_BOUNDS_K, TroeFit, fit_troe, lindemann_hinshelwood,
-                                     strong_collision_falloff, thermal_distribution, troe_bound_notes,
-                                     troe_center_broadening, troe_fit_result, troe_rate)
+from tstrate.physics.falloff import strong_collision_falloff, thermal_distribution
 from tstrate.physics.rrkm import ExternalRotation, MicrocanonicalRate, microcanonical_rate
 from tstrate.physics.states import (CM1_J_PER_MOL, GRAIN_FRACTION_OF_LOWEST, Rotor, StateCounts,
                                     convolve_counts, count_states)
@@ -350,22 +349,19 @@ def collision_efficiency(model: UnimolecularModel, settings: FalloffSettings, te
 
 # ---------------------------------------------------------------- results
 @dataclass(frozen=True)
-class ChannelFalloff:
-    """Falloff of one unimolecular channel on the study's temperature x pressure grid.
+class ChannelFalloffCurves:
+    """Falloff curves of one unimolecular channel on the study's temperature x pressure grid.
 
     Arrays: temperature_K (n_T); pressure_Pa (n_P) when the study gives pressures, else None;
     number_density_m3 (n_T, n_P) [m^-3]; rate_constant_per_s (n_T, n_P) [s^-1];
     k_high_pressure_per_s (n_T) [s^-1]; k_low_pressure_m3_per_s (n_T) [m^3 s^-1];
-    lindemann_per_s and troe_per_s (n_T, n_P) [s^-1]: k_inf k0[M] / (k_inf + k0[M]) and the Troe
-    form, both with the k_0 of troe_k0_m3_per_s (so troe / lindemann is Troe's broadening F);
-    troe_Fcent (n_T);
     canonical_tst_per_s (n_T) [s^-1]: tst.channel_rates with the same tunnelling treatment
     (Eckart or none), for comparison with k_high_pressure_per_s;
     collision_rate_m3_per_s, collision_efficiency (n_T); energy_factor_FE and
-    delta_E_J_per_mol (n_T) or None; troe_fit_number_density_m3 (n_F) where the fit was done;
-    troe_k0_m3_per_s (n_T) [m^3 s^-1]: the k_0 inside the Troe form - the low-pressure limit
-    itself, or for Eckart channels an effective k_0 fitted with the Troe parameters
-    (:func:`fit_troe_effective_k0`);
+    delta_E_J_per_mol (n_T) or None;
+    troe_fit_number_density_m3 (n_F) [m^-3] with troe_fit_rate_per_s (n_T, n_F) [s^-1]: k(T, [M])
+    on a common [M] grid spanning the study's number densities, where closed forms are fitted
+    (the Troe fit of :mod:`tstrate.study.falloff`);
     curve_pressure_Pa (n_C) with curve_number_density_m3 and curve_rate_per_s (n_T, n_C):
     a dense curve two decades beyond the study's pressures on both sides, for plots.
     """
@@ -379,12 +375,8 @@ class ChannelFalloff:
     rate_constant_per_s: np.ndarray = field(repr=False)
     k_high_pressure_per_s: np.ndarray = field(repr=False)
     k_low_pressure_m3_per_s: np.ndarray = field(repr=False)
-    lindemann_per_s: np.ndarray = field(repr=False)
-    troe: TroeFit
-    troe_per_s: np.ndarray = field(repr=False)
-    troe_Fcent: np.ndarray = field(repr=False)
     troe_fit_number_density_m3: np.ndarray = field(repr=False)
-    troe_k0_m3_per_s: np.ndarray = field(repr=False)
+    troe_fit_rate_per_s: np.ndarray = field(repr=False)
     canonical_tst_per_s: np.ndarray = field(repr=False)
     collision_rate_m3_per_s: np.ndarray = field(repr=False)
     efficiency: Efficiency = field(repr=False)
@@ -413,8 +405,9 @@ def _log_grid(lo: float, hi: float, per_decade: int, minimum: int) -> np.ndarray
 
 def falloff_on_grid(model: UnimolecularModel, settings: FalloffSettings, bath: coll.LennardJones,
                     temperature_K, number_density_m3, pressure_Pa=None,
-                    canonical_tst_per_s=None) -> ChannelFalloff:
-    """Falloff of one unimolecular channel on a temperature x [M] grid.
+                    canonical_tst_per_s=None) -> ChannelFalloffCurves:
+    """Falloff curves of one unimolecular channel on a temperature x [M] grid (no closed form
+    fitted: the study step fits Troe to them, :func:`tstrate.study.falloff.channel_falloff`).
 
     model: the channel's k(E) (:func:`unimolecular_model`); settings: energy transfer and fit
     choices; bath: the collision partner; temperature_K (n_T,) [K]; number_density_m3
@@ -443,17 +436,9 @@ def falloff_on_grid(model: UnimolecularModel, settings: FalloffSettings, bath: c
     fo = strong_collision_falloff(model.rate, t, m, collision_rate_m3_s=z, collision_efficiency=eff.beta)
     k_inf, k0 = fo.high_pressure_per_s, fo.low_pressure_m3_s
 
-    # Troe fit on a common [M] grid spanning the study's number densities
+    # a common [M] grid spanning the study's number densities, for the Troe fit
     m_fit = _log_grid(float(m.min()), float(m.max()), 4, 9)
     fo_fit = strong_collision_falloff(model.rate, t, m_fit, collision_rate_m3_s=z, collision_efficiency=eff.beta)
-    if model.tunnelling == "eckart":
-        troe, k0_troe = fit_troe_effective_k0(t, m_fit, fo_fit.rate_per_s, k0, k_inf, fit_T2=settings.fit_T2)
-    else:
-        troe, k0_troe = fit_troe(t, m_fit, fo_fit.rate_per_s, k0, k_inf, fit_T2=settings.fit_T2), k0
-    warnings += [f"channel {channel.name!r}: {note}" for note in troe_bound_notes(troe)]
-    troe_k = troe_rate(k0_troe[:, None], k_inf[:, None], m, t[:, None], troe.a, troe.T3_K, troe.T1_K, troe.T2_K)
-    lind = lindemann_hinshelwood(k0_troe[:, None], k_inf[:, None], m)
-    fcent = troe_center_broadening(t, troe.a, troe.T3_K, troe.T1_K, troe.T2_K)
 
     # dense curve for plots, two decades beyond the study's range on each side
     if pressures is not None:
@@ -466,70 +451,11 @@ def falloff_on_grid(model: UnimolecularModel, settings: FalloffSettings, bath: c
     fo_curve = strong_collision_falloff(model.rate, t, m_curve, collision_rate_m3_s=z,
                                         collision_efficiency=eff.beta)
 
-    return ChannelFalloff(
+    return ChannelFalloffCurves(
         model=model, settings=settings, bath=bath, temperature_K=t, pressure_Pa=pressures,
         number_density_m3=m, rate_constant_per_s=fo.rate_per_s, k_high_pressure_per_s=k_inf,
-        k_low_pressure_m3_per_s=k0, lindemann_per_s=lind, troe=troe, troe_per_s=troe_k, troe_Fcent=fcent,
-        troe_fit_number_density_m3=m_fit, troe_k0_m3_per_s=k0_troe,
+        k_low_pressure_m3_per_s=k0, troe_fit_number_density_m3=m_fit, troe_fit_rate_per_s=fo_fit.rate_per_s,
         canonical_tst_per_s=(np.full(t.shape, np.nan) if canonical_tst_per_s is None
                              else np.asarray(canonical_tst_per_s, dtype=float)),
         collision_rate_m3_per_s=z, efficiency=eff, curve_pressure_Pa=p_curve, curve_number_density_m3=m_curve,
         curve_rate_per_s=fo_curve.rate_per_s, warnings=tuple(warnings))
-
-
-def fit_troe_effective_k0(temperature_K, number_density_m3, rate, k0, k_inf, *,
-                          fit_T2: bool = False) -> tuple[TroeFit, np.ndarray]:
-    """Troe fit with k_inf fixed and k_0(T) fitted as well, one value per temperature.
-
-    With Eckart tunnelling, grains below the barrier react with small k(E): at pressures
-    where their k(E) is far below the collision frequency they contribute k(E) f(E)
-    whatever the pressure, and the true low-pressure limit (every grain with k(E) > 0)
-    is reached only at pressures far below any of interest. The classical-threshold k_0
-    then does not describe the curve, so an effective k_0(T) is fitted together with
-    a, T***, T* (and T**) on log k (least squares), the usual practice when a limit is not
-    reached in the fitted range. Starts from :func:`tstrate.physics.falloff.fit_troe` with
-    k_0 = max(k_0 classical, k([M]_min)/[M]_min). The Troe parameters have the bounds of
-    ``fit_troe`` and come back as its canonical twin (:func:`tstrate.physics.falloff.canonical_troe`),
-    with the parameters at a bound named in ``at_bound`` (k_0 does not take part in the swap).
-    Returns (fit, k_0 effective [m^3 s^-1]).
-    """
-    from scipy.optimize import least_squares
-
-    t = np.atleast_1d(np.asarray(temperature_K, dtype=float))
-    m = np.atleast_1d(np.asarray(number_density_m3, dtype=float))
-    k = np.asarray(rate, dtype=float)
-    kinf = np.asarray(k_inf, dtype=float)
-    i_min = int(np.argmin(m))
-    guess = np.maximum(np.asarray(k0, dtype=float), k[:, i_min] / m[i_min])
-    first = fit_troe(t, m, k, guess, kinf, fit_T2=fit_T2)
-    log_k = np.log(k)
-    n_p = 4 if fit_T2 else 3
-
-    def unpack(p):
-        return (p[0], math.exp(p[1]), math.exp(p[2]), math.exp(p[3]) if fit_T2 else None,
-                np.exp(p[n_p:]))
-
-    def residual(p):
-        a, t3, t1, t2, k0e = unpack(p)
-        with np.errstate(all="ignore"):
-            r = np.log(troe_rate(k0e[:, None], kinf[:, None], m[None, :], t[:, None], a, t3, t1, t2)) - log_k
-        return np.where(np.isfinite(r), r, 1e3).ravel()
-
-    x0 = [first.a, math.log(first.T3_K), math.log(first.T1_K)] + \
-        ([math.log(first.T2_K)] if fit_T2 else []) + list(np.log(guess))
-    ln_lo, ln_hi = math.log(TROE_T_BOUNDS_K[0]), math.log(TROE_T_BOUNDS_K[1])
-    lo = [TROE_A_BOUNDS[0]] + [ln_lo] * (n_p - 1) + list(np.log(guess) - 40.0)
-    hi = [TROE_A_BOUNDS[1]] + [ln_hi] * (n_p - 1) + list(np.log(guess) + 40.0)
-    x0 = np.clip(x0, lo, hi)
-    sol = least_squares(residual, x0, bounds=(lo, hi), x_scale="jac", xtol=1e-12, ftol=1e-12, gtol=1e-12,
-                        max_nfev=4000)
-    if 0.5 * np.sum(residual(x0) ** 2) <= sol.cost:
-        return first, guess
-    a, t3, t1, t2, k0e = unpack(sol.x)
-
-    def deviation(a, t3, t1, t2):
-        return troe_rate(k0e[:, None], kinf[:, None], m[None, :], t[:, None], a, t3, t1, t2) / k - 1.0
-
-    return troe_fit_result(a, t3, t1, t2, deviation, t), k0e
-
-

@@ -1,11 +1,14 @@
 """Falloff of a study's unimolecular channels: the study's species, [falloff] settings, bath gas and
-pressures, given to :mod:`tstrate.physics.unimolecular` (k(E) of a channel and its falloff on a
-grid). Errors of the physics about a channel are placed in the study file here.
+pressures, given to :mod:`tstrate.physics.unimolecular` (k(E) of a channel and its falloff curves
+on a grid), and Troe's form fitted to those curves (:mod:`tstrate.expressions.troe`), with its
+limits as Arrhenius expressions for mechanisms. Errors of the physics about a channel are placed
+in the study file here.
 """
 
 from __future__ import annotations
 
-from dataclasses import dataclass, replace
+import math
+from dataclasses import dataclass, field, fields, replace
 from typing import Callable, Iterable
 
 import numpy as np
@@ -16,7 +19,12 @@ from tstrate.model import Channel, Study
 from tstrate.model.settings import FalloffSection, FalloffSettings
 from tstrate.physics import collisions as coll
 from tstrate.physics.tst import channel_rates
-from tstrate.physics.unimolecular import ChannelFalloff, UnimolecularModel, falloff_on_grid, unimolecular_model
+from tstrate.expressions.arrhenius import ArrheniusFit, fit_arrhenius
+from tstrate.expressions.troe import TroeFit, fit_troe, fit_troe_effective_k0, troe_bound_notes
+from tstrate.physics.falloff import lindemann_hinshelwood, troe_rate
+from tstrate.physics.unimolecular import (ChannelFalloffCurves, UnimolecularModel, falloff_on_grid,
+                                          unimolecular_model)
+from tstrate.units import rate_from_SI
 from tstrate.units import number_density_m3
 
 
@@ -98,6 +106,68 @@ def study_number_densities(study: Study, temperature_K) -> tuple[np.ndarray | No
 
 
 
+@dataclass(frozen=True, kw_only=True)
+class ChannelFalloff(ChannelFalloffCurves):
+    """Falloff of one unimolecular channel: the curves of the physics plus the Troe fit.
+
+    troe: the :class:`~tstrate.expressions.troe.TroeFit`, with k0 and kinf as Arrhenius
+    expressions of troe_k0_m3_per_s and k_high_pressure_per_s (:func:`limit_expression`; None
+    with fewer than two temperatures) and the study's bath gas;
+    troe_k0_m3_per_s (n_T) [m^3 s^-1]: the k_0 inside the Troe form - the low-pressure limit
+    itself, or for Eckart channels an effective k_0 fitted with the Troe parameters
+    (:func:`~tstrate.expressions.troe.fit_troe_effective_k0`);
+    lindemann_per_s and troe_per_s (n_T, n_P) [s^-1]: k_inf k0[M] / (k_inf + k0[M]) and the Troe
+    form, both with that k_0 and the tabulated k_inf (so troe / lindemann is Troe's broadening F);
+    troe_Fcent (n_T). The warnings add one sentence per Troe parameter at a bound.
+    """
+
+    troe: TroeFit
+    troe_k0_m3_per_s: np.ndarray = field(repr=False)
+    troe_per_s: np.ndarray = field(repr=False)
+    troe_Fcent: np.ndarray = field(repr=False)
+    lindemann_per_s: np.ndarray = field(repr=False)
+
+
+def limit_expression(temperature_K, k_SI, *, order: int) -> ArrheniusFit:
+    """An Arrhenius expression of a falloff limit k(T) [SI per molecule] for mechanisms.
+
+    The modified form with three or more temperatures; when that form is unrepresentable in a
+    mechanism (A (1 K / T0)^n beyond the float range, as happens for an effective k0 over a
+    short temperature range), the two-parameter form is used instead and its larger deviation
+    is reported.
+    """
+    if len(temperature_K) >= 3:
+        fit = fit_arrhenius(temperature_K, k_SI, order=order, modified=True)
+        ln_a = math.log(float(rate_from_SI(fit.A, order))) - fit.n * math.log(fit.T0_K)
+        if abs(ln_a) < 600:
+            return fit
+    return fit_arrhenius(temperature_K, k_SI, order=order)
+
+
+def fit_falloff(curves: ChannelFalloffCurves, *, bath_gas: str | None = None) -> ChannelFalloff:
+    """Troe's form fitted to a channel's falloff curves (on their common [M] grid), with the
+    effective k_0 for Eckart channels, its limits as Arrhenius expressions and ``bath_gas``."""
+    t, m = curves.temperature_K, curves.number_density_m3
+    k0, k_inf = curves.k_low_pressure_m3_per_s, curves.k_high_pressure_per_s
+    m_fit, fit_T2 = curves.troe_fit_number_density_m3, curves.settings.fit_T2
+    if curves.model.tunnelling == "eckart":
+        troe, k0_troe = fit_troe_effective_k0(t, m_fit, curves.troe_fit_rate_per_s, k0, k_inf, fit_T2=fit_T2)
+    else:
+        troe, k0_troe = fit_troe(t, m_fit, curves.troe_fit_rate_per_s, k0, k_inf, fit_T2=fit_T2), k0
+    warnings = list(curves.warnings) + [f"channel {curves.name!r}: {note}" for note in troe_bound_notes(troe)]
+    troe_k = troe_rate(k0_troe[:, None], k_inf[:, None], m, t[:, None], troe.a, troe.T3_K, troe.T1_K, troe.T2_K)
+    lind = lindemann_hinshelwood(k0_troe[:, None], k_inf[:, None], m)
+    if np.unique(t).size >= 2:
+        troe = troe.with_limits(limit_expression(t, k0_troe, order=curves.model.channel.order + 1),
+                                limit_expression(t, k_inf, order=curves.model.channel.order), bath_gas=bath_gas)
+    elif bath_gas is not None:
+        troe = replace(troe, bath_gas=bath_gas)
+    base = {f.name: getattr(curves, f.name) for f in fields(ChannelFalloffCurves)}
+    base["warnings"] = tuple(warnings)
+    return ChannelFalloff(**base, troe=troe, troe_k0_m3_per_s=k0_troe, troe_per_s=troe_k,
+                          troe_Fcent=troe.fcent(t), lindemann_per_s=lind)
+
+
 def channel_falloff(study: Study, channel: Channel, *, settings: FalloffSettings | None = None,
                     temperature_K=None, bath: coll.LennardJones | None = None) -> ChannelFalloff:
     """Falloff of one unimolecular channel at the study's temperatures and pressures (or the ones given)."""
@@ -109,8 +179,9 @@ def channel_falloff(study: Study, channel: Channel, *, settings: FalloffSettings
     pressures, m = study_number_densities(study, t)
     bath = bath or bath_parameters(study)
     model = channel_model(study, channel, settings, max_temperature_K=float(t.max()))
-    return falloff_on_grid(model, settings, bath, t, m, pressures,
-                           canonical_tst_per_s=canonical_tst(study, channel, t, model.tunnelling))
+    curves = falloff_on_grid(model, settings, bath, t, m, pressures,
+                             canonical_tst_per_s=canonical_tst(study, channel, t, model.tunnelling))
+    return fit_falloff(curves, bath_gas=study.conditions.bath_gas)
 
 
 def canonical_tst(study: Study, channel: Channel, temperature_K, tunnelling: str = "none") -> np.ndarray:

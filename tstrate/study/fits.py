@@ -28,10 +28,10 @@ to well under 1 % (the demo study: 13.8 % and 15.9 % for the modified
 Arrhenius form, below 0.3 % for Chebyshev). The Arrhenius fits are kept
 alongside.
 
-Falloff channels take Troe parameters as plain data (:class:`TroeData`:
-k0 and k_inf as Arrhenius expressions, a, T***, T*, optional T**; Troe,
-Ber. Bunsenges. Phys. Chem. 87, 161 (1983)), so they can come from tstrate's
-falloff module or from anywhere else.
+Falloff channels take a Troe expression
+(:class:`~tstrate.expressions.troe.TroeFit` with k0 and k_inf as Arrhenius
+expressions, a, T***, T*, optional T**; Troe, Ber. Bunsenges. Phys. Chem. 87,
+161 (1983)), so it can come from tstrate's falloff step or from anywhere else.
 
 Species
 -------
@@ -102,6 +102,7 @@ from tstrate.expressions.arrhenius import (MAX_DEVIATION_DEFAULT, T0_DEFAULT_K, 
                                            SplitArrheniusFit, fit_arrhenius, fit_arrhenius_split)
 from tstrate.expressions.chebyshev import ChebyshevFit, fit_chebyshev
 from tstrate.expressions.nasa7 import Nasa7Fit, fit_nasa7
+from tstrate.expressions.troe import TroeFit
 from tstrate.model.settings import (CHEBYSHEV_PRESSURE_TERMS_DEFAULT, CHEBYSHEV_TEMPERATURE_TERMS_DEFAULT,
                                     MECHANISM_FORMS)
 from tstrate.physics.thermo import HARMONIC, LowModes, thermochemistry
@@ -129,77 +130,6 @@ def element_order(elements) -> list[str]:
 # ============================================================================
 # records
 # ============================================================================
-
-@dataclass(frozen=True)
-class TroeData:
-    """Troe falloff parameters of one channel, as plain data.
-
-    k0: low-pressure limit as an Arrhenius expression, SI per molecule with
-        ``order`` = channel order + 1 (m^3 s^-1 for a unimolecular channel:
-        k = k0 [M] at low pressure, [M] in m^-3).
-    kinf: high-pressure limit, SI per molecule of the channel's order.
-    a: Troe's a (dimensionless); T3_K = T***, T1_K = T*, T2_K = T** [K]
-        (None: the exp(-T**/T) term is left out). F_cent = (1-a) exp(-T/T***)
-        + a exp(-T/T*) + exp(-T**/T) (Troe 1983).
-    max_rel_deviation, rms_rel_deviation: quality of the Troe fit against the
-        underlying k(T, [M]) (fractions), if known.
-    at_bound: (parameter, bound) for each of a, T3_K, T1_K, T2_K that sits at a bound of
-        the fit (the data do not determine its value), if known.
-    bath_gas: the collision partner the parameters were computed for, if known.
-    source: free text (e.g. "RRKM strong-collision falloff, tstrate").
-    """
-
-    k0: ArrheniusFit
-    kinf: ArrheniusFit
-    a: float
-    T3_K: float
-    T1_K: float
-    T2_K: float | None = None
-    max_rel_deviation: float | None = None
-    rms_rel_deviation: float | None = None
-    bath_gas: str | None = None
-    source: str | None = None
-    at_bound: tuple[tuple[str, float], ...] = ()
-
-    def __post_init__(self):
-        for name in ("k0", "kinf"):
-            if not isinstance(getattr(self, name), ArrheniusFit):
-                raise InputError(f"Troe {name} must be an Arrhenius expression", field=f"troe.{name}",
-                                 hint="use arrhenius_expression(A_SI, n, Ea_J_per_mol, order=...)")
-        if self.k0.order != self.kinf.order + 1:
-            raise InputError(f"Troe k0 has order {self.k0.order} but k_inf has order "
-                             f"{self.kinf.order}; k0 needs one order more", field="troe.k0")
-        if not math.isfinite(self.a):
-            raise InputError("Troe a must be finite", field="troe.a")
-        for name in ("T3_K", "T1_K") + (("T2_K",) if self.T2_K is not None else ()):
-            v = getattr(self, name)
-            if not (math.isfinite(v) and v > 0):
-                raise InputError(f"Troe {name} must be positive, got {v!r}", field=f"troe.{name}")
-
-    @classmethod
-    def from_parts(cls, k0, kinf, params, *, bath_gas: str | None = None,
-                   source: str | None = None) -> "TroeData":
-        """Build from Arrhenius expressions and any object or mapping holding the Troe parameters.
-
-        ``params`` may be the falloff module's fit result (attributes ``a``,
-        ``T3_K``, ``T1_K``, ``T2_K``, ``max_relative_deviation``,
-        ``rms_relative_deviation``, ``at_bound``) or a mapping with the same keys.
-        """
-        def get(key, default=None):
-            if isinstance(params, Mapping):
-                return params.get(key, default)
-            return getattr(params, key, default)
-
-        t2 = get("T2_K")
-        dev = get("max_relative_deviation", get("max_rel_deviation"))
-        rms = get("rms_relative_deviation", get("rms_rel_deviation"))
-        return cls(k0=k0, kinf=kinf, a=float(get("a")), T3_K=float(get("T3_K")),
-                   T1_K=float(get("T1_K")), T2_K=None if t2 is None else float(t2),
-                   max_rel_deviation=None if dev is None else float(dev),
-                   rms_rel_deviation=None if rms is None else float(rms),
-                   bath_gas=bath_gas, source=source,
-                   at_bound=tuple((str(n), float(b)) for n, b in dict(get("at_bound") or {}).items()))
-
 
 def arrhenius_expression(A_SI: float, n: float, Ea_J_per_mol: float, *, order: int,
                          T0_K: float = T0_DEFAULT_K) -> ArrheniusFit:
@@ -280,7 +210,7 @@ class ChannelFit:
     split: SplitArrheniusFit | None
     mechanism_form: str
     max_abs_ln_kc_error: float
-    troe: TroeData | None = None
+    troe: TroeFit | None = None
     warnings: tuple[str, ...] = ()
     chebyshev: ChebyshevFit | None = None
     chebyshev_falloff: ChebyshevFit | None = None
@@ -554,6 +484,9 @@ def _fit_channel(cr, ch, *, max_deviation, T0_K, split, mechanism_form, troe, fi
     if sp is not None:
         warnings += [f"channel {ch.name} split fit ({side} range): {f.warning}"
                      for side, f in (("low", sp.low), ("high", sp.high)) if f.warning]
+    if troe is not None and troe.kinf is None:
+        raise InputError("the Troe expression has no limit expressions k0 and kinf", **where,
+                         hint="join them with TroeFit.with_limits(k0, kinf)")
     if troe is not None and troe.kinf.order != cr.order:
         raise InputError(f"Troe k_inf has order {troe.kinf.order} but the channel has "
                          f"{cr.order} reactant(s)", **where)
@@ -603,7 +536,7 @@ def fit_study(study, *, temperature_K=None, low_modes: LowModes = HARMONIC,
               split: bool | float = False, mechanism_form: str = "modified",
               nasa_range_K=NASA_RANGE_DEFAULT_K, nasa_T_mid_K: float | None = NASA_T_MID_DEFAULT_K,
               nasa_adjust_mid: bool = True,
-              troe: Mapping[str, TroeData] | None = None, bath_gas: str | None = None,
+              troe: Mapping[str, TroeFit] | None = None, bath_gas: str | None = None,
               bath_species=None, chebyshev_temperature_terms: int | None = None,
               chebyshev_pressure_terms: int | None = None,
               falloff_grid: Mapping[str, tuple] | None = None, rates=None) -> StudyFits:
@@ -623,7 +556,8 @@ def fit_study(study, *, temperature_K=None, low_modes: LowModes = HARMONIC,
         widened to the study temperatures (:func:`nasa_range`).
     nasa_adjust_mid: let the fit move the common temperature when the fit at
         ``nasa_T_mid_K`` errs by more than 0.1 % (see :func:`fit_species_nasa`).
-    troe: channel name -> :class:`TroeData` for falloff channels.
+    troe: channel name -> :class:`~tstrate.expressions.troe.TroeFit` (with k0 and kinf) for falloff
+        channels.
     bath_gas: collision partner of falloff reactions (default: the study's
         ``bath_gas``); added as a species when it is not one already.
     bath_species: the :class:`~tstrate.model.Species` of a bath gas that is not a study species
@@ -762,6 +696,6 @@ def fit_study(study, *, temperature_K=None, low_modes: LowModes = HARMONIC,
         version=getattr(tstrate, "__version__", "unknown"), input_files=inputs)
 
 
-__all__ = ["TroeData", "SpeciesFit", "ChannelFit", "StudyFits", "fit_study", "arrhenius_expression",
+__all__ = ["SpeciesFit", "ChannelFit", "StudyFits", "fit_study", "arrhenius_expression",
            "MECHANISM_FORMS", "element_offsets", "fit_species_nasa", "ln_kc_from_nasa", "nasa_grid", "nasa_range",
            "midpoint_candidates", "element_order", "NASA_RANGE_DEFAULT_K", "NASA_T_MID_DEFAULT_K"]

@@ -43,8 +43,9 @@ class StudyResult:
     falloff: pressure.StudyFalloff, or None.
     excitations: energised-molecule results per [[excitation]], or None.
     fits: study.fits.StudyFits.
-    pressure_fits: channel -> list of (pressure [Pa] or None, [M] [m^-3] at the highest
-        temperature, modified Arrhenius fit of k(T) at that pressure), for falloff channels.
+    pressure_fits: channel -> :class:`~tstrate.expressions.pressure_table.PressureTableFit`, the
+        modified Arrhenius fits of k(T) at each pressure of a falloff channel (its rows: pressure
+        [Pa] or None, [M] [m^-3] at the highest temperature, fit).
     warnings: sentences for the report.
     capture: physics.capture.CaptureLimit per bimolecular channel (TST against the capture ceiling).
     """
@@ -117,7 +118,8 @@ def compute_study(study: Study, *, low_modes: LowModes = HARMONIC,
         falloff = study_falloff(study)
         warnings += list(falloff.warnings)
         for cf in falloff.channels:
-            troe[cf.name] = troe_data(cf, study)
+            if cf.troe.k0 is not None:  # the Troe expression with its limits, for the mechanism
+                troe[cf.name] = cf.troe
             if cf.pressure_Pa is not None:  # k(T, P) on the study's grid, for Chebyshev fits
                 grid[cf.name] = (cf.pressure_Pa, cf.rate_constant_per_s)
             pressure_fits[cf.name], w = fits_at_each_pressure(cf)
@@ -150,53 +152,22 @@ def compute_study(study: Study, *, low_modes: LowModes = HARMONIC,
                        pressure_fits=pressure_fits, warnings=tuple(dict.fromkeys(warnings)), capture=capture)
 
 
-def troe_data(cf, study):
-    """Troe data for the mechanism from one channel's falloff result.
-
-    k0 and k_inf are fitted in the modified Arrhenius form; when that form is
-    unrepresentable in a mechanism (A (1 K / T0)^n beyond the float range, as
-    happens for an effective k0 over a short temperature range), the
-    two-parameter form is used instead and its larger deviation is reported.
-    """
-    from tstrate.study.fits import TroeData
-
-    k0 = _limit_fit(cf.temperature_K, cf.troe_k0_m3_per_s, order=2)
-    kinf = _limit_fit(cf.temperature_K, cf.k_high_pressure_per_s, order=1)
-    return TroeData.from_parts(k0, kinf, cf.troe, bath_gas=study.conditions.bath_gas)
-
-
-def _limit_fit(T, k, order):
-    import math
-
-    from tstrate.expressions.arrhenius import fit_arrhenius
-    from tstrate.units import rate_from_SI
-
-    if len(T) >= 3:
-        fit = fit_arrhenius(T, k, order=order, modified=True)
-        ln_a = math.log(float(rate_from_SI(fit.A, order))) - fit.n * math.log(fit.T0_K)
-        if abs(ln_a) < 600:
-            return fit
-    return fit_arrhenius(T, k, order=order)
-
-
 def fits_at_each_pressure(cf, *, max_deviation: float | None = None):
-    """Modified Arrhenius fits of a falloff channel's k(T) at each tabulated pressure.
+    """Modified Arrhenius fits of a falloff channel's k(T) at each tabulated pressure (number density).
 
-    Returns ([(pressure_Pa or None, number_density_m3 at the highest T, ArrheniusFit)], warnings).
+    Returns (:class:`~tstrate.expressions.pressure_table.PressureTableFit`, warnings).
     """
-    from tstrate.expressions.arrhenius import MAX_DEVIATION_DEFAULT, fit_arrhenius
+    from tstrate.expressions.arrhenius import MAX_DEVIATION_DEFAULT
+    from tstrate.expressions.pressure_table import fit_pressure_table
 
     limit = MAX_DEVIATION_DEFAULT if max_deviation is None else max_deviation
-    out, warnings = [], []
+    warnings = []
     T = cf.temperature_K
-    modified = len(T) >= 3
-    for j in range(cf.rate_constant_per_s.shape[1]):
-        p = None if cf.pressure_Pa is None else float(cf.pressure_Pa[j])
-        fit = fit_arrhenius(T, cf.rate_constant_per_s[:, j], order=1, modified=modified,
-                            max_deviation=limit)
-        out.append((p, float(cf.number_density_m3[-1, j]), fit))
-    worst = max((f.max_rel_deviation for _, _, f in out), default=0.0)
+    table = fit_pressure_table(T, cf.rate_constant_per_s, order=1, pressure_Pa=cf.pressure_Pa,
+                               number_density_m3=cf.number_density_m3[-1, :], modified=len(T) >= 3,
+                               max_deviation=limit)
+    worst = table.max_rel_deviation
     if worst > limit:
         warnings.append(f"channel {cf.name}: modified Arrhenius fits at fixed pressure deviate by up to "
                         f"{100 * worst:.1f} % (split the temperature range for a mechanism)")
-    return out, warnings
+    return table, warnings
