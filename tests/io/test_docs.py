@@ -87,6 +87,8 @@ def species_files(tmp_path) -> list[Path]:
         provenance={"method": "invented test data"})
     d2o = tomllib.loads((DATA / "species" / "d2o_hessian.toml").read_text())
     d2o["frequencies_cm1"] = [1200.0, 2700.0, 2800.0]   # only counted when a Hessian is given
+    # D2O keeps the C2v of H2O: an override with isotopes, confirmed
+    d2o.update(symmetry_number=2, symmetry_confirmed_with_isotopes=True)
     out = []
     for name, data in (("h2co3_all_keys.toml", h2co3), ("d2o_all_keys.toml", d2o)):
         path = tmp_path / name

@@ -205,3 +205,122 @@ def test_centre_of_mass_frame_has_zero_first_moment():
     symbols, x, m = _g2("CH3Cl")
     xc = geometry.centre_of_mass_frame(x + 5.0, m)
     assert np.allclose((m[:, None] * xc).sum(axis=0), 0.0, atol=1e-12)
+
+
+# ---- near-symmetric geometries: every atom moved a little --------------------------------
+# Check values: the order of the rotational subgroup of each molecule's point group, and that
+# subgroup's name (Td -> T 12, Oh -> O 24, Ih -> I 60, D6h -> D6 12, D3d -> D3 6, D3h -> D3 6,
+# D2d -> D2 4, D2h -> D2 4, C3v -> C3 3, C2v -> C2 2, C2 -> C2 2, Dinf_h -> D∞ 2), from the
+# group-theory tables in F. A. Cotton, Chemical Applications of Group Theory, 3rd ed. (1990),
+# and P. W. Atkins and J. de Paula, Physical Chemistry (character tables); the point groups of
+# the molecules are standard textbook assignments (from memory). Geometries: ASE's G2 set and
+# its C60 (ase.build.molecule); cubane and SF6 are built here from ideal Oh frames with bond
+# lengths from memory (C-C 1.56, C-H 1.09, S-F 1.56 Angstrom; only their symmetry matters).
+
+def _cubane():
+    corners = np.array([(i, j, k) for i in (1, -1) for j in (1, -1) for k in (1, -1)], dtype=float)
+    a = 0.78  # half the C-C edge
+    b = a + 1.09 / np.sqrt(3.0)  # C-H along the body diagonal
+    symbols = ["C"] * 8 + ["H"] * 8
+    return symbols, np.vstack([a * corners, b * corners]), default_masses_amu(symbols)
+
+
+def _sf6():
+    symbols = ["S"] + ["F"] * 6
+    x = np.vstack([np.zeros(3), 1.56 * np.eye(3), -1.56 * np.eye(3)])
+    return symbols, x, default_masses_amu(symbols)
+
+
+def _structure(name):
+    return {"cubane": _cubane, "SF6": _sf6}.get(name, lambda: _g2(name))()
+
+
+# (structure, point group, rotation group, symmetry number)
+HIGH_SYMMETRY = [
+    ("CH4", "Td", "T", 12), ("C6H6", "D6h", "D6", 12), ("cubane", "Oh", "O", 24),
+    ("C2H6", "D3d", "D3", 6), ("CH3Cl", "C3v", "C3", 3), ("C60", "Ih", "I", 60),
+    ("NH3", "C3v", "C3", 3), ("H2O", "C2v", "C2", 2), ("CO2", "Dinf_h", "D∞", 2),
+    ("C3H4_D2d", "D2d", "D2", 4), ("SF6", "Oh", "O", 24), ("C2H4", "D2h", "D2", 4),
+    ("BF3", "D3h", "D3", 6), ("CCl4", "Td", "T", 12), ("H2O2", "C2", "C2", 2),
+]
+
+
+def _perturbed(x, rng, step_A):
+    """Every atom moved by exactly ``step_A`` in a random direction."""
+    d = rng.normal(size=x.shape)
+    return x + step_A * d / np.linalg.norm(d, axis=1)[:, None]
+
+
+@pytest.mark.parametrize("name,point_group,group,sigma", HIGH_SYMMETRY,
+                         ids=[f"{n}-{p}" for n, p, _, _ in HIGH_SYMMETRY])
+def test_symmetry_number_of_perturbed_geometries(name, point_group, group, sigma):
+    # 0.005 Angstrom per atom keeps every true operation within the default 0.02 Angstrom
+    # (an atom and its image move apart by at most 0.01 Angstrom, plus 0.01 from the shift of
+    # the centre of mass, less after the superposition); the first version, testing
+    # two-atom rotations alone, got orders no rotation group has (CH4 5-11, C60 26-59)
+    symbols, x, m = _structure(name)
+    rng = np.random.default_rng(20240)
+    for _ in range(12):
+        result = sym.rotational_symmetry(symbols, _perturbed(x, rng, 0.005), m)
+        assert (result.symmetry_number, result.group) == (sigma, group)
+        assert result.warnings == ()
+        assert result.tolerance_A == geometry.DEFAULT_TOLERANCE_A
+        assert 0.0 < result.max_deviation_A < result.tolerance_A
+
+
+@pytest.mark.parametrize("name,point_group,group,sigma", HIGH_SYMMETRY,
+                         ids=[f"{n}-{p}" for n, p, _, _ in HIGH_SYMMETRY])
+def test_exact_geometries_have_their_rotation_group(name, point_group, group, sigma):
+    symbols, x, m = _structure(name)
+    moved = x @ _rotation(5).T + np.array([0.3, -2.0, 1.0])
+    result = sym.rotational_symmetry(symbols, moved, m)
+    assert (result.symmetry_number, result.group) == (sigma, group)
+    # ASE's C60 coordinates are Ih only to about 0.01 Angstrom; the others are exact
+    assert result.max_deviation_A < (0.01 if name == "C60" else 1e-6)
+    assert sym.symmetry_number(symbols, moved, m) == sigma
+
+
+def test_group_names_of_small_records():
+    assert sym.rotational_symmetry(["Ar"], [[0.0, 0.0, 0.0]], [39.96]).group == "atom"
+    symbols, x, m = _g2("HCN")
+    assert (sym.rotational_symmetry(symbols, x, m).group, sym.symmetry_number(symbols, x, m)) == ("C∞", 1)
+    symbols, x, m = _g2("CH3OH")
+    assert sym.rotational_symmetry(symbols, x, m).group == "C1"
+    # the name follows from the order and the largest element order
+    assert [sym.group_name(*k) for k in [(1, 1), (5, 5), (4, 2), (8, 4), (12, 6), (12, 3), (24, 4),
+                                         (60, 5)]] == ["C1", "C5", "D2", "D4", "D6", "T", "O", "I"]
+    with pytest.raises(ValueError):
+        sym.group_name(11, 5)
+
+
+def test_operations_found_for_part_of_a_group_are_reduced_to_a_subgroup_with_a_warning(caplog):
+    # one H of CH4 moved 0.03 Angstrom sideways: the three C2 axes still hold within 0.02
+    # Angstrom after the superposition, but some threefold operations do not; their products
+    # are not all there, so the kept set must be a subgroup (D2, order 4), never 5 to 11
+    symbols, x, m = _methane_with_one_h_moved(0.03)
+    with caplog.at_level("WARNING", logger="tstrate.physics.symmetry"):
+        result = sym.rotational_symmetry(symbols, x, m)
+    assert (result.symmetry_number, result.group) == (4, "D2")
+    assert len(result.warnings) == 1 and "only part of the rotation group T (order 12)" in result.warnings[0]
+    assert any("only part of the rotation group" in r.message for r in caplog.records)
+    # the warning's suggested tolerance indeed restores T
+    suggested = float(result.warnings[0].split("a tolerance above ")[1].split(" Angstrom")[0])
+    assert sym.symmetry_number(symbols, x, m, tolerance_A=suggested * 1.01) == 12
+    assert result.max_deviation_A < 0.02
+
+
+@pytest.mark.parametrize("shift_A", np.linspace(0.0, 0.08, 17))
+def test_every_symmetry_number_is_the_order_of_a_rotation_group(shift_A):
+    # a sweep through the tolerance: whatever is kept is closed under composition
+    symbols, x, m = _methane_with_one_h_moved(float(shift_A))
+    for tol in (0.01, 0.02, 0.04):
+        result = sym.rotational_symmetry(symbols, x, m, tolerance_A=tol)
+        assert result.symmetry_number in (1, 2, 3, 4, 12)  # the subgroups of T
+        assert result.max_deviation_A < tol
+
+
+def test_perturbed_chiral_and_achiral_geometries_keep_their_optical_isomers():
+    rng = np.random.default_rng(7)
+    for name, n in [("H2O2", 2), ("CH4", 1), ("C6H6", 1), ("C2H6", 1), ("C60", 1)]:
+        symbols, x, m = _g2(name)
+        assert sym.optical_isomers(symbols, _perturbed(x, rng, 0.005), m) == n

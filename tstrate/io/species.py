@@ -57,11 +57,15 @@ SPECIES_KEYS = Keys((), "top level", "One species: a minimum or a transition sta
         "(table `energy` below); needed for barriers and reaction energies"),
     Key("single_point", "table", "a higher-level energy `{ value, unit, method }` (table `single_point` "
         "below) that replaces `energy` for barriers and reaction energies"),
-    Key("symmetry_number", "integer", "external rotational symmetry number", default_text="detected from "
-        "the geometry", unit="1"),
+    Key("symmetry_number", "integer", "external rotational symmetry number (an override: files written by "
+        "tstrate hold it only when it was given)", default_text="detected from the geometry and masses (the "
+        f"order of the rotation group found within {DEFAULT_TOLERANCE_A:g} Angstrom)", unit="1"),
     Key("optical_isomers", "integer", "number of optical isomers (2 for a chiral structure)",
         default_text="detected from the geometry", unit="1"),
     Key("linear", "true or false", "whether the species is linear", default_text="detected from the geometry"),
+    Key("symmetry_confirmed_with_isotopes", "true or false", "keep a `symmetry_number` or `optical_isomers` "
+        "given together with `isotopes`; without it that combination is an error, since substitution often "
+        "lowers the symmetry (HDO, CH3D) and a value copied from the parent would be stale", default=False),
     Key("allow_imaginary_below_cm1", "number", "a minimum may have imaginary modes smaller than this; they "
         "are treated as real (with a warning). 0: any imaginary mode of a minimum is an error",
         default=0.0, unit="cm-1"),
@@ -198,7 +202,8 @@ def build_species(name: str, symbols, positions_A, *, charge: int = 0, multiplic
                   masses_amu=None, isotopes: dict[int, int] | None = None,
                   electronic_levels=(), allow_imaginary_below_cm1: float = 0.0,
                   lennard_jones=None, provenance: dict | None = None, source: str | None = None,
-                  symmetry_tolerance_A: float = DEFAULT_TOLERANCE_A, free_rotors=()) -> Species:
+                  symmetry_tolerance_A: float = DEFAULT_TOLERANCE_A, free_rotors=(),
+                  symmetry_confirmed_with_isotopes: bool = False) -> Species:
     """Validate inputs and build a :class:`Species` (the one path from files and from Python).
 
     ``isotopes`` maps 0-based atom indices to mass numbers. When a Hessian is
@@ -206,6 +211,13 @@ def build_species(name: str, symbols, positions_A, *, charge: int = 0, multiplic
     are given the listed frequencies are only checked for count. ``free_rotors``
     are :class:`~tstrate.model.FreeRotor` s; each must match one real mode (see the
     module docstring).
+
+    ``symmetry_number``, ``optical_isomers`` and ``linear`` left None are detected from the
+    geometry and the final masses (:func:`tstrate.physics.symmetry.rotational_symmetry`); the
+    species records which were given (``Species.symmetry_given``). A given symmetry number or
+    number of optical isomers together with ``isotopes`` is an error unless
+    ``symmetry_confirmed_with_isotopes``: substitution often lowers the symmetry (HDO, CH3D),
+    and a value copied from the parent's file would be silently stale.
     """
     file = source
     symbols, positions = check_geometry(symbols, positions_A, file=file)
@@ -249,10 +261,31 @@ def build_species(name: str, symbols, positions_A, *, charge: int = 0, multiplic
         log.warning("%s: %d small imaginary frequencies treated as real", name, len(imag))
         freqs = np.sort(np.abs(freqs))
 
+    given = tuple(k for k, v in (("symmetry_number", symmetry_number), ("optical_isomers", optical_isomers),
+                                 ("linear", linear)) if v is not None)
+    detected = sym.rotational_symmetry(symbols, positions, masses, symmetry_tolerance_A)
+    warnings = list(detected.warnings)
+    detected_isomers = (sym.optical_isomers(symbols, positions, masses, symmetry_tolerance_A)
+                        if optical_isomers is None or isotopes else None)
+    if isotopes and not symmetry_confirmed_with_isotopes:
+        for key, value, found in (("symmetry_number", symmetry_number, detected.symmetry_number),
+                                  ("optical_isomers", optical_isomers, detected_isomers)):
+            if value is not None:
+                raise InputError(
+                    f"{key} = {value} is given together with isotopes; the isotopologue may have another "
+                    f"value (its geometry and masses give {found})", file=file, field=key,
+                    hint=f"remove {key} to detect it, or set symmetry_confirmed_with_isotopes = true "
+                         "to keep the value given")
     if symmetry_number is None:
-        symmetry_number = sym.symmetry_number(symbols, positions, masses, symmetry_tolerance_A)
+        symmetry_number = detected.symmetry_number
+    elif symmetry_number != detected.symmetry_number:
+        warnings.append(f"symmetry_number = {symmetry_number} is given; the geometry gives "
+                        f"{detected.symmetry_number} (rotation group {detected.group} within "
+                        f"{detected.tolerance_A:g} Angstrom)")
     if optical_isomers is None:
-        optical_isomers = sym.optical_isomers(symbols, positions, masses, symmetry_tolerance_A)
+        optical_isomers = detected_isomers
+    for w in warnings:
+        log.warning("%s: %s", name, w)
 
     # every check of the values themselves runs in Species' construction
     return Species(
@@ -263,6 +296,8 @@ def build_species(name: str, symbols, positions_A, *, charge: int = 0, multiplic
         linear=is_lin, electronic_levels=tuple(electronic_levels), hessian_J_per_m2=hessian_J_per_m2,
         geometry_energy_J_per_mol=geometry_energy_J_per_mol, provenance=dict(provenance or {}),
         source=source, lennard_jones=lennard_jones, free_rotors=tuple(free_rotors),
+        symmetry_given=given, rotation_group=None if "symmetry_number" in given else detected.group,
+        warnings=tuple(warnings),
     )
 
 
@@ -374,6 +409,8 @@ def read_species(path: str | Path, *, name: str | None = None) -> Species:
     if masses is not None and (len(masses) != len(symbols) or min(masses) <= 0):
         raise t.error("masses_amu", f"expected {len(symbols)} positive masses, got {len(masses)}")
     linear = t.get("linear", bool, None)
+    confirmed = t.get("symmetry_confirmed_with_isotopes", bool,
+                      SPECIES_KEYS.default("symmetry_confirmed_with_isotopes"))
     t.reject_unknown(SPECIES_KEYS)
     return build_species(
         name or fname, symbols, positions,
@@ -388,6 +425,7 @@ def read_species(path: str | Path, *, name: str | None = None) -> Species:
         allow_imaginary_below_cm1=t.get("allow_imaginary_below_cm1", float,
                                         SPECIES_KEYS.default("allow_imaginary_below_cm1")),
         lennard_jones=lj, provenance=provenance, source=file, free_rotors=rotors,
+        symmetry_confirmed_with_isotopes=confirmed,
     )
 
 
@@ -435,9 +473,13 @@ def species_to_toml(species: Species, *, include_hessian: bool = True,
                      f"unit = {_toml_str(energy_unit)} }}")
     if not np.allclose(species.masses_amu, default_masses_amu(species.symbols), rtol=0, atol=1e-6):
         lines.append("masses_amu = [" + ", ".join(_toml_num(m) for m in species.masses_amu) + "]")
-    lines.append(f"symmetry_number = {species.symmetry_number}")
-    lines.append(f"optical_isomers = {species.optical_isomers}")
-    lines.append(f"linear = {'true' if species.linear else 'false'}")
+    # only values given as overrides: detected ones are detected again when the file is read
+    if "symmetry_number" in species.symmetry_given:
+        lines.append(f"symmetry_number = {species.symmetry_number}")
+    if "optical_isomers" in species.symmetry_given:
+        lines.append(f"optical_isomers = {species.optical_isomers}")
+    if "linear" in species.symmetry_given:
+        lines.append(f"linear = {'true' if species.linear else 'false'}")
     if include_hessian and species.hessian_J_per_m2 is not None and species.kind == "minimum":
         # small imaginary modes tolerated when the species was built come back from the Hessian
         from tstrate.physics.vibrations import vibrational_analysis

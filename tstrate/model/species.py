@@ -28,6 +28,9 @@ KINDS = ("minimum", "transition_state")
 #: closest approach of two nuclei accepted in a geometry [Angstrom]
 MIN_DISTANCE_A = 0.4
 
+#: the fields of a species that symmetry detection fills in unless they are given
+SYMMETRY_FIELDS = ("symmetry_number", "optical_isomers", "linear")
+
 #: a free rotor's ``replaces_cm1`` must lie this close to the mode it replaces [cm^-1]
 ROTOR_MATCH_CM1 = 1.0
 
@@ -104,6 +107,13 @@ class Species:
     source: the file the species was read from, if any.
     lennard_jones: collision parameters (sigma [Angstrom], epsilon/k_B [K]) for falloff, if given.
     free_rotors: :class:`FreeRotor` s, each replacing one real harmonic mode (default none).
+    symmetry_given: which of :data:`SYMMETRY_FIELDS` were given (overrides); the others were
+        detected from the geometry and masses, and a species file written from this record
+        leaves them out, so that they are detected again (with the masses then in effect).
+        Default: all given (a record built by hand states its values).
+    rotation_group: name of the rotation group detected from the geometry ("C2", "D3", "T",
+        "C∞", ...; "atom" for one atom), or None when not detected (symmetry number given).
+    warnings: sentences from building the species (symmetry detection), for reports.
     """
 
     name: str
@@ -126,6 +136,9 @@ class Species:
     source: str | None = None
     lennard_jones: tuple[float, float] | None = None  # (sigma [Angstrom], epsilon/k_B [K])
     free_rotors: tuple[FreeRotor, ...] = ()
+    symmetry_given: tuple[str, ...] = SYMMETRY_FIELDS
+    rotation_group: str | None = None
+    warnings: tuple[str, ...] = ()
 
     def __post_init__(self):
         _validate_species(self)
@@ -221,7 +234,13 @@ class Species:
         return principal_moments(self.positions_A, self.masses_amu)
 
     def with_changes(self, **changes) -> "Species":
-        """A copy with some fields replaced (records are immutable)."""
+        """A copy with some fields replaced (records are immutable). A symmetry field changed
+        here counts as given (an override), unless ``symmetry_given`` is changed too."""
+        if "symmetry_given" not in changes:
+            given = set(self.symmetry_given) | (set(changes) & set(SYMMETRY_FIELDS))
+            changes["symmetry_given"] = tuple(f for f in SYMMETRY_FIELDS if f in given)
+        if "symmetry_number" in changes and "rotation_group" not in changes:
+            changes["rotation_group"] = None  # no longer the detected group's order
         return replace(self, **changes)
 
 
@@ -354,6 +373,17 @@ def _validate_species(sp: Species) -> None:
             raise bad("lennard_jones", "sigma_A and epsilon_K must be positive")
         store("lennard_jones", lj)
     store("provenance", dict(sp.provenance or {}))
+    given = tuple(sp.symmetry_given)
+    unknown = [g for g in given if g not in SYMMETRY_FIELDS]
+    if unknown:
+        raise bad("symmetry_given", f"unknown fields {unknown}; choose among {list(SYMMETRY_FIELDS)}")
+    store("symmetry_given", tuple(f for f in SYMMETRY_FIELDS if f in given))
+    if sp.rotation_group is not None and not isinstance(sp.rotation_group, str):
+        raise bad("rotation_group", f"the rotation group must be a name or None, got {sp.rotation_group!r}")
+    warnings = tuple(sp.warnings)
+    if not all(isinstance(w, str) for w in warnings):
+        raise bad("warnings", "warnings must be sentences (strings)")
+    store("warnings", warnings)
     store("free_rotors", _check_free_rotors(tuple(sp.free_rotors), freqs, bad))
 
 

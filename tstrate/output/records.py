@@ -82,7 +82,8 @@ def thermo_record(th, sp) -> dict:
     return {
         "name": th.species, "formula": sp.formula, "kind": sp.kind,
         "symmetry_number": sp.symmetry_number, "optical_isomers": sp.optical_isomers,
-        "linear": sp.linear,
+        "linear": sp.linear, "symmetry_given": "symmetry_number" in sp.symmetry_given,
+        "rotation_group": sp.rotation_group,
         "frequencies_cm1": sp.scaled_frequencies_cm1, "zpe_kJ_per_mol": th.zpe_J_per_mol * kj,
         "free_rotors": [{"replaces_cm1": r.replaces_cm1, "symmetry_number": r.symmetry_number,
                          "reduced_moment_amu_A2": r.reduced_moment_amu_A2} for r in sp.free_rotors],

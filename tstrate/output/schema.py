@@ -152,6 +152,9 @@ _record("thermo", "Thermochemistry of one species", [
     ("symmetry_number", ONE, "rotational symmetry number in effect"),
     ("optical_isomers", ONE, "number of optical isomers"),
     ("linear", FLAG, "whether the species is linear"),
+    ("symmetry_given", FLAG, "whether the symmetry number was given (an override) rather than detected"),
+    ("rotation_group", TEXT, "rotation group detected from the geometry (C1, C2, D3, T, O, I, C∞, D∞, ...; "
+     "its order is the symmetry number), or null when the symmetry number was given"),
     ("frequencies_cm1", CM1, "scaled harmonic wavenumbers; imaginary ones negative"),
     ("free_rotors", LIST, "free internal rotors that replace harmonic modes (may be empty)"),
     ("free_rotors[].replaces_cm1", CM1, "the (unscaled) wavenumber of the mode the rotor replaces"),

@@ -85,7 +85,7 @@ def compute_study(study: Study, *, low_modes: LowModes = HARMONIC,
         if progress:
             progress(name)
 
-    warnings: list[str] = []
+    warnings: list[str] = [f"species {name}: {w}" for name, sp in study.species.items() for w in sp.warnings]
     T = study.conditions.temperature_K
     T_thermo = np.unique(np.concatenate([T, THERMO_EXTRA_TEMPERATURES_K]))
 
