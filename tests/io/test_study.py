@@ -93,6 +93,24 @@ degeneracy = 2
     np.testing.assert_allclose(study.conditions.pressure_Pa, [101325.0], rtol=1e-12)
 
 
+def test_product_complex_is_read_and_balanced(study_dir):
+    # an invented CO2.2H2O product complex: the atoms of H2CO3_H2O, 30 kJ/mol below CO2 + 2 H2O
+    text = (study_dir / "h2co3_h2o.toml").read_text().replace('name = "H2CO3_H2O"', 'name = "CO2_2H2O"')
+    (study_dir / "co2_2h2o.toml").write_text(text)
+    _edit(study_dir, "study.toml", 'H2CO3_H2O = "h2co3_h2o.toml"',
+          'H2CO3_H2O = "h2co3_h2o.toml"\nCO2_2H2O = "co2_2h2o.toml"')
+    _edit(study_dir, "study.toml", 'complex = "H2CO3_H2O"', 'complex = "H2CO3_H2O"\nproduct_complex = "CO2_2H2O"')
+    study = read_study(study_dir / "study.toml")
+    assert study.channel("water").product_complex == "CO2_2H2O"
+    assert study.channel("bare").product_complex is None
+    # the bare channel's products CO2 + H2O do not balance CO2.2H2O
+    _edit(study_dir, "study.toml", 'products = ["CO2", "H2O"]\ntunnelling = "eckart"',
+          'products = ["CO2", "H2O"]\ntunnelling = "eckart"\nproduct_complex = "CO2_2H2O"')
+    with pytest.raises(InputError, match=r"atoms do not balance") as exc:
+        read_study(study_dir / "study.toml")
+    assert exc.value.field == "channel[0].product_complex"
+
+
 def test_number_density_in_per_cm3(study_dir):
     _edit(study_dir, "study.toml", "temperature_K = [150, 200, 250, 298.15, 400, 1000]",
           "temperature_K = [200]\nnumber_density_per_cm3 = [2.5e19]")
@@ -182,6 +200,18 @@ BAD = {
     "unknown-floor": (
         "study.toml", 'complex = "H2CO3_H2O"', 'complex = "H2CO3_H2O"\ntunnelling_floor = "products"',
         "unknown floor 'products'", "study.toml", "channel[1].tunnelling_floor"),
+    "unknown-product-complex": (
+        "study.toml", 'complex = "H2CO3_H2O"', 'complex = "H2CO3_H2O"\nproduct_complex = "CO2_3H2O"',
+        "unknown species 'CO2_3H2O'", "study.toml", "channel[1].product_complex"),
+    "product-complex-is-a-transition-state": (
+        "study.toml", 'complex = "H2CO3_H2O"', 'complex = "H2CO3_H2O"\nproduct_complex = "TS_w"',
+        "'TS_w' is not a minimum", "study.toml", "channel[1].product_complex"),
+    "product-complex-does-not-balance": (
+        "study.toml", 'complex = "H2CO3_H2O"', 'complex = "H2CO3_H2O"\nproduct_complex = "H2CO3"',
+        "atoms do not balance", "study.toml", "channel[1].product_complex"),
+    "product-complex-is-the-complex": (
+        "study.toml", 'complex = "H2CO3_H2O"', 'complex = "H2CO3_H2O"\nproduct_complex = "H2CO3_H2O"',
+        "already the channel's pre-reactive complex", "study.toml", "channel[1].product_complex"),
     "misspelt-channel-key": (
         "study.toml", 'tunnelling = "eckart"', 'tunneling = "eckart"',
         "unknown key", "study.toml", "channel[0].tunneling"),

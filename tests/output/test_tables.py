@@ -71,6 +71,21 @@ def test_rates_csv_units_per_order(rates):
     assert header[2] == "k [s-1]" and header[5] == "k_reverse [cm3 molecule-1 s-1]"
 
 
+def test_rates_csv_has_the_kappa_of_the_other_floor_for_channels_through_a_complex(rates):
+    from tstrate.io.study import read_study
+    from tstrate.study.rates import study_rates
+
+    # the invented test study of tests/data/tst: its water channel is Eckart through a complex
+    study = read_study(Path(__file__).resolve().parents[1] / "data" / "tst" / "study.toml")
+    water = next(r for r in study_rates(study) if r.channel == "water")
+    header, rows = _read_csv(tables.rates_csv_text(water))
+    col = header.index("kappa_other_floor [1]")
+    assert water.kappa_other_floor is not None
+    assert [float(r[col]) for r in rows] == pytest.approx(list(water.kappa_other_floor), rel=1e-15)
+    header, rows = _read_csv(tables.rates_csv_text(rates[0]))      # no complex: empty cells
+    assert all(r[header.index("kappa_other_floor [1]")] == "" for r in rows)
+
+
 def test_rate_tables_one_file_per_channel(rates, tmp_path):
     paths = tables.write_rate_tables(tmp_path / "out", rates)
     assert [p.name for p in paths] == ["rates_bare.csv", "rates_water.csv"]

@@ -514,6 +514,82 @@ def test_complex_floor_choice_orders_kappa(carbonic):
     assert np.all(from_complex > from_reactants)
 
 
+def _with_product_complex(carbonic, drop_kJ=30.0):
+    """The water channel with an invented product complex CO2.2H2O (the atoms of the complex
+    H2CO3_H2O, which balance CO2 + 2 H2O) lying ``drop_kJ`` below the separated products."""
+    sp = dict(carbonic.species)
+    e_p = sum(sp[n].energy_J_per_mol for n in ("CO2", "H2O", "H2O"))
+    sp["CO2_2H2O"] = dataclasses.replace(sp["H2CO3_H2O"], name="CO2_2H2O",
+                                         energy_J_per_mol=e_p - drop_kJ * 1e3)
+    ch = dataclasses.replace(carbonic.channel("water"), tunnelling="eckart", product_complex="CO2_2H2O")
+    return ch, sp
+
+
+def test_product_complex_sets_the_reverse_tunnelling_barrier(carbonic):
+    """tst.py docstring: with a product complex, V2 = E0_TS - E0_P*; the rate is the classical
+    rate of the separated reactants times kappa, and equilibrium constants stay with the products."""
+    ch, sp = _with_product_complex(carbonic)
+    T = np.array([150.0, 200.0, 298.15])
+    cr = tst.channel_rates(ch, sp, T)
+    plain = tst.channel_rates(dataclasses.replace(ch, product_complex=None), sp, T)
+    v1 = zpe_level(sp["TS_w"]) - zpe_level(sp["H2CO3_H2O"])
+    v2 = zpe_level(sp["TS_w"]) - zpe_level(sp["CO2_2H2O"])
+    assert cr.product_complex == "CO2_2H2O" and plain.product_complex is None
+    assert cr.eckart_V2_J_per_mol == pytest.approx(v2, rel=1e-12)
+    assert cr.eckart_V2_J_per_mol - plain.eckart_V2_J_per_mol == pytest.approx(
+        zpe_level(sp["CO2"]) + 2 * zpe_level(sp["H2O"]) - zpe_level(sp["CO2_2H2O"]), rel=1e-9)
+    floor = cr.energy_floor_J_per_mol
+    # independent Eckart thermal average by quad (see test_complex_eckart_barriers_and_floor)
+    np.testing.assert_allclose(cr.kappa, [eckart_kappa_quad(t, 1300.0, v1, v2, floor) for t in T], rtol=1e-6)
+    assert np.all(cr.kappa != plain.kappa)
+    np.testing.assert_allclose(cr.k_classical, plain.k_classical, rtol=1e-14)
+    np.testing.assert_allclose(cr.ln_kc, plain.ln_kc, rtol=1e-14)
+    np.testing.assert_allclose(cr.k / cr.k_reverse, np.exp(cr.ln_kc), rtol=1e-12)
+    rec = channel_rates_record(cr)
+    assert rec["tunnelling_product_complex"] == "CO2_2H2O"
+    assert rec["tunnelling_reverse_barrier_kJ_per_mol"] == pytest.approx(v2 / 1e3, rel=1e-12)
+
+
+def test_product_complex_above_the_transition_state_is_named(carbonic):
+    ch, sp = _with_product_complex(carbonic, drop_kJ=-200.0)
+    with pytest.raises(InputError, match=r"reverse ZPE-corrected barrier .* product complex 'CO2_2H2O'"):
+        tst.channel_rates(ch, sp, [300.0])
+
+
+@pytest.mark.parametrize("model", ["eckart", "skodje-truhlar"])
+@pytest.mark.parametrize("floor", ["reactants", "complex"])
+def test_kappa_with_the_other_floor_is_reported(carbonic, model, floor):
+    """For a channel through a complex the tunnelling factor with the other floor choice is the
+    one the channel would get with that choice; the effect on k is the ratio of the two."""
+    sp = carbonic.species
+    ch = dataclasses.replace(carbonic.channel("water"), tunnelling=model, tunnelling_floor=floor)
+    other = "complex" if floor == "reactants" else "reactants"
+    T = np.array([150.0, 250.0, 400.0])
+    cr = tst.channel_rates(ch, sp, T)
+    flipped = tst.channel_rates(dataclasses.replace(ch, tunnelling_floor=other), sp, T)
+    assert cr.tunnelling_floor == floor
+    np.testing.assert_allclose(cr.kappa_other_floor, flipped.kappa, rtol=1e-14)
+    np.testing.assert_allclose(flipped.kappa_other_floor, cr.kappa, rtol=1e-14)
+    assert cr.other_energy_floor_J_per_mol == flipped.energy_floor_J_per_mol
+    # the floor at the complex counts more energies: more tunnelling
+    low, high = (cr.kappa, cr.kappa_other_floor) if floor == "reactants" else (cr.kappa_other_floor, cr.kappa)
+    assert np.all(high > low)
+    rec = channel_rates_record(cr)
+    assert rec["tunnelling_floor"] == floor and rec["other_tunnelling_floor"] == other
+    np.testing.assert_allclose(rec["kappa_other_floor"], flipped.kappa, rtol=1e-14)
+    assert rec["other_tunnelling_energy_floor_kJ_per_mol"] == pytest.approx(
+        flipped.energy_floor_J_per_mol / 1e3, abs=1e-12)
+
+
+@pytest.mark.parametrize("name, model", [("bare", "eckart"), ("water", "wigner"), ("water", "none")])
+def test_no_other_floor_without_complex_or_floor(carbonic, name, model):
+    cr = tst.channel_rates(_with_tunnelling(carbonic.channel(name), model), carbonic.species, [250.0])
+    assert cr.kappa_other_floor is None and cr.other_energy_floor_J_per_mol is None
+    rec = channel_rates_record(cr)
+    assert rec["kappa_other_floor"] is None and rec["other_tunnelling_floor"] is None
+    assert rec["tunnelling_floor"] == (None if name == "bare" else "reactants")
+
+
 def test_eckart_without_complex_uses_the_separated_reactants(carbonic):
     sp = carbonic.species
     T = np.array([200.0, 298.15])

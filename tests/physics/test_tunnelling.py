@@ -6,6 +6,9 @@ Independent references used here:
   with scipy.integrate.solve_ivp, written below, sharing no code with the
   production formula), and kappa from that P(E) with scipy.integrate.quad;
 * the Wigner and Skodje-Truhlar closed forms evaluated by hand;
+* the thermal average of the truncated parabolic transmission (R. P. Bell, Trans.
+  Faraday Soc. 55, 1 (1959); R. T. Skodje and D. G. Truhlar, J. Phys. Chem. 85, 624
+  (1981)) by scipy.integrate.quad, written from the definition;
 * adaptive quadrature (scipy.integrate.quad) of the Eckart thermal average,
   to check the fixed vectorised quadrature.
 """
@@ -315,23 +318,30 @@ def test_wigner_by_hand():
     assert tn.wigner(300.0, 1000.0) == pytest.approx(1.9583698626, rel=1e-9)
 
 
-def test_skodje_truhlar_by_hand_high_temperature_branch():
+def test_skodje_truhlar_closed_form_by_hand_high_temperature_branch():
     # nu = 1000 cm^-1, T = 300 K, V1 = 50 kJ/mol, V2 = 60 kJ/mol (exoergic: V = 0)
     # h c nu N_A = 11962.657 J/mol; alpha = 2 pi / 11962.657 = 5.2523328e-4 mol/J
     # beta = 1/(8.3144626 * 300) = 4.0090785e-4 mol/J; beta/alpha = 0.76329484 (< 1)
     # pi beta/alpha = 2.3979615; sin(2.3979615) = 0.67696498; ratio = 3.5422238
     # beta/(alpha - beta) = 3.2246650; (beta - alpha)(V0 - V) = -6.2162713; exp = 1.9966763e-3
     # kappa = 3.5422238 - 3.2246650 * 1.9966763e-3 = 3.5357852
-    k = tn.skodje_truhlar(300.0, 1000.0, 50 * KJ, 60 * KJ)
+    k = tn.skodje_truhlar_closed_form(300.0, 1000.0, 50 * KJ, 60 * KJ)
     assert k == pytest.approx(3.5357852, rel=1e-7)
+    # the exact average differs by terms of order exp(-(2 - x) a) = exp(-32) here
+    assert tn.skodje_truhlar(300.0, 1000.0, 50 * KJ, 60 * KJ) == pytest.approx(3.5357852, rel=1e-7)
 
 
-def test_skodje_truhlar_by_hand_low_temperature_branch():
+def test_skodje_truhlar_closed_form_by_hand_low_temperature_branch():
     # nu = 1000 cm^-1, T = 150 K, same barriers; beta = 8.0181570e-4 mol/J > alpha
     # beta/(beta - alpha) = 2.8990118; (beta - alpha) V0 = 13.829121; exp = 1.0137037e6
     # kappa = 2.8990118 * (1.0137037e6 - 1) = 2.9387359e6
-    k = tn.skodje_truhlar(150.0, 1000.0, 50 * KJ, 60 * KJ)
+    k = tn.skodje_truhlar_closed_form(150.0, 1000.0, 50 * KJ, 60 * KJ)
     assert k == pytest.approx(2.9387359e6, rel=1e-7)
+    # the exact average also counts the flux above the top, which this branch drops:
+    # x [pi / sin(pi x) + 1/(x - 1)] with x = beta/alpha = 1.5265897, sin(pi x) = -0.99651307:
+    # 1.5265897 * (-3.1525855 + 1.8990117) = -1.9136927 (the k = 2 term, x exp((x-2) a)/(x-2) ~ 1.3e-5, is next)
+    exact = tn.skodje_truhlar(150.0, 1000.0, 50 * KJ, 60 * KJ)
+    assert exact - k == pytest.approx(-1.9136927, rel=2e-5)
 
 
 def test_skodje_truhlar_endoergic_uses_the_reverse_barrier_depth():
@@ -357,7 +367,8 @@ def test_skodje_truhlar_rearranged_form_equals_the_published_form(ratio):
     nu, D = 1400.0, 40 * KJ
     T_c = nu * CM1_J_PER_MOL / (2 * math.pi * R)       # beta == alpha here
     T = T_c / ratio
-    assert tn.skodje_truhlar(T, nu, D, D + 1) == pytest.approx(_skodje_truhlar_naive(T, nu, D), rel=1e-9)
+    assert tn.skodje_truhlar_closed_form(T, nu, D, D + 1) == pytest.approx(_skodje_truhlar_naive(T, nu, D),
+                                                                            rel=1e-9)
 
 
 def test_skodje_truhlar_is_continuous_through_beta_equal_alpha():
@@ -366,9 +377,13 @@ def test_skodje_truhlar_is_continuous_through_beta_equal_alpha():
     alpha = 2 * math.pi / (nu * CM1_J_PER_MOL)
     T_c = nu * CM1_J_PER_MOL / (2 * math.pi * R)
     T = T_c * (1 + np.array([-1e-6, -1e-9, -1e-13, 0.0, 1e-13, 1e-9, 1e-6]))
-    k = tn.skodje_truhlar(T, nu, D, D)
+    k = tn.skodje_truhlar_closed_form(T, nu, D, D)
     assert np.all(np.isfinite(k))
     np.testing.assert_allclose(k, alpha * D, rtol=2e-4)
+    # the exact average is alpha D - log(1 + exp(-alpha D)) at beta == alpha (sum of the series)
+    exact = tn.skodje_truhlar(T, nu, D, D)
+    np.testing.assert_allclose(exact, alpha * D - math.log1p(math.exp(-alpha * D)), rtol=2e-4)
+    assert np.all(np.diff(exact) < 0)
 
 
 def _parabolic_kappa_above_top_quad(T, nu):
@@ -393,6 +408,104 @@ def test_skodje_truhlar_floor_at_the_barrier_top_keeps_the_over_barrier_flux(T_o
     ref = _parabolic_kappa_above_top_quad(T, nu)
     assert 0.5 < ref < 1.0
     assert k == pytest.approx(ref, rel=1e-8)
+
+
+def _truncated_parabola_kappa_quad(T, nu, V1, floor):
+    """Thermal average of Bell's parabolic transmission P(E) = 1/(1 + exp(-alpha (E - V1)))
+    (R. P. Bell, Trans. Faraday Soc. 55, 1 (1959)) counted from the floor upwards, the model of
+    Skodje and Truhlar (J. Phys. Chem. 85, 624 (1981)):
+    kappa = beta exp(beta V1) int_floor^inf P(E) exp(-beta E) dE, by scipy quad in y = E - V1,
+    with the part below the top scaled by exp(-beta D) so that deep tunnelling does not overflow.
+    Returns log kappa. Written here from the definition, sharing no code with the module."""
+    alpha = 2 * math.pi / (nu * CM1_J_PER_MOL)
+    beta = 1 / (R * T)
+    D = V1 - floor
+    above, _ = quad(lambda y: beta * math.exp(-beta * y) * expit(alpha * y), 0.0, math.inf,
+                    epsabs=0.0, epsrel=1e-13, limit=500)
+    if D <= 0:
+        return math.log(above)
+    # below the top, u = -y in [0, D]: beta exp(beta u) expit(-alpha u) = exp(beta D) * g(u)
+    g = lambda u: beta * math.exp(beta * (u - D)) * expit(-alpha * u)  # noqa: E731
+    points = [p for p in (D - 1 / beta, D - 10 / beta, D - 40 / beta, 1 / alpha) if 0 < p < D]
+    below, _ = quad(g, 0.0, D, points=points or None, epsabs=0.0, epsrel=1e-13, limit=500)
+    return float(np.logaddexp(math.log(above), math.log(below) + beta * D))
+
+
+# (imaginary wavenumber, T, depth of the floor below the top): shallow, crossover and deep
+_ST_GRID = [(nu, T, D) for nu in (100.0, 500.0, 2000.0, 3500.0) for T in (30.0, 50.0, 150.0, 300.0, 1000.0)
+            for D in (1.0, 100.0, 1 * KJ, 10 * KJ, 50 * KJ)]
+
+
+@pytest.mark.parametrize("nu, T, D", _ST_GRID)
+def test_skodje_truhlar_is_the_exact_truncated_parabola_average(nu, T, D):
+    # Reference: quad of the truncated-parabola thermal average (above); 1e-10 relative.
+    V1 = 60 * KJ
+    got = tn.skodje_truhlar_log(T, nu, V1, V1 + 5 * KJ, energy_floor_J_per_mol=V1 - D)
+    assert got == pytest.approx(_truncated_parabola_kappa_quad(T, nu, V1, V1 - D), rel=1e-10, abs=1e-10)
+
+
+def test_skodje_truhlar_small_depths_quoted_in_the_issue():
+    # 2000i cm^-1, 300 K, barrier 50 kJ/mol: floors at 50, 49.999 and 49.9 kJ/mol. The closed form
+    # gives 0.642, 4.0e-4, 0.040 (it jumps); the truncated parabola gives 0.642, 0.642, 0.662.
+    V1 = 50 * KJ
+    floors = np.array([50.0, 49.999, 49.9]) * KJ
+    closed = [float(tn.skodje_truhlar_closed_form(300.0, 2000.0, V1, 60 * KJ, energy_floor_J_per_mol=f))
+              for f in floors]
+    exact = [float(tn.skodje_truhlar(300.0, 2000.0, V1, 60 * KJ, energy_floor_J_per_mol=f)) for f in floors]
+    assert closed[1:] == pytest.approx([4.0e-4, 0.040], rel=0.02)
+    for f, k in zip(floors, exact):
+        assert math.log(k) == pytest.approx(_truncated_parabola_kappa_quad(300.0, 2000.0, V1, f), abs=1e-10)
+    assert exact == pytest.approx([0.642, 0.642, 0.662], abs=1e-3)
+    # 500i cm^-1, 50 K, 0.1 kJ/mol from floor to top: closed form 0.258, the average 0.733
+    args = (50.0, 500.0, V1, 60 * KJ)
+    assert tn.skodje_truhlar_closed_form(*args, energy_floor_J_per_mol=V1 - 100.0) == pytest.approx(0.258, abs=1e-3)
+    assert tn.skodje_truhlar(*args, energy_floor_J_per_mol=V1 - 100.0) == pytest.approx(0.733, abs=1e-3)
+
+
+@pytest.mark.parametrize("nu, T", [(500.0, 50.0), (2000.0, 300.0), (1000.0, 20.0), (3000.0, 1000.0)])
+def test_skodje_truhlar_is_continuous_in_the_floor(nu, T):
+    # d kappa / d floor = -beta exp(beta D) P(floor): the step between closely spaced floors must be
+    # that slope times the spacing (to second order), also across the switch between the series and
+    # the quadrature at alpha D = 2, and at D -> 0. No jump anywhere.
+    V1 = 50 * KJ
+    alpha = 2 * math.pi / (nu * CM1_J_PER_MOL)
+    beta = 1 / (R * T)
+    D = np.concatenate([[0.0], np.geomspace(1e-3, 40 * KJ, 400), [2 / alpha]])
+    D = np.sort(np.concatenate([D, 2 / alpha * (1 + np.array([-1e-9, 1e-9]))]))
+    h = 1e-6 * np.maximum(D, 1.0)
+    k_lo = np.array([float(tn.skodje_truhlar_log(T, nu, V1, V1, energy_floor_J_per_mol=V1 - d)) for d in D])
+    k_hi = np.array([float(tn.skodje_truhlar_log(T, nu, V1, V1, energy_floor_J_per_mol=V1 - d - s))
+                     for d, s in zip(D, h)])
+    d_log_k = (k_hi - k_lo) / h
+    slope = beta * np.exp(beta * (D + h / 2) - k_lo) * expit(-alpha * (D + h / 2))  # d log kappa / dD
+    np.testing.assert_allclose(d_log_k, slope, rtol=1e-3, atol=1e-12)
+    assert np.all(np.diff(k_lo) >= -1e-14)      # more energy range counted, never less flux
+
+
+@settings(max_examples=80, deadline=None)
+@given(nu=st.floats(50.0, 4000.0), x=st.floats(0.02, 20.0), a=st.floats(0.0, 200.0))
+def test_skodje_truhlar_bounds(nu, x, a):
+    """Physics of the truncated parabola, x = beta/alpha, a = alpha (V0 - V):
+
+    * at least the flux above the top, which is at least 1/2 (P >= 1/2 there);
+    * at most the untruncated parabola, pi x / sin(pi x), for x < 1 (truncation removes flux);
+    * at least the classical limit 1 below the crossover temperature (x >= 1) once the range
+      below the top holds a >= 2 (there the exact value at x = 1 is a - log(1 + exp(-a)) > 1.87).
+    """
+    alpha = 2 * math.pi / (nu * CM1_J_PER_MOL)
+    T = 1 / (x * alpha * R)
+    V1 = 300 * KJ
+    floor = V1 - a / alpha
+    if floor < 0:
+        return
+    lk = float(tn.skodje_truhlar_log(T, nu, V1, V1, energy_floor_J_per_mol=floor))
+    top = float(tn.skodje_truhlar_log(T, nu, V1, V1, energy_floor_J_per_mol=V1))
+    assert top >= math.log(0.5) - 1e-12
+    assert lk >= top - 1e-12
+    if x < 0.99:
+        assert lk <= math.log(math.pi * x / math.sin(math.pi * x)) + 1e-12
+    if x >= 1 and a >= 2:
+        assert lk >= -1e-12
 
 
 @pytest.mark.parametrize("model", tn.MODELS)

@@ -83,8 +83,8 @@ RATE_UNITS_KEYS = Keys(("conditions", "rate_units"), "[conditions.rate_units]",
                            for word, order in _ORDER_NAMES.items()))
 CHANNEL_KEYS = Keys(("channel", "[]"), "[[channel]]",
                     "One table per elementary channel, reactants -> [complex] -> transition state -> "
-                    "products. Atoms and charge must balance across reactants, complex, transition state "
-                    "and products.", (
+                    "products. Atoms and charge must balance across reactants, complex, transition state, "
+                    "product complex and products.", (
                         Key("name", "string", "label of the channel (unique)", required=True),
                         Key("reactants", "list of strings", "species names; repeat a name for two molecules "
                             "(1 to 3 reactants)", required=True),
@@ -101,6 +101,10 @@ CHANNEL_KEYS = Keys(("channel", "[]"), "[[channel]]",
                             "with a complex: no tunnelling below the separated reactants, or down to the "
                             "complex", default=field_default(Channel, "tunnelling_floor"),
                             choices=TUNNELLING_FLOORS),
+                        Key("product_complex", "string", "a minimum between transition state and products "
+                            "(reached downhill from the saddle point); the reverse barrier of the tunnelling "
+                            "model is measured from it instead of from the separated products",
+                            default_text="none: the reverse barrier from the separated products"),
                     ))
 
 
@@ -180,6 +184,11 @@ def _read_channel(t: Table, species: dict, file: str) -> Channel:
         known("complex", cx)
         if species[cx].kind != "minimum":
             raise t.error("complex", f"species {cx!r} is not a minimum")
+    pcx = t.get("product_complex", str, CHANNEL_KEYS.default("product_complex"))
+    if pcx is not None:
+        known("product_complex", pcx)
+        if species[pcx].kind != "minimum":
+            raise t.error("product_complex", f"species {pcx!r} is not a minimum")
     for key, names in (("reactants", reactants), ("products", products)):
         for n in names:
             if species[n].kind != "minimum":
@@ -190,11 +199,13 @@ def _read_channel(t: Table, species: dict, file: str) -> Channel:
     t.reject_unknown(CHANNEL_KEYS)
     channel = t.build(Channel, name=name, reactants=tuple(reactants), transition_state=ts,
                       products=tuple(products), complex=cx, tunnelling=tunnelling, degeneracy=degeneracy,
-                      tunnelling_floor=floor)
+                      tunnelling_floor=floor, product_complex=pcx)
     check_balance(f"channel {name!r}", reactants, [ts], species, file=file, field=t.key("transition_state"))
     check_balance(f"channel {name!r}", reactants, products, species, file=file, field=t.key("products"))
     if cx is not None:
         check_balance(f"channel {name!r}", reactants, [cx], species, file=file, field=t.key("complex"))
+    if pcx is not None:
+        check_balance(f"channel {name!r}", products, [pcx], species, file=file, field=t.key("product_complex"))
     return channel
 
 

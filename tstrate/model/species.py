@@ -442,6 +442,9 @@ class Channel:
         (already inside the rotational partition functions).
     tunnelling_floor: "reactants" (no tunnelling below the separated reactants, the
         default) or "complex" (down to the thermalised complex) for channels with a complex.
+    product_complex: optional minimum between TS and products (a post-reaction complex); when
+        given, the reverse barrier of the tunnelling model is measured from it instead of from
+        the separated products. Rates and equilibrium constants still refer to the products.
     """
 
     name: str
@@ -452,6 +455,7 @@ class Channel:
     tunnelling: str = "none"
     degeneracy: float | None = None
     tunnelling_floor: str = "reactants"
+    product_complex: str | None = None
 
     def __post_init__(self):
         def bad(key, problem, hint=None):
@@ -475,6 +479,14 @@ class Channel:
         if self.tunnelling_floor not in TUNNELLING_FLOORS:
             raise bad("tunnelling_floor", f"unknown floor {self.tunnelling_floor!r}",
                       hint="use " + " or ".join(TUNNELLING_FLOORS))
+        if self.product_complex is not None:
+            if not isinstance(self.product_complex, str) or not self.product_complex:
+                raise bad("product_complex", "the product complex must be a species name")
+            if self.product_complex in (self.transition_state, self.complex):
+                raise bad("product_complex", f"{self.product_complex!r} is already the channel's "
+                          + ("transition state" if self.product_complex == self.transition_state
+                             else "pre-reactive complex"),
+                          hint="name the minimum reached downhill from the transition state")
 
     @property
     def order(self) -> int:

@@ -67,6 +67,12 @@ def channel_rates_record(cr, rate_units: dict | None = None) -> dict:
         "tunnelling_forward_barrier_kJ_per_mol": cr.eckart_V1_J_per_mol * kj,
         "tunnelling_reverse_barrier_kJ_per_mol": cr.eckart_V2_J_per_mol * kj,
         "tunnelling_energy_floor_kJ_per_mol": cr.energy_floor_J_per_mol * kj,
+        "tunnelling_product_complex": cr.product_complex,
+        "tunnelling_floor": cr.tunnelling_floor,
+        "other_tunnelling_floor": (None if cr.kappa_other_floor is None else
+                                   "complex" if cr.tunnelling_floor == "reactants" else "reactants"),
+        "other_tunnelling_energy_floor_kJ_per_mol": _opt(cr.other_energy_floor_J_per_mol, kj),
+        "kappa_other_floor": cr.kappa_other_floor,
         "delta_H_activation_kJ_per_mol": cr.delta_H_J_per_mol * kj,
         "delta_S_activation_J_per_mol_K": cr.delta_S_J_per_mol_K,
         "delta_G_activation_kJ_per_mol": cr.delta_G_J_per_mol * kj,

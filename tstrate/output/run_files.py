@@ -325,15 +325,29 @@ def build_report(result, doc: dict, inputs: list[dict], figures) -> list:
     for r in doc["channels"]:
         T = np.asarray(r["temperature_K"])
         idx = _pick_temperatures(T)
-        B.append(rp.Table(("T / K", f"k / {r['rate_constant_unit']}", "kappa",
-                           f"k without tunnelling / {r['rate_constant_unit']}",
-                           "dG‡ / kJ mol-1", "dH‡ / kJ mol-1", "dS‡ / J mol-1 K-1"),
-                          tuple((f"{T[i]:g}", f"{r['rate_constant'][i]:.3e}", f"{r['kappa'][i]:.3g}",
-                                 f"{r['rate_constant_no_tunnelling'][i]:.3e}",
-                                 f"{r['delta_G_activation_kJ_per_mol'][i]:.2f}",
-                                 f"{r['delta_H_activation_kJ_per_mol'][i]:.2f}",
-                                 f"{r['delta_S_activation_J_per_mol_K'][i]:.2f}") for i in idx),
-                          f"Channel {r['name']} (full table in tables/; activation quantities at 1 bar)."))
+        other = r.get("kappa_other_floor")
+        head = ("T / K", f"k / {r['rate_constant_unit']}", "kappa",
+                f"k without tunnelling / {r['rate_constant_unit']}",
+                "dG‡ / kJ mol-1", "dH‡ / kJ mol-1", "dS‡ / J mol-1 K-1")
+        rows = [[f"{T[i]:g}", f"{r['rate_constant'][i]:.3e}", f"{r['kappa'][i]:.3g}",
+                 f"{r['rate_constant_no_tunnelling'][i]:.3e}",
+                 f"{r['delta_G_activation_kJ_per_mol'][i]:.2f}",
+                 f"{r['delta_H_activation_kJ_per_mol'][i]:.2f}",
+                 f"{r['delta_S_activation_J_per_mol_K'][i]:.2f}"] for i in idx]
+        note = f"Channel {r['name']} (full table in tables/; activation quantities at 1 bar)."
+        if other is not None:
+            # the floor of the tunnelling integral for a channel through a complex: neither choice
+            # is right at every pressure, so the other one is shown beside the rate
+            head = head[:3] + (f"kappa, floor at the {r['other_tunnelling_floor']}",) + head[3:]
+            for row, i in zip(rows, idx):
+                row.insert(3, f"{other[i]:.3g}")
+            note += (f" kappa counts tunnelling from the {r['tunnelling_floor']} up; with the floor at the "
+                     f"{r['other_tunnelling_floor']} instead, k changes by the ratio of the two kappa columns "
+                     "(the thermalised complex is there only where collisions stabilise it).")
+        if r.get("tunnelling_product_complex"):
+            note += (f" Reverse tunnelling barrier from the product complex "
+                     f"{r['tunnelling_product_complex']}.")
+        B.append(rp.Table(head, tuple(tuple(row) for row in rows), note))
     B += [rp.Figure(p, c) for s, p, c in figures if s == "rates"]
 
     if result.comparisons is not None:

@@ -196,6 +196,16 @@ _record("channel_rates", "Rate constants of one channel (transition-state theory
                                                   "complex when there is one)"),
     ("tunnelling_reverse_barrier_kJ_per_mol", KJ, "reverse barrier height the tunnelling model used"),
     ("tunnelling_energy_floor_kJ_per_mol", KJ, "lowest energy of the tunnelling integral, above the forward side"),
+    ("tunnelling_product_complex", TEXT, "the product complex the reverse barrier is measured from (null: "
+                                         "from the separated products)"),
+    ("tunnelling_floor", TEXT, "floor in effect for a channel through a complex: reactants or complex (null "
+                               "without a complex)"),
+    ("other_tunnelling_floor", TEXT, "the other floor choice, with which kappa_other_floor is computed (null "
+                                     "without a complex or for models without a floor)"),
+    ("other_tunnelling_energy_floor_kJ_per_mol", KJ, "lowest energy of the tunnelling integral with the other "
+                                                     "floor, above the forward side (or null)"),
+    ("kappa_other_floor", ONE, "tunnelling factor with the other floor, per temperature (or null); neither "
+                               "floor is right at every pressure, k scales with kappa"),
     ("delta_H_activation_kJ_per_mol", KJ, "activation enthalpy, per temperature"),
     ("delta_S_activation_J_per_mol_K", JK, "activation entropy at 1 bar, per temperature"),
     ("delta_G_activation_kJ_per_mol", KJ, "activation Gibbs energy at 1 bar, per temperature"),
@@ -682,6 +692,8 @@ One table per channel, one row per temperature (the numbers of results.json chan
     ("dH_activation", KJ, "activation enthalpy"),
     ("dS_activation", JK, "activation entropy, 1 bar"),
     ("dG_activation", KJ, "activation Gibbs energy, 1 bar"),
+    ("kappa_other_floor", ONE, "tunnelling factor with the other floor choice, for channels through a complex "
+                               "(empty otherwise; see results.json channels[].other_tunnelling_floor)"),
 ), "csv")
 
 _PFITS_CSV = Document("tables/fits_at_each_pressure.csv", "csv-tables.md", """\

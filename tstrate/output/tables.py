@@ -120,14 +120,15 @@ def rates_csv_text(cr, rate_units=None) -> str:
     header = ["channel", "T [K]", f"k [{u}]", f"k_no_tunnelling [{u}]", "kappa [1]",
               f"k_reverse [{ru}]", f"Kc [(molecule cm-3)^{dn}]", "Kp(1 bar) [1]",
               "dH_activation [kJ mol-1]", "dS_activation [J mol-1 K-1]",
-              "dG_activation [kJ mol-1]"]
+              "dG_activation [kJ mol-1]", "kappa_other_floor [1]"]
     rows = []
+    other = rec["kappa_other_floor"]
     for i, T in enumerate(rec["temperature_K"]):
         rows.append([cr.channel, T, rec["rate_constant"][i], rec["rate_constant_no_tunnelling"][i],
                      rec["kappa"][i], rec["reverse_rate_constant"][i], rec["Kc"][i],
                      rec["Kp_1bar"][i], rec["delta_H_activation_kJ_per_mol"][i],
                      rec["delta_S_activation_J_per_mol_K"][i],
-                     rec["delta_G_activation_kJ_per_mol"][i]])
+                     rec["delta_G_activation_kJ_per_mol"][i], None if other is None else other[i]])
     return csv_text(header, rows)
 
 

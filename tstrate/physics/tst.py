@@ -25,7 +25,15 @@ entrance asymptote, since a weakly bound complex at low pressure is not
 stabilised) but never above the barrier top (a submerged transition state,
 below the separated reactants, keeps all of its over-the-barrier flux: the
 floor then sits at the top and only the tunnelling below it is dropped), or
-the complex itself when the channel says ``tunnelling_floor = "complex"``.
+the complex itself when the channel says ``tunnelling_floor = "complex"``. Neither floor
+is right at every pressure (the thermalised complex exists only where collisions stabilise it;
+a master equation would say how much), so for channels through a complex the tunnelling factor
+with the other floor is computed too (``kappa_other_floor``) and reported beside the rate.
+
+A channel may also name a product complex P* (TS -> P* -> products): the reverse barrier of the
+tunnelling model is then measured from it (V2 = E0_TS - E0_P*) instead of from the separated
+products, whose asymptote lies far above a deep product well. Rate constants, equilibrium
+constants and reverse rates still refer to the separated products.
 
 Identical reactants (H2CO3 + H2O + H2O) get no 1/2 factor: k is defined by
 -d[first reactant]/dt = k prod_i [reactant_i], and the symmetry numbers carry
@@ -41,7 +49,7 @@ import numpy as np
 
 from tstrate.arrays import temperatures_K
 from tstrate.errors import InputError
-from tstrate.model import Channel, Species
+from tstrate.model import TUNNELLING_FLOORS, Channel, Species
 from tstrate.physics import tunnelling
 from tstrate.physics.thermo import HARMONIC, LowModes, ln_partition_function_per_volume, thermochemistry
 from tstrate.units import H, K_B, N_A, P_STANDARD, R
@@ -94,7 +102,14 @@ class ChannelRates:
     barrier_from_complex_*: TS above the complex (None without a complex).
     reaction_energy_zpe_J_per_mol: products minus reactants, ZPE-corrected.
     eckart_V1_J_per_mol, eckart_V2_J_per_mol, energy_floor_J_per_mol: the barrier
-        heights and floor the tunnelling model used (V1 from the complex when there is one).
+        heights and floor the tunnelling model used (V1 from the complex when there is one, V2
+        from the product complex when there is one).
+    product_complex: the minimum V2 is measured from (None: the separated products).
+    tunnelling_floor: the floor in effect for a channel through a complex ("reactants" or
+        "complex"; None without a complex).
+    kappa_other_floor, other_energy_floor_J_per_mol: the tunnelling factor and floor with the
+        other choice, for channels through a complex whose model has a floor (Skodje-Truhlar,
+        Eckart); None otherwise. k scales with kappa, so k_other = k kappa_other_floor / kappa.
     delta_H/S/G: activation enthalpy [J/mol], entropy [J/(mol K)], Gibbs energy [J/mol]
         at 1 bar standard state.
     degeneracy: the reaction-path degeneracy in effect (the user's override, else the
@@ -127,6 +142,10 @@ class ChannelRates:
     delta_G_J_per_mol: np.ndarray
     degeneracy: float
     symmetry_degeneracy: float
+    product_complex: str | None = None
+    tunnelling_floor: str | None = None
+    kappa_other_floor: np.ndarray | None = None
+    other_energy_floor_J_per_mol: float | None = None
 
 
 def channel_rates(channel: Channel, species: dict, temperature_K, *,
@@ -149,20 +168,25 @@ def channel_rates(channel: Channel, species: dict, temperature_K, *,
     barrier_zpe = e0_ts - e0_r
     barrier_cl = ts.energy_J_per_mol - el_r
 
-    # tunnelling barrier heights, measured from the lower well on the entrance side
+    # tunnelling barrier heights, measured from the lower well on each side
+    pcx = species[channel.product_complex] if channel.product_complex else None
     if cx is not None:
         e0_c = zpe_level_J_per_mol(cx)
         v1 = e0_ts - e0_c
-        # never above the barrier top: a submerged TS keeps its over-the-barrier flux
-        floor = (min(max(0.0, e0_r - e0_c), v1) if channel.tunnelling_floor == "reactants"
-                 else 0.0)
+
+        def floor_of(choice):
+            # never above the barrier top: a submerged TS keeps its over-the-barrier flux
+            return min(max(0.0, e0_r - e0_c), v1) if choice == "reactants" else 0.0
+
+        floor = floor_of(channel.tunnelling_floor)
         b_cx_zpe, b_cx_cl = v1, ts.energy_J_per_mol - cx.energy_J_per_mol
     else:
         v1 = barrier_zpe
         floor = 0.0
         b_cx_zpe = b_cx_cl = None
-    v2 = e0_ts - e0_p
+    v2 = e0_ts - (e0_p if pcx is None else zpe_level_J_per_mol(pcx))
     imag = ts.imaginary_frequency_cm1
+    kappa_other = other_floor = None
     if channel.tunnelling == "none":
         ln_kappa = np.zeros_like(T)
     else:
@@ -173,15 +197,25 @@ def channel_rates(channel: Channel, species: dict, temperature_K, *,
             need = "V1 > 0 and V2 > 0" if channel.tunnelling == "eckart" else "V1 > 0 and V2 >= 0"
             raise InputError(
                 f"channel {channel.name!r}: {side} ZPE-corrected barrier is "
-                f"{(v1 if v1 <= 0 else v2) / 1e3:.2f} kJ/mol; {channel.tunnelling} needs {need}",
+                f"{(v1 if v1 <= 0 else v2) / 1e3:.2f} kJ/mol"
+                + (f" (from the product complex {pcx.name!r})" if side == "reverse" and pcx else "")
+                + f"; {channel.tunnelling} needs {need}",
                 field="tunnelling", hint="add the pre-reactive complex, or use wigner or none")
-        try:
-            ln_kappa = tunnelling.log_kappa(channel.tunnelling, T, imag, v1, v2,
-                                            energy_floor=max(floor, max(0.0, v1 - v2)))
-        except InputError as exc:
-            # the tunnelling module names its own arguments; the user's key is the channel's tunnelling
-            raise InputError(f"channel {channel.name!r}: {exc.problem}", field="tunnelling",
-                             hint=exc.hint) from None
+
+        def ln_kappa_at(energy_floor):
+            try:
+                return tunnelling.log_kappa(channel.tunnelling, T, imag, v1, v2,
+                                            energy_floor=max(energy_floor, max(0.0, v1 - v2)))
+            except InputError as exc:
+                # the tunnelling module names its own arguments; the user's key is the channel's tunnelling
+                raise InputError(f"channel {channel.name!r}: {exc.problem}", field="tunnelling",
+                                 hint=exc.hint) from None
+
+        ln_kappa = ln_kappa_at(floor)
+        if cx is not None and channel.tunnelling in ("eckart", "skodje-truhlar"):
+            other = next(f for f in TUNNELLING_FLOORS if f != channel.tunnelling_floor)
+            other_floor = floor_of(other)
+            kappa_other = np.exp(ln_kappa_at(other_floor))
 
     ln_q_ratio = (ln_partition_function_per_volume(ts, T, low_modes=low_modes)
                   - _sum_ln_qv(reac, T, low_modes))
@@ -218,6 +252,10 @@ def channel_rates(channel: Channel, species: dict, temperature_K, *,
         delta_H_J_per_mol=d_h, delta_S_J_per_mol_K=d_s, delta_G_J_per_mol=d_g,
         degeneracy=sym_deg if channel.degeneracy is None else float(channel.degeneracy),
         symmetry_degeneracy=sym_deg,
+        product_complex=None if pcx is None else channel.product_complex,
+        tunnelling_floor=channel.tunnelling_floor if cx is not None else None,
+        kappa_other_floor=kappa_other,
+        other_energy_floor_J_per_mol=None if other_floor is None else float(other_floor),
     )
 
 

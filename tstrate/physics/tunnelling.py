@@ -5,8 +5,10 @@ one-dimensional models are provided, all vectorised over temperature arrays:
 
 * :func:`wigner` -- the leading quantum correction for a parabolic barrier
   top (E. Wigner, Z. Phys. Chem. B 19, 203 (1932)).
-* :func:`skodje_truhlar` -- a truncated parabolic barrier, closed form of
-  R. T. Skodje and D. G. Truhlar, J. Phys. Chem. 85, 624 (1981).
+* :func:`skodje_truhlar` -- a truncated parabolic barrier (R. T. Skodje and
+  D. G. Truhlar, J. Phys. Chem. 85, 624 (1981)), its exact thermal average; their
+  closed form, valid only for a barrier large against h c nu / 2 pi above the
+  floor, is :func:`skodje_truhlar_closed_form`.
 * :func:`eckart` -- the unsymmetrical Eckart barrier (C. Eckart, Phys. Rev. 35,
   1303 (1930)), fitted to the imaginary frequency and the forward and reverse
   barriers as in H. S. Johnston and J. Heicklen, J. Phys. Chem. 66, 532 (1962),
@@ -203,17 +205,126 @@ def _pi_over_sin_minus_inv(x: np.ndarray, eps: np.ndarray) -> np.ndarray:
     return np.where(small, out_small, out_big)
 
 
-def _skodje_truhlar_log(beta: np.ndarray, alpha: float, D: float) -> np.ndarray:
-    """log kappa of Skodje-Truhlar for ``beta = 1/RT`` [mol/J], ``alpha`` [mol/J], depth ``D`` [J/mol]."""
-    if D <= 0.0:
-        # floor at the barrier top (a submerged TS): no tunnelling, only the flux over the top.
-        # The closed forms assume D >> 1/alpha and give 0 here for beta > alpha; the model's own
-        # parabolic transmission P = 1/(1 + exp(-alpha y)) averaged over y >= 0 is, with x = beta/alpha,
-        # beta int_0^inf exp(-beta y) P dy = sum_k (-1)^k x/(x + k) = (x/2) [psi((1+x)/2) - psi(x/2)].
-        from scipy.special import digamma
+def _pi_over_sin_minus_inv_signed(eps: np.ndarray, sin_pi_eps: np.ndarray) -> np.ndarray:
+    """``P(eps) = pi/sin(pi eps) - 1/eps`` for ``eps`` in [-1/2, 1] (odd in eps, 0 at 0).
 
-        x = beta / alpha
-        return np.log(0.5 * x * (digamma(0.5 * (1.0 + x)) - digamma(0.5 * x)))
+    ``sin_pi_eps`` is ``sin(pi eps)`` computed by the caller in the most accurate way; for
+    ``|pi eps| < 0.1`` the Taylor series of ``z/sin z - 1`` avoids the cancellation.
+    """
+    z = np.pi * eps
+    small = np.abs(z) < 0.1
+    zs = np.where(small, z, 0.0)
+    z2 = zs * zs
+    # z/sin z - 1 = z^2/6 + 7 z^4/360 + 31 z^6/15120 + 127 z^8/604800 + O(z^10)
+    # divided by eps = z / pi: pi z (1/6 + 7 z^2/360 + ...)
+    out_small = np.pi * zs * (1 / 6 + z2 * (7 / 360 + z2 * (31 / 15120 + z2 * (127 / 604800))))
+    with np.errstate(divide="ignore", invalid="ignore"):
+        out_big = np.pi / np.where(small, 1.0, sin_pi_eps) - 1.0 / np.where(small, 1.0, eps)
+    return np.where(small, out_small, out_big)
+
+
+def _log_a_exprel(z: np.ndarray, a: float) -> np.ndarray:
+    """``log(a (exp(z) - 1)/z)`` (``log a`` at z = 0) without overflow."""
+    from scipy.special import exprel
+
+    mid = np.abs(z) <= 1.0
+    zb = np.where(mid, 1.0, z)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        big = np.where(zb > 0, zb + np.log(-np.expm1(-np.abs(zb))), np.log(-np.expm1(-np.abs(zb)))) \
+            - np.log(np.abs(zb))
+        return math.log(a) + np.where(mid, np.log(exprel(np.where(mid, z, 0.0))), big)
+
+
+#: terms k = 1.._SERIES_TERMS of the series (a >= _SERIES_MIN_DEPTH: they fall as exp(-a k))
+_SERIES_TERMS = 40
+#: below this depth alpha (V0 - V) the series converges slowly and the average is done by quadrature
+_SERIES_MIN_DEPTH = 2.0
+_PARABOLA_GL_NODES = 16
+
+
+def _parabola_over_top_log(x: np.ndarray) -> np.ndarray:
+    """log of ``beta int_0^inf exp(-beta y) P(y) dy``, the parabola's flux above its top.
+
+    With ``x = beta/alpha`` and ``P = 1/(1 + exp(-alpha y))``:
+    ``sum_k (-1)^k x/(x + k) = (x/2) [psi((1+x)/2) - psi(x/2)]``, between 1/2 and 1.
+    """
+    from scipy.special import digamma
+
+    # for large x the digamma difference (~1/x) cancels; there the alternating sum's
+    # Euler-Boole expansion 1/2 + 1/(4x) - 1/(8x^3) + 1/(4x^5) - 17/(16x^7) is exact to ~x^-9
+    big = x > 100.0
+    y = 1.0 / np.where(big, x, 1.0)
+    y2 = y * y
+    asym = 0.5 + y * (0.25 + y2 * (-0.125 + y2 * (0.25 - y2 * 17.0 / 16.0)))
+    xs = np.where(big, 1.0, x)
+    direct = 0.5 * xs * (digamma(0.5 * (1.0 + xs)) - digamma(0.5 * xs))
+    return np.log(np.where(big, asym, direct))
+
+
+def _truncated_parabola_series_log(x: np.ndarray, a: float) -> np.ndarray:
+    """log kappa of the truncated parabola from the exact series (for depths ``a >= 2``).
+
+    kappa = pi x / sin(pi x) + x sum_{k>=1} (-1)^(k+1) exp((x - k) a) / (x - k); the pole of
+    pi x / sin(pi x) at the integer m nearest x cancels that of the k = m term, so those two
+    are taken together as (-1)^(m+1) x [P(m - x) + (1 - exp(-(m - x) a))/(m - x)].
+    """
+    m = np.maximum(1.0, np.rint(x))
+    eps = m - x
+    # sin(pi eps) = (-1)^(m+1) sin(pi x); m - x is exact for x >= 1/2, sin(pi x) is better below
+    sin_pi_eps = np.where(x < 0.5, np.sin(np.pi * x), np.sin(np.pi * eps))
+    p = _pi_over_sin_minus_inv_signed(eps, sin_pi_eps)
+    log_e = _log_a_exprel(-eps * a, a)
+    log_pole = np.log(x) + log_e + np.log1p(p * np.exp(-log_e))
+    sign_pole = np.where(np.mod(m, 2.0) == 1.0, 1.0, -1.0)
+    k = np.arange(1, _SERIES_TERMS + 1, dtype=float)[None, :]
+    xk = x[:, None] - k
+    with np.errstate(divide="ignore"):
+        log_terms = np.log(x)[:, None] + xk * a - np.log(np.abs(xk))
+    log_terms = np.where(k == m[:, None], -np.inf, log_terms)
+    signs = np.where(np.mod(k, 2.0) == 1.0, 1.0, -1.0) * np.sign(xk)
+    signs = np.where(signs == 0.0, 1.0, signs)
+    out, sign = logsumexp(np.concatenate([log_pole[:, None], log_terms], axis=1),
+                          b=np.concatenate([sign_pole[:, None], signs], axis=1),
+                          axis=1, return_sign=True)
+    return np.where(sign > 0, out, np.nan)
+
+
+def _truncated_parabola_quadrature_log(x: np.ndarray, a: float) -> np.ndarray:
+    """log kappa of the truncated parabola for depths ``a < 2``, by Gauss-Legendre quadrature.
+
+    kappa = over-the-top part + x int_0^a exp(x s) / (1 + exp(s)) ds (s = alpha (V0 - E)).
+    The log-integrand ``x s - log(1 + e^s)`` is concave; panels halve in width towards
+    ``s = a``, down to ``1/x``, where a steep exponential (cold, x large) has its weight.
+    """
+    levels = int(min(60, max(2, math.ceil(math.log2(float(np.max(x)) * a + 2.0)) + 1)))
+    dist = a * (2.0 ** np.arange(levels + 1) - 1.0) / (2.0 ** levels - 1.0)   # from s = a
+    lo, hi = a - dist[1:], a - dist[:-1]
+    t, w = np.polynomial.legendre.leggauss(_PARABOLA_GL_NODES)
+    half = 0.5 * (hi - lo)
+    s = (0.5 * (hi + lo)[:, None] + half[:, None] * t[None, :]).ravel()
+    log_w = np.log((half[:, None] * w[None, :]).ravel())
+    log_f = x[:, None] * s[None, :] - np.logaddexp(0.0, s)[None, :] + log_w[None, :]
+    log_finite = np.log(x) + logsumexp(log_f, axis=1)
+    return np.logaddexp(_parabola_over_top_log(x), log_finite)
+
+
+def _skodje_truhlar_log(beta: np.ndarray, alpha: float, D: float) -> np.ndarray:
+    """log kappa of the truncated parabola, ``beta = 1/RT`` [mol/J], ``alpha`` [mol/J], depth ``D`` [J/mol].
+
+    The exact thermal average of P(E) = 1/(1 + exp(-alpha (E - V0))) for E >= V0 - D (see
+    :func:`skodje_truhlar`); continuous in T and in D.
+    """
+    x = beta / alpha
+    a = alpha * D
+    if a <= 0.0:
+        return _parabola_over_top_log(x)
+    if a < _SERIES_MIN_DEPTH:
+        return _truncated_parabola_quadrature_log(x, a)
+    return _truncated_parabola_series_log(x, a)
+
+
+def _skodje_truhlar_closed_form_log(beta: np.ndarray, alpha: float, D: float) -> np.ndarray:
+    """log of the published closed form (leading terms for ``alpha D >> 1``); reference only."""
     out = np.empty_like(beta)
     low = beta < alpha          # high temperature branch
     high = beta > alpha         # low temperature (deep tunnelling) branch
@@ -242,52 +353,82 @@ def _skodje_truhlar_log(beta: np.ndarray, alpha: float, D: float) -> np.ndarray:
     return out
 
 
-def skodje_truhlar_log(temperature_K, imag_freq_cm1, forward_barrier_J_per_mol,
-                       reverse_barrier_J_per_mol, energy_floor_J_per_mol=None) -> np.ndarray:
-    """Natural log of :func:`skodje_truhlar` (never overflows)."""
+def _skodje_truhlar_args(temperature_K, imag_freq_cm1, V1, V2, energy_floor):
+    """Validated ``(T, beta [mol/J], alpha [mol/J], depth V0 - V [J/mol])``."""
     T = _temperatures(temperature_K)
     nu = _imag_freq(imag_freq_cm1)
-    V1 = _barrier(forward_barrier_J_per_mol, "forward_barrier", strictly_positive=False)
-    V2 = _barrier(reverse_barrier_J_per_mol, "reverse_barrier", strictly_positive=False)
-    floor = _floor(energy_floor_J_per_mol, V1, V2)
+    V1 = _barrier(V1, "forward_barrier", strictly_positive=False)
+    V2 = _barrier(V2, "reverse_barrier", strictly_positive=False)
+    floor = _floor(energy_floor, V1, V2)
     if floor > V1:
         raise InputError(f"energy floor {floor / 1e3:.6g} kJ/mol lies above the barrier top {V1 / 1e3:.6g} kJ/mol",
                          field="energy_floor",
                          hint="the Skodje-Truhlar form needs a floor at or below the barrier")
-    alpha = 2.0 * np.pi / _barrier_energy(nu)
-    beta = 1.0 / (R * T.ravel())
-    return _skodje_truhlar_log(beta, alpha, V1 - floor).reshape(T.shape)
+    return T, 1.0 / (R * T.ravel()), 2.0 * np.pi / _barrier_energy(nu), V1 - floor
+
+
+def skodje_truhlar_log(temperature_K, imag_freq_cm1, forward_barrier_J_per_mol,
+                       reverse_barrier_J_per_mol, energy_floor_J_per_mol=None) -> np.ndarray:
+    """Natural log of :func:`skodje_truhlar` (never overflows)."""
+    T, beta, alpha, D = _skodje_truhlar_args(temperature_K, imag_freq_cm1, forward_barrier_J_per_mol,
+                                             reverse_barrier_J_per_mol, energy_floor_J_per_mol)
+    return _skodje_truhlar_log(beta, alpha, D).reshape(T.shape)
 
 
 def skodje_truhlar(temperature_K, imag_freq_cm1, forward_barrier_J_per_mol,
                    reverse_barrier_J_per_mol, energy_floor_J_per_mol=None) -> np.ndarray:
-    """Skodje-Truhlar tunnelling factor of a truncated parabolic barrier (dimensionless).
+    """Tunnelling factor of the truncated parabolic barrier of Skodje and Truhlar (dimensionless).
 
-    R. T. Skodje and D. G. Truhlar, J. Phys. Chem. 85, 624 (1981). With
-    ``alpha = 2 pi / (h c nu)`` and ``beta = 1/RT`` (both per J/mol),
-    ``V0`` the forward barrier and ``V`` the lower end of the energy range
-    (0 for an exoergic direction, the endoergicity ``V1 - V2`` for an
-    endoergic one, or ``energy_floor_J_per_mol`` if that is higher):
+    R. T. Skodje and D. G. Truhlar, J. Phys. Chem. 85, 624 (1981): Bell's transmission of a
+    parabolic barrier, ``P(E) = 1/(1 + exp(-alpha (E - V0)))`` (R. P. Bell, Trans. Faraday
+    Soc. 55, 1 (1959)), counted from the lower end ``V`` of the energy range upwards, with
+    ``alpha = 2 pi / (h c nu)`` and ``beta = 1/RT`` (both per J/mol), ``V0`` the forward
+    barrier and ``V`` 0 for an exoergic direction, the endoergicity ``V1 - V2`` for an
+    endoergic one, or ``energy_floor_J_per_mol`` if that is higher. With ``x = beta/alpha``
+    and the depth ``a = alpha (V0 - V)``, the exact thermal average
+    ``kappa = beta exp(beta V0) int_V^inf P(E) exp(-beta E) dE`` is
 
-    * ``beta <= alpha``: ``kappa = (beta pi/alpha)/sin(beta pi/alpha)
-      - beta/(alpha - beta) exp[(beta - alpha)(V0 - V)]``
-    * ``beta > alpha``: ``kappa = beta/(beta - alpha) {exp[(beta - alpha)(V0 - V)] - 1}``
+        kappa = pi x / sin(pi x) + x sum_{k>=1} (-1)^(k+1) exp((x - k) a) / (x - k).
 
-    At ``beta == alpha`` both give ``alpha (V0 - V)``; the form used here is
-    rearranged so that it stays accurate next to that point. With the floor at
-    the barrier top (``V = V0``, a submerged transition state) the closed forms,
-    derived for ``V0 - V >> 1/alpha``, would give 0 below the crossover
-    temperature; there the thermal average of the parabolic transmission over
-    the top, ``(x/2) [psi((1+x)/2) - psi(x/2)]`` with ``x = beta/alpha``
-    (between 1/2 and 1), is returned instead. Temperatures [K]
-    may be an array; barriers in J/mol (non-negative); the imaginary wavenumber
-    [cm^-1] is given as its positive magnitude. Values too large for a float
+    Skodje and Truhlar keep only the leading terms, valid when ``a >> 1`` (the barrier,
+    seen from the floor, large against ``h c nu / 2 pi``):
+
+    * ``beta <= alpha``: ``kappa = (pi x)/sin(pi x) - x/(1 - x) exp[-(1 - x) a]``
+    * ``beta > alpha``: ``kappa = x/(x - 1) {exp[(x - 1) a] - 1}``
+
+    (:func:`skodje_truhlar_closed_form`). The first drops terms of order ``exp(-a)``; the
+    second also drops an over-the-barrier part of order 1, which is small against the
+    tunnelling term only where ``(x - 1) a >> 1``. For small ``a`` the closed form drops
+    below 1/2 and, at ``a = 0``, jumps to 0 below the crossover temperature. Here the exact
+    average is used at every depth, so kappa is continuous in T and in the floor: from the
+    series above for ``a >= 2`` (its terms fall as ``exp(-a k)``; the poles of
+    ``pi x / sin(pi x)`` cancel those of the series and are taken together), by Gauss-Legendre
+    quadrature of the finite part for ``0 < a < 2``, and as the flux over the top,
+    ``(x/2) [psi((1+x)/2) - psi(x/2)]`` (between 1/2 and 1), at ``a = 0`` (a floor at the
+    barrier top, a submerged transition state). It agrees with the closed form to
+    ``exp(-a)`` away from the crossover temperature.
+
+    Temperatures [K] may be an array; barriers in J/mol (non-negative); the imaginary
+    wavenumber [cm^-1] is given as its positive magnitude. Values too large for a float
     come back as ``inf``; use :func:`skodje_truhlar_log` for those.
     """
     log_k = skodje_truhlar_log(temperature_K, imag_freq_cm1, forward_barrier_J_per_mol,
                                reverse_barrier_J_per_mol, energy_floor_J_per_mol)
     with np.errstate(over="ignore"):
         return np.exp(log_k)
+
+
+def skodje_truhlar_closed_form(temperature_K, imag_freq_cm1, forward_barrier_J_per_mol,
+                               reverse_barrier_J_per_mol, energy_floor_J_per_mol=None) -> np.ndarray:
+    """The published closed form of Skodje and Truhlar (1981), for comparison only.
+
+    Valid when ``alpha (V0 - V) >> 1`` (see :func:`skodje_truhlar`); rearranged so that it
+    stays accurate next to ``beta == alpha``, where both branches give ``alpha (V0 - V)``.
+    """
+    T, beta, alpha, D = _skodje_truhlar_args(temperature_K, imag_freq_cm1, forward_barrier_J_per_mol,
+                                             reverse_barrier_J_per_mol, energy_floor_J_per_mol)
+    with np.errstate(over="ignore"):
+        return np.exp(_skodje_truhlar_closed_form_log(beta, alpha, D).reshape(T.shape))
 
 
 # --------------------------------------------------------------------------
