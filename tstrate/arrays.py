@@ -35,6 +35,20 @@ def temperatures_K(values, *, name: str = "temperature_K", ndim: int | None = No
     return T
 
 
+def per_temperature(value, temperature_K: np.ndarray, name: str) -> np.ndarray:
+    """``value`` (one number or one per temperature) as an array of the shape of ``temperature_K``;
+    finite and non-negative."""
+    v = np.asarray(value, dtype=float)
+    if v.ndim == 0:
+        v = np.full(np.shape(temperature_K), float(v))
+    if v.shape != np.shape(temperature_K):
+        raise InputError(f"{name} must be one number or one per temperature ({np.size(temperature_K)}), "
+                         f"got shape {v.shape}", field=name)
+    if np.any(~np.isfinite(v)) or np.any(v < 0):
+        raise InputError(f"{name} must be non-negative", field=name)
+    return v
+
+
 def positive_array(values, name: str, *, hint: str | None = None) -> np.ndarray:
     """A flat float array of finite, positive numbers (a scalar becomes one element)."""
     try:

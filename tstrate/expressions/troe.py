@@ -32,7 +32,8 @@ from tstrate.errors import InputError
 from tstrate.expressions.arrhenius import ArrheniusFit
 from tstrate.expressions.mechanism_text import yaml_number
 # the grid checks of the falloff physics, so that fits name their parameters the same way
-from tstrate.physics.falloff import _per_T, _temperatures, troe_center_broadening, troe_rate
+from tstrate.arrays import per_temperature, temperatures_K
+from tstrate.physics.falloff import troe_center_broadening, troe_rate
 
 
 @dataclass(frozen=True)
@@ -337,15 +338,15 @@ def fit_troe(temperature_K, number_density_m3, rate, k0, k_inf, *, fit_T2: bool 
     """
     from scipy.optimize import least_squares
 
-    t = _temperatures(temperature_K)
+    t = temperatures_K(temperature_K, ndim=1)
     m = np.atleast_1d(np.asarray(number_density_m3, dtype=float))
     k = np.asarray(rate, dtype=float)
     if k.shape != (t.size, m.size):
         raise InputError(f"rate grid must have shape ({t.size}, {m.size}), got {k.shape}", field="rate")
     if np.any(~np.isfinite(k)) or np.any(k <= 0):
         raise InputError("rate constants to fit must be positive numbers", field="rate")
-    k0 = _per_T(k0, t, "k0")[:, None]
-    kinf = _per_T(k_inf, t, "k_inf")[:, None]
+    k0 = per_temperature(k0, t, "k0")[:, None]
+    kinf = per_temperature(k_inf, t, "k_inf")[:, None]
     tt = t[:, None]
     log_k = np.log(k)
     n_p = 4 if fit_T2 else 3

@@ -24,6 +24,7 @@ from dataclasses import dataclass, field
 
 import numpy as np
 
+from tstrate.arrays import per_temperature, temperatures_K
 from tstrate.errors import InputError
 from tstrate.physics.rrkm import MicrocanonicalRate
 from tstrate.physics.states import StateCounts
@@ -53,20 +54,13 @@ def number_density_from(value, unit: str, temperature_K=None) -> np.ndarray:
     return number_density_m3(pa, temperature_K)
 
 
-def _temperatures(temperature_K) -> np.ndarray:
-    t = np.atleast_1d(np.asarray(temperature_K, dtype=float))
-    if t.ndim != 1 or np.any(~np.isfinite(t)) or np.any(t <= 0):
-        raise InputError(f"temperatures must be positive numbers in K, got {temperature_K!r}", field="temperature")
-    return t
-
-
 # ---------------------------------------------------------------- strong collisions
 def thermal_distribution(states: StateCounts, temperature_K) -> np.ndarray:
     """f(E_i; T) = counts_i exp(-E_i/RT) / Q, shape (n_T, n_grains), each row summing to 1.
 
     Built in logarithms, so low temperatures and long grids do not overflow.
     """
-    t = _temperatures(temperature_K)
+    t = temperatures_K(temperature_K, ndim=1)
     occupied = np.flatnonzero(states.counts > 0)
     log_w = np.log(states.counts[occupied])[None, :] - \
         states.energies_J_per_mol[occupied][None, :] / (R * t[:, None])
@@ -88,23 +82,11 @@ def low_pressure_limit(rate: MicrocanonicalRate, temperature_K, collision_rate_m
     Uses the classical threshold E0; with tunnelling, grains below E0 with
     k(E) > 0 reach this limit only at far lower pressures.
     """
-    t = _temperatures(temperature_K)
+    t = temperatures_K(temperature_K, ndim=1)
     f = thermal_distribution(rate.reactant, t)
     above = f[:, rate.barrier_index:].sum(axis=1)
-    return _per_T(collision_efficiency, t, "collision_efficiency") * \
-        _per_T(collision_rate_m3_s, t, "collision_rate_m3_s") * above
-
-
-def _per_T(value, t: np.ndarray, name: str) -> np.ndarray:
-    v = np.asarray(value, dtype=float)
-    if v.ndim == 0:
-        v = np.full(t.shape, float(v))
-    if v.shape != t.shape:
-        raise InputError(f"{name} must be one number or one per temperature ({t.size}), got shape {v.shape}",
-                         field=name)
-    if np.any(~np.isfinite(v)) or np.any(v < 0):
-        raise InputError(f"{name} must be non-negative", field=name)
-    return v
+    return per_temperature(collision_efficiency, t, "collision_efficiency") * \
+        per_temperature(collision_rate_m3_s, t, "collision_rate_m3_s") * above
 
 
 @dataclass(frozen=True)
@@ -141,15 +123,15 @@ def strong_collision_falloff(rate: MicrocanonicalRate, temperature_K, number_den
     collision_efficiency:
         beta_c (dimensionless, 0..1), one number or one per temperature.
     """
-    t = _temperatures(temperature_K)
+    t = temperatures_K(temperature_K, ndim=1)
     m = np.atleast_1d(np.asarray(number_density_m3, dtype=float))
     if m.ndim == 1:
         m = np.broadcast_to(m, (t.size, m.size))
     if m.ndim != 2 or m.shape[0] != t.size or np.any(~np.isfinite(m)) or np.any(m < 0):
         raise InputError("number densities must be non-negative numbers in m^-3, shape (n_M,) or (n_T, n_M)",
                          field="number_density_m3")
-    z = _per_T(collision_rate_m3_s, t, "collision_rate_m3_s")
-    beta = _per_T(collision_efficiency, t, "collision_efficiency")
+    z = per_temperature(collision_rate_m3_s, t, "collision_rate_m3_s")
+    beta = per_temperature(collision_efficiency, t, "collision_efficiency")
     f = thermal_distribution(rate.reactant, t)
     k_e = rate.rate_per_s
     active = np.flatnonzero(k_e > 0)

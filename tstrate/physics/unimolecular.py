@@ -254,7 +254,10 @@ def unimolecular_model(channel: Channel, species: Mapping[str, Species], setting
     v1 = v2 = None
     if channel.tunnelling == "eckart":
         v1 = e0
-        v2 = zpe_level_J_per_mol(ts) - sum(zpe_level_J_per_mol(species[p]) for p in channel.products)
+        # the reverse barrier from the product complex when the channel names one, as in canonical TST
+        product_side = ([zpe_level_J_per_mol(species[channel.product_complex])] if channel.product_complex
+                        else [zpe_level_J_per_mol(species[p]) for p in channel.products])
+        v2 = zpe_level_J_per_mol(ts) - sum(product_side)
         if not v2 > 0:
             raise InputError(f"channel {channel.name!r}: reverse ZPE-corrected barrier is {v2 / 1e3:.2f} kJ/mol; "
                              "eckart needs V1 > 0 and V2 > 0", field="tunnelling",

@@ -118,6 +118,15 @@ def compute_study(study: Study, *, low_modes: LowModes = HARMONIC,
         falloff = study_falloff(study)
         warnings += list(falloff.warnings)
         for cf in falloff.channels:
+            off = high_pressure_mismatch(cf)
+            if off > FALLOFF_EXPORT_MAX_MISMATCH:
+                # k(E) does not reproduce its own high-pressure limit: its falloff is not exported
+                warnings.append(
+                    f"channel {cf.name}: k_inf from the RRKM k(E) differs from canonical TST by up to "
+                    f"{100 * off:.0f} % (more than {100 * FALLOFF_EXPORT_MAX_MISMATCH:.0f} %; typically too few "
+                    "states per grain in a small molecule), so its falloff is not exported to the mechanism, "
+                    "which keeps the high-pressure TST expression; the falloff tables still show it")
+                continue
             if cf.troe.k0 is not None:  # the Troe expression with its limits, for the mechanism
                 troe[cf.name] = cf.troe
             if cf.pressure_Pa is not None:  # k(T, P) on the study's grid, for Chebyshev fits
@@ -150,6 +159,18 @@ def compute_study(study: Study, *, low_modes: LowModes = HARMONIC,
     return StudyResult(study=study, low_modes=low_modes, thermo=thermo, rates=rates,
                        comparisons=comparisons, falloff=falloff, excitations=excitations, fits=fits,
                        pressure_fits=pressure_fits, warnings=tuple(dict.fromkeys(warnings)), capture=capture)
+
+
+#: a falloff channel whose k_inf (from k(E)) differs from canonical TST by more than this fraction at
+#: any temperature is not exported to the mechanism (its k(E) is not trustworthy there)
+FALLOFF_EXPORT_MAX_MISMATCH = 0.10
+
+
+def high_pressure_mismatch(cf) -> float:
+    """max |k_inf / k_TST - 1| over the temperatures of a falloff channel (0 when TST is not known)."""
+    ratio = np.asarray(cf.k_high_pressure_per_s, dtype=float) / np.asarray(cf.canonical_tst_per_s, dtype=float)
+    ratio = ratio[np.isfinite(ratio)]
+    return float(np.max(np.abs(ratio - 1.0))) if ratio.size else 0.0
 
 
 def fits_at_each_pressure(cf, *, max_deviation: float | None = None):

@@ -1,0 +1,37 @@
+"""A falloff whose k(E) misses its own high-pressure limit is not exported (tstrate.study.run).
+
+HNC -> HCN has too few vibrational states per grain for the RRKM k(E) to reproduce canonical TST
+in the high-pressure limit: with the rough harmonic data below (illustrative numbers of the size of
+semi-empirical ones, not a source) k_inf / k_TST is about 0.2. The run must say so and keep the
+high-pressure TST expression in the mechanism instead of a Troe fit built on that k(E).
+"""
+
+import numpy as np
+
+from tstrate.io.species import build_species
+from tstrate.model import Channel, Conditions, Study
+from tstrate.study.run import FALLOFF_EXPORT_MAX_MISMATCH, compute_study, high_pressure_mismatch
+
+
+def _study():
+    lj = (3.6, 370.0)
+    hnc = build_species("HNC", ["H", "N", "C"], [[0, 0, -0.99], [0, 0, 0], [0, 0, 1.17]],
+                        frequencies_cm1=[477, 477, 2029, 3653], energy_J_per_mol=0.0, lennard_jones=lj)
+    hcn = build_species("HCN", ["H", "C", "N"], [[0, 0, -1.07], [0, 0, 0], [0, 0, 1.15]],
+                        frequencies_cm1=[712, 712, 2097, 3311], energy_J_per_mol=-60e3, lennard_jones=lj)
+    ts = build_species("TS", ["H", "N", "C"], [[1.05, 0, 0.55], [0, 0, 0], [0, 0, 1.18]], kind="transition_state",
+                       frequencies_cm1=[-1150, 2050, 2600], energy_J_per_mol=125e3)
+    return Study(file=None, title="HNC isomerisation", species={"HNC": hnc, "HCN": hcn, "TS": ts},
+                 channels=(Channel("iso", ("HNC",), "TS", ("HCN",)),),
+                 conditions=Conditions(np.array([200.0, 250.0, 300.0, 400.0, 500.0]),
+                                       pressure_Pa=np.array([1e2, 1e4, 1e6]), bath_gas="N2"))
+
+
+def test_falloff_of_a_sparse_molecule_is_not_exported():
+    result = compute_study(_study())
+    (cf,) = result.falloff.channels
+    assert high_pressure_mismatch(cf) > FALLOFF_EXPORT_MAX_MISMATCH     # the physics misses TST here
+    fit = result.fits.channel_fit("iso")
+    assert fit.troe is None and fit.mechanism_kind != "troe"
+    assert any("is not exported" in w and "canonical TST" in w for w in result.warnings)
+    assert "iso" not in result.pressure_fits
