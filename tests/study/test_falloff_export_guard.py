@@ -1,9 +1,11 @@
-"""A falloff whose k(E) misses its own high-pressure limit is not exported (tstrate.study.run).
+"""Small molecules in the falloff: k_inf against canonical TST, and the export guard (tstrate.study).
 
-HNC -> HCN has too few vibrational states per grain for the RRKM k(E) to reproduce canonical TST
-in the high-pressure limit: with the rough harmonic data below (illustrative numbers of the size of
-semi-empirical ones, not a source) k_inf / k_TST is about 0.2. The run must say so and keep the
-high-pressure TST expression in the mechanism instead of a Troe fit built on that k(E).
+HNC -> HCN has too few vibrational states per grain for an RRKM k(E) with an adiabatic 2-D rotor:
+with the rough harmonic data below (illustrative numbers of the size of semi-empirical ones, not a
+source) k_inf / k_TST was about 0.2 at 200-500 K. With the 2-D rotor counted as active it must
+reproduce canonical TST (the outside reference: the same partition functions summed in closed
+form) within a few per cent; and a falloff that still missed TST by more than 10 % must not be
+exported to the mechanism.
 """
 
 import numpy as np
@@ -27,10 +29,24 @@ def _study():
                                        pressure_Pa=np.array([1e2, 1e4, 1e6]), bath_gas="N2"))
 
 
-def test_falloff_of_a_sparse_molecule_is_not_exported():
+def test_a_triatomic_reproduces_canonical_tst_in_the_high_pressure_limit():
     result = compute_study(_study())
     (cf,) = result.falloff.channels
-    assert high_pressure_mismatch(cf) > FALLOFF_EXPORT_MAX_MISMATCH     # the physics misses TST here
+    assert cf.model.external_rotation == "active"
+    np.testing.assert_allclose(cf.k_high_pressure_per_s, cf.canonical_tst_per_s, rtol=0.02)
+    assert high_pressure_mismatch(cf) < 0.02
+    assert result.fits.channel_fit("iso").troe is not None             # and its falloff is exported
+
+
+def test_falloff_that_misses_tst_is_not_exported(monkeypatch):
+    """Make canonical TST twice what k(E) gives (as a broken k(E) would): the guard must act."""
+    import tstrate.study.falloff as falloff_step
+
+    real = falloff_step.canonical_tst
+    monkeypatch.setattr(falloff_step, "canonical_tst", lambda *a, **k: 2.0 * real(*a, **k))
+    result = compute_study(_study())
+    (cf,) = result.falloff.channels
+    assert high_pressure_mismatch(cf) > FALLOFF_EXPORT_MAX_MISMATCH
     fit = result.fits.channel_fit("iso")
     assert fit.troe is None and fit.mechanism_kind != "troe"
     assert any("is not exported" in w and "canonical TST" in w for w in result.warnings)

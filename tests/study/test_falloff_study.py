@@ -302,10 +302,17 @@ def test_linear_reactant_with_a_bent_transition_state():
     a, b, c = rotational_constants_cm1(ts)
     kt = 300.0 / C2_CM_K                                      # kT in cm-1
     expected = (math.sqrt(math.pi) * kt**1.5 / math.sqrt(a * b * c)) / (kt / b_r)
-    model_factor = m.rate.centrifugal_factor * math.sqrt(math.pi * kt / m.ts_rotors.K_cm1)
+    # four modes: most grains above the barrier hold no vibrational state, so the 2-D rotor is counted
+    # as active in both species (its factor then sits in the densities, not in centrifugal_factor);
+    # either way the rotational factor is B_R / B2d_TS times the TS's K-rotor partition function
+    assert m.external_rotation == "active" and m.rate.centrifugal_factor == 1.0
+    assert any("counted as active" in w for w in m.warnings)
+    model_factor = m.reactant_rotors.B2d_cm1 / m.ts_rotors.B2d_cm1 * math.sqrt(math.pi * kt / m.ts_rotors.K_cm1)
     assert model_factor == pytest.approx(expected, rel=1e-12)
-    # four modes and no active rotor: most grains above the barrier hold no state, and the user is told
-    assert any("no state in" in w and "lumpy" in w for w in m.warnings)
+    # and the states now fill the grains: k_inf reproduces canonical TST (the outside reference here)
+    cf = channel_falloff(st, ch, settings=FalloffSettings())
+    np.testing.assert_allclose(cf.k_high_pressure_per_s, cf.canonical_tst_per_s, rtol=0.02)
+    assert not any("lumpy" in w for w in m.warnings)
 
 
 def test_dense_reactant_gets_no_sparse_warning(result):

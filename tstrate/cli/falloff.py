@@ -34,7 +34,8 @@ troe {a, T3_K, T1_K, T2_K, parameters_at_bound (names of the parameters at a bou
 Fcent, k_low_pressure(_unit, _kind), max_deviation_percent,
 rms_deviation_percent, fitted_on, rate_constant, max_deviation_on_study_grid_percent},
 bath_gas, collision_efficiency, collisions {...}, grain_cm1, requested_grain_cm1,
-barrier_zpe_kJ_per_mol, reaction_path_degeneracy, centrifugal_factor, rotors, warnings),
+barrier_zpe_kJ_per_mol, reaction_path_degeneracy, centrifugal_factor, external_rotation, rotors,
+warnings),
 "not_computed" (name, order, reason) and "warnings". Every key with its unit:
 docs/outputs/command-json.md.
 

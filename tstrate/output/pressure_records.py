@@ -37,6 +37,7 @@ def model_record(model) -> dict:
         "energy_grid_top_cm1": float(model.rate.energies_J_per_mol[-1] / CM1_J_PER_MOL),
         "reaction_path_degeneracy": model.path_degeneracy,
         "centrifugal_factor": model.rate.centrifugal_factor,
+        "external_rotation": model.external_rotation,
         "rotors": {"unique_axis": r.axis, "reactant_B2d_cm1": r.B2d_cm1, "reactant_K_cm1": r.K_cm1,
                    "ts_B2d_cm1": t.B2d_cm1, "ts_K_cm1": t.K_cm1},
     }

@@ -288,6 +288,9 @@ _record("k_of_E_model", "How k(E) of a unimolecular channel was built", [
     ("energy_grid_top_cm1", CM1, "top of the energy grid"),
     ("reaction_path_degeneracy", ONE, "reaction-path degeneracy"),
     ("centrifugal_factor", ONE, "ratio of the external rotational partition functions (TS over reactant)"),
+    ("external_rotation", TEXT, "adiabatic (the 2-D rotor enters k(E) through the centrifugal factor) or "
+                                "active (counted in both densities because the reactant has too few states "
+                                "per grain; the centrifugal factor is then 1)"),
     ("rotors", OBJ, "the rotational constants used"),
     ("rotors.unique_axis", TEXT, "the symmetric-top axis: A, C or linear"),
     ("rotors.reactant_B2d_cm1", CM1, "two-dimensional rotor constant of the reactant"),

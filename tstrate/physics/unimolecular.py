@@ -80,6 +80,10 @@ from tstrate.units import number_density_m3 as ideal_gas_number_density_m3
 
 log = logging.getLogger(__name__)
 
+#: above this fraction of reactant grains without a state (above the barrier, over the thermal
+#: range) the 2-D external rotor is counted as active (common practice for small molecules)
+SPARSE_GRAIN_FRACTION = 0.01
+
 #: The energy grid reaches at least this far above the barrier [cm^-1] ...
 MIN_SPAN_CM1 = 20000.0
 #: ... and at least this many k_B T (highest temperature) above it.
@@ -141,6 +145,9 @@ class UnimolecularModel:
     warnings: plain sentences for the user.
     grain_note: why the grain was refined (None when the requested one was used); the study
         step says it with the file and key of the grain.
+    external_rotation: "adiabatic" (the 2-D rotor enters k(E) as I_TS/I_R) or "active" (counted
+        in the densities of reactant and TS, for reactants too sparse in states; see
+        :data:`SPARSE_GRAIN_FRACTION`).
     """
 
     channel: Channel
@@ -160,6 +167,7 @@ class UnimolecularModel:
     eckart_V2_J_per_mol: float | None
     warnings: tuple[str, ...] = ()
     grain_note: str | None = None
+    external_rotation: str = "adiabatic"
 
 
 def _electronic_counts(species: Species, n: int, grain_J_per_mol: float) -> np.ndarray:
@@ -273,24 +281,42 @@ def unimolecular_model(channel: Channel, species: Mapping[str, Species], setting
             warnings.append(f"channel {channel.name!r}: tunnelling {channel.tunnelling!r} has no microcanonical "
                             "form here; k(E) and the falloff curves are without tunnelling (use \"eckart\")")
 
-    reactant_counts = _counts(reac, rf, e_top, grain, r_extra)
-    ts_counts = _counts(ts, tf, e_top, grain, t_extra)
-    rate = microcanonical_rate(reactant_counts, ts_counts, e0, path_degeneracy=degeneracy,
-                               centrifugal_factor=external.centrifugal_factor, transmission=transmission)
-    # sparse reactant states: grains without a state have k(E) = 0, and grain sums become lumpy
-    g_j = grain * CM1_J_PER_MOL
-    hi = e0 + max(20 * R * max_temperature_K, min_top_energy_J_per_mol - e0 + 1000 * CM1_J_PER_MOL)
-    window = reactant_counts.counts[rate.barrier_index:min(reactant_counts.n_grains, int(hi / g_j) + 1)]
-    empty = float(np.mean(window <= 0)) if window.size else 0.0
-    if empty > 0.01:
+    def build(r_rotors, t_rotors, factor):
+        r_counts = _counts(reac, rf, e_top, grain, r_rotors)
+        k_of_e = microcanonical_rate(r_counts, _counts(ts, tf, e_top, grain, t_rotors), e0,
+                                     path_degeneracy=degeneracy, centrifugal_factor=factor,
+                                     transmission=transmission)
+        # grains without a reactant state above the barrier, up to where the thermal population ends
+        g_j = grain * CM1_J_PER_MOL
+        hi = e0 + max(20 * R * max_temperature_K, min_top_energy_J_per_mol - e0 + 1000 * CM1_J_PER_MOL)
+        window = r_counts.counts[k_of_e.barrier_index:min(r_counts.n_grains, int(hi / g_j) + 1)]
+        return k_of_e, float(np.mean(window <= 0)) if window.size else 0.0
+
+    rate, empty = build(r_extra, t_extra, external.centrifugal_factor)
+    rotation = "adiabatic"
+    if empty > SPARSE_GRAIN_FRACTION:
+        # Too few reactant states per grain (small molecules): k(E) would be zero in the empty grains
+        # and k_inf would miss canonical TST by a factor of several. Count the 2-D external rotor as
+        # active in reactant and TS instead (its states fill every grain); k_inf then reproduces
+        # canonical TST, at the price of not conserving angular momentum in k(E).
+        sparse = empty
+        rate, empty = build(r_extra + (Rotor(r_rot.B2d_cm1, 1, 2, False),),
+                            t_extra + (Rotor(t_rot.B2d_cm1, 1, 2, False),), 1.0)
+        rotation = "active"
+        warnings.append(f"channel {channel.name!r}: {reac.name} has no vibrational state in {100 * sparse:.0f} % of "
+                        "the grains above the barrier; the 2-D external rotor is counted as active in "
+                        "reactant and transition state (angular momentum not conserved in k(E)) so that "
+                        "k_inf reproduces canonical TST")
+    if empty > SPARSE_GRAIN_FRACTION:
         warnings.append(f"channel {channel.name!r}: {reac.name} has no state in {100 * empty:.0f} % of the grains "
                         "above the barrier (too few atoms or no active rotor for this grain); k(E) is zero there "
                         "and the falloff and excitation results are lumpy - compare k_inf with canonical TST")
     for w in warnings:
         log.debug(w)
     return UnimolecularModel(channel, reac, ts, rate, grain, settings.grain_cm1, rate.barrier_J_per_mol,
-                             degeneracy, r_rot, t_rot, external if both_k_rotors else None, used,
-                             ts.imaginary_frequency_cm1, v1, v2, tuple(warnings), grain_note)
+                             degeneracy, r_rot, t_rot,
+                             external if both_k_rotors and rotation == "adiabatic" else None, used,
+                             ts.imaginary_frequency_cm1, v1, v2, tuple(warnings), grain_note, rotation)
 
 
 # ---------------------------------------------------------------- collisions
