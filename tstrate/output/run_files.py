@@ -367,12 +367,16 @@ def build_report(result, doc: dict, inputs: list[dict], figures) -> list:
         rows = []
         for cf in result.falloff.channels:
             t = cf.troe
+            ratio = cf.k_high_pressure_per_s / cf.canonical_tst_per_s
             rows.append((cf.name, f"{t.a:.3g}", f"{t.T3_K:.3g}", f"{t.T1_K:.3g}",
                          "-" if t.T2_K is None else f"{t.T2_K:.3g}",
-                         f"{100 * t.max_rel_deviation:.2f}", f"{100 * t.rms_rel_deviation:.2f}"))
+                         f"{100 * t.max_rel_deviation:.2f}", f"{100 * t.rms_rel_deviation:.2f}",
+                         f"{np.nanmin(ratio):.4g} - {np.nanmax(ratio):.4g}", cf.model.external_rotation))
         B.append(rp.Table(("channel", "a", "T*** / K", "T* / K", "T** / K", "max deviation / %",
-                           "rms deviation / %"), tuple(rows), "Troe parameters fitted to the computed "
-                          "falloff curves."))
+                           "rms deviation / %", "k_inf / k_TST", "external rotation"), tuple(rows),
+                          "Troe parameters fitted to the computed falloff curves; k_inf from the RRKM k(E) "
+                          "against canonical TST over the study's temperatures (a falloff off by more than "
+                          "10 % is not exported to the mechanism)."))
         if result.pressure_fits:
             header, rows = pressure_fit_rows(result)
             B.append(rp.Table(tuple(header), tuple(tuple(_fmt_cell(c) for c in r) for r in rows),
