@@ -35,15 +35,28 @@ def _with_top_level(text: str, *lines: str) -> str:
     return head.rstrip("\n") + "\n" + "".join(f"{x}\n" for x in lines) + sep + tail
 
 
+#: the symmetry lines the compute route wrote into species files before detected values stayed out
+OLD_OVERRIDES = ("symmetry_number = 2", "optical_isomers = 1", "linear = false")
+
+
 @pytest.fixture
 def h2co3_text():
+    """The shipped H2CO3 file as the old compute route wrote it: detected values as overrides."""
+    text = _without_symmetry_keys(H2CO3.read_text())
+    return _with_top_level(text, *OLD_OVERRIDES)
+
+
+def test_the_shipped_parent_file_has_no_overrides_and_detection_gives_2():
     text = H2CO3.read_text()
-    assert "symmetry_number = 2" in text  # written by tstrate compute before detected values stayed out
-    return text
-
-
-def test_the_shipped_parent_file_gives_its_values_as_overrides(h2co3_text):
+    assert not re.search(r"^(symmetry_number|optical_isomers|linear) =", text, re.M)
     sp = read_species(H2CO3)
+    assert sp.symmetry_number == 2 and sp.symmetry_given == ()   # C2v: rotation group C2 (Cotton 1990)
+    assert sp.rotation_group == "C2"
+
+
+def test_old_overrides_are_given_values(tmp_path, h2co3_text):
+    (tmp_path / "h2co3.toml").write_text(h2co3_text)
+    sp = read_species(tmp_path / "h2co3.toml")
     assert sp.symmetry_number == 2 and sp.symmetry_given == ("symmetry_number", "optical_isomers", "linear")
     assert sp.rotation_group is None  # given, so not the detected group's name
 
@@ -112,7 +125,8 @@ def test_species_to_toml_writes_only_given_values_and_round_trips(tmp_path, h2co
     (tmp_path / "hd.toml").write_text(_with_top_level(text, "isotopes = { 5 = 2 }"))
     assert read_species(tmp_path / "hd.toml").symmetry_number == 1
 
-    given = read_species(H2CO3)  # all three given
+    (tmp_path / "given.toml").write_text(h2co3_text)
+    given = read_species(tmp_path / "given.toml")  # all three given
     text = species_to_toml(given)
     for line in ("symmetry_number = 2", "optical_isomers = 1", "linear = false"):
         assert re.search(rf"^{line}$", text, flags=re.M)
