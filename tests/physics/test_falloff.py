@@ -309,3 +309,46 @@ def test_fixed_pressures_give_a_number_density_per_temperature(rate, z_co2):
         np.testing.assert_allclose(grid[i], one, rtol=1e-12)
     with pytest.raises(InputError, match="shape"):
         strong_collision_falloff(rate, t, np.ones((3, 2)), collision_rate_m3_s=1e-16)
+
+
+# ---- overall rotation in both limits (J-resolved thresholds of the adiabatic 2-D rotor) -------------
+
+def _rotating_rate(centrifugal_factor):
+    from tstrate.physics.rrkm import microcanonical_rate
+    from tstrate.physics.states import count_states
+
+    e0 = 12000 * CM1_J_PER_MOL
+    reac = count_states([300, 500, 800, 1100, 1400, 1700, 2900, 3000, 3100], e0 + 40000 * CM1_J_PER_MOL, grain_cm1=10.0)
+    ts = count_states([250, 450, 700, 1000, 1300, 2900, 3000, 3100], e0 + 40000 * CM1_J_PER_MOL, grain_cm1=10.0)
+    return microcanonical_rate(reac, ts, e0, centrifugal_factor=centrifugal_factor)
+
+
+@pytest.mark.parametrize("c_f", [0.76, 1.3], ids=["tighter-TS", "looser-TS"])
+def test_rotation_enters_both_limits_alike(c_f):
+    """With delta = 1 - 1/c_f the J-resolved sum keeps k_inf (it carries I_TS/I_R = c_f) and gives
+    k0 = beta Z <P(E >= E0 - delta E_r)>, checked here against an independent trapezoid integration
+    over E_r of the classical 2-D rotor distribution exp(-E_r/RT)/RT (not the Gauss-Laguerre nodes);
+    c_f = 0.76 is the size of CH3NC's factor (a tighter TS raises the threshold, k0 falls)."""
+    from scipy.constants import R
+    from scipy.integrate import trapezoid
+
+    rate = _rotating_rate(c_f)
+    T = np.array([300.0, 600.0])
+    z, m = 4e-16, np.array([1e18, 1e22, 1e26])
+    plain = strong_collision_falloff(rate, T, m, collision_rate_m3_s=z)
+    rot = strong_collision_falloff(rate, T, m, collision_rate_m3_s=z, threshold_shift=1 - 1 / c_f)
+    np.testing.assert_allclose(rot.high_pressure_per_s, plain.high_pressure_per_s, rtol=1e-12)
+    f = thermal_distribution(rate.reactant, T)
+    e, g = rate.energies_J_per_mol, rate.grain_J_per_mol
+    delta = 1 - 1 / c_f
+    for i, t in enumerate(T):
+        x = np.linspace(0.0, 40.0, 8001)                             # E_r / RT
+        idx = np.floor((e[None, :] - e[0] + delta * x[:, None] * R * t) / g + 1e-9)
+        above = (f[i][None, :] * (idx >= rate.barrier_index)).sum(axis=1)
+        expected = z * trapezoid(np.exp(-x) * above, x)
+        assert rot.low_pressure_m3_s[i] == pytest.approx(expected, rel=2e-3)
+    # the direction of the change: a looser TS (c_f > 1) lowers the threshold of rotating molecules
+    assert (rot.low_pressure_m3_s > plain.low_pressure_m3_s).all() == (c_f > 1)
+    # the curve runs between its own limits
+    assert np.all(rot.rate_per_s <= rot.high_pressure_per_s[:, None] * (1 + 1e-9))
+    assert np.all(rot.rate_per_s <= rot.low_pressure_m3_s[:, None] * m[None, :] * (1 + 1e-9))

@@ -143,7 +143,8 @@ def test_troe_fit_is_reported_with_its_error(result):
         assert m.max() >= cf.number_density_m3.max() * (1 - 1e-12)
         k = strong_collision_falloff(cf.model.rate, cf.temperature_K, m,
                                      collision_rate_m3_s=cf.collision_rate_m3_per_s,
-                                     collision_efficiency=cf.collision_efficiency).rate_per_s
+                                     collision_efficiency=cf.collision_efficiency,
+                                     threshold_shift=1 - 1 / cf.model.rate.centrifugal_factor).rate_per_s
         kt = troe_rate(cf.troe_k0_m3_per_s[:, None], cf.k_high_pressure_per_s[:, None], m[None, :],
                        cf.temperature_K[:, None], fit.a, fit.T3_K, fit.T1_K, fit.T2_K)
         assert np.max(np.abs(kt / k - 1)) == pytest.approx(fit.max_rel_deviation, rel=1e-9)

@@ -105,8 +105,22 @@ class FalloffResult:
     low_pressure_m3_s: np.ndarray = field(repr=False)
 
 
+#: Gauss-Laguerre nodes over the rotational energy of the adiabatic 2-D rotor (J-resolved thresholds)
+ROTOR_QUADRATURE_NODES = 24
+
+
+def _rotor_quadrature(shift: float, n: int) -> tuple[np.ndarray, np.ndarray]:
+    """Nodes x_j = E_r / RT and weights w_j with sum_j w_j g(x_j) = int_0^inf exp(-x) g(x) dx for
+    g growing like exp(shift x): Gauss-Laguerre in y = (1 - shift) x, the factor exp(-shift x)
+    moved into the weights (shift < 1)."""
+    y, w = np.polynomial.laguerre.laggauss(n)
+    x = y / (1.0 - shift)
+    return x, w * np.exp(-shift * x) / (1.0 - shift)
+
+
 def strong_collision_falloff(rate: MicrocanonicalRate, temperature_K, number_density_m3, *,
-                             collision_rate_m3_s, collision_efficiency=1.0) -> FalloffResult:
+                             collision_rate_m3_s, collision_efficiency=1.0,
+                             threshold_shift: float = 0.0) -> FalloffResult:
     """k(T, [M]) = sum_E k(E) f(E) omega/(omega + k(E)), omega = beta_c Z_LJ [M].
 
     Parameters
@@ -122,6 +136,17 @@ def strong_collision_falloff(rate: MicrocanonicalRate, temperature_K, number_den
         Z_LJ [m^3 s^-1], one number or one per temperature.
     collision_efficiency:
         beta_c (dimensionless, 0..1), one number or one per temperature.
+    threshold_shift:
+        delta = 1 - B_TS / B_R of the adiabatic 2-D external rotor (dimensionless, < 1; 0 leaves
+        rotation out). With it the sum is J-resolved: a molecule with rotational energy E_r of
+        that rotor reaches the TS with E_r (1 - delta) of it, so its threshold is E0 - delta E_r
+        and k(E, E_r) = L N_TS(E - E0 + delta E_r) / (h rho(E)); k(T, [M]) is then averaged over
+        the classical thermal distribution of E_r (Gauss-Laguerre). Both limits treat rotation
+        alike: the average of k(E, E_r) over E_r is the E-resolved k_inf with the factor
+        I_TS/I_R = 1/(1 - delta) (which ``rate`` must carry as its centrifugal factor; the sum is
+        scaled onto it exactly, a correction of about 1e-3 for the quadrature and the grain), and
+        k0 = beta_c Z <P(E >= E0 - delta E_r)> gains the centrifugal change of the threshold
+        (the rotational factor of the low-pressure limit; Troe 1977).
     """
     t = temperatures_K(temperature_K, ndim=1)
     m = np.atleast_1d(np.asarray(number_density_m3, dtype=float))
@@ -132,25 +157,63 @@ def strong_collision_falloff(rate: MicrocanonicalRate, temperature_K, number_den
                          field="number_density_m3")
     z = per_temperature(collision_rate_m3_s, t, "collision_rate_m3_s")
     beta = per_temperature(collision_efficiency, t, "collision_efficiency")
+    if not (np.isfinite(threshold_shift) and threshold_shift < 1.0):
+        raise InputError(f"threshold_shift must be a number below 1, got {threshold_shift!r}",
+                         field="threshold_shift")
     f = thermal_distribution(rate.reactant, t)
-    k_e = rate.rate_per_s
-    active = np.flatnonzero(k_e > 0)
-    start = int(active[0]) if active.size else k_e.size
-    k_e = k_e[start:]
-    f_act = f[:, start:]
-    out = np.empty(m.shape)
+    if threshold_shift == 0.0:
+        out = np.empty(m.shape)
+        for i in range(t.size):
+            out[i] = _falloff_sum(f[i], rate.rate_per_s, beta[i] * z[i] * m[i])
+        k_inf = f @ rate.rate_per_s
+        k0 = beta * z * f[:, rate.barrier_index:].sum(axis=1)
+        return FalloffResult(t, np.array(m), out, k_inf, k0)
+
+    from tstrate.physics.rrkm import H_MOLAR
+
+    e = rate.energies_J_per_mol
+    rho = rate.reactant.density_per_J_per_mol
+    has = rho > 0
+    x, w = _rotor_quadrature(float(threshold_shift), ROTOR_QUADRATURE_NODES)
+    g = rate.grain_J_per_mol
+    n_ts = rate.ts_sum_of_states
+    out = np.zeros(m.shape)
+    k_inf = f @ rate.rate_per_s      # the E-resolved limit, which carries I_TS/I_R (see below)
+    k0 = np.zeros(t.size)
     for i in range(t.size):
-        omega = (beta[i] * z[i] * m[i])[:, None]
-        fk = f_act[i] * k_e
-        # grains whose share of k_inf is below 1e-30 are dropped: at most ~1e-26 relative
-        # error, and it keeps subnormal numbers (very slow arithmetic) out of the sum
-        keep = fk > 1e-30 * fk.max() if fk.size and fk.max() > 0 else np.zeros(fk.size, bool)
-        k_keep = k_e[keep]
-        with np.errstate(invalid="ignore"):
-            out[i] = (omega / (omega + k_keep[None, :])) @ fk[keep]
-    k_inf = f_act @ k_e
-    k0 = beta * z * f[:, rate.barrier_index:].sum(axis=1)
-    return FalloffResult(t, np.array(m), out, k_inf, k0)
+        omega = beta[i] * z[i] * m[i]
+        ks, weights = [], []
+        for xj, wj in zip(x, w):
+            shift = threshold_shift * xj * R * t[i]          # delta E_r [J/mol]
+            # N_TS at E + delta E_r, read off the grain that energy falls in (a step, like the
+            # grained counts), so that k(E, E_r) > 0 exactly where E + delta E_r reaches the barrier
+            idx = np.floor((e - e[0] + shift) / g + 1e-9).astype(int)
+            n_shift = np.where(idx < 0, 0.0, n_ts[np.clip(idx, 0, n_ts.size - 1)])
+            k_j = np.zeros(e.size)
+            k_j[has] = rate.path_degeneracy * n_shift[has] / (H_MOLAR * rho[has])
+            ks.append(k_j)
+            weights.append(wj)
+            k0[i] += wj * f[i][idx >= rate.barrier_index].sum()
+        # The quadrature over E_r and the interpolation of the grained N_TS leave k_inf off the
+        # E-resolved value by about 1e-3; scaling every k(E, E_r) of this temperature by one factor
+        # makes the high-pressure limit exact and leaves k0 (a count above the thresholds) as it is.
+        j_inf = sum(wj * (f[i] @ k_j) for wj, k_j in zip(weights, ks))
+        scale = k_inf[i] / j_inf if j_inf > 0 else 1.0
+        for wj, k_j in zip(weights, ks):
+            out[i] += wj * _falloff_sum(f[i], scale * k_j, omega)
+    return FalloffResult(t, np.array(m), out, k_inf, beta * z * k0)
+
+
+def _falloff_sum(f_row: np.ndarray, k_e: np.ndarray, omega: np.ndarray) -> np.ndarray:
+    """sum_E f(E) k(E) omega / (omega + k(E)) for each omega (one temperature)."""
+    fk = f_row * k_e
+    # grains whose share of k_inf is below 1e-30 are dropped: at most ~1e-26 relative error, and it
+    # keeps subnormal numbers (very slow arithmetic) out of the sum
+    keep = fk > 1e-30 * fk.max() if fk.size and fk.max() > 0 else np.zeros(fk.size, bool)
+    k_keep = k_e[keep]
+    om = np.asarray(omega, dtype=float)[:, None]
+    with np.errstate(invalid="ignore"):
+        return (om / (om + k_keep[None, :])) @ fk[keep]
 
 
 # ---------------------------------------------------------------- closed forms

@@ -462,12 +462,16 @@ def falloff_on_grid(model: UnimolecularModel, settings: FalloffSettings, bath: c
         warnings.append(f"channel {channel.name!r}: the energy grid is short for {t.max():g} K "
                         f"(population {tail:.1e} in its top tenth); raise energy_above_barrier_cm1")
 
-    fo = strong_collision_falloff(model.rate, t, m, collision_rate_m3_s=z, collision_efficiency=eff.beta)
+    # overall rotation the same way in both limits: J-resolved thresholds of the adiabatic 2-D rotor
+    shift = 1.0 - 1.0 / model.rate.centrifugal_factor
+    fo = strong_collision_falloff(model.rate, t, m, collision_rate_m3_s=z, collision_efficiency=eff.beta,
+                                        threshold_shift=shift)
     k_inf, k0 = fo.high_pressure_per_s, fo.low_pressure_m3_s
 
     # a common [M] grid spanning the study's number densities, for the Troe fit
     m_fit = _log_grid(float(m.min()), float(m.max()), 4, 9)
-    fo_fit = strong_collision_falloff(model.rate, t, m_fit, collision_rate_m3_s=z, collision_efficiency=eff.beta)
+    fo_fit = strong_collision_falloff(model.rate, t, m_fit, collision_rate_m3_s=z, collision_efficiency=eff.beta,
+                                        threshold_shift=shift)
 
     # dense curve for plots, two decades beyond the study's range on each side
     if pressures is not None:
@@ -478,7 +482,8 @@ def falloff_on_grid(model: UnimolecularModel, settings: FalloffSettings, bath: c
         p_curve = np.full(m_line.size, np.nan)
         m_curve = np.broadcast_to(m_line, (t.size, m_line.size)).copy()
     fo_curve = strong_collision_falloff(model.rate, t, m_curve, collision_rate_m3_s=z,
-                                        collision_efficiency=eff.beta)
+                                        collision_efficiency=eff.beta,
+                                        threshold_shift=shift)
 
     return ChannelFalloffCurves(
         model=model, settings=settings, bath=bath, temperature_K=t, pressure_Pa=pressures,
