@@ -56,6 +56,13 @@ def test_hcn_hnc_saddle_connects_both_minima(hcn_hnc):
     assert res.reactant.linear and res.product.linear
     assert res.reactant.energy_J_per_mol == pytest.approx(hcn.energy_J_per_mol, abs=10.0)
     assert res.product.energy_J_per_mol == pytest.approx(hnc.energy_J_per_mol, abs=10.0)
+    # the minima it connects to are recorded for the check against a channel's species, and they
+    # are these two structures (tstrate.physics.conformers)
+    from tstrate.physics.conformers import parse_xyz_lines, structure_difference_A
+
+    for key, side in (("reactant_side_geometry", res.reactant), ("product_side_geometry", res.product)):
+        symbols, positions = parse_xyz_lines(res.ts.provenance[key])
+        assert structure_difference_A(symbols, positions, side.symbols, side.positions_A) < 1e-5
     # the saddle is bent: H bridges C and N
     x = res.ts.positions_A
     d_ch, d_nh = np.linalg.norm(x[0] - x[2]), np.linalg.norm(x[1] - x[2])

@@ -287,9 +287,14 @@ def _compute(name, guess, reactant, product, charge, multiplicity, settings, neb
                              hint="try another guess or check the atom order of the ends")
     r_side, p_side = sides[order[0]], sides[order[1]]
     changes = conn.describe_changes(symbols, graphs[order[0]], graphs[order[1]])
+    from tstrate.physics.conformers import xyz_lines
+
     extra = {"origin": origin, "optimiser": f"Sella order=1 internal={internal}",
              "verification": f"downhill minimisations both ways along the imaginary mode: "
-                             f"{changes}"}
+                             f"{changes}",
+             # the minima this saddle point connects to, for the check against a channel's species
+             "reactant_side_geometry": xyz_lines(symbols, r_side.atoms.positions),
+             "product_side_geometry": xyz_lines(symbols, p_side.atoms.positions)}
     prov = provenance(settings, command=command, extra=extra)
     down = provenance(settings, command=command,
                       extra={"origin": f"minimised downhill from the saddle point {name}",

@@ -43,3 +43,40 @@ def capture_limits(study, rates) -> tuple[tuple, list[str]]:
                 "bottleneck is not rate-limiting there (a submerged barrier?); results.json gives the "
                 "capped value (1/k_TST + 1/k_capture)^-1 beside the uncapped one")
     return tuple(out), warnings
+
+
+def connection_warnings(study) -> list[str]:
+    """A warning for each channel whose transition state, by the minima the compute route found
+    downhill from it (``reactant_side_geometry`` / ``product_side_geometry`` in its [provenance]),
+    connects to another structure (e.g. another conformer) than the channel's own reactant-side
+    species (its complex, or its one reactant) or product complex. Channels whose TS records no
+    connected minima, or whose species have other atoms than the connected minimum, are not checked.
+    """
+    from tstrate.physics.conformers import SAME_STRUCTURE_TOLERANCE_A, parse_xyz_lines, structure_difference_A
+
+    out = []
+    for ch in study.channels:
+        ts = study.species[ch.transition_state]
+        sides = (("reactant_side_geometry", ch.complex or (ch.reactants[0] if ch.order == 1 else None)),
+                 ("product_side_geometry", getattr(ch, "product_complex", None)
+                  or (ch.products[0] if len(ch.products) == 1 else None)))
+        for key, target in sides:
+            text = ts.provenance.get(key)
+            if not text or target is None:
+                continue
+            try:
+                symbols, positions = parse_xyz_lines(text)
+            except ValueError:
+                out.append(f"channel {ch.name}: the {key} recorded in {ts.name}'s [provenance] is not "
+                           "'Symbol x y z' lines; the connection was not checked")
+                continue
+            sp = study.species[target]
+            diff = structure_difference_A(symbols, positions, sp.symbols, sp.positions_A)
+            if diff is not None and diff > SAME_STRUCTURE_TOLERANCE_A:
+                side = "reactant" if key.startswith("reactant") else "product"
+                out.append(f"channel {ch.name}: the transition state {ts.name} connects on its {side} side to "
+                           f"another structure than {target} (interatomic distances differ by up to "
+                           f"{diff:.2f} Angstrom: another conformer?); the rate constant is then that of "
+                           f"the conformer it connects to - check the channel's species, or add the "
+                           "conformers' equilibrium")
+    return out

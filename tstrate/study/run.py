@@ -78,7 +78,7 @@ def steps(study: Study) -> list[str]:
 def compute_study(study: Study, *, low_modes: LowModes = HARMONIC,
                   progress: Callable[[str], None] | None = None) -> StudyResult:
     """Compute everything ``study`` asks for. ``progress(step)`` is called before each step."""
-    from tstrate.study.rates import capture_limits, study_rates
+    from tstrate.study.rates import capture_limits, connection_warnings, study_rates
 
     def step(name):
         log.info("%s", name)
@@ -96,7 +96,7 @@ def compute_study(study: Study, *, low_modes: LowModes = HARMONIC,
     step("rate constants")
     rates = tuple(study_rates(study, low_modes=low_modes))
     capture, w = capture_limits(study, rates)
-    warnings += w
+    warnings += w + connection_warnings(study)
 
     comparisons = None
     if study.sections.get("comparison"):
