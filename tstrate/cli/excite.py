@@ -70,6 +70,7 @@ def _cli_spec(args, study):
     """The excitation given on the command line, or None."""
     import math
 
+    from tstrate.arrays import temperatures_K
     from tstrate.errors import InputError
     from tstrate.physics.activation import photon_energy_J_per_mol
     from tstrate.io.profiles import read_profile_csv, resolve_profile
@@ -112,8 +113,8 @@ def _cli_spec(args, study):
     elif channel not in {c.name for c in study.channels}:
         raise InputError(f"unknown channel {channel!r}", field="--channel",
                          hint="use one of " + ", ".join(c.name for c in study.channels))
-    if args.temperature is not None and any(not (math.isfinite(t) and t > 0) for t in args.temperature):
-        raise InputError("temperatures must be positive (kelvin)", field="--temperature")
+    if args.temperature is not None:
+        temperatures_K(args.temperature, name="--temperature", ndim=1)
     profile = args.profile
     if profile is None and args.altitude is not None:
         profile = US_STANDARD_1976

@@ -41,6 +41,9 @@ def compute(study_path, temperatures=None, low_modes="harmonic"):
     from tstrate.io.study import read_study
     from tstrate.output.records import channel_rates_record
     from tstrate.physics.thermo import LowModes
+    import sys
+
+    from tstrate.arrays import temperatures_K
     from tstrate.study.rates import capture_limits, study_rates
 
     if not isinstance(low_modes, LowModes):
@@ -49,14 +52,8 @@ def compute(study_path, temperatures=None, low_modes="harmonic"):
     if not study.channels:
         raise InputError("the study has no [[channel]] to compute", file=study.file, field="channel")
     if temperatures is not None:
-        import numpy as np
-
-        t = np.asarray(temperatures, dtype=float)
-        if np.any(t <= 0) or not np.all(np.isfinite(t)):
-            raise InputError("temperatures must be positive (kelvin)", field="--temperature")
+        temperatures_K(temperatures, name="--temperature", ndim=1)
     results = study_rates(study, low_modes=low_modes, temperature_K=temperatures)
-    import sys
-
     for w in capture_limits(study, results)[1]:
         print(f"tstrate rates: warning: {w}", file=sys.stderr)
     return study, [channel_rates_record(r, study.conditions.rate_units) for r in results]

@@ -52,13 +52,10 @@ def compute(files, temperatures_K, low_modes):
 
 
 def run(args) -> int:
-    import math
-
+    from tstrate.arrays import temperatures_K
     from tstrate.cli.common import format_table, low_modes_from_args, print_json
-    from tstrate.errors import InputError
 
-    if any(not (math.isfinite(t) and t > 0) for t in args.temperature or ()):
-        raise InputError("temperatures must be positive (kelvin)", field="--temperature")
+    temperatures_K(args.temperature, name="--temperature", ndim=1)
     low = low_modes_from_args(args)
     records = compute(args.files, args.temperature, low)
     if args.json:

@@ -58,7 +58,7 @@ def connection_warnings(study) -> list[str]:
     for ch in study.channels:
         ts = study.species[ch.transition_state]
         sides = (("reactant_side_geometry", ch.complex or (ch.reactants[0] if ch.order == 1 else None)),
-                 ("product_side_geometry", getattr(ch, "product_complex", None)
+                 ("product_side_geometry", ch.product_complex
                   or (ch.products[0] if len(ch.products) == 1 else None)))
         for key, target in sides:
             text = ts.provenance.get(key)
