@@ -48,10 +48,17 @@ def is_linear(positions_A, masses_amu, tolerance_A: float = DEFAULT_TOLERANCE_A)
 def closest_pair(positions_A) -> tuple[int, int, float]:
     """(i, j, distance [Angstrom]) of the two nuclei closest to each other (0-based; needs 2 atoms)."""
     x = np.asarray(positions_A, dtype=float)
-    d = np.linalg.norm(x[:, None] - x[None, :], axis=2)
-    d[np.diag_indices_from(d)] = np.inf
-    i, j = np.unravel_index(np.argmin(d), d.shape)
-    return int(i), int(j), float(d[i, j])
+    if len(x) <= 64:
+        d = np.linalg.norm(x[:, None] - x[None, :], axis=2)
+        d[np.diag_indices_from(d)] = np.inf
+        i, j = np.unravel_index(np.argmin(d), d.shape)
+        return int(i), int(j), float(d[i, j])
+    # a k-d tree keeps memory linear in the atom count (no N x N array)
+    from scipy.spatial import cKDTree
+
+    dist, idx = cKDTree(x).query(x, k=2)
+    i = int(np.argmin(dist[:, 1]))
+    return min(i, int(idx[i, 1])), max(i, int(idx[i, 1])), float(dist[i, 1])
 
 
 def expected_mode_count(natoms: int, linear: bool) -> int:

@@ -79,7 +79,7 @@ def species_files(tmp_path) -> list[Path]:
     h2co3.update(
         kind="minimum", frequency_scale=0.98,
         single_point={"value": -264.1, "unit": "hartree", "method": "CCSD(T)/CBS (invented)"},
-        linear=False, allow_imaginary_below_cm1=5.0,
+        linear=False, allow_imaginary_below_cm1=5.0, accept_unusual_wavenumbers=False,
         masses_amu=[12.0, 15.994915, 15.994915, 15.994915, 1.007825, 1.007825],
         electronic_levels=[{"energy_cm1": 0.0, "degeneracy": 1}, {"energy_cm1": 8000.0, "degeneracy": 3}],
         free_rotors=[{"replaces_cm1": 220.0, "symmetry_number": 1, "reduced_moment_amu_A2": 0.85},

@@ -69,6 +69,9 @@ SPECIES_KEYS = Keys((), "top level", "One species: a minimum or a transition sta
     Key("allow_imaginary_below_cm1", "number", "a minimum may have imaginary modes smaller than this; they "
         "are treated as real (with a warning). 0: any imaginary mode of a minimum is an error",
         default=0.0, unit="cm-1"),
+    Key("accept_unusual_wavenumbers", "true or false", "accept harmonic wavenumbers outside 5 to 5000 cm-1 "
+        "(imaginary 5i to 5000i), which are otherwise refused as a sign of a wrong or unfinished file",
+        default=False),
     Key("isotopes", "table", "isotopes of single atoms, `{ 3 = 2 }` (table `isotopes` below); needs a "
         "`[hessian]`, from which the frequencies are recomputed"),
     Key("masses_amu", "list of numbers", "every atom's mass, in the order of `geometry`",
@@ -194,6 +197,31 @@ def read_geometry(value: str, base: Path | None, *, file=None, field="geometry")
 
 # ---- building a species -----------------------------------------------------------
 
+#: accepted harmonic wavenumbers [cm^-1]: real modes from the low to the high bound, imaginary ones
+#: up to the third number (as magnitude); outside, a file is refused unless the user opts in
+#: (``accept_unusual_wavenumbers``). Real molecules stay inside: the highest harmonic
+#: wavenumber of any molecule is H2's 4401 cm-1; modes below 5 cm-1 are numerical noise or
+#: translations and rotations left in the list.
+WAVENUMBER_BOUNDS_CM1 = (5.0, 5000.0, 5000.0)
+
+
+def check_wavenumber_bounds(freqs, allow_imaginary_below_cm1: float = 0.0, *, file=None,
+                            field="frequencies_cm1") -> None:
+    """Refuse wavenumbers [cm^-1] outside :data:`WAVENUMBER_BOUNDS_CM1` (imaginary ones negative);
+    imaginary modes smaller than ``allow_imaginary_below_cm1`` (tolerated as real) are exempt."""
+    lo, hi, imag_hi = WAVENUMBER_BOUNDS_CM1
+    f = np.asarray(freqs, dtype=float)
+    tolerated = (f < 0) & (-f <= allow_imaginary_below_cm1)
+    real_bad = f[(f >= 0) & ((f < lo) | (f > hi))]
+    imag_bad = f[(f < 0) & ~tolerated & ((-f > imag_hi) | (-f < lo))]
+    if real_bad.size or imag_bad.size:
+        shown = ", ".join(f"{abs(v):.4g}{'i' if v < 0 else ''}" for v in np.concatenate([real_bad, imag_bad])[:4])
+        raise InputError(f"wavenumber(s) {shown} cm-1 outside the accepted {lo:g} to {hi:g} cm-1 "
+                         f"(imaginary {lo:g}i to {imag_hi:g}i)", file=file, field=field,
+                         hint="a mode of 0 cm-1 means a truncated or unfinished job; if the values are "
+                              "right, set accept_unusual_wavenumbers = true (--accept-unusual-wavenumbers)")
+
+
 def build_species(name: str, symbols, positions_A, *, charge: int = 0, multiplicity: int = 1,
                   kind: str = "minimum", frequencies_cm1=None, hessian_J_per_m2=None,
                   energy_J_per_mol: float | None = None, geometry_energy_J_per_mol: float | None = None,
@@ -203,7 +231,8 @@ def build_species(name: str, symbols, positions_A, *, charge: int = 0, multiplic
                   electronic_levels=(), allow_imaginary_below_cm1: float = 0.0,
                   lennard_jones=None, provenance: dict | None = None, source: str | None = None,
                   symmetry_tolerance_A: float = DEFAULT_TOLERANCE_A, free_rotors=(),
-                  symmetry_confirmed_with_isotopes: bool = False) -> Species:
+                  symmetry_confirmed_with_isotopes: bool = False,
+                  accept_unusual_wavenumbers: bool = False) -> Species:
     """Validate inputs and build a :class:`Species` (the one path from files and from Python).
 
     ``isotopes`` maps 0-based atom indices to mass numbers. When a Hessian is
@@ -256,6 +285,9 @@ def build_species(name: str, symbols, positions_A, *, charge: int = 0, multiplic
         raise InputError("give frequencies_cm1 or a [hessian]", file=file, field="frequencies_cm1")
     freqs = np.sort(freqs)
 
+    if not accept_unusual_wavenumbers:
+        check_wavenumber_bounds(freqs, allow_imaginary_below_cm1, file=file,
+                                field="hessian" if hessian_J_per_m2 is not None else "frequencies_cm1")
     imag = freqs[freqs < 0]
     if kind == "minimum" and len(imag) and np.all(-imag <= allow_imaginary_below_cm1):
         log.warning("%s: %d small imaginary frequencies treated as real", name, len(imag))
@@ -426,6 +458,8 @@ def read_species(path: str | Path, *, name: str | None = None) -> Species:
                                         SPECIES_KEYS.default("allow_imaginary_below_cm1")),
         lennard_jones=lj, provenance=provenance, source=file, free_rotors=rotors,
         symmetry_confirmed_with_isotopes=confirmed,
+        accept_unusual_wavenumbers=t.get("accept_unusual_wavenumbers", bool,
+                                         SPECIES_KEYS.default("accept_unusual_wavenumbers")),
     )
 
 
@@ -489,6 +523,10 @@ def species_to_toml(species: Species, *, include_hessian: bool = True,
         if nm.imaginary_count:
             worst = float(-nm.frequencies_cm1.min())
             lines.append(f"allow_imaginary_below_cm1 = {math.floor(worst * 10) / 10 + 0.1:.1f}")
+    try:
+        check_wavenumber_bounds(species.frequencies_cm1, float("inf"))
+    except InputError:  # the species was built with the bounds lifted: the file says so again
+        lines.append("accept_unusual_wavenumbers = true")
     if species.lennard_jones:
         lines.append(f"lennard_jones = {{ sigma_A = {_toml_num(species.lennard_jones[0])}, "
                      f"epsilon_K = {_toml_num(species.lennard_jones[1])} }}")

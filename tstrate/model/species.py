@@ -27,6 +27,20 @@ KINDS = ("minimum", "transition_state")
 
 #: closest approach of two nuclei accepted in a geometry [Angstrom]
 MIN_DISTANCE_A = 0.4
+#: largest number of atoms of one species (stationary points of gas-phase kinetics are far smaller;
+#: the limit keeps a wrong file from asking for gigabytes of atom-pair arrays)
+MAX_ATOMS = 1000
+#: largest |coordinate| accepted [Angstrom]
+MAX_COORDINATE_A = 1.0e4
+#: largest |electronic energy| accepted [J/mol] (1e6 hartree; heavier than any molecule)
+MAX_ABS_ENERGY_J_PER_MOL = 2.6e12
+#: accepted range of frequency scale factors (published factors lie within 0.8-1.1)
+FREQUENCY_SCALE_RANGE = (0.5, 1.5)
+#: largest symmetry number (and number of optical isomers) accepted
+MAX_SYMMETRY_NUMBER = 60
+#: largest degeneracy and energy of an electronic level accepted
+MAX_LEVEL_DEGENERACY = 100
+MAX_LEVEL_ENERGY_CM1 = 2.0e5
 
 #: the fields of a species that symmetry detection fills in unless they are given
 SYMMETRY_FIELDS = ("symmetry_number", "optical_isomers", "linear")
@@ -253,6 +267,9 @@ def check_geometry(symbols, positions_A, *, file=None, field="geometry"):
     n = len(symbols)
     if n == 0:
         raise InputError("no atoms", file=file, field=field)
+    if n > MAX_ATOMS:
+        raise InputError(f"{n} atoms; tstrate takes species of at most {MAX_ATOMS} atoms", file=file,
+                         field=field)
     for i, s in enumerate(symbols):
         if s not in atomic_numbers or s == "X":
             raise InputError(f"unknown element {s!r} (atom {i + 1})", file=file, field=field)
@@ -264,12 +281,37 @@ def check_geometry(symbols, positions_A, *, file=None, field="geometry"):
         raise InputError(f"{n} symbols but {len(positions)} positions", file=file, field=field)
     if not np.all(np.isfinite(positions)):
         raise InputError("coordinates hold NaN or infinite values", file=file, field=field)
+    if np.max(np.abs(positions)) > MAX_COORDINATE_A:
+        raise InputError(f"a coordinate of {np.max(np.abs(positions)):.3g} Angstrom is beyond "
+                         f"{MAX_COORDINATE_A:g} Angstrom", file=file, field=field,
+                         hint="check the units (Angstrom expected)")
     if n > 1:
         i, j, d = closest_pair(positions)
         if d < MIN_DISTANCE_A:
             raise InputError(f"atoms {i + 1} and {j + 1} overlap ({d:.3f} Angstrom apart)", file=file,
                              field=field, hint="check the units (Angstrom expected)")
     return symbols, positions
+
+
+#: largest accepted asymmetry of a Hessian, max |H - H^T| relative to max |H| (printed Hessians
+#: agree with their transpose to the digits printed; one triangle given alone is off by order 1)
+HESSIAN_ASYMMETRY_RTOL = 1.0e-3
+
+
+def hessian_problem(hess) -> str | None:
+    """What makes a square Cartesian Hessian unusable, in words, or None: non-finite values,
+    all zeros, or an asymmetry beyond :data:`HESSIAN_ASYMMETRY_RTOL` (which is reported)."""
+    h = np.asarray(hess, dtype=float)
+    if not np.all(np.isfinite(h)):
+        return "Hessian holds NaN or infinite values"
+    scale = float(np.max(np.abs(h))) if h.size else 0.0
+    if scale == 0.0:
+        return "the Hessian is all zeros"
+    asym = float(np.max(np.abs(h - h.T))) / scale
+    if asym > HESSIAN_ASYMMETRY_RTOL:
+        return (f"the Hessian is not symmetric: max |H - H^T| is {asym:.3g} of its largest element "
+                f"(at most {HESSIAN_ASYMMETRY_RTOL:g} accepted); was only one triangle given?")
+    return None
 
 
 def _validate_species(sp: Species) -> None:
@@ -306,6 +348,9 @@ def _validate_species(sp: Species) -> None:
     electrons = sum(atomic_numbers[s] for s in symbols) - sp.charge
     if electrons < 0:
         raise bad("charge", f"charge {sp.charge} leaves {electrons} electrons")
+    if sp.multiplicity > electrons + 1:
+        raise bad("multiplicity", f"multiplicity {sp.multiplicity} needs {sp.multiplicity - 1} unpaired "
+                                  f"electrons, but the species has {electrons} electrons")
     if (electrons + sp.multiplicity) % 2 == 0:  # 2S+1 must be odd for an even electron count
         raise bad("multiplicity", f"multiplicity {sp.multiplicity} is impossible with {electrons} electrons",
                   hint="an even electron count needs an odd multiplicity (1, 3, ...) and vice versa")
@@ -313,12 +358,18 @@ def _validate_species(sp: Species) -> None:
     for key in ("energy_J_per_mol", "geometry_energy_J_per_mol"):
         value = getattr(sp, key)
         if value is not None:
+            key_name = "energy" if key.startswith("geometry") else "single_point"
             if not math.isfinite(finite_or_nan(value)):
-                raise bad("energy" if key.startswith("geometry") else "single_point",
-                          f"the energy must be a finite number, got {value!r}")
+                raise bad(key_name, f"the energy must be a finite number, got {value!r}")
+            if abs(value) > MAX_ABS_ENERGY_J_PER_MOL:
+                raise bad(key_name, f"an electronic energy of {value / 1e3:.4g} kJ/mol is beyond any molecule's "
+                                    f"({MAX_ABS_ENERGY_J_PER_MOL / 1e3:.3g} kJ/mol)",
+                          hint="check the energy's value and unit")
             store(key, float(value))
-    if not finite_or_nan(sp.frequency_scale) > 0:
-        raise bad("frequency_scale", "frequency scale factor must be positive")
+    lo, hi = FREQUENCY_SCALE_RANGE
+    if not lo <= finite_or_nan(sp.frequency_scale) <= hi:
+        raise bad("frequency_scale", f"frequency scale factor {sp.frequency_scale!r} is outside {lo} to {hi}",
+                  hint="published scale factors of harmonic wavenumbers lie between about 0.8 and 1.1")
     store("frequency_scale", float(sp.frequency_scale))
 
     freqs = np.array(sp.frequencies_cm1, dtype=float).ravel()
@@ -345,9 +396,12 @@ def _validate_species(sp: Species) -> None:
     for key in ("symmetry_number", "optical_isomers"):
         value = getattr(sp, key)
         v = finite_or_nan(value)
+        what = {"symmetry_number": "symmetry number", "optical_isomers": "number of optical isomers"}[key]
         if isinstance(value, bool) or not v >= 1 or v != int(v):
-            what = {"symmetry_number": "symmetry number", "optical_isomers": "number of optical isomers"}[key]
             raise bad(key, f"{what} must be 1 or more (an integer), got {value!r}")
+        if v > MAX_SYMMETRY_NUMBER:
+            raise bad(key, f"{what} {value!r} is above {MAX_SYMMETRY_NUMBER} (the icosahedral groups "
+                           "give 60, the largest symmetry number of any point group)")
         store(key, int(value))
 
     levels = tuple(sp.electronic_levels)
@@ -355,6 +409,10 @@ def _validate_species(sp: Species) -> None:
         if (not isinstance(lv, ElectronicLevel) or not finite_or_nan(lv.degeneracy) >= 1
                 or not finite_or_nan(lv.energy_cm1) >= 0):
             raise bad("electronic_levels", "electronic levels need degeneracy >= 1 and energy >= 0")
+        if lv.degeneracy > MAX_LEVEL_DEGENERACY or lv.energy_cm1 > MAX_LEVEL_ENERGY_CM1:
+            raise bad("electronic_levels", f"an electronic level of degeneracy {lv.degeneracy!r} at "
+                                           f"{lv.energy_cm1!r} cm-1 is beyond degeneracy "
+                                           f"{MAX_LEVEL_DEGENERACY} or {MAX_LEVEL_ENERGY_CM1:g} cm-1")
     if levels and min(lv.energy_cm1 for lv in levels) != 0.0:
         raise bad("electronic_levels", "the lowest electronic level must be at 0 cm-1")
     store("electronic_levels", levels)
@@ -363,14 +421,18 @@ def _validate_species(sp: Species) -> None:
         hess = np.array(sp.hessian_J_per_m2, dtype=float)
         if hess.shape != (3 * n, 3 * n):
             raise bad("hessian", f"the Hessian must be {3 * n} x {3 * n} for {n} atoms, got shape {hess.shape}")
-        if not np.all(np.isfinite(hess)):
-            raise bad("hessian", "Hessian holds NaN or infinite values")
+        problem = hessian_problem(hess)
+        if problem:
+            raise bad("hessian", problem)
         store("hessian_J_per_m2", read_only(hess))
 
     if sp.lennard_jones is not None:
         lj = tuple(finite_or_nan(x) for x in sp.lennard_jones)
         if len(lj) != 2 or not (lj[0] > 0 and lj[1] > 0):
             raise bad("lennard_jones", "sigma_A and epsilon_K must be positive")
+        if lj[0] > 30.0 or lj[1] > 1.0e4:
+            raise bad("lennard_jones", f"sigma_A = {lj[0]:g} Angstrom, epsilon_K = {lj[1]:g} K are beyond "
+                                       "any gas (sigma up to 30 Angstrom, epsilon/k_B up to 1e4 K accepted)")
         store("lennard_jones", lj)
     store("provenance", dict(sp.provenance or {}))
     given = tuple(sp.symmetry_given)

@@ -126,8 +126,11 @@ def vibrational_analysis(hessian_J_per_m2, positions_A, masses_amu,
     if h.shape != (3 * n, 3 * n):
         raise InputError(f"Hessian has shape {h.shape}, expected {(3 * n, 3 * n)} for {n} atoms",
                          field="hessian")
-    if not np.all(np.isfinite(h)):
-        raise InputError("Hessian holds NaN or infinite values", field="hessian")
+    from tstrate.model.species import hessian_problem
+
+    problem = hessian_problem(h)
+    if problem:
+        raise InputError(problem, field="hessian")
     h = 0.5 * (h + h.T)
     if linear is None:
         linear = is_linear(x, m)
