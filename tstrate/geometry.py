@@ -66,3 +66,16 @@ def expected_mode_count(natoms: int, linear: bool) -> int:
     if natoms == 1:
         return 0
     return 3 * natoms - (5 if linear else 6)
+
+
+def kabsch_rmsd(positions_a_A, positions_b_A) -> float:
+    """RMSD [Angstrom] of two geometries of the same atoms in the same order after the best proper
+    superposition (Kabsch 1976: centroids matched, rotation from the SVD of the covariance)."""
+    a = np.asarray(positions_a_A, dtype=float)
+    b = np.asarray(positions_b_A, dtype=float)
+    a = a - a.mean(axis=0)
+    b = b - b.mean(axis=0)
+    u, _, vt = np.linalg.svd(a.T @ b)
+    d = np.sign(np.linalg.det(vt.T @ u.T)) or 1.0
+    rot = vt.T @ np.diag([1.0, 1.0, d]) @ u.T
+    return float(np.sqrt(np.mean(np.sum((a @ rot.T - b) ** 2, axis=1))))

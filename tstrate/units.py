@@ -56,10 +56,32 @@ PRESSURE_UNITS_PA: dict[str, float] = {
 }
 
 
+#: other spellings of the energy units, compared without case and spaces
+ENERGY_UNIT_ALIASES: dict[str, str] = {
+    "eh": "hartree", "ha": "hartree", "au": "hartree", "a.u.": "hartree",
+    "kj/mol": "kJ/mol", "kjmol-1": "kJ/mol", "kjmol^-1": "kJ/mol",
+    "kcal/mol": "kcal/mol", "kcalmol-1": "kcal/mol", "ev": "eV", "j/mol": "J/mol",
+    "cm-1": "cm-1", "cm^-1": "cm-1", "1/cm": "cm-1", "k": "K",
+}
+
+
+def energy_unit(unit: str) -> str:
+    """The key of :data:`ENERGY_UNITS_J_PER_MOL` that ``unit`` spells, case and spaces ignored
+    (``Hartree``, ``Eh`` and ``au`` are ``hartree``); unknown spellings come back unchanged."""
+    if unit in ENERGY_UNITS_J_PER_MOL:
+        return unit
+    folded = str(unit).replace(" ", "").lower()
+    for name in ENERGY_UNITS_J_PER_MOL:
+        if name.lower() == folded:
+            return name
+    return ENERGY_UNIT_ALIASES.get(folded, unit)
+
+
 def energy_to_J_per_mol(value, unit: str, *, file=None, field=None):
-    """Convert an energy given in ``unit`` to J/mol (arrays pass through numpy)."""
+    """Convert an energy given in ``unit`` to J/mol (arrays pass through numpy); the unit's case
+    does not matter (:func:`energy_unit`)."""
     try:
-        factor = ENERGY_UNITS_J_PER_MOL[unit]
+        factor = ENERGY_UNITS_J_PER_MOL[energy_unit(unit)]
     except KeyError:
         raise InputError(f"unknown energy unit {unit!r}", file=file, field=field,
                          hint="use one of " + ", ".join(ENERGY_UNITS_J_PER_MOL)) from None

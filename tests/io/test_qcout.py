@@ -54,7 +54,7 @@ def _printed(d):
 
 @needs_xtb
 def test_energy_unit_and_frequencies_from_cclib(xtb_water):
-    sp = read_output(xtb_water / "h2o.out", name="H2O")
+    sp = read_output(xtb_water / "h2o.out", multiplicity=1, name="H2O")
     e_hartree, freqs = _printed(xtb_water)
     # cclib 1.8 stores energies in eV; converted back they must match the printed hartree value
     assert sp.energy_J_per_mol == pytest.approx(e_hartree * HARTREE, abs=1e-6 * HARTREE)
@@ -66,7 +66,7 @@ def test_energy_unit_and_frequencies_from_cclib(xtb_water):
 
 @needs_xtb
 def test_hessian_file_gives_the_printed_frequencies(xtb_water):
-    sp = read_output(xtb_water / "h2o.out", hessian_file=xtb_water / "hessian")
+    sp = read_output(xtb_water / "h2o.out", multiplicity=1, hessian_file=xtb_water / "hessian")
     _, freqs = _printed(xtb_water)
     # tstrate's projection of xtb's Hessian against xtb's own projected frequencies
     np.testing.assert_allclose(sp.frequencies_cm1, np.sort(freqs), atol=0.5)
@@ -84,7 +84,7 @@ def test_round_trip_matches_direct_route(xtb_water, tmp_path, monkeypatch):
     monkeypatch.setenv("TSTRATE_CACHE", str(tmp_path / "cache"))
     from tstrate.compute.minima import compute_minimum
 
-    read = read_output(xtb_water / "h2o.out", name="H2O", hessian_file=xtb_water / "hessian")
+    read = read_output(xtb_water / "h2o.out", multiplicity=1, name="H2O", hessian_file=xtb_water / "hessian")
     path = write_species(read, tmp_path / "h2o.toml")
     back = read_species(path)
     np.testing.assert_allclose(back.frequencies_cm1, read.frequencies_cm1, atol=0.01)
@@ -109,19 +109,24 @@ def test_round_trip_matches_direct_route(xtb_water, tmp_path, monkeypatch):
 
 @needs_xtb
 def test_single_point_overrides_geometry_energy(xtb_water):
-    sp = read_output(xtb_water / "h2o.out", single_point="-76.4 hartree")
+    sp = read_output(xtb_water / "h2o.out", multiplicity=1, single_point="-76.4 hartree")
     assert sp.energy_J_per_mol == pytest.approx(-76.4 * HARTREE)
     assert sp.geometry_energy_J_per_mol == pytest.approx(-5.0705 * HARTREE, rel=1e-3)
-    from_file = read_output(xtb_water / "h2o.out", single_point=str(xtb_water / "h2o.out"))
+    from_file = read_output(xtb_water / "h2o.out", multiplicity=1, single_point=str(xtb_water / "h2o.out"))
     assert from_file.energy_J_per_mol == pytest.approx(from_file.geometry_energy_J_per_mol)
 
 
 @needs_xtb
 def test_geometry_file_needs_modes(xtb_water):
     with pytest.raises(InputError, match="no vibrational frequencies or Hessian.*--hessian FILE"):
-        read_output(xtb_water / "xtbopt.xyz")
-    sp = read_output(xtb_water / "xtbopt.xyz", hessian_file=xtb_water / "hessian")
-    assert len(sp.frequencies_cm1) == 3 and sp.energy_J_per_mol is None
+        read_output(xtb_water / "xtbopt.xyz", charge=0, multiplicity=1)
+    # a geometry file holds no energy: said at read time, not later by a rate calculation
+    with pytest.raises(InputError, match=r"\[energy\]: the file holds no electronic energy"):
+        read_output(xtb_water / "xtbopt.xyz", charge=0, multiplicity=1, hessian_file=xtb_water / "hessian")
+    sp = read_output(xtb_water / "xtbopt.xyz", charge=0, multiplicity=1, single_point="-5.07 Eh",
+                     hessian_file=xtb_water / "hessian")
+    assert len(sp.frequencies_cm1) == 3 and sp.geometry_energy_J_per_mol is None
+    assert sp.energy_J_per_mol == pytest.approx(-5.07 * 2625499.639, rel=1e-9)  # CODATA 2018 hartree
 
 
 def test_bad_inputs(tmp_path):
@@ -141,7 +146,7 @@ def test_geometry_without_modes_names_the_hessian_option(tmp_path):
     xyz = tmp_path / "w.xyz"
     xyz.write_text(WATER_XYZ)
     with pytest.raises(InputError, match="--hessian FILE") as info:
-        read_output(xyz)
+        read_output(xyz, charge=0, multiplicity=1)
     assert info.value.file == str(xyz)
 
 
@@ -150,7 +155,7 @@ def test_binary_or_folder_hessian_file(tmp_path):
     from tstrate.io.qcout import read_hessian_file
 
     binary = tmp_path / "hessian"
-    binary.write_bytes(b"\xd0\xff\x00\x81" * 20)
+    binary.write_bytes(b"\xd0\xff\x00\x81" * 40)
     with pytest.raises(InputError, match="not a text file") as info:
         read_hessian_file(binary, 3)
     assert info.value.file == str(binary)

@@ -140,7 +140,7 @@ def compute_outputs(tmp_path_factory):
         with open(tmp / "h2o.out", "w") as log:
             subprocess.run(["xtb", "h2o.xyz", "--ohess"], cwd=tmp, stdout=log, stderr=subprocess.STDOUT,
                            check=True, env={"OMP_NUM_THREADS": "1", "PATH": "/usr/bin:/bin"})
-        got.append(("tstrate compute read", run_cli_json(["compute", "read", str(tmp / "h2o.out"), "--json"])))
+        got.append(("tstrate compute read", run_cli_json(["compute", "read", str(tmp / "h2o.out"), "--multiplicity", "1", "--json"])))
     finally:
         if old is None:
             os.environ.pop("TSTRATE_CACHE", None)

@@ -127,15 +127,27 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
     p.add_argument("--hessian", help="Hessian file of plain numbers in hartree/bohr^2 (as xtb writes "
                    "its 'hessian' file); needed for a geometry file; with an output file that lists "
                    "frequencies it must reproduce them within 2 %%")
+    p.add_argument("--geometry", metavar="FILE", help="coordinates (any file ASE reads) for an output that "
+                   "holds none, e.g. a Hessian-only output, or for --hessian; same atoms, same order")
     p.add_argument("--kind", choices=("minimum", "transition_state"),
-                   help="default: transition_state with exactly one imaginary mode, else minimum")
+                   help="default: transition_state with exactly one imaginary mode (larger than "
+                        "--allow-imaginary-below-cm1), else minimum")
+    p.add_argument("--allow-imaginary-below-cm1", type=float, default=0.0, metavar="CM1",
+                   help="a minimum may have imaginary modes smaller than this [cm^-1]; they are treated "
+                        "as real, with a warning, and the file written says so (default 0: none)")
+    p.add_argument("--accept-unusual-wavenumbers", action="store_true",
+                   help="accept wavenumbers outside 5 to 5000 cm-1 (imaginary 5i to 5000i), which are "
+                        "otherwise refused as a sign of a cut, unfinished or wrong file")
+    p.add_argument("--max-file-mib", type=float, default=512.0, metavar="MIB",
+                   help="largest output file read [MiB] (default 512); larger files are refused unread")
     p.add_argument("--scale", type=float, default=1.0, help="frequency scale factor applied to every "
                    "wavenumber, stored as frequency_scale (default 1)")
     p.add_argument("-o", "--output", help="species file to write (.toml); without it nothing is written, only a summary is printed")
     _common(p, semi_empirical=False,
-            charge_help="total charge (default: the one QC_FILE gives; 0 for a geometry file)",
-            multiplicity_help="spin multiplicity 2S+1 (default: the one QC_FILE gives; 1 for a "
-                              "geometry file)")
+            charge_help="total charge (default: the one QC_FILE gives; required when it gives none, "
+                        "as with a geometry file)",
+            multiplicity_help="spin multiplicity 2S+1 (default: the one QC_FILE gives; required when "
+                              "it gives none, as with xtb outputs and geometry files)")
 
 
 # ---- helpers ----------------------------------------------------------------------
@@ -335,13 +347,22 @@ def _run_relay(args) -> int:
 def _run_read(args) -> int:
     from tstrate.io.qcout import read_output
 
-    inputs = [args.file, args.hessian]
+    inputs = [args.file, args.hessian, args.geometry]
     if args.single_point and os.path.exists(args.single_point):
         inputs.append(args.single_point)
     (out,) = _outputs(args, inputs, "output")
+    if not (args.max_file_mib > 0 and args.max_file_mib < 1e6):
+        raise InputError(f"--max-file-mib {args.max_file_mib:g} must be a positive size below 1e6 MiB",
+                         field="--max-file-mib")
+    if not (0.0 <= args.allow_imaginary_below_cm1 <= 1000.0):
+        raise InputError(f"--allow-imaginary-below-cm1 {args.allow_imaginary_below_cm1:g} must lie in 0 to "
+                         "1000 cm-1", field="--allow-imaginary-below-cm1")
     sp = read_output(args.file, name=args.name, kind=args.kind, charge=args.charge,
                      multiplicity=args.multiplicity, single_point=args.single_point,
-                     hessian_file=args.hessian, frequency_scale=args.scale)
+                     hessian_file=args.hessian, geometry_file=args.geometry, frequency_scale=args.scale,
+                     allow_imaginary_below_cm1=args.allow_imaginary_below_cm1,
+                     accept_unusual_wavenumbers=args.accept_unusual_wavenumbers,
+                     max_file_bytes=int(args.max_file_mib * 2**20))
     sp = sp.with_changes(provenance=sp.provenance | {"command": _command_line(args)})
     _write(sp, out)
     if args.json:

@@ -42,13 +42,10 @@ def read_profile_csv(path) -> AtmosphereProfile:
     with ``#`` are skipped; altitudes must increase strictly. Bad rows raise
     InputError naming the file and line.
     """
-    path = Path(path)
-    if path.is_dir():
-        raise InputError("is a folder, not a profile file (CSV expected)", file=str(path))
+    from tstrate.io.files import checked_input_file
+
+    path = checked_input_file(path, max_bytes=MAX_PROFILE_BYTES, what="profile file (CSV)")
     try:
-        if path.stat().st_size > MAX_PROFILE_BYTES:
-            raise InputError(f"profile file is larger than {MAX_PROFILE_BYTES // 2**20} MiB; an altitude "
-                             "profile has at most a few thousand rows", file=str(path))
         text = path.read_text(encoding="utf-8")
     except OSError as exc:
         raise InputError(f"cannot read profile: {exc.strerror or exc}", file=str(path)) from None

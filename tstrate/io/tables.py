@@ -33,24 +33,12 @@ def load_toml(path: str | Path) -> dict:
 
     Only regular files are opened (a pipe or a device could block or never end), and a file
     larger than :data:`MAX_TOML_BYTES` is refused before it is read."""
-    import stat
+    from tstrate.io.files import checked_input_file
 
-    path = Path(path)
+    path = checked_input_file(path, max_bytes=MAX_TOML_BYTES, what="file")
     try:
-        info = path.stat()
-        if stat.S_ISDIR(info.st_mode):
-            raise IsADirectoryError
-        if not stat.S_ISREG(info.st_mode):
-            raise InputError("is not a regular file (TOML expected)", file=str(path))
-        if info.st_size > MAX_TOML_BYTES:
-            raise InputError(f"is larger than {MAX_TOML_BYTES // 2**20} MiB; a species or study file is far smaller",
-                             file=str(path))
         with open(path, "rb") as fh:
             return tomllib.load(fh)
-    except FileNotFoundError:
-        raise InputError("file does not exist", file=str(path)) from None
-    except IsADirectoryError:
-        raise InputError("is a folder, not a file", file=str(path)) from None
     except tomllib.TOMLDecodeError as exc:
         raise InputError(f"not valid TOML: {exc}", file=str(path)) from None
     except UnicodeDecodeError:
