@@ -13,10 +13,17 @@ import numpy as np
 from tstrate.errors import InputError
 
 
-def temperatures_K(values, *, name: str = "temperature_K", ndim: int | None = None) -> np.ndarray:
+#: highest temperature accepted [K] (molecules dissociate long before)
+MAX_TEMPERATURE_K = 1.0e5
+
+
+def temperatures_K(values, *, name: str = "temperature_K", ndim: int | None = None,
+                   upper_K: float | None = None) -> np.ndarray:
     """``values`` as a float array of temperatures [K]: non-empty, finite and positive.
 
     ``ndim=1`` also turns a scalar into a 1-element array and refuses anything deeper.
+    ``upper_K``: refuse temperatures above it (inputs pass :data:`MAX_TEMPERATURE_K`; the physics
+    functions take any positive temperature, limits included).
     """
     try:
         T = np.asarray(values, dtype=float)
@@ -32,6 +39,9 @@ def temperatures_K(values, *, name: str = "temperature_K", ndim: int | None = No
     if not np.all(ok):
         bad = T[~ok].ravel()[0]
         raise InputError(f"temperatures must be positive and finite (kelvin), got {bad:g}", field=name)
+    if upper_K is not None and np.max(T) > upper_K:
+        raise InputError(f"temperature {np.max(T):g} K is above {upper_K:g} K, where no molecule "
+                         "survives", field=name)
     return T
 
 

@@ -105,7 +105,7 @@ def study_data() -> dict:
                               rate_units={"unimolecular": "s-1", "bimolecular": "L mol-1 s-1",
                                           "termolecular": "cm6 molecule-2 s-1"})
     one_water = next(c for c in data["channel"] if c["name"] == "one_water")
-    one_water.update(degeneracy=2.0, tunnelling_floor="complex")
+    one_water.update(degeneracy=2.0, tunnelling_floor="complex", accept_large_energy_differences=False)
     # product_complex: any minimum with the products' atoms will do for reading every key
     next(c for c in data["channel"] if c["name"] == "bare").update(product_complex="H2CO3")
     base = {"reference": "bare", "assisted": ["one_water"], "catalyst": "H2O"}

@@ -94,7 +94,7 @@ def test_bad_profile_rows(tmp_path, text, match):
 
 
 def test_missing_profile_file(tmp_path):
-    with pytest.raises(InputError, match="cannot read profile"):
+    with pytest.raises(InputError, match="profile file .CSV. does not exist"):
         read_profile_csv(tmp_path / "nope.csv")
 
 

@@ -70,7 +70,7 @@ def _cli_spec(args, study):
     """The excitation given on the command line, or None."""
     import math
 
-    from tstrate.arrays import temperatures_K
+    from tstrate.arrays import MAX_TEMPERATURE_K, temperatures_K
     from tstrate.errors import InputError
     from tstrate.physics.activation import photon_energy_J_per_mol
     from tstrate.io.profiles import read_profile_csv, resolve_profile
@@ -114,7 +114,7 @@ def _cli_spec(args, study):
         raise InputError(f"unknown channel {channel!r}", field="--channel",
                          hint="use one of " + ", ".join(c.name for c in study.channels))
     if args.temperature is not None:
-        temperatures_K(args.temperature, name="--temperature", ndim=1)
+        temperatures_K(args.temperature, name="--temperature", ndim=1, upper_K=MAX_TEMPERATURE_K)
     profile = args.profile
     if profile is None and args.altitude is not None:
         profile = US_STANDARD_1976

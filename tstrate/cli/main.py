@@ -59,6 +59,9 @@ def main(argv: list[str] | None = None) -> int:
     args = parser.parse_args(argv)
     logging.basicConfig(level=logging.INFO if args.verbose else logging.WARNING,
                         format="tstrate: %(levelname)s: %(message)s")
+    # numpy's and other libraries' RuntimeWarnings are for developers: logged with --verbose only
+    logging.captureWarnings(True)
+    logging.getLogger("py.warnings").setLevel(logging.INFO if args.verbose else logging.ERROR)
     if not getattr(args, "_run", None):
         parser.error("give a command: " + ", ".join(SUBCOMMANDS) + " (tstrate --help describes them)")
     try:

@@ -43,7 +43,7 @@ def compute(study_path, temperatures=None, low_modes="harmonic"):
     from tstrate.physics.thermo import LowModes
     import sys
 
-    from tstrate.arrays import temperatures_K
+    from tstrate.arrays import MAX_TEMPERATURE_K, temperatures_K
     from tstrate.study.rates import capture_limits, study_rates
 
     if not isinstance(low_modes, LowModes):
@@ -52,7 +52,7 @@ def compute(study_path, temperatures=None, low_modes="harmonic"):
     if not study.channels:
         raise InputError("the study has no [[channel]] to compute", file=study.file, field="channel")
     if temperatures is not None:
-        temperatures_K(temperatures, name="--temperature", ndim=1)
+        temperatures_K(temperatures, name="--temperature", ndim=1, upper_K=MAX_TEMPERATURE_K)
     results = study_rates(study, low_modes=low_modes, temperature_K=temperatures)
     for w in capture_limits(study, results)[1]:
         print(f"tstrate rates: warning: {w}", file=sys.stderr)

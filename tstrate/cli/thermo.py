@@ -52,10 +52,10 @@ def compute(files, temperatures_K, low_modes):
 
 
 def run(args) -> int:
-    from tstrate.arrays import temperatures_K
+    from tstrate.arrays import MAX_TEMPERATURE_K, temperatures_K
     from tstrate.cli.common import format_table, low_modes_from_args, print_json
 
-    temperatures_K(args.temperature, name="--temperature", ndim=1)
+    temperatures_K(args.temperature, name="--temperature", ndim=1, upper_K=MAX_TEMPERATURE_K)
     low = low_modes_from_args(args)
     records = compute(args.files, args.temperature, low)
     if args.json:

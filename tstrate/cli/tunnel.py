@@ -70,10 +70,16 @@ def compute(imag_freq_cm1: float, V1_J_per_mol: float, V2_J_per_mol: float, mode
     from tstrate.errors import InputError
     from tstrate.physics import tunnelling
 
-    T = np.asarray(temperatures_K, dtype=float)
+    from tstrate.arrays import MAX_TEMPERATURE_K
+    from tstrate.arrays import temperatures_K as checked_temperatures
+
+    T = checked_temperatures(temperatures_K, name="--temperature", ndim=1, upper_K=MAX_TEMPERATURE_K)
+    if not (np.isfinite(imag_freq_cm1) and 0 < imag_freq_cm1 <= 5000.0):
+        raise InputError(f"the imaginary frequency (its magnitude) must be positive and at most 5000 cm-1, got "
+                         f"{imag_freq_cm1:g}", field="--imaginary-cm1")
     for value, option in ((V1_J_per_mol, "--forward-barrier"), (V2_J_per_mol, "--reverse-barrier")):
-        if not np.isfinite(value) or value < 0:
-            raise InputError(f"a barrier must be a finite number >= 0, got {value / 1e3:g} kJ/mol",
+        if not np.isfinite(value) or value < 0 or value > 2.0e6:
+            raise InputError(f"a barrier must be >= 0 and at most 2000 kJ/mol, got {value / 1e3:g} kJ/mol",
                              field=option, hint="both barriers are measured down from the top")
     if energy_floor_J_per_mol is not None and not np.isfinite(energy_floor_J_per_mol):
         raise InputError("the energy floor must be a finite number", field="--energy-floor")

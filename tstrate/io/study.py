@@ -105,13 +105,79 @@ CHANNEL_KEYS = Keys(("channel", "[]"), "[[channel]]",
                             "(reached downhill from the saddle point); the reverse barrier of the tunnelling "
                             "model is measured from it instead of from the separated products",
                             default_text="none: the reverse barrier from the separated products"),
+                        Key("accept_large_energy_differences", "true or false", "accept a barrier, reaction "
+                            "or complexation energy beyond +/-2000 kJ/mol, which is otherwise refused as an "
+                            "energy on the wrong scale (hartree given as kJ/mol, another molecule's file)",
+                            default=False),
                     ))
+
+#: largest |barrier|, |reaction energy| or |complexation energy| of a channel accepted unless the
+#: channel opts in [J/mol]: far above any chemical barrier, far below the mismatch of an energy in
+#: the wrong unit or from another molecule (hundreds of thousands of kJ/mol)
+MAX_CHANNEL_ENERGY_J_PER_MOL = 2.0e6
+
+
+def check_energy_scale(t: Table, name: str, reactants, ts, products, cx, pcx, species) -> None:
+    """Refuse energies of a channel's species that are on different scales: a barrier, reaction or
+    complexation energy beyond :data:`MAX_CHANNEL_ENERGY_J_PER_MOL`. The error names the species
+    file whose energy is out of scale (the one whose removal leaves the others consistent)."""
+    def total(names):
+        values = [species[n].energy_J_per_mol for n in names]
+        return None if any(v is None for v in values) else float(sum(values))
+
+    limit = MAX_CHANNEL_ENERGY_J_PER_MOL
+    groups = {"reactants": list(reactants), "transition state": [ts], "products": list(products)}
+    if cx is not None:
+        groups["complex"] = [cx]
+    if pcx is not None:
+        groups["product complex"] = [pcx]
+    energies = {k: total(v) for k, v in groups.items()}
+    if any(v is None for v in energies.values()):
+        return
+    keys = list(energies)
+    bad_pairs = [(a, b) for i, a in enumerate(keys) for b in keys[i + 1:]
+                 if abs(energies[a] - energies[b]) > limit]
+    if not bad_pairs:
+        return
+    # the group present in every bad pair is the odd one out
+    culprit = None
+    for k in keys:
+        if all(k in pair for pair in bad_pairs):
+            culprit = k
+            break
+    a, b = bad_pairs[0]
+    diff = (energies[b] - energies[a]) / 1e3
+    if culprit is None:
+        raise t.error("accept_large_energy_differences",
+                      f"channel {name!r}: the energies of {a} and {b} differ by {diff:.6g} kJ/mol, beyond "
+                      f"+/-{limit / 1e3:g} kJ/mol; the species files' energies are on different scales",
+                      hint="check every species file's energy value and unit")
+    names = groups[culprit]
+    other = b if a == culprit else a
+    sp = species[names[0]]
+    raise InputError(f"channel {name!r}: the energy of {culprit} {', '.join(repr(n) for n in names)} lies "
+                     f"{abs(energies[culprit] - energies[other]) / 1e3:.6g} kJ/mol from the {other}, beyond "
+                     f"+/-{limit / 1e3:g} kJ/mol: out of scale with the other species (a value in hartree "
+                     "given as kJ/mol, or another molecule's energy?)",
+                     file=sp.source, field="energy",
+                     hint=f"check the energy and its unit; if it is right, set accept_large_energy_differences = "
+                          f"true in channel {name!r}")
+
+
+#: largest total pressure accepted [Pa] (1e4 bar) and bath-gas number density [m^-3] (liquid-like)
+MAX_PRESSURE_PA = 1.0e9
+MAX_NUMBER_DENSITY_M3 = 1.0e29
 
 
 def _read_conditions(t: Table) -> Conditions:
     temps = np.array(t.number_list("temperature_K", min_length=1))
     if np.any(temps <= 0):
         raise t.error("temperature_K", "temperatures must be positive (kelvin)")
+    from tstrate.arrays import MAX_TEMPERATURE_K
+
+    if np.max(temps) > MAX_TEMPERATURE_K:
+        raise t.error("temperature_K", f"temperature {np.max(temps):g} K is above {MAX_TEMPERATURE_K:g} K, "
+                                       "where no molecule survives")
     pressures = np.zeros(0)
     densities = np.zeros(0)
     given = [k for k in PRESSURE_KEYS if k in t]
@@ -124,9 +190,15 @@ def _read_conditions(t: Table) -> Conditions:
             raise t.error(key, "pressures must be positive")
         if key == "number_density_per_cm3":
             densities = vals * 1e6  # [m^-3]
+            if np.max(densities) > MAX_NUMBER_DENSITY_M3:
+                raise t.error(key, f"a number density of {np.max(vals):g} cm-3 is beyond a gas "
+                                   f"({MAX_NUMBER_DENSITY_M3 / 1e6:g} cm-3 accepted)")
         else:
             unit = key.split("_", 1)[1]
             pressures = vals * PRESSURE_UNITS_PA[unit]
+            if np.max(pressures) > MAX_PRESSURE_PA:
+                raise t.error(key, f"a pressure of {np.max(vals):g} {unit} is beyond a gas "
+                                   f"({MAX_PRESSURE_PA / 1e5:g} bar accepted)")
     bath = t.get("bath_gas", str, CONDITIONS_KEYS.default("bath_gas"))
     rate_units = {}
     if "rate_units" in t:
@@ -196,6 +268,8 @@ def _read_channel(t: Table, species: dict, file: str) -> Channel:
     tunnelling = t.get("tunnelling", str, CHANNEL_KEYS.default("tunnelling"))
     degeneracy = t.get("degeneracy", float, CHANNEL_KEYS.default("degeneracy"))
     floor = t.get("tunnelling_floor", str, CHANNEL_KEYS.default("tunnelling_floor"))
+    if not t.get("accept_large_energy_differences", bool, CHANNEL_KEYS.default("accept_large_energy_differences")):
+        check_energy_scale(t, name, reactants, ts, products, cx, pcx, species)
     t.reject_unknown(CHANNEL_KEYS)
     channel = t.build(Channel, name=name, reactants=tuple(reactants), transition_state=ts,
                       products=tuple(products), complex=cx, tunnelling=tunnelling, degeneracy=degeneracy,

@@ -38,6 +38,8 @@ MAX_ABS_ENERGY_J_PER_MOL = 2.6e12
 FREQUENCY_SCALE_RANGE = (0.5, 1.5)
 #: largest symmetry number (and number of optical isomers) accepted
 MAX_SYMMETRY_NUMBER = 60
+#: largest reaction-path degeneracy accepted
+MAX_PATH_DEGENERACY = 1000
 #: largest degeneracy and energy of an electronic level accepted
 MAX_LEVEL_DEGENERACY = 100
 MAX_LEVEL_ENERGY_CM1 = 2.0e5
@@ -537,6 +539,9 @@ class Channel:
         if self.degeneracy is not None:
             if not finite_or_nan(self.degeneracy) > 0:
                 raise bad("degeneracy", "reaction-path degeneracy must be positive")
+            if self.degeneracy > MAX_PATH_DEGENERACY:
+                raise bad("degeneracy", f"reaction-path degeneracy {self.degeneracy:g} is above "
+                                        f"{MAX_PATH_DEGENERACY} (equivalent paths of a small molecule)")
             object.__setattr__(self, "degeneracy", float(self.degeneracy))
         if self.tunnelling_floor not in TUNNELLING_FLOORS:
             raise bad("tunnelling_floor", f"unknown floor {self.tunnelling_floor!r}",
