@@ -168,10 +168,24 @@ def _command_line(args) -> str:
     return shlex.join(parts)
 
 
+def _resolved(path, field) -> Path:
+    """``path`` resolved; a symbolic-link loop is an InputError (Python raises RuntimeError)."""
+    try:
+        return Path(path).resolve()
+    except (RuntimeError, OSError) as exc:
+        raise InputError(f"cannot be opened: {exc}"[:200], file=str(path), field=field) from None
+
+
 def _outputs(args, inputs, *names) -> list[Path | None]:
     """Output paths, refusing existing files without --force and input files always."""
     outs = []
-    ins = {Path(p).resolve() for p in inputs if p}
+    ins = set()
+    for p in inputs:
+        if p:
+            try:
+                ins.add(Path(p).resolve())
+            except (RuntimeError, OSError):  # a link loop: the reader refuses it with its name
+                pass
     for n in names:
         value = getattr(args, n, None)
         if not value:
@@ -179,7 +193,7 @@ def _outputs(args, inputs, *names) -> list[Path | None]:
             continue
         path = Path(value)
         flag = "--" + n.replace("_", "-")
-        if path.resolve() in ins:
+        if _resolved(path, flag) in ins:
             raise InputError("refusing to overwrite an input file", file=str(path), field=flag)
         if path.is_dir():
             raise InputError("is a folder, not a file", file=str(path), field=flag,

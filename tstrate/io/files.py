@@ -77,7 +77,7 @@ def checked_input_file(path, *, max_bytes: int, what: str = "file", raise_with: 
         raise InputError(f"is not a regular file (a pipe, device or socket); a {what} is expected",
                          file=file)
     if info.st_size > max_bytes:
-        raise InputError(f"is larger than {max_bytes / 2**20:g} MiB ({info.st_size / 2**20:.4g} MiB), the "
+        raise InputError(f"is larger than {max_bytes / 2**20:.3g} MiB ({info.st_size / 2**20:.4g} MiB), the "
                          f"most accepted for a {what}", file=file,
                          hint=f"raise the limit with {raise_with}" if raise_with else None)
     if not os.access(path, os.R_OK):

@@ -191,7 +191,8 @@ def _energy_file(path: Path):
     if data is None or getattr(data, "atomnos", None) is None:
         why = f" (cclib: {parsed.error})" if parsed.error else ""
         raise InputError(f"cclib cannot read the single-point file{why}", file=str(path),
-                         field="single_point")
+                         field="single_point",
+                         hint="give the energy as 'VALUE UNIT', or a QCSchema JSON result")
     _check_finished(data, str(path))
     from ase.data import chemical_symbols
 
@@ -303,7 +304,7 @@ def _from_cclib(data, file: str) -> _Parsed:
     out = _Parsed()
     out.symbols = [chemical_symbols[int(z)] for z in data.atomnos]
     coords = getattr(data, "atomcoords", None)
-    if coords is not None and len(coords):
+    if coords is not None and len(coords) and np.shape(coords[-1]) == (len(out.symbols), 3):
         out.positions = np.asarray(coords[-1], dtype=float)
     out.energy = last_energy_J_per_mol(data, file=file)
     if getattr(data, "vibfreqs", None) is not None:
@@ -311,13 +312,22 @@ def _from_cclib(data, file: str) -> _Parsed:
         if not np.all(np.isfinite(out.freqs)):
             raise InputError("the file's frequencies are not finite numbers", file=file,
                              field="frequencies")
+    meta = getattr(data, "metadata", {}) or {}
     if getattr(data, "hessian", None) is not None:
         out.hess = np.asarray(data.hessian, dtype=float)
-    if hasattr(data, "charge"):
+        masses = getattr(data, "atommasses", None)
+        if meta.get("package") == "NWChem" and masses is not None and len(masses) == len(out.symbols):
+            # cclib 1.8 keeps NWChem's MASS-WEIGHTED NUCLEAR HESSIAN (hartree/bohr^2/kamu):
+            # un-mass-weighted with the masses NWChem printed (u), then checked like any Hessian
+            s = np.sqrt(np.repeat(np.asarray(masses, dtype=float), 3))
+            if out.hess.shape == (s.size, s.size):
+                out.hess = out.hess * np.outer(s, s) * 1e-3
+                out.prov["hessian"] = ("NWChem's mass-weighted Hessian (hartree/bohr^2/kamu) multiplied "
+                                       "by the square roots of its printed masses")
+    if getattr(data, "charge", None) is not None:
         out.charge = int(data.charge)
-    if hasattr(data, "mult"):
+    if getattr(data, "mult", None) is not None:
         out.multiplicity = int(data.mult)
-    meta = getattr(data, "metadata", {}) or {}
     out.prov.update({
         "program": f"{meta.get('package', 'unknown')} {meta.get('package_version', '')}".strip(),
         "method": ", ".join(dict.fromkeys(str(m) for m in meta.get("methods", []))) or "unknown",
@@ -431,7 +441,16 @@ def read_output(path, *, name: str | None = None, kind: str | None = None,
                 and not len(getattr(cc.data, "atomcoords", []) or []):
             # cclib knew the program but found nothing: a file cut in its header
             _check_finished(cc.data, file)
-        parsed = _from_cclib(cc.data, file) if cc.data is not None else _from_ase(path, cc.error)
+        if cc.data is not None:
+            parsed = _from_cclib(cc.data, file)
+        elif cc.error is not None and hessian_file is None:
+            # cclib recognised the program and stopped: the file is an output, not a geometry
+            raise InputError(f"cclib stopped on this file ({cc.error}): a cut or unfinished output, or "
+                             "a program version cclib does not know", file=file,
+                             hint="other routes: a QCSchema JSON result of the job (e.g. psi4 --json); "
+                                  "or --geometry FILE with --hessian FILE (plain numbers, hartree/bohr^2)")
+        else:
+            parsed = _from_ase(path, cc.error)
     prov = {"source": file} | parsed.prov
     symbols, positions, hess, freqs = parsed.symbols, parsed.positions, parsed.hess, parsed.freqs
     if geometry_file is not None:
