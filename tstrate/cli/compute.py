@@ -22,6 +22,8 @@ or from the output of a quantum-chemistry program.
             the pre-reactive ring complex and the relay transition state
   read      species from an output file cclib parses (or a geometry ASE reads),
             optionally with a separate high-level single-point energy
+  refine    better energies with PySCF: DFT/HF single points (default wB97X-D3BJ/def2-TZVP),
+            optional DFT re-optimisation and Hessian, optional frozen-core CCSD(T)
 
 Results are cached by a hash of their inputs (folder: --cache-dir, else $TSTRATE_CACHE,
 else ~/.cache/tstrate), so a rerun is instant. Existing files are never replaced
@@ -136,6 +138,10 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
             charge_help="total charge (default: the one QC_FILE gives; 0 for a geometry file)",
             multiplicity_help="spin multiplicity 2S+1 (default: the one QC_FILE gives; 1 for a "
                               "geometry file)")
+
+    from tstrate.cli.compute_refine import add_refine_arguments
+
+    add_refine_arguments(sub)
 
 
 # ---- helpers ----------------------------------------------------------------------
@@ -355,9 +361,15 @@ def _run_read(args) -> int:
     return 0
 
 
+def _run_refine(args) -> int:
+    from tstrate.cli.compute_refine import run_refine
+
+    return run_refine(args, _command_line(args))
+
+
 def run(args) -> int:
     action = {"minimum": _run_minimum, "saddle": _run_saddle, "relay": _run_relay,
-              "read": _run_read}[args.compute_command]
+              "read": _run_read, "refine": _run_refine}[args.compute_command]
     try:
         return action(args)
     except InputError as exc:
