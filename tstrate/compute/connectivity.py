@@ -14,6 +14,10 @@ import numpy as np
 #: covalent-radius multiplier for a bond
 BOND_SCALE = 1.2
 
+#: an H-H pair closer than this is bonded [Angstrom] (H2 0.74 A; the H...H contacts of
+#: minima are longer than 1.5 A)
+H_H_BOND_A = 0.9
+
 Bonds = frozenset  # of (i, j) pairs with i < j, 0-based
 
 
@@ -26,7 +30,12 @@ def bonds(symbols, positions_A, scale: float = BOND_SCALE) -> frozenset:
     radii = np.array(natural_cutoffs(atoms, mult=scale))
     x = atoms.positions
     d = np.linalg.norm(x[:, None] - x[None, :], axis=2)
-    i, j = np.nonzero(np.triu(d < radii[:, None] + radii[None, :], k=1))
+    cut = radii[:, None] + radii[None, :]
+    # H2 (0.74 A; 0.76-0.77 A with GFN2-xTB) lies just beyond 1.2 x twice hydrogen's radius
+    # (0.744 A); an H-H pair is bonded below H_H_BOND_A
+    is_h = np.array([s == "H" for s in atoms.get_chemical_symbols()])
+    cut = np.where(is_h[:, None] & is_h[None, :], np.maximum(cut, H_H_BOND_A), cut)
+    i, j = np.nonzero(np.triu(d < cut, k=1))
     return frozenset(zip(i.tolist(), j.tolist()))
 
 
