@@ -95,6 +95,9 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
                    help="searches repeated after pushing along extra imaginary modes (default %(default)s)")
     p.add_argument("--cartesian", action="store_true",
                    help="let Sella work in Cartesian instead of internal coordinates")
+    p.add_argument("--same-bonding", action="store_true",
+                   help="search a saddle point that keeps the bonding (a torsion, an inversion, a "
+                        "cis-trans isomerisation) from --guess; both downhill sides must keep it")
     _common(p, charge_help="total charge (default 0)",
             multiplicity_help="spin multiplicity 2S+1 (default 1)")
 
@@ -297,7 +300,7 @@ def _run_saddle(args) -> int:
         charge=args.charge or 0, multiplicity=args.multiplicity or 1,
         settings=_settings(args), neb_images=args.neb_images, max_retries=args.retries,
         internal=not args.cartesian, cache=_cache(args), progress=_progress(args),
-        work_dir=args.work_dir, command=_command_line(args))
+        work_dir=args.work_dir, command=_command_line(args), same_bonding=args.same_bonding)
     for sp, path in zip((res.ts, res.reactant, res.product), outs):
         _write(sp, path)
     if args.json:

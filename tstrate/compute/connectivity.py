@@ -81,3 +81,24 @@ def edit_bonds(bond_set, *, form=(), break_=()) -> frozenset:
     for i, j in form:
         out.add((min(i, j), max(i, j)))
     return frozenset(out)
+
+
+def _fingerprint(symbols, bond_set) -> tuple:
+    """An invariant of a bonding graph under exchange of like atoms: per molecule, its
+    element counts and the sorted element pairs of its bonds, with each atom's
+    (element, sorted neighbour elements)."""
+    nb: dict[int, list[str]] = {a: [] for a in range(len(symbols))}
+    for i, j in bond_set:
+        nb[i].append(symbols[j])
+        nb[j].append(symbols[i])
+    out = []
+    for frag in fragments(len(symbols), bond_set):
+        atoms = tuple(sorted((symbols[a], tuple(sorted(nb[a]))) for a in frag))
+        out.append(atoms)
+    return tuple(sorted(out))
+
+
+def equivalent(symbols, a, b) -> bool:
+    """Whether two bonding graphs are the same up to exchanging like atoms (exact for the
+    small molecules of a reaction; an invariant, not a full isomorphism test)."""
+    return frozenset(a) == frozenset(b) or _fingerprint(symbols, a) == _fingerprint(symbols, b)
