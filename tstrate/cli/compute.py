@@ -20,6 +20,8 @@ or from the output of a quantum-chemistry program.
             verified by minimising both ways along the imaginary mode
   relay     carbonic acid decomposition assisted by 0, 1 or 2 water molecules:
             the pre-reactive ring complex and the relay transition state
+  relay-any the same for any substrate, catalyst and number of catalyst molecules,
+            given the atoms that move
   read      species from an output file cclib parses (or a geometry ASE reads),
             optionally with a separate high-level single-point energy
   refine    better energies with PySCF: DFT/HF single points (default wB97X-D3BJ/def2-TZVP),
@@ -143,8 +145,10 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
                               "geometry file)")
 
     from tstrate.cli.compute_refine import add_refine_arguments
+    from tstrate.cli.compute_relay_any import add_relay_any_arguments
 
     add_refine_arguments(sub)
+    add_relay_any_arguments(sub, _common)
 
 
 # ---- helpers ----------------------------------------------------------------------
@@ -364,6 +368,15 @@ def _run_read(args) -> int:
     return 0
 
 
+def _run_relay_any(args) -> int:
+    from tstrate.cli.compute_relay_any import run_relay_any
+
+    return run_relay_any(args, {"outputs": _outputs, "geometry": _geometry, "settings": _settings,
+                                "cache": _cache, "progress": _progress, "write": _write,
+                                "command_line": _command_line, "describe": _describe,
+                                "saddle_text": _saddle_text})
+
+
 def _run_refine(args) -> int:
     from tstrate.cli.compute_refine import run_refine
 
@@ -372,7 +385,8 @@ def _run_refine(args) -> int:
 
 def run(args) -> int:
     action = {"minimum": _run_minimum, "saddle": _run_saddle, "relay": _run_relay,
-              "read": _run_read, "refine": _run_refine}[args.compute_command]
+              "read": _run_read, "refine": _run_refine,
+              "relay-any": _run_relay_any}[args.compute_command]
     try:
         return action(args)
     except InputError as exc:
