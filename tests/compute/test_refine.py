@@ -230,3 +230,23 @@ def test_cli_refines_a_file_and_refuses_bad_input(tmp_path):
         assert len(r.stderr.strip().splitlines()) <= 2
     r = _cli(str(src), "--estimate", "--json", cwd=tmp_path)
     assert r.returncode == 0 and json.loads(r.stdout)["estimate"][0]["atoms"] == 3
+
+
+@pytest.mark.slow
+def test_reoptimised_ts_keeps_one_imaginary_mode_and_is_verified():
+    # the demo's GFN2-xTB bare TS re-optimised at HF/STO-3G (cheap; the route is the same at
+    # any level): geomeTRIC seeded with the file's Hessian, analytic Hessian, both ways downhill
+    from pathlib import Path
+
+    demo = Path(__file__).resolve().parents[2] / "molecules" / "carbonic_acid"
+    sp = read_species(demo / "ts_bare.toml")
+    res = refine_species(sp, Level("HF", "STO-3G"), RefineOptions(optimise=True))
+    new = res.species
+    assert np.sum(new.frequencies_cm1 < 0) == 1
+    assert new.provenance["verification"].endswith("both sides match the recorded minima")
+    assert "seeded with the Hessian of GFN2-xTB" in new.provenance["optimiser"]
+    assert new.provenance["reactant_side_geometry"] != sp.provenance["reactant_side_geometry"]
+    # a stationary point of HF/STO-3G: its energy is below the single point at the GFN2 geometry
+    e_gfn2_geom = scf_energy(sp.symbols, sp.positions_A, charge=0, multiplicity=1,
+                             level=Level("HF", "STO-3G")).energy_hartree
+    assert res.energy_hartree < e_gfn2_geom

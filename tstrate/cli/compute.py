@@ -164,6 +164,13 @@ def _command_line(args) -> str:
         if key == "file":
             parts.append(str(value))
             continue
+        if isinstance(value, list):  # positional lists and repeatable options
+            if key == "species_files":
+                parts += [str(v) for v in value]
+            else:
+                for v in value:
+                    parts += ["--" + key.replace("_", "-"), str(v)]
+            continue
         flag = "--" + key.replace("_", "-")
         parts += [flag] if value is True else [flag, str(value)]
     return shlex.join(parts)

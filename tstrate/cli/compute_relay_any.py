@@ -25,9 +25,9 @@ def add_relay_any_arguments(sub, common) -> None:
                    help="catalyst atom that receives and gives a hydrogen")
     p.add_argument("--catalyst-hydrogen", type=int, required=True,
                    help="the catalyst hydrogen it passes on")
-    p.add_argument("--break", dest="break_bonds", action="append", default=[], metavar="I-J",
+    p.add_argument("--break", dest="break", action="append", default=[], metavar="I-J",
                    help="another substrate bond that breaks (repeatable), e.g. 1-3")
-    p.add_argument("--form", dest="form_bonds", action="append", default=[], metavar="I-J",
+    p.add_argument("--form", dest="form", action="append", default=[], metavar="I-J",
                    help="another substrate bond that forms (repeatable)")
     p.add_argument("--name", default="TS-relay", help="name of the transition state")
     p.add_argument("--complex-name", default="relay-complex", help="name of the complex")
@@ -59,7 +59,8 @@ def run_relay_any(args, helpers) -> int:
         helpers["geometry"](args.catalyst, "--catalyst"), args.catalysts,
         donor=args.donor - 1, hydrogen=args.hydrogen - 1, acceptor=args.acceptor - 1,
         catalyst_atom=args.catalyst_atom - 1, catalyst_hydrogen=args.catalyst_hydrogen - 1,
-        break_bonds=_pairs(args.break_bonds, "--break"), form_bonds=_pairs(args.form_bonds, "--form"),
+        break_bonds=_pairs(getattr(args, "break"), "--break"),
+        form_bonds=_pairs(getattr(args, "form"), "--form"),
         name=args.name, complex_name=args.complex_name, charge=args.charge or 0,
         multiplicity=args.multiplicity or 1, settings=helpers["settings"](args),
         cache=helpers["cache"](args), progress=helpers["progress"](args), work_dir=args.work_dir,

@@ -711,7 +711,8 @@ def _compute(species: Species, level: Level, options: RefineOptions, bar) -> dic
         same = False
     if options.optimise and same:
         rec["energy"] = {"energy_hartree": rec["geometry_energy_hartree"], "converged": True,
-                         "scf": "the optimisation level's own energy at its final geometry"}
+                         "scf": "the optimisation level's own energy at its final geometry",
+                         "n_basis": n_basis_functions(sym, level.basis, charge=q, multiplicity=m)}
         rec["energy_hartree"] = rec["geometry_energy_hartree"]
     else:
         en = energy_at_level(sym, pos, charge=q, multiplicity=m, level=level,
