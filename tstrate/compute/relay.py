@@ -19,6 +19,12 @@ hydrogens point out of the ring plane, alternating up and down.
 
 Atom order: C, O1, O2, O3 (carbonyl), H1 (on O1, moves), H2 (on O2, stays),
 then for each water k: Ow_k, Hw_k (moves on), Hf_k (stays).
+
+:func:`general_relay_geometry` and :func:`find_general_relay` build the same kind of ring
+for any substrate and catalyst, given the atoms that move (the donor, its hydrogen and the
+acceptor of the substrate; the catalyst atom and the hydrogen it passes on) and any other
+bond changes of the substrate; the substrate's own geometry is kept and the catalysts are
+laid on the arc from donor to acceptor.
 """
 
 from __future__ import annotations
