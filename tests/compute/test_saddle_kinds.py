@@ -77,3 +77,21 @@ def test_open_shell_bimolecular_route_then_refinement():
     # HTBH38/04: 3.5 kcal/mol = 14.6 kJ/mol (Zhao, Gonzalez-Garcia, Truhlar 2005); at GFN2-xTB
     # geometries and a double-zeta basis the refined barrier is only roughly right
     assert -10e3 < barrier < 45e3
+
+
+def test_scf_failure_inside_a_neb_is_a_one_line_error(monkeypatch, tmp_path):
+    from ase.calculators.calculator import CalculationFailed
+
+    import tstrate.compute.saddle as saddle
+
+    def failing(*args, **kwargs):
+        raise CalculationFailed("SCF not converged in 250 cycles")
+
+    monkeypatch.setattr(saddle, "neb_guess", failing)
+    hcn = Atoms("CNH", positions=[[0, 0, 0], [0, 0, 1.16], [0, 0, -1.07]])
+    hnc = Atoms("CNH", positions=[[0, 0, 0], [0, 0, 1.17], [0, 0, 2.17]])
+    with pytest.raises(InputError) as info:
+        find_saddle(name="TS", reactant=hcn, product=hnc, work_dir=tmp_path)
+    text = str(info.value)
+    assert "calculation failed during the NEB" in text and "SCF not converged" in text
+    assert "\n" not in text
