@@ -24,3 +24,10 @@ $T compute relay --waters 2 --name 'TS-H2CO3.(H2O)2' --complex-name 'H2CO3.(H2O)
 
 # collision parameters for falloff (an estimate, not computed: see README.md)
 sed -i '/^lennard_jones = /d; /^optical_isomers = /a lennard_jones = { sigma_A = 4.2, epsilon_K = 400.0 }   # ESTIMATE (HONO2-like values, see README.md), added by make.sh' h2co3.toml
+
+# energies refined at the default level (wB97X-D3BJ/def2-TZVP, density fitting) with PySCF:
+# the GFN2-xTB files above stay as they are; refined/ holds copies with a single_point
+# (about 2 minutes on one core); study.toml uses refined/, study_gfn2.toml the GFN2 files
+$T compute refine h2co3.toml h2co3_cis_trans.toml co2.toml h2o.toml water_dimer.toml \
+    ts_bare.toml co2_h2o_complex.toml h2co3_h2o.toml ts_one_water.toml co2_2h2o_complex.toml \
+    h2co3_2h2o.toml ts_two_water.toml co2_3h2o_complex.toml --output-dir refined "${Q[@]}"

@@ -20,8 +20,12 @@ or from the output of a quantum-chemistry program.
             verified by minimising both ways along the imaginary mode
   relay     carbonic acid decomposition assisted by 0, 1 or 2 water molecules:
             the pre-reactive ring complex and the relay transition state
+  relay-any the same for any substrate, catalyst and number of catalyst molecules,
+            given the atoms that move
   read      species from an output file cclib parses (or a geometry ASE reads),
             optionally with a separate high-level single-point energy
+  refine    better energies with PySCF: DFT/HF single points (default wB97X-D3BJ/def2-TZVP),
+            optional DFT re-optimisation and Hessian, optional frozen-core CCSD(T)
 
 Results are cached by a hash of their inputs (folder: --cache-dir, else $TSTRATE_CACHE,
 else ~/.cache/tstrate), so a rerun is instant. Existing files are never replaced
@@ -93,6 +97,9 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
                    help="searches repeated after pushing along extra imaginary modes (default %(default)s)")
     p.add_argument("--cartesian", action="store_true",
                    help="let Sella work in Cartesian instead of internal coordinates")
+    p.add_argument("--same-bonding", action="store_true",
+                   help="search a saddle point that keeps the bonding (a torsion, an inversion, a "
+                        "cis-trans isomerisation) from --guess; both downhill sides must keep it")
     _common(p, charge_help="total charge (default 0)",
             multiplicity_help="spin multiplicity 2S+1 (default 1)")
 
@@ -149,6 +156,12 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
             multiplicity_help="spin multiplicity 2S+1 (default: the one QC_FILE gives; required when "
                               "it gives none, as with xtb outputs and geometry files)")
 
+    from tstrate.cli.compute_refine import add_refine_arguments
+    from tstrate.cli.compute_relay_any import add_relay_any_arguments
+
+    add_refine_arguments(sub)
+    add_relay_any_arguments(sub, _common)
+
 
 # ---- helpers ----------------------------------------------------------------------
 
@@ -162,6 +175,13 @@ def _command_line(args) -> str:
             continue
         if key == "file":
             parts.append(str(value))
+            continue
+        if isinstance(value, list):  # positional lists and repeatable options
+            if key == "species_files":
+                parts += [str(v) for v in value]
+            else:
+                for v in value:
+                    parts += ["--" + key.replace("_", "-"), str(v)]
             continue
         flag = "--" + key.replace("_", "-")
         parts += [flag] if value is True else [flag, str(value)]
@@ -317,7 +337,7 @@ def _run_saddle(args) -> int:
         charge=args.charge or 0, multiplicity=args.multiplicity or 1,
         settings=_settings(args), neb_images=args.neb_images, max_retries=args.retries,
         internal=not args.cartesian, cache=_cache(args), progress=_progress(args),
-        work_dir=args.work_dir, command=_command_line(args))
+        work_dir=args.work_dir, command=_command_line(args), same_bonding=args.same_bonding)
     for sp, path in zip((res.ts, res.reactant, res.product), outs):
         _write(sp, path)
     if args.json:
@@ -390,9 +410,25 @@ def _run_read(args) -> int:
     return 0
 
 
+def _run_relay_any(args) -> int:
+    from tstrate.cli.compute_relay_any import run_relay_any
+
+    return run_relay_any(args, {"outputs": _outputs, "geometry": _geometry, "settings": _settings,
+                                "cache": _cache, "progress": _progress, "write": _write,
+                                "command_line": _command_line, "describe": _describe,
+                                "saddle_text": _saddle_text})
+
+
+def _run_refine(args) -> int:
+    from tstrate.cli.compute_refine import run_refine
+
+    return run_refine(args, _command_line(args))
+
+
 def run(args) -> int:
     action = {"minimum": _run_minimum, "saddle": _run_saddle, "relay": _run_relay,
-              "read": _run_read}[args.compute_command]
+              "read": _run_read, "refine": _run_refine,
+              "relay-any": _run_relay_any}[args.compute_command]
     try:
         return action(args)
     except InputError as exc:

@@ -14,6 +14,10 @@ import numpy as np
 #: covalent-radius multiplier for a bond
 BOND_SCALE = 1.2
 
+#: an H-H pair closer than this is bonded [Angstrom] (H2 0.74 A; the H...H contacts of
+#: minima are longer than 1.5 A)
+H_H_BOND_A = 0.9
+
 Bonds = frozenset  # of (i, j) pairs with i < j, 0-based
 
 
@@ -26,7 +30,12 @@ def bonds(symbols, positions_A, scale: float = BOND_SCALE) -> frozenset:
     radii = np.array(natural_cutoffs(atoms, mult=scale))
     x = atoms.positions
     d = np.linalg.norm(x[:, None] - x[None, :], axis=2)
-    i, j = np.nonzero(np.triu(d < radii[:, None] + radii[None, :], k=1))
+    cut = radii[:, None] + radii[None, :]
+    # H2 (0.74 A; 0.76-0.77 A with GFN2-xTB) lies just beyond 1.2 x twice hydrogen's radius
+    # (0.744 A); an H-H pair is bonded below H_H_BOND_A
+    is_h = np.array([s == "H" for s in atoms.get_chemical_symbols()])
+    cut = np.where(is_h[:, None] & is_h[None, :], np.maximum(cut, H_H_BOND_A), cut)
+    i, j = np.nonzero(np.triu(d < cut, k=1))
     return frozenset(zip(i.tolist(), j.tolist()))
 
 
@@ -72,3 +81,24 @@ def edit_bonds(bond_set, *, form=(), break_=()) -> frozenset:
     for i, j in form:
         out.add((min(i, j), max(i, j)))
     return frozenset(out)
+
+
+def _fingerprint(symbols, bond_set) -> tuple:
+    """An invariant of a bonding graph under exchange of like atoms: per molecule, its
+    element counts and the sorted element pairs of its bonds, with each atom's
+    (element, sorted neighbour elements)."""
+    nb: dict[int, list[str]] = {a: [] for a in range(len(symbols))}
+    for i, j in bond_set:
+        nb[i].append(symbols[j])
+        nb[j].append(symbols[i])
+    out = []
+    for frag in fragments(len(symbols), bond_set):
+        atoms = tuple(sorted((symbols[a], tuple(sorted(nb[a]))) for a in frag))
+        out.append(atoms)
+    return tuple(sorted(out))
+
+
+def equivalent(symbols, a, b) -> bool:
+    """Whether two bonding graphs are the same up to exchanging like atoms (exact for the
+    small molecules of a reaction; an invariant, not a full isomorphism test)."""
+    return frozenset(a) == frozenset(b) or _fingerprint(symbols, a) == _fingerprint(symbols, b)

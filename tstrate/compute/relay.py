@@ -19,6 +19,12 @@ hydrogens point out of the ring plane, alternating up and down.
 
 Atom order: C, O1, O2, O3 (carbonyl), H1 (on O1, moves), H2 (on O2, stays),
 then for each water k: Ow_k, Hw_k (moves on), Hf_k (stays).
+
+:func:`general_relay_geometry` and :func:`find_general_relay` build the same kind of ring
+for any substrate and catalyst, given the atoms that move (the donor, its hydrogen and the
+acceptor of the substrate; the catalyst atom and the hydrogen it passes on) and any other
+bond changes of the substrate; the substrate's own geometry is kept and the catalysts are
+laid on the arc from donor to acceptor.
 """
 
 from __future__ import annotations
@@ -205,3 +211,164 @@ def find_relay(n_waters: int, *, name: str | None = None, complex_name: str | No
     zpe = (ts.energy_J_per_mol + zero_point_energy_J_per_mol(ts)) - \
           (cs.energy_J_per_mol + zero_point_energy_J_per_mol(cs))
     return RelayResult(cplx, sad, plan, barrier, zpe)
+
+
+# ---- relays of any substrate and catalyst --------------------------------------------
+
+@dataclass(frozen=True)
+class GeneralRelayPlan:
+    """Bookkeeping of a relay of any substrate through ``n_catalysts`` catalyst molecules.
+
+    transfers: (hydrogen, donor, acceptor) 0-based atom indices of the relay geometry, in
+        ring order (the substrate's atoms first, then each catalyst's).
+    reactant_bonds, product_bonds: intended bonding graphs (0-based pairs).
+    """
+
+    n_catalysts: int
+    transfers: tuple
+    reactant_bonds: frozenset
+    product_bonds: frozenset
+
+
+def _frame(points: np.ndarray, d: np.ndarray, a: np.ndarray) -> tuple[np.ndarray, np.ndarray]:
+    """Origin and rows e1, e2, e3 of a frame with the donor d and acceptor a in the e1-e2 plane
+    and the substrate's centroid at the origin (the ring then bulges away from it)."""
+    c = points.mean(axis=0)
+    e1 = (a - d) / np.linalg.norm(a - d)
+    m = 0.5 * (a + d) - c
+    m -= np.dot(m, e1) * e1
+    if np.linalg.norm(m) < 1e-6:  # the centroid on the donor-acceptor line: any normal
+        m = np.cross(e1, [0.0, 0.0, 1.0])
+        if np.linalg.norm(m) < 1e-6:
+            m = np.cross(e1, [0.0, 1.0, 0.0])
+    e2 = m / np.linalg.norm(m)
+    return c, np.array([e1, e2, np.cross(e1, e2)])
+
+
+def general_relay_geometry(substrate, catalyst, n_catalysts: int, *, donor: int, hydrogen: int,
+                           acceptor: int, catalyst_atom: int, catalyst_hydrogen: int,
+                           stage: str = "complex", break_bonds=(), form_bonds=()):
+    """A relay of ``substrate`` (ASE Atoms) through ``n_catalysts`` copies of ``catalyst``.
+
+    The substrate's ``hydrogen`` leaves its ``donor`` for the first catalyst's
+    ``catalyst_atom``; each catalyst hands its ``catalyst_hydrogen`` on to the next, and the
+    last to the substrate's ``acceptor`` (0-based indices into each structure). The ring
+    atoms lie on a circular arc from donor to acceptor, bulging away from the substrate,
+    spaced 2.70 Angstrom ("complex": hydrogens on their donors at 0.98 Angstrom) or 2.45
+    Angstrom ("guess": hydrogens half way). ``break_bonds`` / ``form_bonds``: other bond
+    changes of the substrate (0-based pairs), e.g. the C-O bond of a decarboxylation.
+    Returns the ASE Atoms and a GeneralRelayPlan.
+    """
+    from ase import Atoms
+
+    if int(n_catalysts) < 0 or int(n_catalysts) > 6:
+        raise InputError(f"{n_catalysts} catalyst molecules: use 0 to 6", field="catalysts")
+    if stage not in ("complex", "guess"):
+        raise ValueError(stage)
+    ns, nc = len(substrate), len(catalyst)
+    for label, idx, n in (("donor", donor, ns), ("hydrogen", hydrogen, ns),
+                          ("acceptor", acceptor, ns), ("catalyst_atom", catalyst_atom, nc),
+                          ("catalyst_hydrogen", catalyst_hydrogen, nc)):
+        if not 0 <= idx < n:
+            raise InputError(f"{label} atom {idx + 1} does not exist ({n} atoms)", field=label)
+    ss, cs = list(substrate.get_chemical_symbols()), list(catalyst.get_chemical_symbols())
+    xs = np.array(substrate.positions, dtype=float)
+    xc = np.array(catalyst.positions, dtype=float)
+    sub_bonds = conn.bonds(ss, xs)
+    cat_bonds = conn.bonds(cs, xc)
+    if tuple(sorted((donor, hydrogen))) not in sub_bonds:
+        raise InputError(f"atom {hydrogen + 1} is not bonded to the donor {donor + 1}",
+                         field="hydrogen")
+    if tuple(sorted((catalyst_atom, catalyst_hydrogen))) not in cat_bonds:
+        raise InputError(f"catalyst atom {catalyst_hydrogen + 1} is not bonded to catalyst atom "
+                         f"{catalyst_atom + 1}", field="catalyst_hydrogen")
+    guess = stage == "guess"
+    spacing = 2.45 if guess else 2.70
+    origin, rot = _frame(xs, xs[donor], xs[acceptor])
+    local = (xs - origin) @ rot.T  # substrate in the ring frame: donor, acceptor at z = 0
+    local[:, 2] -= local[donor, 2]
+    p1, p2 = local[donor], local[acceptor]
+    ring = _arc_positions(p1, p2, n_catalysts, spacing) if n_catalysts else []
+    chain = [p1] + ring + [p2]
+    symbols = list(ss)
+    pos = [p for p in local]
+    cen = np.mean(local, axis=0)
+    movers, ring_idx = [hydrogen], [donor]
+    for k, xk in enumerate(ring):
+        nxt = chain[k + 2]
+        u = (nxt - xk) / np.linalg.norm(nxt - xk)
+        # catalyst frame: its hydrogen along u, its other atoms away from the substrate
+        c0 = xc - xc[catalyst_atom]
+        v = c0[catalyst_hydrogen] / np.linalg.norm(c0[catalyst_hydrogen])
+        from tstrate.compute.bimolecular import _rotation_onto
+
+        r1 = _rotation_onto(v, u)
+        c1 = c0 @ r1.T
+        rest = [i for i in range(nc) if i not in (catalyst_atom, catalyst_hydrogen)]
+        if rest:
+            out = xk - cen
+            out -= np.dot(out, u) * u
+            tilt = math.radians(55.0) * (1 if k % 2 == 0 else -1)
+            z = np.array([0.0, 0.0, 1.0])
+            want = math.cos(tilt) * out / max(np.linalg.norm(out), 1e-9) + math.sin(tilt) * z
+            want -= np.dot(want, u) * u
+            have = np.mean(c1[rest], axis=0)
+            have -= np.dot(have, u) * u
+            if np.linalg.norm(have) > 1e-6 and np.linalg.norm(want) > 1e-6:
+                have /= np.linalg.norm(have)
+                want /= np.linalg.norm(want)
+                ang = math.atan2(np.dot(np.cross(have, want), u), np.dot(have, want))
+                kx = np.array([[0, -u[2], u[1]], [u[2], 0, -u[0]], [-u[1], u[0], 0]])
+                r2 = np.eye(3) + math.sin(ang) * kx + (1 - math.cos(ang)) * kx @ kx
+                c1 = c1 @ r2.T
+        base = len(symbols)
+        symbols += cs
+        pos += [xk + p for p in c1]
+        movers.append(base + catalyst_hydrogen)
+        ring_idx.append(base + catalyst_atom)
+    ring_idx.append(acceptor)
+    pos = np.array(pos)
+    for h, d_, a_ in zip(movers, ring_idx[:-1], ring_idx[1:]):
+        if not guess and n_catalysts == 0:
+            break  # no ring to lie on: the substrate keeps its own hydrogen
+        vec = pos[a_] - pos[d_]
+        frac = 0.5 if guess else _R_OH_A / np.linalg.norm(vec)
+        pos[h] = pos[d_] + frac * vec
+    atoms = Atoms(symbols, positions=pos)
+    reactant = set(sub_bonds)
+    for k in range(n_catalysts):
+        base = ns + k * nc
+        reactant |= {(i + base, j + base) for i, j in cat_bonds}
+    transfers = tuple(zip(movers, ring_idx[:-1], ring_idx[1:]))
+    product = conn.edit_bonds(frozenset(reactant),
+                              break_=[tuple(sorted((d_, h))) for h, d_, _ in transfers]
+                              + [tuple(sorted(b)) for b in break_bonds],
+                              form=[tuple(sorted((a_, h))) for h, _, a_ in transfers]
+                              + [tuple(sorted(b)) for b in form_bonds])
+    return atoms, GeneralRelayPlan(int(n_catalysts), transfers, frozenset(reactant),
+                                   frozenset(product))
+
+
+def find_general_relay(substrate, catalyst, n_catalysts: int, *, donor: int, hydrogen: int,
+                       acceptor: int, catalyst_atom: int, catalyst_hydrogen: int,
+                       break_bonds=(), form_bonds=(), name: str = "TS-relay",
+                       complex_name: str = "relay-complex", charge: int = 0,
+                       multiplicity: int = 1, settings: Settings = Settings(),
+                       cache: Cache | None = None, progress: bool = False, work_dir=None,
+                       command: str | None = None):
+    """Pre-reactive complex and verified relay saddle point of any substrate and catalyst
+    (see :func:`general_relay_geometry`); returns (MinimumResult, SaddleResult, plan)."""
+    kw = dict(donor=donor, hydrogen=hydrogen, acceptor=acceptor, catalyst_atom=catalyst_atom,
+              catalyst_hydrogen=catalyst_hydrogen, break_bonds=break_bonds, form_bonds=form_bonds)
+    start, plan = general_relay_geometry(substrate, catalyst, n_catalysts, stage="complex", **kw)
+    cplx = compute_minimum(name=complex_name, atoms=start, charge=charge,
+                           multiplicity=multiplicity, settings=settings, cache=cache,
+                           progress=progress, work_dir=work_dir, command=command,
+                           source=f"relay ring layout, {n_catalysts} catalyst molecule(s)")
+    guess, _ = general_relay_geometry(substrate, catalyst, n_catalysts, stage="guess", **kw)
+    sad = find_saddle(name=name, guess=guess, reactant_bonds=plan.reactant_bonds,
+                      product_bonds=plan.product_bonds, charge=charge, multiplicity=multiplicity,
+                      settings=settings, cache=cache, progress=progress, work_dir=work_dir,
+                      command=command, reactant_name=f"{complex_name}-reactant-side",
+                      product_name=f"{name}-product-side")
+    return cplx, sad, plan

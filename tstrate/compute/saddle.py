@@ -32,8 +32,8 @@ import numpy as np
 
 from tstrate.compute import connectivity as conn
 from tstrate.compute.cache import Cache, cache_key
-from tstrate.compute.engine import (Settings, minimise, progress_bar, provenance, saddle_optimise,
-                                    with_calculator)
+from tstrate.compute.engine import (Settings, _scf_failure_is_input_error, minimise, progress_bar,
+                                    provenance, saddle_optimise, with_calculator)
 from tstrate.compute.minima import relax_minimum
 from tstrate.compute.stationary import (Characterised, cartesian_mode, characterise,
                                         species_from_record, species_record)
@@ -183,13 +183,18 @@ def find_saddle(*, name: str, guess=None, reactant=None, product=None, charge: i
                 max_retries: int = 3, internal: bool = True, reactant_bonds=None,
                 product_bonds=None, reactant_name: str | None = None,
                 product_name: str | None = None, cache: Cache | None = None,
-                progress: bool = False, work_dir=None, command: str | None = None) -> SaddleResult:
+                progress: bool = False, work_dir=None, command: str | None = None,
+                same_bonding: bool = False) -> SaddleResult:
     """Find, characterise and verify a first-order saddle point with GFN2-xTB.
 
     Give ``guess`` (ASE Atoms), or ``reactant`` and ``product`` (ASE Atoms with
     the same atom order), or all three (the ends then only define the intended
     bonding). ``reactant_bonds``/``product_bonds`` (sets of 0-based atom pairs)
     override the bonding taken from the end geometries. Energies in J/mol.
+
+    ``same_bonding``: the saddle joins two minima of the same bonding (a torsion, an
+    inversion, a cis-trans isomerisation); the verification then asks only that both
+    downhill sides are minima of that bonding.
     """
     if guess is None and (reactant is None or product is None):
         raise InputError("give a guess geometry, or both reactant and product geometries",
@@ -205,6 +210,8 @@ def find_saddle(*, name: str, guess=None, reactant=None, product=None, charge: i
     cache = cache or Cache(enabled=False)
     inputs = {"charge": charge, "multiplicity": multiplicity, "settings": settings.as_dict(),
               "neb_images": neb_images, "max_retries": max_retries, "internal": internal}
+    if same_bonding:
+        inputs["same_bonding"] = True
     for key_name, at in (("guess", guess), ("reactant", reactant), ("product", product)):
         if at is not None:
             inputs[key_name] = {"symbols": at.get_chemical_symbols(), "positions_A": at.positions}
@@ -216,7 +223,7 @@ def find_saddle(*, name: str, guess=None, reactant=None, product=None, charge: i
     if hit is None:
         hit = _compute(name, guess, reactant, product, charge, multiplicity, settings, neb_images,
                        max_retries, internal, reactant_bonds, product_bonds, progress, work_dir,
-                       command)
+                       command, same_bonding)
         cache.store("saddle", key, hit)
         from_cache = False
     else:
@@ -236,7 +243,8 @@ def find_saddle(*, name: str, guess=None, reactant=None, product=None, charge: i
 
 
 def _compute(name, guess, reactant, product, charge, multiplicity, settings, neb_images,
-             max_retries, internal, reactant_bonds, product_bonds, progress, work_dir, command):
+             max_retries, internal, reactant_bonds, product_bonds, progress, work_dir, command,
+             same_bonding=False):
     symbols = list((guess if guess is not None else reactant).get_chemical_symbols())
     origin = "guess geometry"
     if guess is None:
@@ -244,14 +252,15 @@ def _compute(name, guess, reactant, product, charge, multiplicity, settings, neb
                               multiplicity=multiplicity, progress=progress, work_dir=work_dir)
         p_min = relax_minimum(product, settings, label=f"{name}-product", charge=charge,
                               multiplicity=multiplicity, progress=progress, work_dir=work_dir)
-        guess = neb_guess(r_min.atoms, p_min.atoms, settings, images=neb_images, charge=charge,
-                          multiplicity=multiplicity, progress=progress)
+        with _scf_failure_is_input_error(r_min.atoms, f"{name}-neb", "NEB", work_dir):
+            guess = neb_guess(r_min.atoms, p_min.atoms, settings, images=neb_images,
+                              charge=charge, multiplicity=multiplicity, progress=progress)
         origin = f"highest image of a {neb_images}-image IDPP climbing-image NEB"
     if reactant_bonds is None and reactant is not None:
         reactant_bonds = conn.bonds(symbols, reactant.positions)
     if product_bonds is None and product is not None:
         product_bonds = conn.bonds(symbols, product.positions)
-    if reactant_bonds is not None and product_bonds is not None and \
+    if reactant_bonds is not None and product_bonds is not None and not same_bonding and \
             frozenset(reactant_bonds) == frozenset(product_bonds):
         raise InputError("the reactant and product have the same bonding; there is no reaction "
                          "to find", field="product")
@@ -263,16 +272,23 @@ def _compute(name, guess, reactant, product, charge, multiplicity, settings, neb
                        multiplicity=multiplicity, progress=progress, work_dir=work_dir)
              for k, s in ((1, -1.0), (2, 1.0))]
     graphs = [conn.bonds(symbols, side.atoms.positions) for side in sides]
-    if graphs[0] == graphs[1]:
+    if same_bonding:
+        want = frozenset(reactant_bonds) if reactant_bonds is not None else graphs[0]
+        if graphs[0] != want or graphs[1] != want:
+            found = " and ".join(f"side {k + 1}: {conn.describe_changes(symbols, want, g)}"
+                                 for k, g in enumerate(graphs))
+            raise InputError(f"the saddle point {name} was asked to keep its bonding, but {found}",
+                             hint="leave out --same-bonding for a reaction that changes bonds")
+    elif graphs[0] == graphs[1]:
         raise InputError(f"the saddle point {name} leads to the same bonding on both sides "
                          f"({conn.describe_changes(symbols, reactant_bonds or graphs[0], graphs[0])} "
                          "relative to the reactant): it is not the intended reaction",
                          hint="try another guess")
     order = (0, 1)
     intended = [frozenset(b) if b is not None else None for b in (reactant_bonds, product_bonds)]
-    if intended[0] is not None or intended[1] is not None:
-        def fits(g, want):
-            return want is None or g == want
+    if (intended[0] is not None or intended[1] is not None) and not same_bonding:
+        def fits(g, want):  # like atoms (the two H of H2S) may swap roles
+            return want is None or conn.equivalent(symbols, g, want)
         if fits(graphs[0], intended[0]) and fits(graphs[1], intended[1]):
             order = (0, 1)
         elif fits(graphs[1], intended[0]) and fits(graphs[0], intended[1]):
@@ -287,6 +303,8 @@ def _compute(name, guess, reactant, product, charge, multiplicity, settings, neb
                              hint="try another guess or check the atom order of the ends")
     r_side, p_side = sides[order[0]], sides[order[1]]
     changes = conn.describe_changes(symbols, graphs[order[0]], graphs[order[1]])
+    if same_bonding:
+        changes = "same bonding on both sides (asked for: a conformational saddle point)"
     from tstrate.physics.conformers import xyz_lines
 
     extra = {"origin": origin, "optimiser": f"Sella order=1 internal={internal}",
@@ -308,5 +326,5 @@ def _compute(name, guess, reactant, product, charge, multiplicity, settings, neb
         "product": species_record(p_side, kind="minimum", charge=charge, multiplicity=multiplicity,
                                   provenance=down, allow_imaginary_below_cm1=tol),
         "bond_changes": changes, "retries": retries,
-        "verified": bool(intended[0] is not None or intended[1] is not None),
+        "verified": bool(intended[0] is not None or intended[1] is not None or same_bonding),
     }

@@ -502,9 +502,11 @@ def species_to_toml(species: Species, *, include_hessian: bool = True,
                      f"unit = {_toml_str(energy_unit)} }}")
     if (species.energy_J_per_mol is not None and species.geometry_energy_J_per_mol is not None
             and species.energy_J_per_mol != species.geometry_energy_J_per_mol):
+        method = species.provenance.get("single_point_method")
         lines.append(f"single_point = {{ value = "
                      f"{_toml_num(energy_from_J_per_mol(species.energy_J_per_mol, energy_unit))}, "
-                     f"unit = {_toml_str(energy_unit)} }}")
+                     f"unit = {_toml_str(energy_unit)}"
+                     + (f", method = {_toml_str(method)}" if method else "") + " }")
     if not np.allclose(species.masses_amu, default_masses_amu(species.symbols), rtol=0, atol=1e-6):
         lines.append("masses_amu = [" + ", ".join(_toml_num(m) for m in species.masses_amu) + "]")
     # only values given as overrides: detected ones are detected again when the file is read

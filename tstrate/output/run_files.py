@@ -288,9 +288,14 @@ def build_report(result, doc: dict, inputs: list[dict], figures) -> list:
     rows = []
     for name, sp in study.species.items():
         prov = sp.provenance.get("method", "") if sp.provenance else ""
-        rows.append((name, sp.formula, sp.kind, prov, sp.symmetry_number,
-                     "-" if sp.energy_J_per_mol is None else "yes"))
-    B.append(rp.Table(("species", "formula", "kind", "method", "symmetry number", "energy"), tuple(rows)))
+        # the level of the energy used: a single point's own, else that of the geometry
+        single = (sp.provenance or {}).get("single_point_method")
+        level = ("-" if sp.energy_J_per_mol is None else
+                 single if single and sp.energy_J_per_mol != sp.geometry_energy_J_per_mol else
+                 prov or "as given")
+        rows.append((name, sp.formula, sp.kind, prov, sp.symmetry_number, level))
+    B.append(rp.Table(("species", "formula", "kind", "method", "symmetry number", "energy level"),
+                      tuple(rows)))
 
     B.append(rp.Heading("Methods and assumptions"))
     skip = set()
