@@ -51,6 +51,11 @@ SUBSTITUTION_KEYS = Keys(("isotopes", "substitution", "[]"), "[[isotopes.substit
                                  default_text="every channel"),
                          ))
 
+ATOMS_KEYS = Keys(("isotopes", "substitution", "[]", "atoms"), "atoms = { ... }",
+                  "The atoms of a substitution with mode `atoms`, per species (quote names with dots).",
+                  any_key=Key("<species name>", "list of numbers", "1-based atom numbers in the species' "
+                              "`geometry`; an empty list leaves it light", unit="1"))
+
 
 def read_isotopes(table, study) -> IsotopeSettings:
     import numpy as np
@@ -91,6 +96,7 @@ def read_isotopes(table, study) -> IsotopeSettings:
                 if not all(isinstance(n, int) and not isinstance(n, bool) and n >= 1 for n in nums):
                     raise at.error(sp, "expected a list of 1-based atom numbers")
                 atoms[sp] = tuple(n - 1 for n in nums)
+            at.reject_unknown(ATOMS_KEYS)
         chans = tuple(st.string_list("channels", []))
         for c in chans:
             if c not in channels:
