@@ -136,3 +136,31 @@ def test_command_errors_are_one_line(capsys):
     assert main(["isotopes", str(DEMO / "study.toml"), "--isotope", "99C"]) == 2
     err = capsys.readouterr().err.strip().splitlines()
     assert len(err) == 1 and "--isotope" in err[0]
+
+
+def test_route_mix_is_the_loss_weighted_harmonic_mean(demo):
+    from tstrate.study.routes import study_comparisons
+
+    study, _ = demo
+    comps = study_comparisons(study)
+    res = study_isotopes(study, temperature_K=T, comparisons=comps)
+    assert res.route_mix
+    for m in res.route_mix:
+        comp = next(c for c in comps if c.comparison.name == m.comparison)
+        k_light = sum(r.pseudo_first_order_per_s for r in comp.routes)
+        a = [x.describe() for x in comp.comparison.abundances].index(m.abundance)
+        np.testing.assert_allclose(sum(m.weights.values()), 1.0, rtol=1e-12)
+        # the same from the heavy pseudo-first-order rates: sum k'_light / sum k'_light / KIE_r
+        kie_r = {}
+        for r in comp.routes:
+            from tstrate.study.isotopes import _heavy_map
+
+            sub = next(s for s in study.sections["isotopes"].substitutions if s.label == m.label)
+            heavy = _heavy_map(study, study.channel(r.channel), sub)
+            kie_r[r.channel] = (channel_rates(study.channel(r.channel), study.species, comp.temperature_K).k
+                                / channel_rates(study.channel(r.channel), heavy, comp.temperature_K).k)
+        k_heavy = sum(r.pseudo_first_order_per_s[a] / kie_r[r.channel] for r in comp.routes)
+        np.testing.assert_allclose(m.kie, k_light[a] / k_heavy, rtol=1e-10)
+        lo = np.min([kie_r[c] for c in kie_r], axis=0)
+        hi = np.max([kie_r[c] for c in kie_r], axis=0)
+        assert np.all((m.kie >= lo * (1 - 1e-12)) & (m.kie <= hi * (1 + 1e-12)))

@@ -75,7 +75,12 @@ def compute(study_path, isotopes=None, temperatures=None, pairs=None, low_modes=
     if temperatures is not None:
         temperatures_K(temperatures, name="--temperature", ndim=1)
     study.sections["isotopes"] = settings
-    return study, study_isotopes(study, low_modes=low_modes, temperature_K=temperatures)
+    comparisons = None
+    if study.sections.get("comparison"):
+        from tstrate.study.routes import study_comparisons
+
+        comparisons = study_comparisons(study, low_modes=low_modes)
+    return study, study_isotopes(study, low_modes=low_modes, temperature_K=temperatures, comparisons=comparisons)
 
 
 def run(args) -> int:
@@ -123,6 +128,9 @@ def run(args) -> int:
         print(f"\ntheta {'/'.join(t.labels)} {t.kind} {t.name}: {t.theta[0]:.4f} to {t.theta[-1]:.4f} "
               f"(references: high-T {t.references.equilibrium_high_T:.4f}, low-T "
               f"{t.references.equilibrium_low_T:.4f}, kinetic classical {t.references.kinetic_classical:.4f})")
+    for m in res.route_mix:
+        print(f"\n{m.label}, route mix of {m.comparison!r} at {m.abundance}: KIE {m.kie[0]:.4g} "
+              f"({m.temperature_K[0]:g} K) to {m.kie[-1]:.4g} ({m.temperature_K[-1]:g} K)")
     for path in written:
         print(f"plot written to {path}")
     print("\n" + MASS_DEPENDENCE_STATEMENT)

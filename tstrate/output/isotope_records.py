@@ -45,6 +45,11 @@ def isotopes_record(res) -> dict:
                            "alpha": f.alpha, "epsilon_permil": 1000 * (f.alpha - 1)} for f in res.fractionation],
         "three_isotope": [{"element": t.element, "isotopes": list(t.labels), "kind": t.kind, "name": t.name,
                            "theta": t.theta, "references": _refs(t.references)} for t in res.three_isotope],
+        "route_mix": [{"isotope": m.label, "comparison": m.comparison, "abundance": m.abundance,
+                       "temperature_K": m.temperature_K, "kie": m.kie,
+                       "kinetic_epsilon_permil": 1000 * (1 / m.kie - 1),
+                       "loss_share": [{"channel": c, "share": w} for c, w in m.weights.items()]}
+                      for m in res.route_mix],
         "mass_dependence": res.statement,
     }
 
@@ -147,5 +152,15 @@ def report_blocks(res, figures=()) -> list:
                           "Three-isotope exponents theta = ln alpha(lighter) / ln alpha(heavier) (kinetic: alpha = "
                           "1/KIE) beside their mass-dependent references: (1/m1-1/m2)/(1/m1-1/m3), "
                           "(1/sqrt m1-1/sqrt m2)/(1/sqrt m1-1/sqrt m3), ln(m1/m2)/ln(m1/m3)."))
+    if res.route_mix:
+        rows = []
+        for m in res.route_mix:
+            j = _pick(m.temperature_K, 3)
+            rows.append((m.label, m.comparison, m.abundance,
+                         ", ".join(f"{m.kie[i]:.4g} ({m.temperature_K[i]:g} K)" for i in j)))
+        B.append(rp.Table(("isotope", "comparison", "abundance", "KIE of the route mix"), tuple(rows),
+                          "Effective KIE of each comparison's routes weighted by their share of the loss of the "
+                          "substrate (the catalyst abundance the same for both isotopologues; mode all "
+                          "substitutes the catalyst too)."))
     B.append(rp.Paragraph(MASS_DEPENDENCE_STATEMENT))
     return B

@@ -592,6 +592,17 @@ _record("isotopes", "Isotopologues of a study", [
     ("three_isotope[].references.equilibrium_low_temperature_limit", ONE,
      "(1/sqrt m1-1/sqrt m2)/(1/sqrt m1-1/sqrt m3)"),
     ("three_isotope[].references.kinetic_classical_limit", ONE, "ln(m1/m2)/ln(m1/m3)"),
+    ("route_mix", LIST, "effective KIE of each comparison's route mix, per isotope and abundance (with "
+     "[[comparison]] in a tstrate run)"),
+    ("route_mix[].isotope", TEXT, "substitution label"),
+    ("route_mix[].comparison", TEXT, "name of the [[comparison]]"),
+    ("route_mix[].abundance", TEXT, "the catalyst abundance in words"),
+    ("route_mix[].temperature_K", K, "the comparison's temperatures"),
+    ("route_mix[].kie", ONE, "1 / sum_r (w_r / KIE_r), per temperature"),
+    ("route_mix[].kinetic_epsilon_permil", "permil", "(1/KIE - 1) x 1000 of the mix"),
+    ("route_mix[].loss_share", LIST, "share w_r of each route in the loss of the substrate"),
+    ("route_mix[].loss_share[].channel", TEXT, "channel of the route"),
+    ("route_mix[].loss_share[].share", ONE, "its share, per temperature"),
     ("mass_dependence", TEXT, "the statement on mass dependence of harmonic TST/RRHO and what it leaves out"),
 ], "Harmonic TST and RRHO on one Born-Oppenheimer surface; isotopologue frequencies from the Hessians.")
 

@@ -115,11 +115,31 @@ class ThreeIsotope:
 
 
 @dataclass(frozen=True)
+class RouteMix:
+    """Effective KIE of a comparison's route mix for one isotope and one catalyst abundance:
+    KIE_mix = sum_r k'_r / sum_r k'_r,heavy = 1 / sum_r (w_r / KIE_r), w_r the share of route r in
+    the loss of the light substrate (pseudo-first-order rates of the comparison), the catalyst
+    abundance the same for both isotopologues.
+
+    comparison, abundance: the [[comparison]] and the text of its abundance.
+    temperature_K: the comparison's temperatures [K]; weights: channel -> (T,) share of the loss.
+    """
+
+    label: str
+    comparison: str
+    abundance: str
+    temperature_K: np.ndarray
+    weights: dict
+    kie: np.ndarray
+
+
+@dataclass(frozen=True)
 class IsotopeResult:
     temperature_K: np.ndarray
     substitutions: tuple[SubstitutionResult, ...]
     fractionation: tuple[Fractionation, ...]
     three_isotope: tuple[ThreeIsotope, ...]
+    route_mix: tuple[RouteMix, ...] = ()
     statement: str = iso.MASS_DEPENDENCE_STATEMENT
 
 
@@ -180,8 +200,41 @@ def _heavy_map(study, ch, sub: Substitution) -> dict:
     return out
 
 
-def study_isotopes(study, *, low_modes: LowModes = HARMONIC, temperature_K=None) -> IsotopeResult:
-    """Everything the study's ``[isotopes]`` section asks for (see the module text)."""
+def route_mixes(study, comparisons, low_modes: LowModes = HARMONIC) -> list[RouteMix]:
+    """The effective KIE of every comparison's route mix (:class:`RouteMix`), for every substitution
+    that touches all of its routes' channels."""
+    from tstrate.physics.tst import channel_rates
+
+    settings: IsotopeSettings = study.sections["isotopes"]
+    out = []
+    for comp in comparisons:
+        T = comp.temperature_K
+        chans = [r.channel for r in comp.routes]
+        for sub in settings.substitutions:
+            if sub.channels and not set(chans) <= set(sub.channels):
+                continue
+            kies = {}
+            for name in chans:
+                ch = study.channel(name)
+                heavy = _heavy_map(study, ch, sub)
+                if all(heavy[n] is study.species[n] for n in heavy):
+                    break
+                kies[name] = (channel_rates(ch, study.species, T, low_modes=low_modes).k
+                              / channel_rates(ch, heavy, T, low_modes=low_modes).k)
+            if len(kies) != len(chans):
+                continue
+            total = sum(r.pseudo_first_order_per_s for r in comp.routes)  # (A, T)
+            for a, abundance in enumerate(comp.comparison.abundances):
+                w = {r.channel: r.pseudo_first_order_per_s[a] / total[a] for r in comp.routes}
+                inv = sum(w[c] / kies[c] for c in chans)
+                out.append(RouteMix(sub.label, comp.comparison.name, abundance.describe(), T, w, 1.0 / inv))
+    return out
+
+
+def study_isotopes(study, *, low_modes: LowModes = HARMONIC, temperature_K=None,
+                   comparisons=None) -> IsotopeResult:
+    """Everything the study's ``[isotopes]`` section asks for (see the module text); with
+    ``comparisons`` (results of the study's [[comparison]]s), the KIE of each route mix too."""
     from tstrate.arrays import temperatures_K
     from tstrate.physics.tst import channel_rates
     from tstrate.physics.vibrations import isotope_mass_amu
@@ -253,4 +306,10 @@ def study_isotopes(study, *, low_modes: LowModes = HARMONIC, temperature_K=None)
                 if k.channel in k3:  # kinetic fractionation alpha = k_heavy/k_light = 1/KIE
                     three.append(ThreeIsotope(s2.element, labels, "kinetic", k.channel,
                                               iso.theta(-np.log(k.kie), -np.log(k3[k.channel].kie)), refs))
-    return IsotopeResult(T, tuple(results), tuple(fractionation), tuple(three))
+    mixes = ()
+    if comparisons:
+        try:
+            mixes = tuple(route_mixes(study, comparisons, low_modes))
+        except InputError as exc:
+            raise exc.within(file=study.file, prefix="isotopes") from None
+    return IsotopeResult(T, tuple(results), tuple(fractionation), tuple(three), mixes)

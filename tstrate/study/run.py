@@ -152,7 +152,7 @@ def compute_study(study: Study, *, low_modes: LowModes = HARMONIC,
         step("isotopologues")
         from tstrate.study.isotopes import study_isotopes
 
-        isotopes = study_isotopes(study, low_modes=low_modes)
+        isotopes = study_isotopes(study, low_modes=low_modes, comparisons=comparisons)
 
     step("fits")
     from tstrate.model.settings import FitOptions
