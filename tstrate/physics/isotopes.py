@@ -241,6 +241,28 @@ def ln_f_species(light: Species, heavy: Species, temperature_K) -> np.ndarray:
                                                temperature_K)
 
 
+def trace_ln_beta(species: Species, element: str, mass_number: int, temperature_K):
+    """ln beta of a trace heavy isotope in ``species``: ln of the mean of f over its atoms of
+    ``element`` (one singly substituted isotopologue per class of equivalent atoms, weighted by the
+    class size). Returns (ln beta per temperature, the classes (0-based), ln f per class).
+
+    """
+    T = np.atleast_1d(temperatures_K(temperature_K))
+    classes = equivalent_atom_classes(species, element)
+    if not classes:
+        raise ValueError(f"species {species.name!r} holds no {element} atom")
+    ln_fs, weights = [], []
+    for c in classes:
+        heavy = substituted_species(species, {c[0]: mass_number})
+        ln_fs.append(ln_f_species(species, heavy, T))
+        weights.append(len(c))
+    w = np.array(weights, dtype=float)
+    ln = np.array(ln_fs)
+    top = ln.max(axis=0)
+    ln_beta = top + np.log(np.sum(w[:, None] * np.exp(ln - top), axis=0) / w.sum())
+    return ln_beta, tuple(classes), tuple(ln_fs)
+
+
 # ---- fractionation ------------------------------------------------------------------
 
 def epsilon_permil(alpha) -> np.ndarray:

@@ -152,19 +152,9 @@ def _refuse_without_hessian(study, name):
 
 
 def species_beta(sp, element: str, mass_number: int, T) -> SpeciesBeta:
-    """Trace beta factor of one species: the mean of f over its atoms of ``element`` (one
-    substituted isotopologue per class of equivalent atoms)."""
-    classes = iso.equivalent_atom_classes(sp, element)
-    ln_fs, fs, weights = [], [], []
-    for c in classes:
-        heavy = iso.substituted_species(sp, {c[0]: mass_number})
-        lnf = iso.ln_f_species(sp, heavy, T)
-        ln_fs.append(lnf)
-        fs.append(np.exp(lnf))
-        weights.append(len(c))
-    w = np.array(weights, dtype=float)
-    mean = np.sum(np.array(fs) * w[:, None], axis=0) / w.sum()
-    return SpeciesBeta(sp.name, np.log(mean), tuple(classes), tuple(ln_fs))
+    """Trace beta factor of one species (:func:`tstrate.physics.isotopes.trace_ln_beta`)."""
+    ln_beta, classes, ln_fs = iso.trace_ln_beta(sp, element, mass_number, T)
+    return SpeciesBeta(sp.name, ln_beta, classes, ln_fs)
 
 
 def _heavy_map(study, ch, sub: Substitution) -> dict:
