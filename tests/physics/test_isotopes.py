@@ -115,7 +115,7 @@ def test_water_exchange_equilibrium():
     lnk = ln_equilibrium_constant([h2o, d2o], [hdo, hdo], T)
     K = np.exp(lnk)
     assert K[2] == pytest.approx(4.0, rel=2e-3)
-    assert K[1] == pytest.approx(3.82, abs=0.1)   # harmonic model force field (tests/conftest)
+    assert K[1] == pytest.approx(3.82, abs=0.05)   # 3.843 with this harmonic model force field
 
 
 def test_classical_limit_of_a_kie_is_the_imaginary_frequency_ratio():
