@@ -96,7 +96,7 @@ def outputs(demo_run, tmp_path_factory):
     rotor.write_text((ROOT / "tests/data/falloff/h2co3.toml").read_text() + FREE_ROTOR)
     got.append(("tstrate thermo --json", run_cli_json(["thermo", str(DEMO / "h2co3.toml"), str(rotor),
                                                        "-T", "200", "300", "--json"])))
-    for command in ("rates", "compare", "falloff", "excite"):
+    for command in ("rates", "compare", "falloff", "excite", "isotopes"):
         got.append((f"tstrate {command} --json", run_cli_json([command, str(study), "--json"])))
     tunnel = ["tunnel", "--imaginary-cm1", "1500", "--forward-barrier", "150", "--reverse-barrier", "170",
               "-T", "200", "300", "--json"]

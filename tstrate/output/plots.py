@@ -21,6 +21,7 @@ FIGURE_STEMS = {
     "falloff": "falloff_{name}",
     # panels: pressure, altitude, k_of_E
     "excitation": "excitation_{name}_{panel}",
+    "isotopes": "isotopes_kie",
 }
 #: the formats each figure is written in
 FIGURE_FORMATS = ("png", "svg")

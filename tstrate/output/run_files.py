@@ -97,6 +97,10 @@ def _results_json(result) -> dict:
         from tstrate.output.pressure_records import excitation_record
 
         doc["excitations"] = [excitation_record(e, units) for e in result.excitations]
+    if getattr(result, "isotopes", None) is not None:
+        from tstrate.output.isotope_records import isotopes_record
+
+        doc["isotopes"] = isotopes_record(result.isotopes)
     return doc
 
 
@@ -170,6 +174,12 @@ def write_all(result, folder: Path, *, progress: Callable[[str], None] | None = 
     if result.pressure_fits:
         atomic_write_text(folder / "tables" / "fits_at_each_pressure.csv", csv_text(*pressure_fit_rows(result)))
         written.append(folder / "tables" / "fits_at_each_pressure.csv")
+    if result.isotopes is not None:
+        from tstrate.output.isotope_records import CSV_TABLES
+
+        for name, rows in CSV_TABLES.items():
+            atomic_write_text(folder / "tables" / name, csv_text(*rows(result.isotopes)))
+            written.append(folder / "tables" / name)
     doc = _results_json(result)
     atomic_write_text(folder / "results.json", json_text(doc))
     written.append(folder / "results.json")
@@ -215,6 +225,14 @@ def write_all(result, folder: Path, *, progress: Callable[[str], None] | None = 
                 written += paths
                 figures.append(("excitation", paths[0], f"{ex.spec.name}: fraction reacting "
                                 "before deactivation against altitude."))
+
+    if result.isotopes is not None and any(s.kie for s in result.isotopes.substitutions):
+        from tstrate.output.isotope_plots import kie_figure
+
+        paths = _save(kie_figure(doc["isotopes"]), folder / "plots", figure_stem("isotopes"))
+        written += paths
+        figures.append(("isotopes", paths[0], "Kinetic isotope effects k_light / k_heavy against T; dashed "
+                        "lines without tunnelling."))
 
     step("report")
     blocks = build_report(result, doc, inputs, [(s, p.relative_to(folder), c) for s, p, c in figures])
@@ -398,6 +416,12 @@ def build_report(result, doc: dict, inputs: list[dict], figures) -> list:
             B.append(rp.Paragraph(f"{rec['name']} (channel {rec['channel']}): {rec['excitation']}, "
                                   f"{rec['excitation_energy_kJ_per_mol']:.1f} kJ/mol.{note}"))
         B += [rp.Figure(p, c) for s, p, c in figures if s == "excitation"]
+
+    if result.isotopes is not None:
+        from tstrate.output.isotope_records import report_blocks
+
+        B.append(rp.Heading("Isotopologues"))
+        B += report_blocks(result.isotopes, [(p, c) for s, p, c in figures if s == "isotopes"])
 
     B.append(rp.Heading("Fitted parameters"))
     from tstrate.output.records import rate_unit

@@ -540,6 +540,72 @@ _record("capture_limit", "Capture limit of a bimolecular channel", [
 ], "A rate constant cannot exceed the rate at which its reactants meet; a TST value above it "
    "means the TST bottleneck is not rate-limiting (e.g. a submerged barrier).")
 
+_record("isotopes", "Isotopologues of a study", [
+    ("temperature_K", K, "temperatures of the arrays below"),
+    ("substitutions", LIST, "one entry per isotope substitution"),
+    ("substitutions[].label", TEXT, "name of the substitution in the tables"),
+    ("substitutions[].isotope", TEXT, "the isotope (D, 13C, 18O, ...)"),
+    ("substitutions[].element", TEXT, "its element"),
+    ("substitutions[].mode", TEXT, "all (every atom of the element in every species of a channel) or atoms"),
+    ("substitutions[].mass_light_amu", "u", "mass of the most common isotope of the element"),
+    ("substitutions[].mass_heavy_amu", "u", "mass of the isotope"),
+    ("substitutions[].atoms", OBJ, "the atoms substituted per species (mode atoms; empty otherwise)"),
+    ("substitutions[].atoms.<species>", ONE, "1-based atom numbers (list)"),
+    ("substitutions[].beta", LIST, "beta factors of the minima holding the element (single substitution, trace)"),
+    ("substitutions[].beta[].species", TEXT, "species name"),
+    ("substitutions[].beta[].thousand_ln_beta_permil", "permil", "1000 ln beta, per temperature"),
+    ("substitutions[].beta[].beta", ONE, "the reduced partition-function ratio beta, per temperature"),
+    ("substitutions[].beta[].equivalent_positions", ONE, "classes of symmetry-equivalent atoms, 1-based (lists)"),
+    ("substitutions[].beta[].thousand_ln_f_by_position_permil", "permil", "1000 ln f of a single substitution "
+     "in each class, per temperature (lists)"),
+    ("substitutions[].kie", LIST, "one entry per channel the substitution touches"),
+    ("substitutions[].kie[].channel", TEXT, "channel name"),
+    ("substitutions[].kie[].kie", ONE, "k_light / k_heavy with tunnelling, per temperature"),
+    ("substitutions[].kie[].kie_no_tunnelling", ONE, "k_light / k_heavy without tunnelling, per temperature"),
+    ("substitutions[].kie[].kinetic_epsilon_permil", "permil", "kinetic fractionation (1/KIE - 1) x 1000"),
+    ("substitutions[].kie[].factors", OBJ, "the KIE split into factors whose product is the KIE"),
+    ("substitutions[].kie[].factors.translational", ONE, "translational mass term, per temperature"),
+    ("substitutions[].kie[].factors.rotational", ONE, "rotational mass (moment) term, per temperature"),
+    ("substitutions[].kie[].factors.symmetry", ONE, "ratio of the path degeneracies, per temperature"),
+    ("substitutions[].kie[].factors.vibrational_zpe", ONE, "zero-point term exp(-(dE0_light - dE0_heavy)/RT)"),
+    ("substitutions[].kie[].factors.vibrational_excited", ONE, "excited-state vibrational term"),
+    ("substitutions[].kie[].factors.tunnelling", ONE, "kappa_light / kappa_heavy"),
+    ("substitutions[].kie[].imaginary_frequency_ratio", ONE, "nu_light / nu_heavy of the imaginary mode: the "
+     "classical limit of the KIE without tunnelling"),
+    ("fractionation", LIST, "equilibrium fractionation of the study's species pairs"),
+    ("fractionation[].isotope", TEXT, "substitution label"),
+    ("fractionation[].species_a", TEXT, "species A"),
+    ("fractionation[].species_b", TEXT, "species B"),
+    ("fractionation[].alpha", ONE, "alpha = beta_A / beta_B, per temperature"),
+    ("fractionation[].epsilon_permil", "permil", "(alpha - 1) x 1000, per temperature"),
+    ("three_isotope", LIST, "three-isotope exponents of pairs of substitutions of one element"),
+    ("three_isotope[].element", TEXT, "the element"),
+    ("three_isotope[].isotopes", TEXT, "the lighter and the heavier substitution (list)"),
+    ("three_isotope[].kind", TEXT, "equilibrium (beta or fractionation pair) or kinetic (channel)"),
+    ("three_isotope[].name", TEXT, "species, pair A/B or channel"),
+    ("three_isotope[].theta", ONE, "ln alpha(lighter) / ln alpha(heavier), per temperature"),
+    ("three_isotope[].references", OBJ, "mass-dependent reference values of theta"),
+    ("three_isotope[].references.m1_amu", "u", "mass of the reference (light) isotope"),
+    ("three_isotope[].references.m2_amu", "u", "mass of the lighter substituted isotope"),
+    ("three_isotope[].references.m3_amu", "u", "mass of the heavier substituted isotope"),
+    ("three_isotope[].references.equilibrium_high_temperature_limit", ONE, "(1/m1-1/m2)/(1/m1-1/m3)"),
+    ("three_isotope[].references.equilibrium_low_temperature_limit", ONE,
+     "(1/sqrt m1-1/sqrt m2)/(1/sqrt m1-1/sqrt m3)"),
+    ("three_isotope[].references.kinetic_classical_limit", ONE, "ln(m1/m2)/ln(m1/m3)"),
+    ("route_mix", LIST, "effective KIE of each comparison's route mix, per isotope and abundance (with "
+     "[[comparison]] in a tstrate run)"),
+    ("route_mix[].isotope", TEXT, "substitution label"),
+    ("route_mix[].comparison", TEXT, "name of the [[comparison]]"),
+    ("route_mix[].abundance", TEXT, "the catalyst abundance in words"),
+    ("route_mix[].temperature_K", K, "the comparison's temperatures"),
+    ("route_mix[].kie", ONE, "1 / sum_r (w_r / KIE_r), per temperature"),
+    ("route_mix[].kinetic_epsilon_permil", "permil", "(1/KIE - 1) x 1000 of the mix"),
+    ("route_mix[].loss_share", LIST, "share w_r of each route in the loss of the substrate"),
+    ("route_mix[].loss_share[].channel", TEXT, "channel of the route"),
+    ("route_mix[].loss_share[].share", ONE, "its share, per temperature"),
+    ("mass_dependence", TEXT, "the statement on mass dependence of harmonic TST/RRHO and what it leaves out"),
+], "Harmonic TST and RRHO on one Born-Oppenheimer surface; isotopologue frequencies from the Hessians.")
+
 _RESULTS = Document("results.json", "results-json.md", """\
 Every number `tstrate run` computed, in one JSON document. The sections `comparisons`,
 `falloff` and `excitations` appear only when the study asks for them.""", _keys(
@@ -558,6 +624,7 @@ Every number `tstrate run` computed, in one JSON document. The sections `compari
     ("falloff", OBJ, "pressure dependence of the unimolecular channels", "falloff_study"),
     ("excitations", LIST, "one entry per [[excitation]]"),
     ("excitations[]", OBJ, "one excitation", "excitation"),
+    ("isotopes", OBJ, "isotopologues (only with an [isotopes] section)", "isotopes"),
 ))
 
 _INPUTS = Document("inputs.json", "results-json.md", """\
@@ -714,6 +781,55 @@ with falloff; the same fits as fits.json fits_at_each_pressure).""", _keys(
     ("rms deviation", PCT, "rms deviation"),
 ), "csv")
 
+_ISO_BETA_CSV = Document("tables/isotopes_beta.csv", "csv-tables.md", """\
+Beta factors (only with [isotopes]): one row per isotope, species and temperature.""", _keys(
+    ("isotope", TEXT, "substitution label"),
+    ("species", TEXT, "species name"),
+    ("T", K, "temperature"),
+    ("1000 ln beta", "permil", "1000 ln of the reduced partition-function ratio"),
+    ("beta", ONE, "the reduced partition-function ratio"),
+), "csv")
+
+_ISO_KIE_CSV = Document("tables/isotopes_kie.csv", "csv-tables.md", """\
+Kinetic isotope effects (only with [isotopes]): one row per isotope, channel and temperature.""", _keys(
+    ("isotope", TEXT, "substitution label"),
+    ("channel", TEXT, "channel name"),
+    ("T", K, "temperature"),
+    ("KIE", ONE, "k_light / k_heavy with tunnelling"),
+    ("KIE no tunnelling", ONE, "k_light / k_heavy without tunnelling"),
+    ("kinetic epsilon", "permil", "(1/KIE - 1) x 1000"),
+    ("translational", ONE, "translational mass factor"),
+    ("rotational", ONE, "rotational mass factor"),
+    ("symmetry", ONE, "path-degeneracy factor"),
+    ("vibrational_zpe", ONE, "zero-point factor"),
+    ("vibrational_excited", ONE, "excited-state vibrational factor"),
+    ("tunnelling", ONE, "tunnelling factor"),
+), "csv")
+
+_ISO_FRAC_CSV = Document("tables/isotopes_fractionation.csv", "csv-tables.md", """\
+Equilibrium fractionation (only with [isotopes] fractionation pairs).""", _keys(
+    ("isotope", TEXT, "substitution label"),
+    ("species A", TEXT, "species A"),
+    ("species B", TEXT, "species B"),
+    ("T", K, "temperature"),
+    ("alpha", ONE, "beta_A / beta_B"),
+    ("epsilon", "permil", "(alpha - 1) x 1000"),
+), "csv")
+
+_ISO_THETA_CSV = Document("tables/isotopes_theta.csv", "csv-tables.md", """\
+Three-isotope exponents with their mass-dependent references (only with two substitutions of
+one element).""", _keys(
+    ("element", TEXT, "the element"),
+    ("isotopes", TEXT, "lighter/heavier substitution"),
+    ("kind", TEXT, "equilibrium or kinetic"),
+    ("of", TEXT, "species, pair or channel"),
+    ("T", K, "temperature"),
+    ("theta", ONE, "ln alpha(lighter) / ln alpha(heavier)"),
+    ("high-T limit", ONE, "(1/m1-1/m2)/(1/m1-1/m3)"),
+    ("low-T limit", ONE, "(1/sqrt m1-1/sqrt m2)/(1/sqrt m1-1/sqrt m3)"),
+    ("kinetic classical limit", ONE, "ln(m1/m2)/ln(m1/m3)"),
+), "csv")
+
 _MECHANISM = Document("mechanism.yaml", "mechanism.md", """\
 A mechanism in Cantera's YAML input format: the species with their fitted NASA polynomials
 and one reversible reaction per channel (reverse rate constants follow from the
@@ -845,6 +961,13 @@ _COMMANDS = [
         ("channels[].warnings", TEXT, "warnings of the channel's fits (list)"),
         ("warnings", TEXT, "warnings of the run (list)"),
     ]),
+    _cmd("isotopes", "Isotopologues of a study: KIEs, beta factors, fractionation, three-isotope exponents.", [
+        ("study", TEXT, "the study file"),
+        ("title", TEXT, "the study's title"),
+        ("low_modes", OBJ, "treatment of low modes", "low_modes"),
+        ("isotopes", OBJ, "the isotopologue results", "isotopes"),
+        ("plots", TEXT, "plot files written (list)"),
+    ]),
     _cmd("compute minimum", "A GFN2-xTB minimum.", [
         ("species", OBJ, "the minimum", "species_summary"),
         ("output", TEXT, "species file written, or null"),
@@ -873,7 +996,8 @@ _COMMANDS = [
 
 DOCUMENTS: dict[str, Document] = {d.name: d for d in
                                   [_RESULTS, _INPUTS, _FITS, _FITS_CSV, _THERMO_CSV, _RATES_CSV,
-                                   _PFITS_CSV, _MECHANISM, *_COMMANDS]}
+                                   _PFITS_CSV, _ISO_BETA_CSV, _ISO_KIE_CSV, _ISO_FRAC_CSV, _ISO_THETA_CSV,
+                                   _MECHANISM, *_COMMANDS]}
 
 PAGES = {
     "results-json.md": ("results.json and inputs.json", """\
@@ -986,7 +1110,7 @@ def _leaf_kinds(v) -> set:
 SUFFIX_UNITS = (
     ("_J_per_mol_K", JK), ("_kJ_per_mol", KJ), ("_amu_A2", "amu Å2"), ("_per_cm3", PER_CM3),
     ("_per_bar", "bar-1"), ("_per_s", PER_S), ("_percent", PCT), ("_cm1", CM1), ("_bar", BAR),
-    ("_km", "km"), ("_K", K), ("_A", "Å"),
+    ("_km", "km"), ("_K", K), ("_A", "Å"), ("_permil", "permil"), ("_amu", "u"),
 )
 #: unit spellings that break the convention wherever they end a key name
 FORBIDDEN_SUFFIXES = ("_J_per_mol", "_Pa", "_m3", "_hartree", "_relative_deviation", "_fraction_percent")

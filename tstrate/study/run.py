@@ -48,6 +48,7 @@ class StudyResult:
         [Pa] or None, [M] [m^-3] at the highest temperature, fit).
     warnings: sentences for the report.
     capture: physics.capture.CaptureLimit per bimolecular channel (TST against the capture ceiling).
+    isotopes: study.isotopes.IsotopeResult when the study has an [isotopes] section, else None.
     """
 
     study: Study
@@ -61,6 +62,7 @@ class StudyResult:
     pressure_fits: dict = field(default_factory=dict)
     warnings: tuple[str, ...] = field(default=())
     capture: tuple = field(default=())
+    isotopes: object | None = None
 
 
 def steps(study: Study) -> list[str]:
@@ -71,6 +73,8 @@ def steps(study: Study) -> list[str]:
         steps.append("falloff")
     if study.sections.get("excitation"):
         steps.append("energised molecules")
+    if study.sections.get("isotopes"):
+        steps.append("isotopologues")
     steps.append("fits")
     return steps
 
@@ -143,6 +147,13 @@ def compute_study(study: Study, *, low_modes: LowModes = HARMONIC,
         for ex in excitations:
             warnings += list(ex.warnings)
 
+    isotopes = None
+    if study.sections.get("isotopes"):
+        step("isotopologues")
+        from tstrate.study.isotopes import study_isotopes
+
+        isotopes = study_isotopes(study, low_modes=low_modes, comparisons=comparisons)
+
     step("fits")
     from tstrate.model.settings import FitOptions
     from tstrate.study.fits import fit_study
@@ -158,7 +169,8 @@ def compute_study(study: Study, *, low_modes: LowModes = HARMONIC,
         warnings += list(cf.warnings)
     return StudyResult(study=study, low_modes=low_modes, thermo=thermo, rates=rates,
                        comparisons=comparisons, falloff=falloff, excitations=excitations, fits=fits,
-                       pressure_fits=pressure_fits, warnings=tuple(dict.fromkeys(warnings)), capture=capture)
+                       pressure_fits=pressure_fits, warnings=tuple(dict.fromkeys(warnings)), capture=capture,
+                       isotopes=isotopes)
 
 
 #: a falloff channel whose k_inf (from k(E)) differs from canonical TST by more than this fraction at
