@@ -30,7 +30,8 @@ from tstrate.units import DEFAULT_RATE_UNIT, PRESSURE_UNITS_PA, RATE_UNITS
 SECTION_READERS: dict[str, str] = {"comparison": "tstrate.io.sections.comparison:read_comparisons",
                                   "falloff": "tstrate.io.sections.pressure:read_falloff",
                                   "excitation": "tstrate.io.sections.pressure:read_excitations",
-                                  "fits": "tstrate.io.sections.fits:read_fit_options"}
+                                  "fits": "tstrate.io.sections.fits:read_fit_options",
+                                  "uncertainty": "tstrate.io.sections.uncertainty:read_uncertainty"}
 
 _ORDER_NAMES = {"unimolecular": 1, "bimolecular": 2, "termolecular": 3}
 #: the keys that give the pressures of [conditions] (at most one)
@@ -52,6 +53,8 @@ STUDY_KEYS = Keys((), "top level", "A study names its species files and links th
                           "(`[falloff]` below)"),
                       Key("excitation", "array of tables", "energised molecules (`[[excitation]]` below)"),
                       Key("fits", "table", "how rate constants are fitted and exported (`[fits]` below)"),
+                      Key("uncertainty", "table", "how sure each number is: input uncertainties and "
+                          "sampling (`[uncertainty]` below)"),
                   ))
 SPECIES_MAP_KEYS = Keys(("species",), "[species]",
                         "One line per species: the name the study uses (quote names with dots or "

@@ -479,7 +479,8 @@ def _ranking(sens_at: np.ndarray, space: InputSpace) -> tuple[RankedFactor, ...]
                  for j in order)
 
 
-def _band(name, unit, nominal_ln, samples_ln, sens, space, T_ref_index=None, T=None, method="exact") -> Band:
+def _band(name, unit, nominal_ln, samples_ln, sens, space, T_ref_index=None, T=None, method="exact",
+          pick=None) -> Band:
     """A Band from sampled ln values (S, *grid)."""
     valid = np.all(np.isfinite(samples_ln.reshape(samples_ln.shape[0], -1)), axis=1)
     s = samples_ln[valid] if valid.any() else samples_ln
@@ -489,7 +490,7 @@ def _band(name, unit, nominal_ln, samples_ln, sens, space, T_ref_index=None, T=N
     if sens is not None and T is not None:
         i = _reference_index(T) if T_ref_index is None else T_ref_index
         t_ref = float(np.asarray(T)[i])
-        at = sens[..., i]
+        at = sens[..., i] if pick is None else pick(sens, i)
         while at.ndim > 1:        # (n_u, A) -> the first abundance
             at = at[..., 0]
         ranking = _ranking(at, space)
@@ -583,7 +584,8 @@ def _first_order(compute: Callable, study, space: InputSpace, idx: list[int], st
         tick()
         minus = compute(perturbed_study(study, inp, -h))
         tick()
-        grads[i] = (plus - minus) / (2.0 * h)
+        with np.errstate(invalid="ignore"):   # inf - inf where a fraction is 0 or 1
+            grads[i] = (plus - minus) / (2.0 * h)
     return grads
 
 
@@ -724,7 +726,7 @@ def study_uncertainty(result, settings: UncertaintySettings | None = None, *,
                 s_inf = s_inf - sens.get(("kappa", ch.name), 0.0)
             s_tot = G + (s_inf[:, :, None] if s_inf is not None else 0.0)
             band = _band(f"k({ch.name}, P)", "s^-1", np.log(cf.rate_constant_per_s), ln_kTP, s_tot, space, T=T,
-                         method="k_inf exact; ln(k/k_inf) to first order")
+                         method="k_inf exact; ln(k/k_inf) to first order", pick=lambda a, i: a[:, i, 0])
             f298 = np.full(ln_f0.shape[1], np.nan)
             g = np.full(ln_f0.shape[1], np.nan)
             if T.size >= 2:
