@@ -132,6 +132,13 @@ def study_data() -> dict:
     ]
     data["fits"] = {"max_deviation_percent": 3.0, "split": 220.0, "mechanism_form": "chebyshev",
                     "T0_K": 300.0, "chebyshev_temperature_terms": 4, "chebyshev_pressure_terms": 2}
+    data["uncertainty"] = {"samples": 64, "seed": 3, "sampling": "latin-hypercube", "run": False,
+                           "method_defaults": False, "energy_correlation": 0.4, "delta_E_down_factor": 2.0,
+                           "lennard_jones_sigma_percent": 10.0, "lennard_jones_epsilon_percent": 20.0,
+                           "catalyst_abundance_factor": 1.5, "sensitivity_step": 0.02,
+                           "species": {"H2CO3": {"energy": {"value": 4.0, "unit": "kJ/mol"},
+                                                 "frequency_scale_percent": 3.0,
+                                                 "imaginary_frequency_percent": 20.0}}}
     return data
 
 

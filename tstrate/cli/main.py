@@ -27,6 +27,7 @@ SUBCOMMANDS: dict[str, str] = {
     "compare": "tstrate.cli.compare",
     "compute": "tstrate.cli.compute",
     "tunnel": "tstrate.cli.tunnel",
+    "uncertainty": "tstrate.cli.uncertainty",
 }
 
 

@@ -1019,6 +1019,13 @@ _COMMANDS = [
     ]),
 ]
 
+_COMMANDS.append(_cmd("uncertainty", "Uncertainty and sensitivity of every result of a study: the record "
+                          "results.json holds under uncertainty, with the study.", [
+                              ("study", TEXT, "the study file"),
+                              ("title", TEXT, "the study's title"),
+                              ("", OBJ, "the uncertainty record", "uncertainty_results"),
+                          ]))
+
 DOCUMENTS: dict[str, Document] = {d.name: d for d in
                                   [_RESULTS, _INPUTS, _FITS, _FITS_CSV, _THERMO_CSV, _RATES_CSV,
                                    _PFITS_CSV, _UNC_CSV, _UNC_RANK_CSV, _MECHANISM, *_COMMANDS]}

@@ -58,7 +58,7 @@ import numpy as np
 from tstrate.errors import InputError
 from tstrate.model.uncertainty import SpeciesUncertainty, UncertaintySettings, method_default
 from tstrate.physics import uncertainty as pu
-from tstrate.physics.thermo import HARMONIC, zero_point_energy_J_per_mol
+from tstrate.physics.thermo import zero_point_energy_J_per_mol
 from tstrate.physics.tst import zpe_level_J_per_mol
 from tstrate.units import R
 
@@ -825,4 +825,13 @@ def sample_deviations(study, settings: UncertaintySettings) -> tuple[InputSpace,
 __all__ = ["INPUT_KINDS", "UncertainInput", "InputSpace", "input_space", "Band", "RankedFactor",
            "ChannelUncertainty", "RouteUncertainty", "ComparisonUncertainty", "FalloffUncertainty",
            "ExcitationUncertainty", "StudyUncertainty", "study_uncertainty", "perturbed_study",
-           "sampled_channel_ln_k", "sample_deviations", "count_runs", "HARMONIC"]
+           "sampled_channel_ln_k", "sample_deviations", "count_runs", "study_at"]
+
+
+def study_at(study, space: InputSpace, u_row) -> object:
+    """``study`` with every input moved by its deviation in ``u_row`` (n_u,): the deterministic study
+    of one sample (for brute-force checks of the vectorised evaluation)."""
+    for inp, du in zip(space.inputs, np.asarray(u_row, dtype=float)):
+        if du != 0.0:
+            study = perturbed_study(study, inp, float(du))
+    return study
