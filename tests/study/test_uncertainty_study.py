@@ -129,6 +129,12 @@ def test_the_falloff_first_order_step_against_a_deterministic_run(demo):
     full = channel_falloff(moved, moved.channel("bare"), settings=falloff_section(moved).for_channel("bare"),
                            temperature_K=T).rate_constant_per_s
     nominal = result.falloff.channels[0].rate_constant_per_s
+    # the step's own falloff factor at the nominal inputs is the deterministic one
+    from tstrate.study.uncertainty import _ln_falloff_factor
+
+    cf = result.falloff.channels[0]
+    assert _ln_falloff_factor(study, "bare", cf.temperature_K, cf.number_density_m3) == pytest.approx(
+        np.log(nominal) - np.log(cf.k_high_pressure_per_s)[:, None], rel=1e-12, abs=1e-14)
     first = np.log(nominal) + 0.3 * inp.sigma * unc.falloff[0].k.sensitivity[i]
     change = np.max(np.abs(np.log(full / nominal)))
     assert change > 1e-3                      # the move matters

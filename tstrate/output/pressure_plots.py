@@ -35,7 +35,8 @@ def falloff_figure(cf, title: str | None = None, max_curves: int = 5, bands=None
     the effective k_0 of an Eckart channel); dotted black: the Troe fit over the range it was
     fitted on.
     Number-density studies are drawn against [M] instead of pressure.
-    ``bands``: (4, T, P) k at 2.5, 16, 84 and 97.5 % on the study's grid, shaded on the left panel.
+    ``bands``: (4, T, P) k / k_inf at 2.5, 16, 84 and 97.5 % on the study's grid, shaded on the right
+    panel (the uncertainty of the falloff's shape; that of k_inf is on the Arrhenius plot).
     """
     from matplotlib.lines import Line2D
 
@@ -61,8 +62,8 @@ def falloff_figure(cf, title: str | None = None, max_curves: int = 5, bands=None
         x_fit = np.log10(m_fit * K_B * t / _BAR if by_pressure else m_fit * 1e-6)
         if bands is not None:
             b = np.log10(bands[:, i, :])
-            ax.fill_between(x_grid, b[0], b[3], color=colour, alpha=0.10, lw=0)
-            ax.fill_between(x_grid, b[1], b[2], color=colour, alpha=0.22, lw=0)
+            axr.fill_between(x_grid, b[0], b[3], color=colour, alpha=0.10, lw=0)
+            axr.fill_between(x_grid, b[1], b[2], color=colour, alpha=0.22, lw=0)
         for axis, scale in ((ax, 1.0), (axr, k_inf)):
             line, = axis.plot(x_curve, np.log10(cf.curve_rate_per_s[i] / scale), "-", color=colour, lw=1.8)
             axis.plot(x_grid, np.log10(cf.rate_constant_per_s[i] / scale), "o", color=colour, ms=4)

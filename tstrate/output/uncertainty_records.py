@@ -173,10 +173,10 @@ def ratio_bands(unc, comparison_name) -> dict:
 
 
 def falloff_bands(unc, channel) -> np.ndarray | None:
-    """(4, T, P) k(T, P) [s^-1] at 2.5, 16, 84, 97.5 % on the study grid, or None."""
+    """(4, T, P) k(T, P) / k_inf(T) at 2.5, 16, 84, 97.5 % on the study grid, or None."""
     for f in unc.falloff:
-        if f.name == channel:
-            return f.k.percentiles[[0, 1, 3, 4]]
+        if f.name == channel and f.falloff_factor is not None:
+            return f.falloff_factor.percentiles[[0, 1, 3, 4]]
     return None
 
 

@@ -141,7 +141,7 @@ def input_space(study, settings: UncertaintySettings) -> InputSpace:
     for name, sp in study.species.items():
         given = settings.species.get(name, SpeciesUncertainty())
         d = method_default(_method_of(sp)) if settings.method_defaults else None
-        src_d = f"default for {d.label} ({d.basis})" if d else None
+        src_d = f"default for {d.label}, {d.basis}" if d else None
 
         def pick(value, default_value):
             if value is not None:
@@ -347,6 +347,7 @@ class FalloffUncertainty:
     k: Band
     f298: np.ndarray = field(repr=False)
     g_K: np.ndarray = field(repr=False)
+    falloff_factor: Band | None = None   # F = k / k_inf of each sample (the shape of the falloff)
 
 
 @dataclass(frozen=True)
@@ -697,17 +698,13 @@ def study_uncertainty(result, settings: UncertaintySettings | None = None, *,
 
     falloff = []
     if result.falloff is not None:
-        from tstrate.study.falloff import channel_falloff, falloff_section
-
         for cf in result.falloff.channels:
             ch = study.channel(cf.name)
             T = cf.temperature_K
             ln_f0 = np.log(cf.rate_constant_per_s) - np.log(cf.k_high_pressure_per_s)[:, None]
 
-            def compute(st, ch=ch, T=T):
-                c = channel_falloff(st, st.channel(ch.name), settings=falloff_section(st).for_channel(ch.name),
-                                    temperature_K=T)
-                return np.log(c.rate_constant_per_s) - np.log(c.k_high_pressure_per_s)[:, None]
+            def compute(st, ch=ch, T=T, m=cf.number_density_m3):
+                return _ln_falloff_factor(st, ch.name, T, m)
 
             idx = _relevant(space, _channel_species(ch))
             grads = _first_order(compute, study, space, idx, settings.sensitivity_step, tick("falloff"))
@@ -732,7 +729,9 @@ def study_uncertainty(result, settings: UncertaintySettings | None = None, *,
             if T.size >= 2:
                 for j in range(ln_f0.shape[1]):
                     f298[j], g[j], _ = pu.fit_evaluation_pair(T, band.factor[:, j])
-            falloff.append(FalloffUncertainty(ch.name, T, cf.pressure_Pa, band, f298, g))
+            fband = _band(f"k({ch.name}, P) / k_inf", "1", ln_f0, ln_F, G, space, T=T,
+                          method="ln(k/k_inf) to first order", pick=lambda a, i: a[:, i, 0])
+            falloff.append(FalloffUncertainty(ch.name, T, cf.pressure_Pa, band, f298, g, fband))
 
     excitations = []
     for ex in result.excitations or ():
@@ -795,6 +794,23 @@ def study_uncertainty(result, settings: UncertaintySettings | None = None, *,
 
     return StudyUncertainty(settings, space, S, tuple(channels), tuple(comparisons), tuple(falloff),
                             tuple(excitations), tuple(dict.fromkeys(warnings)))
+
+
+def _ln_falloff_factor(study, channel: str, T, number_density_m3) -> np.ndarray:
+    """ln(k / k_inf) (T, P) of one channel on the study grid: the strong-collision step of
+    :func:`tstrate.physics.unimolecular.falloff_on_grid` alone (no dense curves, no Troe fit)."""
+    from tstrate.physics.falloff import strong_collision_falloff
+    from tstrate.physics.unimolecular import collision_efficiency, collision_rate
+    from tstrate.study.falloff import bath_parameters, channel_model, falloff_section
+
+    settings = falloff_section(study).for_channel(channel)
+    model = channel_model(study, study.channel(channel), settings, max_temperature_K=float(np.max(T)))
+    z = collision_rate(model.reactant, bath_parameters(study), T, settings)
+    eff = collision_efficiency(model, settings, T)
+    fo = strong_collision_falloff(model.rate, T, number_density_m3, collision_rate_m3_s=z,
+                                  collision_efficiency=eff.beta,
+                                  threshold_shift=1.0 - 1.0 / model.rate.centrifugal_factor)
+    return np.log(fo.rate_per_s) - np.log(fo.high_pressure_per_s)[:, None]
 
 
 def cr_of(result, name):
