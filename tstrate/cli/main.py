@@ -28,6 +28,7 @@ SUBCOMMANDS: dict[str, str] = {
     "compute": "tstrate.cli.compute",
     "tunnel": "tstrate.cli.tunnel",
     "isotopes": "tstrate.cli.isotopes",
+    "uncertainty": "tstrate.cli.uncertainty",
 }
 
 

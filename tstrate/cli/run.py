@@ -62,8 +62,13 @@ def run(args) -> int:
             bar.set_postfix_str(name)
             bar.update(1)
 
+    def uncertainty_progress(stage, done, total):
+        if bar is not None:
+            bar.set_postfix_str(f"uncertainty: {stage} {done}/{total}")
+
     try:
-        result = compute_study(study, low_modes=low_modes, progress=progress)
+        result = compute_study(study, low_modes=low_modes, progress=progress,
+                               uncertainty_progress=uncertainty_progress)
         files = write_outputs(result, out, force=args.force, progress=progress)
     finally:
         if bar is not None:

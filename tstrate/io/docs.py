@@ -21,6 +21,7 @@ from tstrate.errors import InputError
 from tstrate.io import species, study
 from tstrate.io.keys import Key, Keys, toml_value
 from tstrate.io.sections import comparison, fits, isotopes, pressure
+from tstrate.io.sections import uncertainty as uncertainty_section
 from tstrate.io.tables import Table
 from tstrate.physics.vibrations import HESSIAN_UNITS_J_PER_M2
 from tstrate.units import ENERGY_UNITS_J_PER_MOL, PRESSURE_UNITS_PA, RATE_UNITS
@@ -32,7 +33,9 @@ STUDY_FILE: tuple[Keys, ...] = (
     study.STUDY_KEYS, study.SPECIES_MAP_KEYS, study.CONDITIONS_KEYS, study.RATE_UNITS_KEYS, study.CHANNEL_KEYS,
     comparison.COMPARISON_KEYS, pressure.FALLOFF_KEYS, pressure.FALLOFF_CHANNELS_KEYS,
     pressure.FALLOFF_CHANNEL_KEYS, pressure.EXCITATION_KEYS, pressure.EXCITATION_ENERGY_KEYS, fits.KEYS,
-    isotopes.KEYS, isotopes.SUBSTITUTION_KEYS, isotopes.ATOMS_KEYS)
+    isotopes.KEYS, isotopes.SUBSTITUTION_KEYS, isotopes.ATOMS_KEYS,
+    uncertainty_section.KEYS, uncertainty_section.SPECIES_TABLE_KEYS, uncertainty_section.SPECIES_KEYS,
+    uncertainty_section.ENERGY_KEYS)
 
 #: the checkout this module sits in, and its demo
 ROOT = Path(__file__).resolve().parents[2]

@@ -31,7 +31,8 @@ SECTION_READERS: dict[str, str] = {"comparison": "tstrate.io.sections.comparison
                                   "falloff": "tstrate.io.sections.pressure:read_falloff",
                                   "excitation": "tstrate.io.sections.pressure:read_excitations",
                                   "fits": "tstrate.io.sections.fits:read_fit_options",
-                                  "isotopes": "tstrate.io.sections.isotopes:read_isotopes"}
+                                  "isotopes": "tstrate.io.sections.isotopes:read_isotopes",
+                                  "uncertainty": "tstrate.io.sections.uncertainty:read_uncertainty"}
 
 _ORDER_NAMES = {"unimolecular": 1, "bimolecular": 2, "termolecular": 3}
 #: the keys that give the pressures of [conditions] (at most one)
@@ -55,6 +56,8 @@ STUDY_KEYS = Keys((), "top level", "A study names its species files and links th
                       Key("fits", "table", "how rate constants are fitted and exported (`[fits]` below)"),
                       Key("isotopes", "table", "isotopologues: beta factors, kinetic isotope effects, "
                           "fractionation (`[isotopes]` below)"),
+                      Key("uncertainty", "table", "how sure each number is: input uncertainties and "
+                          "sampling (`[uncertainty]` below)"),
                   ))
 SPECIES_MAP_KEYS = Keys(("species",), "[species]",
                         "One line per species: the name the study uses (quote names with dots or "

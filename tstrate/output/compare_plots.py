@@ -116,11 +116,12 @@ def _two_legends(ax, routes, catalyst, styles_title, style_labels):
                    loc="outside right lower", frameon=False)
 
 
-def ratio_temperature_figure(result, title: str | None = None):
+def ratio_temperature_figure(result, title: str | None = None, bands: dict | None = None):
     """k'(route)/k'(bare) against temperature [K] (log scale), one line per route and abundance.
 
     Colours mark routes, line styles abundances; the dotted line marks a ratio of 1 and the
     diamonds the interpolated temperatures where a route overtakes the bare one (or falls behind).
+    ``bands``: channel -> (4, A, T) ratios at 2.5, 16, 84 and 97.5 %, drawn as shaded bands.
     """
     plt = _plt()
     fig, ax = plt.subplots(figsize=(9.0, 4.8), layout="constrained")
@@ -132,6 +133,10 @@ def ratio_temperature_figure(result, title: str | None = None):
         for a in range(len(abundances)):
             ax.semilogy(T[order], route.ratio_to_bare[a][order], ls=_LINESTYLES[a % 4], ms=3.5,
                         **style)
+            if bands and route.channel in bands:
+                b = bands[route.channel][:, a][:, order]
+                ax.fill_between(T[order], b[0], b[3], color=style["color"], alpha=0.08, lw=0)
+                ax.fill_between(T[order], b[1], b[2], color=style["color"], alpha=0.18, lw=0)
             for rng in route.faster_ranges[a]:
                 for t_end, at_edge in ((rng.low_K, rng.low_at_grid_edge), (rng.high_K, rng.high_at_grid_edge)):
                     if not at_edge:
@@ -201,10 +206,11 @@ def ratio_abundance_figure(result, temperatures_K=None, title: str | None = None
     return fig
 
 
-def comparison_figures(result) -> dict[str, object]:
-    """All three figures of a comparison, keyed by a file-name stem suffix."""
+def comparison_figures(result, ratio_bands: dict | None = None) -> dict[str, object]:
+    """All three figures of a comparison, keyed by a file-name stem suffix (``ratio_bands``: see
+    :func:`ratio_temperature_figure`)."""
     return {
         "energy_profile": energy_profile_figure(result),
-        "ratio_vs_temperature": ratio_temperature_figure(result),
+        "ratio_vs_temperature": ratio_temperature_figure(result, bands=ratio_bands),
         "ratio_vs_abundance": ratio_abundance_figure(result),
     }

@@ -48,11 +48,13 @@ def _plt():
     return plt
 
 
-def arrhenius_figure(records: list[dict], title: str | None = None):
+def arrhenius_figure(records: list[dict], title: str | None = None, bands: dict | None = None):
     """log10 k against 1000/T, one colour per channel; dashed without tunnelling.
 
     ``records`` are channel records from :func:`tstrate.output.records.channel_rates_record`.
     Channels of different molecularity get separate panels (their units differ).
+    ``bands``: channel -> (4, T) k at 2.5, 16, 84 and 97.5 % in the record's unit, drawn as
+    shaded 95 % and 68 % bands (:mod:`tstrate.output.uncertainty_records`).
     """
     plt = _plt()
     orders = sorted({r["order"] for r in records})
@@ -63,6 +65,10 @@ def arrhenius_figure(records: list[dict], title: str | None = None):
             inv_t = 1000.0 / np.asarray(r["temperature_K"])
             ax.plot(inv_t, np.log10(r["rate_constant"]), "-", color=colour,
                     label=f"{r['name']} ({r['tunnelling']})")
+            if bands and r["name"] in bands:
+                b = np.log10(bands[r["name"]])
+                ax.fill_between(inv_t, b[0], b[3], color=colour, alpha=0.12, lw=0)
+                ax.fill_between(inv_t, b[1], b[2], color=colour, alpha=0.25, lw=0)
             if r["tunnelling"] != "none":
                 ax.plot(inv_t, np.log10(r["rate_constant_no_tunnelling"]), "--", color=colour,
                         label=f"{r['name']} (no tunnelling)")

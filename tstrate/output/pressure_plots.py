@@ -25,7 +25,7 @@ def _pick(n: int, most: int) -> list[int]:
     return sorted({int(round(x)) for x in np.linspace(0, n - 1, most)})
 
 
-def falloff_figure(cf, title: str | None = None, max_curves: int = 5):
+def falloff_figure(cf, title: str | None = None, max_curves: int = 5, bands=None):
     """Falloff curves of one channel (a ChannelFalloff), two panels against log10 p.
 
     Left: log10 k; right: log10 (k / k_inf), where the shapes can be compared. Solid: the
@@ -35,6 +35,8 @@ def falloff_figure(cf, title: str | None = None, max_curves: int = 5):
     the effective k_0 of an Eckart channel); dotted black: the Troe fit over the range it was
     fitted on.
     Number-density studies are drawn against [M] instead of pressure.
+    ``bands``: (4, T, P) k / k_inf at 2.5, 16, 84 and 97.5 % on the study's grid, shaded on the right
+    panel (the uncertainty of the falloff's shape; that of k_inf is on the Arrhenius plot).
     """
     from matplotlib.lines import Line2D
 
@@ -58,6 +60,10 @@ def falloff_figure(cf, title: str | None = None, max_curves: int = 5):
         fit = cf.troe
         k_troe = troe_rate(cf.troe_k0_m3_per_s[i], k_inf, m_fit, t, fit.a, fit.T3_K, fit.T1_K, fit.T2_K)
         x_fit = np.log10(m_fit * K_B * t / _BAR if by_pressure else m_fit * 1e-6)
+        if bands is not None:
+            b = np.log10(bands[:, i, :])
+            axr.fill_between(x_grid, b[0], b[3], color=colour, alpha=0.10, lw=0)
+            axr.fill_between(x_grid, b[1], b[2], color=colour, alpha=0.22, lw=0)
         for axis, scale in ((ax, 1.0), (axr, k_inf)):
             line, = axis.plot(x_curve, np.log10(cf.curve_rate_per_s[i] / scale), "-", color=colour, lw=1.8)
             axis.plot(x_grid, np.log10(cf.rate_constant_per_s[i] / scale), "o", color=colour, ms=4)
@@ -150,13 +156,19 @@ def yield_pressure_figure(res, max_curves: int = 5):
     return fig
 
 
-def yield_altitude_figure(res):
-    """Altitude against the fraction reacting (linear), the fraction deactivated (log) and p, T."""
+def yield_altitude_figure(res, bands: dict | None = None):
+    """Altitude against the fraction reacting (linear), the fraction deactivated (log) and p, T.
+
+    ``bands``: "stern_volmer" / "stepwise" -> (4, Z) fractions at 2.5, 16, 84 and 97.5 %, shaded."""
     plt = _plt()
     g = res.profile
     z_km = res.altitude_m * 1e-3
     fig, (ax, axq, axp) = plt.subplots(1, 3, figsize=(11.0, 5.0), sharey=True,
                                        gridspec_kw={"width_ratios": [1.5, 1.5, 1]})
+    for key, colour in (("stern_volmer", "C0"), ("stepwise", "C3")):
+        if bands and key in bands:
+            ax.fill_betweenx(z_km, bands[key][0], bands[key][3], color=colour, alpha=0.10, lw=0)
+            ax.fill_betweenx(z_km, bands[key][1], bands[key][2], color=colour, alpha=0.22, lw=0)
     ax.plot(g.stern_volmer, z_km, "-o", ms=3, color="C0", label="Stern-Volmer")
     axq.plot(_log_quenched(g.stern_volmer), z_km, "-o", ms=3, color="C0", label="Stern-Volmer")
     if g.stepwise is not None:

@@ -101,6 +101,10 @@ def _results_json(result) -> dict:
         from tstrate.output.isotope_records import isotopes_record
 
         doc["isotopes"] = isotopes_record(result.isotopes)
+    if getattr(result, "uncertainty", None) is not None:
+        from tstrate.output.uncertainty_records import uncertainty_record
+
+        doc["uncertainty"] = uncertainty_record(result.uncertainty, units)
     return doc
 
 
@@ -116,6 +120,10 @@ def fits_document(result) -> dict:
                     "number_density_at_highest_T_per_cm3": n * 1e-6,
                     **arrhenius_record(fit)} for p, n, fit in table.rows()]
             for name, table in result.pressure_fits.items()}
+    if getattr(result, "uncertainty", None) is not None:
+        from tstrate.output.uncertainty_records import fits_uncertainty_record
+
+        doc["uncertainty"] = fits_uncertainty_record(result.uncertainty)
     return doc
 
 
@@ -180,6 +188,14 @@ def write_all(result, folder: Path, *, progress: Callable[[str], None] | None = 
         for name, rows in CSV_TABLES.items():
             atomic_write_text(folder / "tables" / name, csv_text(*rows(result.isotopes)))
             written.append(folder / "tables" / name)
+    unc = getattr(result, "uncertainty", None)
+    if unc is not None:
+        from tstrate.output import uncertainty_records as ur
+
+        for stem, (header, rows) in (("uncertainty", ur.uncertainty_table(unc, units)),
+                                     ("uncertainty_ranking", ur.sensitivity_table(unc))):
+            atomic_write_text(folder / "tables" / f"{stem}.csv", csv_text(header, rows))
+            written.append(folder / "tables" / f"{stem}.csv")
     doc = _results_json(result)
     atomic_write_text(folder / "results.json", json_text(doc))
     written.append(folder / "results.json")
@@ -188,15 +204,18 @@ def write_all(result, folder: Path, *, progress: Callable[[str], None] | None = 
     written.append(folder / "inputs.json")
 
     step("plots")
-    paths = _save(arrhenius_figure(doc["channels"], study.title), folder / "plots", figure_stem("arrhenius"))
+    bands = ur.arrhenius_bands(unc, doc["channels"]) if unc is not None else None
+    paths = _save(arrhenius_figure(doc["channels"], study.title, bands=bands), folder / "plots",
+                  figure_stem("arrhenius"))
     written += paths
     figures.append(("rates", paths[0], "Arrhenius plot: log10 k against 1000/T; dashed lines "
-                    "without tunnelling."))
+                    "without tunnelling." + (" " + ur.BANDS_MEAN if unc is not None else "")))
     if result.comparisons is not None:
         from tstrate.output.compare_plots import comparison_figures
 
         for cr in result.comparisons:
-            for key, fig in comparison_figures(cr).items():
+            rb = ur.ratio_bands(unc, cr.comparison.name) if unc is not None else None
+            for key, fig in comparison_figures(cr, ratio_bands=rb).items():
                 paths = _save(fig, folder / "plots", figure_stem("comparison", cr.comparison.name, key))
                 written += paths
                 figures.append(("compare", paths[0],
@@ -205,7 +224,8 @@ def write_all(result, folder: Path, *, progress: Callable[[str], None] | None = 
         from tstrate.output.pressure_plots import falloff_figure
 
         for cf in result.falloff.channels:
-            paths = _save(falloff_figure(cf), folder / "plots", figure_stem("falloff", cf.name))
+            fb = ur.falloff_bands(unc, cf.name) if unc is not None else None
+            paths = _save(falloff_figure(cf, bands=fb), folder / "plots", figure_stem("falloff", cf.name))
             written += paths
             figures.append(("falloff", paths[0], f"Falloff of channel {cf.name}: log10 k against "
                             "log10 p at several temperatures."))
@@ -220,7 +240,8 @@ def write_all(result, folder: Path, *, progress: Callable[[str], None] | None = 
                 figures.append(("excitation", paths[0], f"{ex.spec.name}: fraction reacting "
                                 "before deactivation against pressure."))
             if ex.profile is not None:
-                paths = _save(pp.yield_altitude_figure(ex), folder / "plots",
+                ab = ur.altitude_bands(unc, ex.spec.name) if unc is not None else None
+                paths = _save(pp.yield_altitude_figure(ex, bands=ab), folder / "plots",
                               figure_stem("excitation", ex.spec.name, "altitude"))
                 written += paths
                 figures.append(("excitation", paths[0], f"{ex.spec.name}: fraction reacting "
@@ -458,6 +479,10 @@ def build_report(result, doc: dict, inputs: list[dict], figures) -> list:
              f"{100 * s.nasa7.max_rel_error_s:.3f}") for s in result.fits.species]
     B.append(rp.Table(("species", "NASA range / K", "max Cp error / %", "max H error / %",
                        "max S error / %"), tuple(rows), "NASA 7-coefficient polynomials."))
+    if getattr(result, "uncertainty", None) is not None:
+        from tstrate.output.uncertainty_records import report_blocks
+
+        B += report_blocks(result, figures)
     B.append(rp.Heading("Limits of these results"))
     B.append(rp.Bullets(tuple(limits(result))))
     if result.warnings:

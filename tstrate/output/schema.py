@@ -605,6 +605,108 @@ _record("isotopes", "Isotopologues of a study", [
     ("route_mix[].loss_share[].share", ONE, "its share, per temperature"),
     ("mass_dependence", TEXT, "the statement on mass dependence of harmonic TST/RRHO and what it leaves out"),
 ], "Harmonic TST and RRHO on one Born-Oppenheimer surface; isotopologue frequencies from the Hessians.")
+_record("uncertainty_ranking", "One row of a \"what matters most\" table", [
+    ("factor", TEXT, "an independent uncertain factor (one sigma)"),
+    ("contribution", ONE, "d ln(result) / d factor at the reference temperature: its first-order one-sigma "
+                          "effect on ln(result)"),
+    ("share_percent", PCT, "its share of the first-order variance of ln(result)"),
+], "Rows are ranked by share, largest first.")
+
+_record("uncertainty_fraction", "Band of an energised-molecule fraction", [
+    ("fraction", ONE, "the deterministic fraction reacting (on the grid of the excitation record)"),
+    ("fraction_percentiles", ONE, "the fraction at each of percentiles_percent, then over the grid"),
+    ("ranking", LIST, "what matters most, at the grid point of the largest fraction (or the middle temperature)"),
+    ("ranking[]", OBJ, "one factor", "uncertainty_ranking"),
+])
+
+_record("uncertainty_results", "Uncertainty and sensitivity of the results", [
+    ("samples", ONE, "number of quasi-Monte Carlo samples"),
+    ("seed", ONE, "seed of the sampling"),
+    ("sampling", TEXT, "sobol or latin-hypercube"),
+    ("percentiles_percent", PCT, "the percentiles of every *_percentiles array (its first index)"),
+    ("inputs", LIST, "the uncertain inputs"),
+    ("inputs[].name", TEXT, "the input"),
+    ("inputs[].kind", TEXT, "energy, frequency_scale, imaginary_frequency, delta_E_down, lennard_jones_sigma, "
+                            "lennard_jones_epsilon or catalyst_abundance"),
+    ("inputs[].target", TEXT, "species or comparison it belongs to (null for study parameters)"),
+    ("inputs[].sigma_kJ_per_mol", KJ, "one sigma of an energy (null for the others)"),
+    ("inputs[].sigma_ln", ONE, "one sigma of ln of the input (null for energies)"),
+    ("inputs[].source", TEXT, "where the sigma comes from (study file, or a method default: common practice)"),
+    ("factors", TEXT, "the independent factors the inputs are built from (list)"),
+    ("channels", LIST, "one entry per channel"),
+    ("channels[].name", TEXT, "channel name"),
+    ("channels[].temperature_K", K, "the temperatures"),
+    ("channels[].rate_constant_unit", TEXT, "unit of the rate constants of the entry"),
+    ("channels[].rate_constant", "@rate_constant_unit", "the deterministic k(T)"),
+    ("channels[].rate_constant_percentiles", "@rate_constant_unit", "k at each of percentiles_percent, then per T"),
+    ("channels[].uncertainty_factor", ONE, "f(T) = exp((q84 - q16)/2) of ln k: k/f .. k f holds 68 % of the samples"),
+    ("channels[].f298", ONE, "f(298 K) of the evaluation form f(T) = f298 exp|g (1/T - 1/298 K)| fitted to f(T)"),
+    ("channels[].g_K", K, "g of the evaluation form"),
+    ("channels[].evaluation_max_deviation_percent", PCT, "largest deviation of the evaluation form from f(T)"),
+    ("channels[].valid_samples_percent", PCT, "share of the samples whose barriers the tunnelling model accepts"),
+    ("channels[].Kc_uncertainty_factor", ONE, "f(T) of the equilibrium constant"),
+    ("channels[].modified_arrhenius_percentiles", OBJ, "A (T/T0)^n exp(-Ea/RT) fitted to each sample, "
+                                                       "percentiles of each parameter"),
+    ("channels[].modified_arrhenius_percentiles.A", "@A_unit", "pre-exponential factor"),
+    ("channels[].modified_arrhenius_percentiles.A_unit", TEXT, "its unit"),
+    ("channels[].modified_arrhenius_percentiles.n", ONE, "temperature exponent"),
+    ("channels[].modified_arrhenius_percentiles.Ea_kJ_per_mol", KJ, "activation energy"),
+    ("channels[].modified_arrhenius_percentiles.T0_K", K, "reference temperature"),
+    ("channels[].reference_temperature_K", K, "temperature of the ranking (middle of the grid in 1/T)"),
+    ("channels[].ranking", LIST, "what matters most for k"),
+    ("channels[].ranking[]", OBJ, "one factor", "uncertainty_ranking"),
+    ("channels[].sensitivities", LIST, "local sensitivities, one per input"),
+    ("channels[].sensitivities[].input", TEXT, "the input"),
+    ("channels[].sensitivities[].sensitivity", "@sensitivity_unit", "d ln k / d input per temperature (per kJ/mol "
+                                                                    "for energies, d ln k / d ln x otherwise)"),
+    ("channels[].sensitivities[].sensitivity_unit", TEXT, "mol kJ-1 or 1"),
+    ("comparisons", LIST, "one entry per comparison"),
+    ("comparisons[].name", TEXT, "comparison name"),
+    ("comparisons[].temperature_K", K, "its temperatures"),
+    ("comparisons[].abundance_labels", TEXT, "its abundances (list)"),
+    ("comparisons[].routes", LIST, "one entry per assisted route"),
+    ("comparisons[].routes[].channel", TEXT, "the route's channel"),
+    ("comparisons[].routes[].kind", TEXT, "route kind"),
+    ("comparisons[].routes[].ratio_to_bare", ONE, "deterministic k'(route)/k'(bare), per abundance then T"),
+    ("comparisons[].routes[].ratio_percentiles", ONE, "the ratio at each of percentiles_percent, per abundance "
+                                                      "then T"),
+    ("comparisons[].routes[].ratio_uncertainty_factor", ONE, "f of the ratio, per abundance then T"),
+    ("comparisons[].routes[].reference_temperature_K", K, "temperature of the rankings"),
+    ("comparisons[].routes[].ratio_ranking", LIST, "what matters most for the ratio (first abundance)"),
+    ("comparisons[].routes[].ratio_ranking[]", OBJ, "one factor", "uncertainty_ranking"),
+    ("comparisons[].routes[].crossover", OBJ, "the crossover abundance (null for routes without catalyst)"),
+    ("comparisons[].routes[].crossover.catalyst_per_cm3", PER_CM3, "deterministic crossover abundance per T"),
+    ("comparisons[].routes[].crossover.catalyst_percentiles_per_cm3", PER_CM3, "at each of percentiles_percent"),
+    ("comparisons[].routes[].crossover.uncertainty_factor", ONE, "f of the crossover abundance per T"),
+    ("comparisons[].routes[].crossover.ranking", LIST, "what matters most for it"),
+    ("comparisons[].routes[].crossover.ranking[]", OBJ, "one factor", "uncertainty_ranking"),
+    ("falloff", LIST, "one entry per falloff channel"),
+    ("falloff[].name", TEXT, "channel name"),
+    ("falloff[].temperature_K", K, "the temperatures"),
+    ("falloff[].pressure_bar", BAR, "the pressures (null with number densities)"),
+    ("falloff[].rate_constant_per_s", PER_S, "deterministic k(T, p)"),
+    ("falloff[].rate_constant_percentiles_per_s", PER_S, "k(T, p) at each of percentiles_percent"),
+    ("falloff[].uncertainty_factor", ONE, "f of k(T, p)"),
+    ("falloff[].f298", ONE, "f298 of the evaluation form at each pressure"),
+    ("falloff[].g_K", K, "g of the evaluation form at each pressure"),
+    ("falloff[].method", TEXT, "how the falloff was propagated"),
+    ("falloff[].reference_temperature_K", K, "temperature of the ranking"),
+    ("falloff[].ranking", LIST, "what matters most for k(T, p) at the lowest pressure"),
+    ("falloff[].ranking[]", OBJ, "one factor", "uncertainty_ranking"),
+    ("excitations", LIST, "one entry per excitation"),
+    ("excitations[].name", TEXT, "excitation name"),
+    ("excitations[].method", TEXT, "how the fractions were propagated"),
+    ("excitations[].pressure_stern_volmer", OBJ, "Stern-Volmer fraction on the pressure scan (or null)",
+     "uncertainty_fraction"),
+    ("excitations[].pressure_stepwise", OBJ, "stepwise fraction on the pressure scan (or null)",
+     "uncertainty_fraction"),
+    ("excitations[].profile_stern_volmer", OBJ, "Stern-Volmer fraction along the profile (or null)",
+     "uncertainty_fraction"),
+    ("excitations[].profile_stepwise", OBJ, "stepwise fraction along the profile (or null)", "uncertainty_fraction"),
+    ("excitations[].altitude_km", "km", "altitudes of the profile (or null)"),
+    ("warnings", TEXT, "warnings of the uncertainty step (list)"),
+], "Only when the study has an [uncertainty] section (and `run` is not false). The deterministic numbers "
+   "elsewhere in the file are unchanged.")
 
 _RESULTS = Document("results.json", "results-json.md", """\
 Every number `tstrate run` computed, in one JSON document. The sections `comparisons`,
@@ -625,6 +727,7 @@ Every number `tstrate run` computed, in one JSON document. The sections `compari
     ("excitations", LIST, "one entry per [[excitation]]"),
     ("excitations[]", OBJ, "one excitation", "excitation"),
     ("isotopes", OBJ, "isotopologues (only with an [isotopes] section)", "isotopes"),
+    ("uncertainty", OBJ, "how sure each number is (only with [uncertainty])", "uncertainty_results"),
 ))
 
 _INPUTS = Document("inputs.json", "results-json.md", """\
@@ -708,6 +811,22 @@ with its range and its deviation from what it was fitted to.""", _keys(
     ("fits_at_each_pressure.<channel>[].pressure_bar", BAR, "the pressure (null for number densities)"),
     ("fits_at_each_pressure.<channel>[].number_density_at_highest_T_per_cm3", PER_CM3,
      "bath-gas number density at the highest temperature"),
+    ("uncertainty", OBJ, "uncertainty factors of the fitted rate constants (only with [uncertainty])"),
+    ("uncertainty.samples", ONE, "number of samples"),
+    ("uncertainty.seed", ONE, "seed of the sampling"),
+    ("uncertainty.form", TEXT, "the evaluation form of f(T)"),
+    ("uncertainty.channels", LIST, "one entry per channel"),
+    ("uncertainty.channels[].name", TEXT, "channel name"),
+    ("uncertainty.channels[].f298", ONE, "f(298 K) of f(T) = f298 exp|g (1/T - 1/298 K)| (JPL Publication 19-5)"),
+    ("uncertainty.channels[].g_K", K, "g of the same form"),
+    ("uncertainty.channels[].max_deviation_percent", PCT, "largest deviation of the form from the sampled f(T)"),
+    ("uncertainty.channels[].uncertainty_factor", ONE, "the sampled one-sigma factor f(T)"),
+    ("uncertainty.channels[].temperature_K", K, "its temperatures"),
+    ("uncertainty.falloff", LIST, "one entry per falloff channel"),
+    ("uncertainty.falloff[].name", TEXT, "channel name"),
+    ("uncertainty.falloff[].pressure_bar", BAR, "the pressures (null with number densities)"),
+    ("uncertainty.falloff[].f298", ONE, "f298 at each pressure"),
+    ("uncertainty.falloff[].g_K", K, "g at each pressure"),
 ))
 
 _FITS_CSV = Document("fits.csv", "csv-tables.md", """\
@@ -828,6 +947,32 @@ one element).""", _keys(
     ("high-T limit", ONE, "(1/m1-1/m2)/(1/m1-1/m3)"),
     ("low-T limit", ONE, "(1/sqrt m1-1/sqrt m2)/(1/sqrt m1-1/sqrt m3)"),
     ("kinetic classical limit", ONE, "ln(m1/m2)/ln(m1/m3)"),
+_UNC_CSV = Document("tables/uncertainty.csv", "csv-tables.md", """\
+Percentiles and uncertainty factor of k(T), one row per channel and temperature (only with
+[uncertainty]; the numbers of results.json uncertainty.channels[]).""", _keys(
+    ("channel", TEXT, "channel name"),
+    ("T", K, "temperature"),
+    ("k", "@k unit", "the deterministic rate constant"),
+    ("k unit", TEXT, "unit of the k columns of the row"),
+    ("k 2.5 %", "@k unit", "2.5th percentile of k"),
+    ("k 16 %", "@k unit", "16th percentile"),
+    ("k 50 %", "@k unit", "median"),
+    ("k 84 %", "@k unit", "84th percentile"),
+    ("k 97.5 %", "@k unit", "97.5th percentile"),
+    ("f", ONE, "one-sigma uncertainty factor f(T)"),
+    ("f298", ONE, "f(298 K) of the evaluation form fitted to f(T)"),
+    ("g", K, "g of the evaluation form"),
+), "csv")
+
+_UNC_RANK_CSV = Document("tables/uncertainty_ranking.csv", "csv-tables.md", """\
+What matters most: per channel, comparison ratio, crossover abundance and falloff channel, the
+independent uncertain factors ranked by their first-order share of the variance of ln(result).""", _keys(
+    ("result", TEXT, "the result"),
+    ("T", K, "the temperature of the ranking"),
+    ("rank", ONE, "1 = matters most"),
+    ("factor", TEXT, "the factor"),
+    ("contribution", ONE, "d ln(result) / d factor (one sigma of the factor)"),
+    ("share", PCT, "share of the first-order variance"),
 ), "csv")
 
 _MECHANISM = Document("mechanism.yaml", "mechanism.md", """\
@@ -994,10 +1139,17 @@ _COMMANDS = [
     ]),
 ]
 
+_COMMANDS.append(_cmd("uncertainty", "Uncertainty and sensitivity of every result of a study: the record "
+                          "results.json holds under uncertainty, with the study.", [
+                              ("study", TEXT, "the study file"),
+                              ("title", TEXT, "the study's title"),
+                              ("", OBJ, "the uncertainty record", "uncertainty_results"),
+                          ]))
+
 DOCUMENTS: dict[str, Document] = {d.name: d for d in
                                   [_RESULTS, _INPUTS, _FITS, _FITS_CSV, _THERMO_CSV, _RATES_CSV,
                                    _PFITS_CSV, _ISO_BETA_CSV, _ISO_KIE_CSV, _ISO_FRAC_CSV, _ISO_THETA_CSV,
-                                   _MECHANISM, *_COMMANDS]}
+                                   _UNC_CSV, _UNC_RANK_CSV, _MECHANISM, *_COMMANDS]}
 
 PAGES = {
     "results-json.md": ("results.json and inputs.json", """\

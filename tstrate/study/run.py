@@ -49,6 +49,7 @@ class StudyResult:
     warnings: sentences for the report.
     capture: physics.capture.CaptureLimit per bimolecular channel (TST against the capture ceiling).
     isotopes: study.isotopes.IsotopeResult when the study has an [isotopes] section, else None.
+    uncertainty: study.uncertainty.StudyUncertainty when the study's [uncertainty] asks for it, else None.
     """
 
     study: Study
@@ -63,6 +64,7 @@ class StudyResult:
     warnings: tuple[str, ...] = field(default=())
     capture: tuple = field(default=())
     isotopes: object | None = None
+    uncertainty: object | None = None
 
 
 def steps(study: Study) -> list[str]:
@@ -76,12 +78,22 @@ def steps(study: Study) -> list[str]:
     if study.sections.get("isotopes"):
         steps.append("isotopologues")
     steps.append("fits")
+    if wants_uncertainty(study):
+        steps.append("uncertainty")
     return steps
 
 
+def wants_uncertainty(study: Study) -> bool:
+    """Whether ``tstrate run`` computes the uncertainty step (an [uncertainty] section with run = true)."""
+    unc = study.sections.get("uncertainty")
+    return unc is not None and unc.run
+
+
 def compute_study(study: Study, *, low_modes: LowModes = HARMONIC,
-                  progress: Callable[[str], None] | None = None) -> StudyResult:
-    """Compute everything ``study`` asks for. ``progress(step)`` is called before each step."""
+                  progress: Callable[[str], None] | None = None,
+                  uncertainty_progress: Callable[[str, int, int], None] | None = None) -> StudyResult:
+    """Compute everything ``study`` asks for. ``progress(step)`` is called before each step;
+    ``uncertainty_progress(stage, done, total)`` within the uncertainty step."""
     from tstrate.study.rates import capture_limits, connection_warnings, study_rates
 
     def step(name):
@@ -167,10 +179,20 @@ def compute_study(study: Study, *, low_modes: LowModes = HARMONIC,
     warnings += list(fits.warnings)
     for cf in fits.channels:
         warnings += list(cf.warnings)
-    return StudyResult(study=study, low_modes=low_modes, thermo=thermo, rates=rates,
-                       comparisons=comparisons, falloff=falloff, excitations=excitations, fits=fits,
-                       pressure_fits=pressure_fits, warnings=tuple(dict.fromkeys(warnings)), capture=capture,
-                       isotopes=isotopes)
+    result = StudyResult(study=study, low_modes=low_modes, thermo=thermo, rates=rates,
+                         comparisons=comparisons, falloff=falloff, excitations=excitations, fits=fits,
+                         pressure_fits=pressure_fits, warnings=tuple(dict.fromkeys(warnings)), capture=capture,
+                         isotopes=isotopes)
+    if wants_uncertainty(study):
+        step("uncertainty")
+        from dataclasses import replace
+
+        from tstrate.study.uncertainty import study_uncertainty
+
+        unc = study_uncertainty(result, progress=uncertainty_progress)
+        result = replace(result, uncertainty=unc,
+                         warnings=tuple(dict.fromkeys(result.warnings + tuple(f"uncertainty: {w}" for w in unc.warnings))))
+    return result
 
 
 #: a falloff channel whose k_inf (from k(E)) differs from canonical TST by more than this fraction at
