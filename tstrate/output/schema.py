@@ -947,6 +947,8 @@ one element).""", _keys(
     ("high-T limit", ONE, "(1/m1-1/m2)/(1/m1-1/m3)"),
     ("low-T limit", ONE, "(1/sqrt m1-1/sqrt m2)/(1/sqrt m1-1/sqrt m3)"),
     ("kinetic classical limit", ONE, "ln(m1/m2)/ln(m1/m3)"),
+), "csv")
+
 _UNC_CSV = Document("tables/uncertainty.csv", "csv-tables.md", """\
 Percentiles and uncertainty factor of k(T), one row per channel and temperature (only with
 [uncertainty]; the numbers of results.json uncertainty.channels[]).""", _keys(
