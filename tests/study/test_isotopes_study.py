@@ -5,6 +5,8 @@ from __future__ import annotations
 import re
 import shutil
 
+import pathlib
+
 import numpy as np
 import pytest
 
@@ -28,9 +30,11 @@ def _sub(res, label):
     return next(s for s in res.substitutions if s.substitution.label == label)
 
 
-def _heavy_file(tmp_path, name, atoms: dict):
+def _heavy_file(tmp_path, source, atoms: dict):
     """A copy of a demo species file with `isotopes = {...}` (the species file's own route)."""
-    text = (DEMO / name).read_text()
+    source = pathlib.Path(source)
+    name = source.name
+    text = source.read_text()
     table = "isotopes = { " + ", ".join(f"{k} = {v}" for k, v in atoms.items()) + " }\n"
     text = text.replace("\n[provenance]", "\n" + table + "\n[provenance]", 1)
     path = tmp_path / name
@@ -42,11 +46,11 @@ def test_study_kie_equals_the_ratio_of_two_independent_runs(demo, tmp_path):
     # the light and the heavy channel computed apart, from species files carrying `isotopes = {...}`
     study, res = demo
     ch = study.channel("bare")
-    files = {"H2CO3": ("h2co3.toml", 2), "TS0": ("ts_bare.toml", 1), "CO2": ("co2.toml", 2),
-             "CO2.H2O": ("co2_h2o_complex.toml", 1)}
+    # the files the demo study names (its refined level), each with one 13C
+    files = {"H2CO3": 2, "TS0": 1, "CO2": 2, "CO2.H2O": 1}
     heavy = dict(study.species)
-    for name, (file, atom) in files.items():
-        heavy[name] = read_species(_heavy_file(tmp_path, file, {atom: 13}), name=name)
+    for name, atom in files.items():
+        heavy[name] = read_species(_heavy_file(tmp_path, study.species_files[name], {atom: 13}), name=name)
     light = {n: read_species(p, name=n) for n, p in study.species_files.items()}
     k_light = channel_rates(ch, light, T).k
     k_heavy = channel_rates(ch, heavy, T).k
