@@ -202,7 +202,7 @@ def _energy_file(path: Path):
     return symbols, positions, last_energy_J_per_mol(data, file=str(path))
 
 
-def single_point_J_per_mol(value, *, symbols=None, positions_A=None, masses_amu=None) -> float:
+def single_point_J_per_mol(value, *, symbols=None, positions_A=None) -> float:
     """A single-point energy [J/mol] from a number (J/mol), ``"VALUE UNIT"`` (unit in any case) or
     an output file. With ``symbols`` the file must hold the same atoms in the same order; with
     ``positions_A`` too, a geometry further than :data:`SINGLE_POINT_RMSD_WARN_A` is warned about."""
@@ -437,10 +437,6 @@ def read_output(path, *, name: str | None = None, kind: str | None = None,
         parsed = _from_qcschema(path)
     else:
         cc = _ccread(path)
-        if cc.data is not None and getattr(cc.data, "atomnos", None) is None and cc.error is None \
-                and not len(getattr(cc.data, "atomcoords", []) or []):
-            # cclib knew the program but found nothing: a file cut in its header
-            _check_finished(cc.data, file)
         if cc.data is not None:
             parsed = _from_cclib(cc.data, file)
         elif cc.error is not None and hessian_file is None:
@@ -515,7 +511,7 @@ def read_output(path, *, name: str | None = None, kind: str | None = None,
                               "(hessian_file= in Python), or a QCSchema hessian result")
     sp = None
     if single_point is not None:
-        sp = single_point_J_per_mol(single_point, symbols=symbols, positions_A=positions, masses_amu=masses)
+        sp = single_point_J_per_mol(single_point, symbols=symbols, positions_A=positions)
         prov["single_point"] = str(single_point)
     energy = parsed.energy
     if energy is None and sp is None:

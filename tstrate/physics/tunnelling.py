@@ -566,7 +566,15 @@ def _eckart_log_kappa(beta: np.ndarray, barrier_energy: float, V1: float, V2: fl
             log_2s = np.log(2.0 * s)
         return log_p + log_b - b * (E - V1) + log_2s
 
-    top = max(V1, E0)
+    return log_thermal_quadrature(log_integrand, beta, max(V1, E0), V1, E0)
+
+
+def log_thermal_quadrature(log_integrand, beta: np.ndarray, top, V1, E0) -> np.ndarray:
+    """ln of the thermal integral, over s with E = E0 + s^2, of ``exp(log_integrand(s))`` for each
+    row of ``beta = 1/RT`` [mol/J]: the integrand's window is found by zooming, then integrated by
+    graded Gauss-Legendre on sub-intervals split at its peak and at the barrier top. ``top``, ``V1``
+    and ``E0`` [J/mol] are scalars or one value per row; ``log_integrand`` maps (rows, points)
+    values of s to (rows, points) logs."""
     lo = np.zeros_like(beta)
     hi = np.sqrt(top + _UPPER_RT / beta - E0)
     for _ in range(_SEARCH_LEVELS):
@@ -574,7 +582,7 @@ def _eckart_log_kappa(beta: np.ndarray, barrier_energy: float, V1: float, V2: fl
     peak = _zoom(log_integrand, np.maximum(lo, peak - (hi - lo) / (_SEARCH_POINTS - 1)),
                  np.minimum(hi, peak + (hi - lo) / (_SEARCH_POINTS - 1)), window=False)[2]
     # sub-intervals split at the peak and at the barrier top, graded towards each end
-    s_top = np.clip(math.sqrt(max(V1 - E0, 0.0)), lo, hi)
+    s_top = np.clip(np.sqrt(np.maximum(V1 - E0, 0.0)), lo, hi)
     cuts = np.stack([lo, np.minimum(peak, s_top), np.maximum(peak, s_top), hi], axis=1)
     t, wt = _graded_gauss_legendre()
     a = cuts[:, :-1, None]

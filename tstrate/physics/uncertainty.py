@@ -37,7 +37,6 @@ import math
 import warnings
 
 import numpy as np
-from scipy.special import logsumexp
 
 from tstrate.model.uncertainty import SAMPLING_METHODS
 from tstrate.physics import thermo as _thermo
@@ -189,22 +188,7 @@ def _eckart_log_kappa_rows(beta, barrier_energy, V1, V2, E0):
             log_2s = np.log(2.0 * s)
         return log_p + log_b - b * (E - v1) + log_2s
 
-    top = np.maximum(V1, E0)
-    lo = np.zeros_like(beta)
-    hi = np.sqrt(top + _tun._UPPER_RT / beta - E0)
-    for _ in range(_tun._SEARCH_LEVELS):
-        lo, hi, peak = _tun._zoom(log_integrand, lo, hi, window=True)
-    step = (hi - lo) / (_tun._SEARCH_POINTS - 1)
-    peak = _tun._zoom(log_integrand, np.maximum(lo, peak - step), np.minimum(hi, peak + step), window=False)[2]
-    s_top = np.clip(np.sqrt(np.maximum(V1 - E0, 0.0)), lo, hi)
-    cuts = np.stack([lo, np.minimum(peak, s_top), np.maximum(peak, s_top), hi], axis=1)
-    t, wt = _tun._graded_gauss_legendre()
-    a = cuts[:, :-1, None]
-    width = np.diff(cuts, axis=1)[:, :, None]
-    s = (a + width * t[None, None, :]).reshape(beta.size, -1)
-    with np.errstate(divide="ignore"):
-        log_w = np.log(width * wt[None, None, :]).reshape(beta.size, -1)
-    return logsumexp(log_integrand(s) + log_w, axis=1)
+    return _tun.log_thermal_quadrature(log_integrand, beta, np.maximum(V1, E0), V1, E0)
 
 
 def log_kappa_samples(model: str, temperature_K, imag_freq_cm1, V1, V2, energy_floor=None, *,
