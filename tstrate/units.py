@@ -30,6 +30,23 @@ AMU = sc.physical_constants["atomic mass constant"][0]
 HARTREE_J = sc.physical_constants["Hartree energy"][0]
 #: Standard pressure for the 1 bar standard state [Pa]
 P_STANDARD = 1e5
+#: One standard atmosphere [Pa] (the older standard state some tables use)
+P_ATM = float(sc.atm)
+#: The standard pressures a study may ask for: name -> [Pa]
+STANDARD_PRESSURES_PA = {"1 bar": P_STANDARD, "1 atm": P_ATM}
+
+
+def standard_pressure_name(pressure_Pa: float) -> str:
+    """``"1 bar"`` or ``"1 atm"`` for a standard pressure [Pa]; ValueError for any other."""
+    for name, value in STANDARD_PRESSURES_PA.items():
+        if abs(pressure_Pa - value) <= 1e-9 * value:
+            return name
+    raise ValueError(f"standard_pressure_Pa must be 1 bar (1e5 Pa) or 1 atm (101325 Pa), got {pressure_Pa!r}")
+
+
+def standard_pressure_tag(pressure_Pa: float) -> str:
+    """``"1bar"`` or ``"1atm"``: the suffix of output keys whose values depend on the standard state."""
+    return standard_pressure_name(pressure_Pa).replace(" ", "")
 #: One wavenumber (cm^-1) as energy per molecule [J]
 CM1_J = H * C * 100.0
 

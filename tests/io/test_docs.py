@@ -159,6 +159,7 @@ def study_variants() -> list[dict]:
         data["falloff"].pop("collision_efficiency")
         data["falloff"][energy_key] = energy
         out.append(data)
+    out[-1]["conditions"]["standard_pressure"] = "1 atm"
     return out
 
 

@@ -54,6 +54,17 @@ def nwchem_water(tmp_path_factory):
     return _run(["nwchem", "w.nw"], d, "w.nwout")
 
 
+@pytest.fixture(scope="session")
+def nwchem_mp2_numerical(tmp_path_factory):
+    """An NWChem MP2 frequency job: no analytic MP2 Hessian, so NWChem differentiates gradients at 12
+    displaced geometries and prints their energies after the reference point's."""
+    _need("nwchem")
+    d = tmp_path_factory.mktemp("nwchem_mp2")
+    (d / "w.nw").write_text("start w\ntitle water\ngeometry units angstrom\n " + "\n ".join(WATER)
+                            + "\nend\nbasis\n * library sto-3g\nend\ntask mp2 freq\n")
+    return _run(["nwchem", "w.nw"], d, "w.nwout")
+
+
 NH2 = "geometry units angstrom\n N 0 0 0.14\n H 0 0.80 -0.49\n H 0 -0.80 -0.49\nend\n"
 UHF = "basis\n * library sto-3g\nend\nscf\n uhf\n doublet\nend\n"
 
@@ -135,6 +146,17 @@ def test_nwchem_two_jobs_give_the_frequency_jobs_geometry_energy_and_modes(nwche
     # tstrate's own harmonic analysis of NWChem's Hessian against NWChem's (printed to 0.01 cm-1)
     assert np.allclose(np.sort(sp.frequencies_cm1), vib, atol=0.5)
     assert sp.hessian_J_per_m2 is not None
+
+
+def test_nwchem_numerical_frequency_job_gives_the_reference_points_energy(nwchem_mp2_numerical):
+    sp = read_output(nwchem_mp2_numerical, name="H2O")
+    energies = [float(v) for v in re.findall(r"Total MP2 energy\s+(-?\d+\.\d+)", nwchem_mp2_numerical.read_text())]
+    assert len(energies) > 2 and len(set(energies)) > 2   # the reference point and displaced ones
+    # the first MP2 energy NWChem prints is at the input (reference) geometry, not the file's last
+    assert sp.energy_J_per_mol == pytest.approx(energy_to_J_per_mol(energies[0], "hartree"), rel=1e-11, abs=1e-3)
+    assert abs(energies[-1] - energies[0]) * 2625.5 > 0.01      # the last differs by more than 0.01 kJ/mol
+    assert "displaced points" in sp.provenance["read_warnings"]
+    assert "reference point" in sp.provenance["energy"]
 
 
 def test_nwchem_open_shell_doublet(nwchem_nh2, capsys):

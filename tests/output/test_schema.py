@@ -98,6 +98,8 @@ def outputs(demo_run, tmp_path_factory):
                                                        "-T", "200", "300", "--json"])))
     for command in ("rates", "compare", "falloff", "excite", "isotopes"):
         got.append((f"tstrate {command} --json", run_cli_json([command, str(study), "--json"])))
+    got.append(("tstrate rates --json", run_cli_json(["rates", str(study), "--standard-pressure", "atm",
+                                                      "--json"])))
     got.append(("tstrate uncertainty --json", run_cli_json(["uncertainty", str(study), "--samples", "64",
                                                             "--quiet", "--json"])))
     tunnel = ["tunnel", "--imaginary-cm1", "1500", "--forward-barrier", "150", "--reverse-barrier", "170",

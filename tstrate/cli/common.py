@@ -120,6 +120,34 @@ def low_modes_from_args(args):
         raise InputError(exc.problem, field=field, hint=exc.hint) from None
 
 
+STANDARD_PRESSURE_CHOICES = {"bar": "1 bar", "atm": "1 atm"}
+
+
+def add_standard_pressure_option(parser, *, study: bool = True) -> None:
+    """--standard-pressure {bar,atm}: the standard state of S, G, Kp and activation quantities
+    (rate constants do not depend on it); :func:`standard_pressure_from_args` gives it in Pa."""
+    default = "the study's [conditions] standard_pressure, else 1 bar" if study else "1 bar"
+    parser.add_argument("--standard-pressure", choices=tuple(STANDARD_PRESSURE_CHOICES), default=None,
+                        help=f"standard pressure of entropies, Gibbs energies, Kp and activation quantities: "
+                             f"1 bar or 1 atm (default: {default})")
+
+
+def standard_pressure_from_args(args, study=None):
+    """The standard pressure [Pa] of --standard-pressure; without it the study's, else 1 bar.
+    With a study, returns the study with that standard pressure in its conditions."""
+    import dataclasses
+
+    from tstrate.units import P_STANDARD, STANDARD_PRESSURES_PA
+
+    choice = getattr(args, "standard_pressure", None)
+    if study is None:
+        return P_STANDARD if choice is None else STANDARD_PRESSURES_PA[STANDARD_PRESSURE_CHOICES[choice]]
+    if choice is None:
+        return study
+    p0 = STANDARD_PRESSURES_PA[STANDARD_PRESSURE_CHOICES[choice]]
+    return dataclasses.replace(study, conditions=dataclasses.replace(study.conditions, standard_pressure_Pa=p0))
+
+
 def add_quiet_option(parser) -> None:
     """--quiet/-q for every command that shows a progress bar (on stderr, only on a terminal)."""
     parser.add_argument("--quiet", "-q", action="store_true",

@@ -11,7 +11,8 @@ detailed balance, equilibrium constants and activation quantities.
 JSON output (--json): one object with "study", "temperature_K" and a list
 "channels"; each has name, order, temperature_K, rate_constant,
 rate_constant_unit, rate_constant_no_tunnelling, kappa, tunnelling,
-reverse_rate_constant(_unit), Kc (Kc_unit), Kp_1bar, barrier_classical_kJ_per_mol,
+reverse_rate_constant(_unit), Kc (Kc_unit), Kp_1bar (Kp_1atm at a 1 atm standard
+pressure), standard_pressure_bar, barrier_classical_kJ_per_mol,
 barrier_zpe_kJ_per_mol, barrier_from_complex_*_kJ_per_mol,
 reaction_energy_zpe_kJ_per_mol, imaginary_frequency_cm1, tunnelling_*_kJ_per_mol,
 delta_H_activation_kJ_per_mol, delta_S_activation_J_per_mol_K,
@@ -25,17 +26,18 @@ tunnelling) as DIR/arrhenius.png and .svg, the names tstrate run uses.
 
 
 def add_arguments(parser) -> None:
-    from tstrate.cli.common import add_low_mode_options, add_plot_option
+    from tstrate.cli.common import add_low_mode_options, add_plot_option, add_standard_pressure_option
 
     parser.add_argument("study", metavar="STUDY", help="study file (TOML)")
     parser.add_argument("--temperature", "-T", nargs="+", type=float, metavar="K",
                         help="temperatures in K (default: the study's [conditions] temperature_K)")
     add_low_mode_options(parser)
+    add_standard_pressure_option(parser)
     parser.add_argument("--json", action="store_true", help="machine-readable output on stdout")
     add_plot_option(parser, "the Arrhenius plot (log10 k against 1000/T)")
 
 
-def compute(study_path, temperatures=None, low_modes="harmonic"):
+def compute(study_path, temperatures=None, low_modes="harmonic", args=None):
     """The study and one record per channel; ``low_modes`` a LowModes or the name of one."""
     from tstrate.errors import InputError
     from tstrate.io.study import read_study
@@ -49,6 +51,10 @@ def compute(study_path, temperatures=None, low_modes="harmonic"):
     if not isinstance(low_modes, LowModes):
         low_modes = LowModes(low_modes)
     study = read_study(study_path)
+    if args is not None:
+        from tstrate.cli.common import standard_pressure_from_args
+
+        study = standard_pressure_from_args(args, study)
     if not study.channels:
         raise InputError("the study has no [[channel]] to compute", file=study.file, field="channel")
     if temperatures is not None:
@@ -66,7 +72,7 @@ def run(args) -> int:
     written = []
     folder = check_plot_dir(args.plot) if args.plot else None  # fails before any work
     low_modes = low_modes_from_args(args)
-    study, records = compute(args.study, args.temperature, low_modes)
+    study, records = compute(args.study, args.temperature, low_modes, args)
     if folder is not None:
         from tstrate.output.plots import arrhenius_figure, figure_stem
 

@@ -22,13 +22,14 @@ printed on stdout. Every key of every file, with its unit: docs/outputs/.
 
 
 def add_arguments(parser) -> None:
-    from tstrate.cli.common import add_low_mode_options, add_quiet_option
+    from tstrate.cli.common import add_low_mode_options, add_quiet_option, add_standard_pressure_option
 
     parser.add_argument("study", metavar="STUDY", help="study file (TOML)")
     parser.add_argument("--output", "-o", metavar="DIR",
                         help="output folder (default tstrate-output/<study name>, never reused)")
     parser.add_argument("--force", action="store_true", help="replace an existing --output folder")
     add_low_mode_options(parser)
+    add_standard_pressure_option(parser)
     add_quiet_option(parser)
     parser.add_argument("--json", action="store_true", help="machine-readable summary on stdout")
 
@@ -37,13 +38,13 @@ def run(args) -> int:
     import sys
     from pathlib import Path
 
-    from tstrate.cli.common import low_modes_from_args, print_json, show_progress
+    from tstrate.cli.common import low_modes_from_args, print_json, show_progress, standard_pressure_from_args
     from tstrate.io.study import read_study
     from tstrate.output.folder import default_output_dir, write_outputs
     from tstrate.study.run import compute_study, steps
 
     low_modes = low_modes_from_args(args)
-    study = read_study(args.study)
+    study = standard_pressure_from_args(args, read_study(args.study))
     out = Path(args.output) if args.output else default_output_dir(study)
     if out.exists() and not args.force:
         from tstrate.errors import InputError

@@ -7,10 +7,14 @@ output file that cclib parses (``cclib.io.ccread``):
 - the job must have ended normally where cclib's parser can tell (``metadata["success"]``): an
   aborted or cut file is refused; a file cut in its header or geometry (no atoms) is refused;
 - geometry: the last set of coordinates (``atomcoords[-1]``) [Angstrom], the frequency job's;
-- energy: the last total energy at the highest correlated level the file holds (``ccenergies``,
-  else ``mpenergies``, else ``scfenergies``); cclib 1.x stores these in eV, converted back with
-  cclib's own factor. A file that holds several levels of theory is read with a warning naming
-  them; a file without any energy is refused at read time unless a single point is given;
+- energy: the total energy at the frequency job's reference geometry, at the highest correlated
+  level the file holds (``ccenergies``, else ``mpenergies``, else ``scfenergies``); cclib 1.x
+  stores these in eV, converted back with cclib's own factor. Energies beyond the last printed
+  geometry (displaced points of a numerical or anharmonic frequency job) are not used; a program's
+  own final total is preferred where cclib leaves out part of it (ORCA's gCP), an embedded
+  multi-layer job gives its extrapolated total or is refused (:mod:`tstrate.io.qcprinted`). A file
+  that holds several levels of theory is read with a warning naming them; a file without any
+  energy is refused at read time unless a single point is given;
 - frequencies: ``vibfreqs`` [cm^-1]; translations and rotations printed as near-zero modes are
   dropped (3N-6, or 3N-5, remain); fewer vibrations than that (a partial or cut frequency job) are
   refused;
@@ -67,6 +71,12 @@ CCLIB_SUCCESS_AWARE = ("ADF", "DALTON", "GAMESS", "GAMESS-UK", "Gaussian", "Jagu
                        "MOPAC", "NWChem", "ORCA", "Psi4", "QChem", "Turbomole", "XTB")
 
 
+#: programs whose cclib parse keeps a geometry per energy it keeps (so that more energies than
+#: geometries means displaced points); cclib keeps only the final geometry of an xtb optimisation
+GEOMETRY_PER_ENERGY = ("ADF", "DALTON", "GAMESS", "GAMESS-UK", "Gaussian", "Jaguar", "Molpro", "NWChem",
+                       "ORCA", "Psi4", "QChem", "Turbomole")
+
+
 def cclib_energy_unit() -> str:
     """Unit of cclib's energy attributes for the installed cclib (eV for 1.x)."""
     import cclib
@@ -120,16 +130,77 @@ def _ccread(path: Path) -> _CclibResult:
 
 def last_energy_J_per_mol(data, *, file=None) -> float | None:
     """Last total energy of parsed cclib ``data`` [J/mol] (highest correlated level present)."""
+    found = _reference_energy(data, file=file, reference=False)
+    return None if found is None else found[0]
+
+
+def _reference_energy(data, *, file=None, reference: bool = True):
+    """(energy [J/mol], cclib attribute, index, count) of the highest correlated level present: the
+    last energy, or with ``reference`` the energy at the last geometry printed when the file holds
+    more energies than geometries (displaced points; :func:`tstrate.io.qcprinted.reference_index`)."""
+    from tstrate.io.qcprinted import reference_index
+
     cclib_energy_unit()
+    coords = getattr(data, "atomcoords", None)
+    n_geom = 0 if coords is None else len(coords)
+    package = str((getattr(data, "metadata", {}) or {}).get("package", ""))
+    reference = reference and package in GEOMETRY_PER_ENERGY
     for attr in ("ccenergies", "mpenergies", "scfenergies"):
         values = getattr(data, attr, None)
         if values is not None and np.size(values):
-            last = np.asarray(values, dtype=float)[-1]
-            value = float(np.ravel(last)[-1])  # mpenergies: rows of orders; take the highest
+            rows = np.asarray(values, dtype=float)
+            i = reference_index(len(rows), n_geom) if reference else len(rows) - 1
+            value = float(np.ravel(rows[i])[-1])  # mpenergies: rows of orders; take the highest
             if not np.isfinite(value):
                 raise InputError(f"the {attr} in the file are not finite", file=file)
-            return _cclib_eV_to_J_per_mol(value)
+            return _cclib_eV_to_J_per_mol(value), attr, i, len(rows)
     return None
+
+
+def _frequency_job_energy(data, path: Path, out: "_Parsed") -> float | None:
+    """The energy of the frequency job's reference geometry with all the corrections the program
+    applies [J/mol] (see :mod:`tstrate.io.qcprinted`); warnings and provenance go to ``out``."""
+    from tstrate.io.qcprinted import reference_index, scan
+
+    file = str(path)
+    meta = getattr(data, "metadata", {}) or {}
+    package = str(meta.get("package", ""))
+    printed = scan(path, package)
+    coords = getattr(data, "atomcoords", None)
+    n_geom = 0 if coords is None else len(coords)
+    if package not in GEOMETRY_PER_ENERGY:
+        n_geom = 0  # only the final geometry is kept: the last energy is the reference
+    found = _reference_energy(data, file=file)
+    energy = None if found is None else found[0]
+    if found is not None and found[2] != found[3] - 1:
+        out.warnings.append(
+            f"the file holds {found[3]} energies for {n_geom} printed geometr{'y' if n_geom == 1 else 'ies'}: "
+            "the later ones are displaced points of a numerical or anharmonic frequency job; the energy at "
+            f"the frequency job's reference geometry (number {found[2] + 1}) is used, not the file's last")
+        out.prov["energy"] = f"{found[1]}[{found[2]}], the frequency job's reference point"
+    if printed.embedded:
+        if not printed.oniom_totals_hartree:
+            raise InputError("an embedded multi-layer job (ONIOM or QM/MM): the energies in the file are "
+                             "those of its layers' sub-calculations, and no extrapolated total is printed",
+                             file=file, field="energy",
+                             hint="give the total energy with --single-point (a number with its unit)")
+        totals = printed.oniom_totals_hartree
+        value = totals[reference_index(len(totals), n_geom)]
+        energy = energy_to_J_per_mol(value, "hartree")
+        out.prov["energy"] = "the program's ONIOM extrapolated energy"
+    elif printed.final_totals_hartree:
+        totals = printed.final_totals_hartree
+        value = totals[reference_index(len(totals), n_geom)]
+        final = energy_to_J_per_mol(value, "hartree")
+        if energy is not None and abs(final - energy) > 0.01:  # J/mol: more than rounding
+            out.prov["energy_correction_kJ_per_mol"] = (final - energy) / 1e3
+        out.prov["energy"] = ("the program's FINAL SINGLE POINT ENERGY (SCF plus every correction it "
+                              "applies: dispersion, gCP)")
+        energy = final
+    if printed.anharmonic:
+        out.warnings.append("an anharmonic frequency job: the harmonic frequencies are used, and the energy "
+                            "of the reference geometry, not of the displaced points")
+    return energy
 
 
 def square_hessian(values, natoms: int, *, file=None, field="hessian") -> np.ndarray:
@@ -279,6 +350,9 @@ def _levels_warning(data) -> str | None:
     meta = getattr(data, "metadata", {}) or {}
     methods = [str(m) for m in meta.get("methods", []) or []]
     distinct = list(dict.fromkeys(methods))
+    if (len(distinct) == 2 and distinct[0] in ("HF", "DFT")
+            and methods.count(distinct[0]) == methods.count(distinct[1])):
+        return None  # every correlated calculation on its own reference (MP2 on HF): one level
     if len(distinct) > 1:
         return (f"the file holds jobs at several levels ({', '.join(distinct)}); geometry and frequencies "
                 "are the frequency job's, the energy is the file's last; give --single-point when that is "
@@ -306,7 +380,7 @@ def _from_cclib(data, file: str) -> _Parsed:
     coords = getattr(data, "atomcoords", None)
     if coords is not None and len(coords) and np.shape(coords[-1]) == (len(out.symbols), 3):
         out.positions = np.asarray(coords[-1], dtype=float)
-    out.energy = last_energy_J_per_mol(data, file=file)
+    out.energy = _frequency_job_energy(data, Path(file), out)
     if getattr(data, "vibfreqs", None) is not None:
         out.freqs = np.asarray(data.vibfreqs, dtype=float).ravel()
         if not np.all(np.isfinite(out.freqs)):

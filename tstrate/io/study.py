@@ -77,6 +77,8 @@ CONDITIONS_KEYS = Keys(("conditions",), "[conditions]", "The grid every step is 
     Key("bath_gas", "string", "the collision partner of falloff; a built-in name (case-insensitive)",
         choices=tuple(BATH_GASES), choices_note="or the name of a species of the study whose file gives "
         "`lennard_jones`"),
+    Key("standard_pressure", "string", "standard state of entropies, Gibbs energies, Kp and activation "
+        "quantities: \"1 bar\" or \"1 atm\" (rate constants do not depend on it)", default="1 bar"),
     Key("rate_units", "table", "units of the rate constants written out (`[conditions.rate_units]` below)",
         default_text=", ".join(DEFAULT_RATE_UNIT.values()) + " (by molecularity)"),
 ))
@@ -218,9 +220,16 @@ def _read_conditions(t: Table) -> Conditions:
                 raise rt.error(key, f"unknown {key} rate unit {unit!r}", hint="use one of " + ", ".join(ok))
             rate_units[_ORDER_NAMES[key]] = unit
         rt.reject_unknown(RATE_UNITS_KEYS)
+    from tstrate.units import STANDARD_PRESSURES_PA
+
+    p0_name = t.get("standard_pressure", str, CONDITIONS_KEYS.default("standard_pressure"))
+    if " ".join(p0_name.split()).lower() not in STANDARD_PRESSURES_PA:
+        raise t.error("standard_pressure", f"unknown standard pressure {p0_name!r}",
+                      hint='use "1 bar" or "1 atm"')
     t.reject_unknown(CONDITIONS_KEYS)
     return Conditions(temperature_K=temps, pressure_Pa=pressures, number_density_m3=densities,
-                      bath_gas=bath, rate_units=rate_units)
+                      bath_gas=bath, rate_units=rate_units,
+                      standard_pressure_Pa=STANDARD_PRESSURES_PA[" ".join(p0_name.split()).lower()])
 
 
 def _balance(names, species) -> tuple[Counter, int]:

@@ -10,6 +10,7 @@ from dataclasses import dataclass, field
 import numpy as np
 
 from tstrate.model.species import Channel
+from tstrate.units import P_STANDARD
 
 
 @dataclass(frozen=True)
@@ -22,6 +23,8 @@ class Conditions:
         instead of pressures (then pressure_Pa is empty).
     bath_gas: name of the bath gas for collisions (built-in or a species), or None.
     rate_units: molecularity -> output unit of rate constants (e.g. {2: "cm3 molecule-1 s-1"}).
+    standard_pressure_Pa: the standard state of S, G, Kp and activation quantities [Pa]:
+        1 bar (default) or 1 atm. Rate constants do not depend on it.
     """
 
     temperature_K: np.ndarray
@@ -29,6 +32,12 @@ class Conditions:
     number_density_m3: np.ndarray = field(default_factory=lambda: np.zeros(0))
     bath_gas: str | None = None
     rate_units: dict = field(default_factory=dict)
+    standard_pressure_Pa: float = P_STANDARD
+
+    def __post_init__(self):
+        from tstrate.units import standard_pressure_name
+
+        standard_pressure_name(self.standard_pressure_Pa)  # 1 bar or 1 atm, else ValueError
 
 
 @dataclass(frozen=True)

@@ -14,7 +14,30 @@ from pathlib import Path
 
 import numpy as np
 
-from tstrate.units import DEFAULT_RATE_UNIT, rate_from_SI
+from tstrate.units import (DEFAULT_RATE_UNIT, P_STANDARD, rate_from_SI, standard_pressure_name,
+                           standard_pressure_tag)
+
+
+def conventions_record(standard_pressure_Pa: float = P_STANDARD) -> dict:
+    """The conventions behind every number of a run, stated once per output document: the
+    standard pressure, the atomic masses, the symmetry tolerance and how chiral structures,
+    rotational symmetry and low modes are counted. They explain most differences from the
+    thermochemistry a quantum-chemistry program prints."""
+    from tstrate.physics.symmetry import DEFAULT_TOLERANCE_A
+
+    return {
+        "standard_pressure": standard_pressure_name(standard_pressure_Pa),
+        "standard_pressure_bar": standard_pressure_Pa / 1e5,
+        "masses": ("isotopic: the most common isotope of each element (RDKit's periodic table), or the "
+                   "isotopes a species file names; not average atomic weights"),
+        "symmetry_tolerance_A": DEFAULT_TOLERANCE_A,
+        "rotational_symmetry": ("symmetry number from the rotations of the geometry within the tolerance, "
+                                "unless a species file gives it"),
+        "optical_isomers": ("a chiral structure (no improper rotation within the tolerance) counts as two "
+                            "optical isomers, unless a species file gives the number"),
+        "vibrations": "harmonic, with each species file's frequency_scale; low modes as the run states",
+        "rate_constants": "per molecule; they do not depend on the standard pressure",
+    }
 
 
 def rate_unit(order: int, rate_units: dict | None = None) -> str:
@@ -57,7 +80,7 @@ def channel_rates_record(cr, rate_units: dict | None = None) -> dict:
         "ln_Kc": _ln_kc_cm3(cr),
         "Kc_unit": f"(molecule cm-3)^{cr.reverse_order - cr.order}",
         "Kc": _exp(_ln_kc_cm3(cr)),
-        "Kp_1bar": _exp(cr.ln_kp),
+        f"Kp_{standard_pressure_tag(cr.standard_pressure_Pa)}": _exp(cr.ln_kp),
         "barrier_classical_kJ_per_mol": cr.barrier_classical_J_per_mol * kj,
         "barrier_zpe_kJ_per_mol": cr.barrier_zpe_J_per_mol * kj,
         "barrier_from_complex_classical_kJ_per_mol": _opt(cr.barrier_from_complex_classical_J_per_mol, kj),
@@ -77,7 +100,9 @@ def channel_rates_record(cr, rate_units: dict | None = None) -> dict:
         "delta_S_activation_J_per_mol_K": cr.delta_S_J_per_mol_K,
         "delta_G_activation_kJ_per_mol": cr.delta_G_J_per_mol * kj,
         "reaction_path_degeneracy": cr.degeneracy,
-        "standard_state": "1 bar (activation quantities, Kp); rate constants per molecule",
+        "standard_pressure_bar": cr.standard_pressure_Pa / 1e5,
+        "standard_state": (f"{standard_pressure_name(cr.standard_pressure_Pa)} (activation quantities, Kp); "
+                           "rate constants per molecule"),
     }
 
 
@@ -121,12 +146,13 @@ def capture_limit_record(lim, rate_units: dict | None = None) -> dict:
     }
 
 
-def thermo_document(records: list[dict], low_modes) -> dict:
+def thermo_document(records: list[dict], low_modes, standard_pressure_Pa: float | None = None) -> dict:
     """The ``tstrate thermo --json`` document: one :func:`thermo_record` per species file
     (each with its ``file``), the standard pressure and the low-mode treatment."""
     from tstrate.units import P_STANDARD
 
-    return {"standard_pressure_bar": P_STANDARD / 1e5,
+    p0 = P_STANDARD if standard_pressure_Pa is None else standard_pressure_Pa
+    return {"standard_pressure_bar": p0 / 1e5, "conventions": conventions_record(p0),
             "low_modes": low_modes_record(low_modes),
             "species": records}
 

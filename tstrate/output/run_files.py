@@ -32,8 +32,8 @@ CAUTION = ("Caution: every number here is an estimate bounded by the electronic-
            "evaluations (e.g. NASA/JPL, IUPAC) before use in models or decisions that matter.")
 
 METHODS = (
-    "Thermochemistry: ideal gas, rigid rotor, harmonic oscillator, electronic levels; 1 bar standard "
-    "state; symmetry numbers and optical isomers from the geometry unless overridden. Atomic masses "
+    "Thermochemistry: ideal gas, rigid rotor, harmonic oscillator, electronic levels; standard state "
+    "1 bar unless the study asks for 1 atm (stated in results.json's conventions); symmetry numbers and optical isomers from the geometry unless overridden. Atomic masses "
     "are those of the most common isotope of each element (as quantum-chemistry programs use), not "
     "the natural-abundance average masses of thermochemical tables; the difference in S is small "
     "(about 0.005 J/(mol K) for H2O at 298 K) but isotopologues must be given explicitly.",
@@ -72,7 +72,8 @@ def _save(fig, folder: Path, stem: str) -> list[Path]:
 
 
 def _results_json(result) -> dict:
-    from tstrate.output.records import capture_limit_record, channel_rates_record, thermo_record
+    from tstrate.output.records import (capture_limit_record, channel_rates_record, conventions_record,
+                                        thermo_record)
 
     study = result.study
     units = study.conditions.rate_units
@@ -80,6 +81,7 @@ def _results_json(result) -> dict:
         "study": study.file,
         "title": study.title,
         "low_modes": {"method": result.low_modes.method, "cutoff_cm1": result.low_modes.cutoff_cm1},
+        "conventions": conventions_record(study.conditions.standard_pressure_Pa),
         "thermochemistry": [thermo_record(t, study.species[t.species]) for t in result.thermo],
         "channels": [channel_rates_record(r, units) for r in result.rates],
         "capture_limits": [capture_limit_record(c, units) for c in result.capture],
@@ -345,7 +347,8 @@ def build_report(result, doc: dict, inputs: list[dict], figures) -> list:
     methods = tuple(m for m in METHODS if not any(m.startswith(k) for k in skip))
     B.append(rp.Bullets(methods + (low_modes_method_text(result.low_modes),)))
 
-    B.append(rp.Heading("Thermochemistry (1 bar)"))
+    p0 = doc["conventions"]["standard_pressure"]
+    B.append(rp.Heading(f"Thermochemistry ({p0})"))
     rows = []
     for rec in doc["thermochemistry"]:
         j = int(np.argmin(np.abs(np.asarray(rec["temperature_K"]) - 298.15)))
@@ -378,7 +381,7 @@ def build_report(result, doc: dict, inputs: list[dict], figures) -> list:
                  f"{r['delta_G_activation_kJ_per_mol'][i]:.2f}",
                  f"{r['delta_H_activation_kJ_per_mol'][i]:.2f}",
                  f"{r['delta_S_activation_J_per_mol_K'][i]:.2f}"] for i in idx]
-        note = f"Channel {r['name']} (full table in tables/; activation quantities at 1 bar)."
+        note = f"Channel {r['name']} (full table in tables/; activation quantities at {p0})."
         if other is not None:
             # the floor of the tunnelling integral for a channel through a complex: neither choice
             # is right at every pressure, so the other one is shown beside the rate

@@ -108,7 +108,7 @@ happens in one place, `tstrate/output/`.
   `kappa`, ratios (`ratio_to_bare`, `k_high_pressure_over_canonical_tst`), fractions
   (`fraction_stern_volmer`, `free_substrate_fraction`, 0 to 1), collision efficiencies,
   symmetry numbers, reaction orders, degeneracies, counts (`n_points`), equilibrium constants
-  at a 1 bar standard state (`Kp_1bar`) and logarithms (`ln_Kc`, of Kc in `Kc_unit`). In CSV
+  at the standard pressure (`Kp_1bar`, or `Kp_1atm` when a study asks for 1 atm) and logarithms (`ln_Kc`, of Kc in `Kc_unit`). In CSV
   tables their unit is `[1]`.
 - **Molar energies in kJ/mol** (`_kJ_per_mol`): barriers, reaction energies, activation
   enthalpies and Gibbs energies, zero-point and electronic energies, enthalpy offsets, fit
@@ -145,6 +145,18 @@ _record("low_modes", "Low-mode treatment", [
     ("cutoff_cm1", CM1, "cut-off wavenumber of the low-mode treatment"),
 ])
 
+_record("conventions", "Conventions of the numbers", [
+    ("standard_pressure", TEXT, "the standard state of S, G, Kp and activation quantities: 1 bar or 1 atm"),
+    ("standard_pressure_bar", BAR, "the same as a number"),
+    ("masses", TEXT, "which atomic masses were used (isotopic, most common isotope, unless a file names others)"),
+    ("symmetry_tolerance_A", "Å", "default tolerance of the symmetry-number detection"),
+    ("rotational_symmetry", TEXT, "how symmetry numbers were found"),
+    ("optical_isomers", TEXT, "how chiral structures were counted"),
+    ("vibrations", TEXT, "the vibrational model"),
+    ("rate_constants", TEXT, "the basis of rate constants"),
+], "Stated once per document; they explain most differences from the thermochemistry a "
+   "quantum-chemistry program prints (1 atm, average masses, other symmetry or low-mode conventions).")
+
 _record("thermo", "Thermochemistry of one species", [
     ("name", TEXT, "species name"),
     ("formula", TEXT, "chemical formula"),
@@ -162,12 +174,12 @@ _record("thermo", "Thermochemistry of one species", [
     ("free_rotors[].reduced_moment_amu_A2", "amu Å2", "reduced moment of inertia of the rotor"),
     ("zpe_kJ_per_mol", KJ, "harmonic zero-point energy (free rotors have none)"),
     ("temperature_K", K, "temperatures of the arrays below"),
-    ("entropy_J_per_mol_K", JK, "standard entropy S at 1 bar, per temperature"),
+    ("entropy_J_per_mol_K", JK, "standard entropy S at the standard pressure (1 bar unless stated), per temperature"),
     ("heat_capacity_J_per_mol_K", JK, "heat capacity Cp, per temperature"),
     ("enthalpy_increment_kJ_per_mol", KJ, "H(T) - H(0), per temperature"),
-    ("gibbs_increment_kJ_per_mol", KJ, "G(T) - H(0) at 1 bar, per temperature"),
+    ("gibbs_increment_kJ_per_mol", KJ, "G(T) - H(0) at the standard pressure, per temperature"),
 ], "Ideal gas, rigid rotor, harmonic oscillator (with the low-mode treatment), electronic levels; "
-   "1 bar standard state.")
+   "1 bar standard state unless the document's conventions say 1 atm.")
 
 _record("channel_rates", "Rate constants of one channel (transition-state theory)", [
     ("name", TEXT, "channel name"),
@@ -184,7 +196,10 @@ _record("channel_rates", "Rate constants of one channel (transition-state theory
     ("ln_Kc", ONE, "natural logarithm of Kc expressed in Kc_unit (finite where Kc overflows)"),
     ("Kc_unit", TEXT, "unit of Kc, (molecule cm-3)^dn with dn = products - reactants"),
     ("Kc", "@Kc_unit", "equilibrium constant in concentration units, per temperature"),
-    ("Kp_1bar", ONE, "dimensionless equilibrium constant, 1 bar standard state"),
+    ("Kp_1bar", ONE, "dimensionless equilibrium constant, 1 bar standard state (absent at 1 atm)"),
+    ("Kp_1atm", ONE, "dimensionless equilibrium constant, 1 atm standard state (only when the study asks "
+                     "for 1 atm; then instead of Kp_1bar)"),
+    ("standard_pressure_bar", BAR, "standard pressure of Kp and of the activation quantities"),
     ("barrier_classical_kJ_per_mol", KJ, "electronic energy of the transition state above the separated reactants"),
     ("barrier_zpe_kJ_per_mol", KJ, "the same with zero-point energies"),
     ("barrier_from_complex_classical_kJ_per_mol", KJ, "transition state above the pre-reactive complex, "
@@ -714,6 +729,7 @@ Every number `tstrate run` computed, in one JSON document. The sections `compari
     ("study", TEXT, "the study file"),
     ("title", TEXT, "the study's title"),
     ("low_modes", OBJ, "treatment of low modes", "low_modes"),
+    ("conventions", OBJ, "standard pressure, masses, symmetry tolerance, optical isomers", "conventions"),
     ("thermochemistry", LIST, "one entry per species"),
     ("thermochemistry[]", OBJ, "one species", "thermo"),
     ("channels", LIST, "one entry per [[channel]]"),
@@ -1051,6 +1067,7 @@ def _cmd(name, about, rows) -> Document:
 _COMMANDS = [
     _cmd("thermo", "Thermochemistry of species files (one entry per file).", [
         ("standard_pressure_bar", BAR, "standard pressure"),
+        ("conventions", OBJ, "standard pressure, masses, symmetry tolerance, optical isomers", "conventions"),
         ("low_modes", OBJ, "treatment of low modes", "low_modes"),
         ("species", LIST, "one entry per file"),
         ("species[]", OBJ, "one species", "thermo"),

@@ -113,12 +113,15 @@ def rates_csv_text(cr, rate_units=None) -> str:
     order -> output unit (default s-1, cm3 molecule-1 s-1, cm6 molecule-2 s-1).
     """
     from tstrate.output.records import channel_rates_record
+    from tstrate.units import standard_pressure_name, standard_pressure_tag
 
     rec = channel_rates_record(cr, rate_units)
     u, ru = rec["rate_constant_unit"], rec["reverse_rate_constant_unit"]
     dn = cr.reverse_order - cr.order
+    p0 = standard_pressure_name(cr.standard_pressure_Pa)
+    kp_key = f"Kp_{standard_pressure_tag(cr.standard_pressure_Pa)}"
     header = ["channel", "T [K]", f"k [{u}]", f"k_no_tunnelling [{u}]", "kappa [1]",
-              f"k_reverse [{ru}]", f"Kc [(molecule cm-3)^{dn}]", "Kp(1 bar) [1]",
+              f"k_reverse [{ru}]", f"Kc [(molecule cm-3)^{dn}]", f"Kp({p0}) [1]",
               "dH_activation [kJ mol-1]", "dS_activation [J mol-1 K-1]",
               "dG_activation [kJ mol-1]", "kappa_other_floor [1]"]
     rows = []
@@ -126,7 +129,7 @@ def rates_csv_text(cr, rate_units=None) -> str:
     for i, T in enumerate(rec["temperature_K"]):
         rows.append([cr.channel, T, rec["rate_constant"][i], rec["rate_constant_no_tunnelling"][i],
                      rec["kappa"][i], rec["reverse_rate_constant"][i], rec["Kc"][i],
-                     rec["Kp_1bar"][i], rec["delta_H_activation_kJ_per_mol"][i],
+                     rec[kp_key][i], rec["delta_H_activation_kJ_per_mol"][i],
                      rec["delta_S_activation_J_per_mol_K"][i],
                      rec["delta_G_activation_kJ_per_mol"][i], None if other is None else other[i]])
     return csv_text(header, rows)

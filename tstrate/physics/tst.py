@@ -83,9 +83,11 @@ def ln_equilibrium_constant(reactants, products, T, low_modes: LowModes = HARMON
             - d_e0 / (R * T))
 
 
-def kp_from_kc(ln_kc: np.ndarray, delta_n: int, T: np.ndarray) -> np.ndarray:
-    """ln Kp (dimensionless, 1 bar standard state) from ln Kc (molecule m^-3 units)."""
-    return ln_kc + delta_n * np.log(K_B * T / P_STANDARD)
+def kp_from_kc(ln_kc: np.ndarray, delta_n: int, T: np.ndarray,
+               standard_pressure_Pa: float = P_STANDARD) -> np.ndarray:
+    """ln Kp (dimensionless; standard pressure ``standard_pressure_Pa`` [Pa], 1 bar by default)
+    from ln Kc (molecule m^-3 units)."""
+    return ln_kc + delta_n * np.log(K_B * T / standard_pressure_Pa)
 
 
 @dataclass(frozen=True)
@@ -97,7 +99,7 @@ class ChannelRates:
     kappa: tunnelling factor.
     k_reverse: reverse rate constant by detailed balance, SI for the products' count.
     ln_kc: ln of the equilibrium constant reactants <=> products (molecule m^-3 units).
-    ln_kp: ln of the dimensionless Kp at 1 bar.
+    ln_kp: ln of the dimensionless Kp at the standard pressure.
     barrier_classical_J_per_mol, barrier_zpe_J_per_mol: TS above the separated reactants.
     barrier_from_complex_*: TS above the complex (None without a complex).
     reaction_energy_zpe_J_per_mol: products minus reactants, ZPE-corrected.
@@ -111,7 +113,8 @@ class ChannelRates:
         other choice, for channels through a complex whose model has a floor (Skodje-Truhlar,
         Eckart); None otherwise. k scales with kappa, so k_other = k kappa_other_floor / kappa.
     delta_H/S/G: activation enthalpy [J/mol], entropy [J/(mol K)], Gibbs energy [J/mol]
-        at 1 bar standard state.
+        at the standard pressure.
+    standard_pressure_Pa: the standard state of ln_kp and the activation quantities [Pa].
     degeneracy: the reaction-path degeneracy in effect (the user's override, else the
         symmetry-number count).
     symmetry_degeneracy: the degeneracy the symmetry numbers imply.
@@ -146,11 +149,16 @@ class ChannelRates:
     tunnelling_floor: str | None = None
     kappa_other_floor: np.ndarray | None = None
     other_energy_floor_J_per_mol: float | None = None
+    standard_pressure_Pa: float = P_STANDARD
 
 
 def channel_rates(channel: Channel, species: dict, temperature_K, *,
-                  low_modes: LowModes = HARMONIC) -> ChannelRates:
-    """Canonical TST k(T) of one channel, with tunnelling, reverse rate and activation quantities."""
+                  low_modes: LowModes = HARMONIC,
+                  standard_pressure_Pa: float = P_STANDARD) -> ChannelRates:
+    """Canonical TST k(T) of one channel, with tunnelling, reverse rate and activation quantities.
+
+    ``standard_pressure_Pa`` [Pa] is the standard state of Kp and of the activation quantities
+    (1 bar by default; 1 atm is the other choice); the rate constants do not depend on it."""
     T = np.atleast_1d(temperatures_K(temperature_K))
     reac = [species[n] for n in channel.reactants]
     prod = [species[n] for n in channel.products]
@@ -225,16 +233,16 @@ def channel_rates(channel: Channel, species: dict, temperature_K, *,
     ln_k = ln_k_cl + ln_kappa
 
     ln_kc = ln_equilibrium_constant(reac, prod, T, low_modes)
-    ln_kp = kp_from_kc(ln_kc, len(prod) - len(reac), T)
+    ln_kp = kp_from_kc(ln_kc, len(prod) - len(reac), T, standard_pressure_Pa)
 
-    # activation quantities, 1 bar standard state: k = (kT/h) (c0)^(1-n) exp(-dG/RT), c0 = p0/kT
+    # activation quantities at the standard pressure p0: k = (kT/h) (c0)^(1-n) exp(-dG/RT), c0 = p0/kT
     th_ts = thermochemistry(ts, T, low_modes=low_modes)
     th_r = [thermochemistry(s, T, low_modes=low_modes) for s in reac]
     d_h = (e0_ts + th_ts.enthalpy_increment_J_per_mol
            - sum(e + t.enthalpy_increment_J_per_mol for e, t in
                  zip([zpe_level_J_per_mol(s) for s in reac], th_r)))
     n = len(reac)
-    ln_c0 = np.log(P_STANDARD / (K_B * T))
+    ln_c0 = np.log(standard_pressure_Pa / (K_B * T))
     d_g = -R * T * (ln_k_cl - np.log(K_B * T / H) + (n - 1) * ln_c0)
     d_s = (d_h - d_g) / T
 
@@ -256,6 +264,7 @@ def channel_rates(channel: Channel, species: dict, temperature_K, *,
         tunnelling_floor=channel.tunnelling_floor if cx is not None else None,
         kappa_other_floor=kappa_other,
         other_energy_floor_J_per_mol=None if other_floor is None else float(other_floor),
+        standard_pressure_Pa=float(standard_pressure_Pa),
     )
 
 

@@ -16,7 +16,8 @@ def study_rates(study, *, low_modes: LowModes = HARMONIC, temperature_K=None) ->
     out = []
     for i, ch in enumerate(study.channels):
         try:
-            out.append(channel_rates(ch, study.species, T, low_modes=low_modes))
+            out.append(channel_rates(ch, study.species, T, low_modes=low_modes,
+                                     standard_pressure_Pa=study.conditions.standard_pressure_Pa))
         except InputError as exc:  # a problem of the channel: its key in the study file
             raise exc.within(file=study.file, prefix=f"channel[{i}]") from None
     return out

@@ -106,7 +106,9 @@ def compute_study(study: Study, *, low_modes: LowModes = HARMONIC,
     T_thermo = np.unique(np.concatenate([T, THERMO_EXTRA_TEMPERATURES_K]))
 
     step("thermochemistry")
-    thermo = tuple(thermochemistry(sp, T_thermo, low_modes=low_modes) for sp in study.species.values())
+    thermo = tuple(thermochemistry(sp, T_thermo, low_modes=low_modes,
+                                   pressure_Pa=study.conditions.standard_pressure_Pa)
+                   for sp in study.species.values())
     warnings += [w for w in (electronic_level_warning(sp) for sp in study.species.values()) if w]
 
     step("rate constants")
