@@ -15,6 +15,11 @@
     atoms = { H2CO3 = [1], TS0 = [2], CO2 = [], H2O = [1] }   # 1-based, per species of the channel
     channels = ["bare"]
 
+    [[isotopes.substitution]]
+    isotope = "D"
+    mode = "each"                            # one KIE per set of equivalent positions of each reactant;
+                                             # the atom is found in the TS and products by their bonds
+
 Beta factors (trace, a single substitution at each set of equivalent positions) are computed for
 every minimum holding the element, whatever the mode. Every species the substitutions touch must
 carry a ``[hessian]``.
@@ -43,7 +48,9 @@ SUBSTITUTION_KEYS = Keys(("isotopes", "substitution", "[]"), "[[isotopes.substit
                                  "any isotope RDKit's periodic table knows", required=True),
                              Key("label", "string", "name in the tables", default_text="the isotope"),
                              Key("mode", "string", "`all`: every atom of the element in every species of a "
-                                 "channel; `atoms`: the atoms listed in `atoms`", default="all", choices=MODES),
+                                 "channel; `atoms`: the atoms listed in `atoms`; `each`: a single substitution at "
+                                 "each set of equivalent positions of each reactant, one KIE per position, the "
+                                 "atom followed into the other stationary points by their bonds", default="all", choices=MODES),
                              Key("atoms", "table", "species name -> list of 1-based atom numbers to substitute "
                                  "(mode `atoms`); give the corresponding atom in every species of the channel "
                                  "(the heavy atoms must balance)"),
