@@ -105,3 +105,45 @@ def test_equivalent_positions_that_split_in_the_transition_state_are_separate_pa
     # with no isotope effect each path would carry half of the light rate (path degeneracy 2 -> 1):
     # the heavy paths together stay within a few percent of the light rate at 1000 K
     assert 0.9 < oh[0].kie_no_tunnelling[-1] < 1.1
+
+
+# ---- pools ------------------------------------------------------------------------------------
+
+def test_pool_beta_is_the_atom_weighted_mean_and_a_one_member_pool_is_the_species(study, tmp_path):
+    import dataclasses
+
+    from tstrate.study.isotopes import IsotopeSettings, Substitution, pool_ln_beta
+
+    # mass balance by hand: a pool of 1 mol H2O (2 H) and 1 mol H2CO3 (2 H) with beta 1.2 and 1.6
+    # holds D in proportion 2 x 1.2 : 2 x 1.6, so its beta is (2.4 + 3.2) / 4 = 1.4
+    got = pool_ln_beta({"a": np.log([1.2]), "b": np.log([1.6])}, {"a": 0.5, "b": 0.5}, {"a": 2, "b": 2})
+    assert np.exp(got) == pytest.approx([1.4], rel=1e-14)
+    # weights follow the atom counts: 1 mol CO2 (2 O) with beta 1.1, 1 mol H2O (1 O) with beta 1.04
+    got = pool_ln_beta({"a": np.log([1.1]), "b": np.log([1.04])}, {"a": 0.5, "b": 0.5}, {"a": 2, "b": 1})
+    assert np.exp(got) == pytest.approx([(2 * 1.1 + 1.04) / 3], rel=1e-14)
+    settings = IsotopeSettings((Substitution("D", "H", 2),), (("waters", "H2CO3"), ("H2O", "H2CO3")),
+                               None, {"waters": {"H2O": 1.0}})
+    s = dataclasses.replace(study, sections={**study.sections, "isotopes": settings})
+    res = study_isotopes(s, temperature_K=[250.0])
+    pool, single = res.fractionation
+    np.testing.assert_allclose(pool.ln_alpha, single.ln_alpha, rtol=1e-14)
+
+
+def test_pools_in_a_study_file_and_their_refusals(tmp_path):
+    from tstrate.errors import InputError
+
+    d = tmp_path / "demo"
+    shutil.copytree(DEMO, d)
+    text = (d / "study.toml").read_text()
+    for pools, ok in (('pools = { water = { H2O = 3, "(H2O)2" = 1 } }', True),
+                      ('pools = { water = { H2O = 0 } }', False),
+                      ('pools = { water = { nothing = 1 } }', False)):
+        new = text.replace("[isotopes]\n", "[isotopes]\n" + pools + "\n", 1).replace(
+            'fractionation = [["CO2", "H2O"]', 'fractionation = [["CO2", "water"], ["CO2", "H2O"]', 1)
+        (d / "p.toml").write_text(new)
+        if ok:
+            st = read_study(d / "p.toml")
+            assert st.sections["isotopes"].pools == {"water": {"H2O": 0.75, "(H2O)2": 0.25}}
+        else:
+            with pytest.raises(InputError, match=r"pools"):
+                read_study(d / "p.toml")

@@ -58,12 +58,13 @@ class Substitution:
 
 @dataclass(frozen=True)
 class IsotopeSettings:
-    """The ``[isotopes]`` section: substitutions, fractionation pairs, temperatures [K] (None: the
-    study's)."""
+    """The ``[isotopes]`` section: substitutions, fractionation pairs (species or pool names),
+    temperatures [K] (None: the study's), pools: name -> {species: mole fraction} (summing to 1)."""
 
     substitutions: tuple[Substitution, ...]
     fractionation: tuple[tuple[str, str], ...] = ()
     temperature_K: np.ndarray | None = None
+    pools: dict = field(default_factory=dict)
 
 
 @dataclass(frozen=True)
@@ -290,6 +291,16 @@ def position_kies(study, sub: Substitution, T, light_rates: dict, low_modes: Low
     return out
 
 
+def pool_ln_beta(ln_betas: dict, fractions: dict, atom_counts: dict) -> np.ndarray:
+    """ln beta of a pool of species in exchange equilibrium: the mean of its members' beta factors
+    weighted by the number of atoms of the element each holds, sum_i x_i n_i beta_i / sum_i x_i n_i
+    (x_i the mole fractions, n_i the atoms per molecule; trace substitution, so the heavy isotope's
+    share in each member is proportional to n_i beta_i)."""
+    w = {m: fractions[m] * atom_counts[m] for m in fractions}
+    total = sum(w.values())
+    return np.log(sum(w[m] * np.exp(ln_betas[m]) for m in fractions) / total)
+
+
 def route_mixes(study, comparisons, low_modes: LowModes = HARMONIC) -> list[RouteMix]:
     """The effective KIE of every comparison's route mix (:class:`RouteMix`), for every substitution
     that touches all of its routes' channels."""
@@ -367,6 +378,11 @@ def study_isotopes(study, *, low_modes: LowModes = HARMONIC, temperature_K=None,
     fractionation = []
     for r in results:
         beta = {b.species: b.ln_beta for b in r.betas}
+        for pool, members in settings.pools.items():
+            if all(m in beta for m in members):
+                beta[pool] = pool_ln_beta({m: beta[m] for m in members}, members,
+                                          {m: study.species[m].symbols.count(r.substitution.element)
+                                           for m in members})
         for a, b in settings.fractionation:
             if a in beta and b in beta:
                 fractionation.append(Fractionation(r.substitution.label, a, b, beta[a] - beta[b]))
