@@ -79,3 +79,53 @@ def kabsch_rmsd(positions_a_A, positions_b_A) -> float:
     d = np.sign(np.linalg.det(vt.T @ u.T)) or 1.0
     rot = vt.T @ np.diag([1.0, 1.0, d]) @ u.T
     return float(np.sqrt(np.mean(np.sum((a @ rot.T - b) ** 2, axis=1))))
+
+
+# ---- bonding graph ------------------------------------------------------------------
+# Two atoms are bonded when their distance is below ``scale`` times the sum of their covalent radii
+# (B. Cordero et al., Dalton Trans. 2008, 2832, as tabulated by ASE's ``natural_cutoffs``). The
+# default scale 1.2 is common practice: it keeps every covalent bond of a minimum (O-H 0.97 A
+# against a sum of radii of 0.97 A) and leaves out hydrogen bonds (1.7-2.0 A).
+
+#: covalent-radius multiplier for a bond
+BOND_SCALE = 1.2
+
+#: an H-H pair closer than this is bonded [Angstrom] (H2 0.74 A; the H...H contacts of
+#: minima are longer than 1.5 A)
+H_H_BOND_A = 0.9
+
+
+def bonds(symbols, positions_A, scale: float = BOND_SCALE) -> frozenset:
+    """Set of bonded atom pairs (i, j), i < j, 0-based."""
+    from ase import Atoms
+    from ase.neighborlist import natural_cutoffs
+
+    atoms = Atoms(list(symbols), positions=np.asarray(positions_A, dtype=float))
+    radii = np.array(natural_cutoffs(atoms, mult=scale))
+    x = atoms.positions
+    d = np.linalg.norm(x[:, None] - x[None, :], axis=2)
+    cut = radii[:, None] + radii[None, :]
+    # H2 (0.74 A; 0.76-0.77 A with GFN2-xTB) lies just beyond 1.2 x twice hydrogen's radius
+    # (0.744 A); an H-H pair is bonded below H_H_BOND_A
+    is_h = np.array([s == "H" for s in atoms.get_chemical_symbols()])
+    cut = np.where(is_h[:, None] & is_h[None, :], np.maximum(cut, H_H_BOND_A), cut)
+    i, j = np.nonzero(np.triu(d < cut, k=1))
+    return frozenset(zip(i.tolist(), j.tolist()))
+
+
+def fragments(natoms: int, bond_set) -> list[list[int]]:
+    """Connected components (molecules) of a bonding graph, each a sorted atom list."""
+    parent = list(range(natoms))
+
+    def find(a):
+        while parent[a] != a:
+            parent[a] = parent[parent[a]]
+            a = parent[a]
+        return a
+
+    for i, j in bond_set:
+        parent[find(i)] = find(j)
+    groups: dict[int, list[int]] = {}
+    for a in range(natoms):
+        groups.setdefault(find(a), []).append(a)
+    return sorted(groups.values())

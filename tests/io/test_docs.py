@@ -132,7 +132,8 @@ def study_data() -> dict:
     ]
     data["fits"] = {"max_deviation_percent": 3.0, "split": 220.0, "mechanism_form": "chebyshev",
                     "T0_K": 300.0, "chebyshev_temperature_terms": 4, "chebyshev_pressure_terms": 2}
-    data["isotopes"] = {"temperature_K": [250.0, 300.0], "fractionation": [["CO2", "H2O"]], "substitution": [
+    data["isotopes"] = {"temperature_K": [250.0, 300.0], "fractionation": [["CO2", "H2O"], ["CO2", "waters"]],
+                        "pools": {"waters": {"H2O": 1.0}}, "substitution": [
         {"isotope": "D"},
         {"isotope": "13C", "label": "13C bare", "mode": "atoms", "channels": ["bare"],
          "atoms": {"H2CO3": [2], "TS_bare": [1], "CO2": [1]}}]}

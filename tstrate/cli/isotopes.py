@@ -61,17 +61,18 @@ def compute(study_path, isotopes=None, temperatures=None, pairs=None, low_modes=
                 raise InputError(exc.problem, field="--isotope", hint=exc.hint) from None
             subs.append(Substitution(isotope_label(el, a), el, a))
         settings = IsotopeSettings(tuple(subs), settings.fractionation if settings else (),
-                                   settings.temperature_K if settings else None)
+                                   settings.temperature_K if settings else None,
+                                   settings.pools if settings else {})
     if settings is None:
         raise InputError("the study has no [isotopes] section", file=study.file, field="isotopes",
                          hint="add one, or give --isotope D 13C ...")
     for a, b in pairs or ():
         for x in (a, b):
-            if x not in study.species:
-                raise InputError(f"unknown species {x!r}", field="--pair")
+            if x not in study.species and x not in settings.pools:
+                raise InputError(f"unknown species or pool {x!r}", field="--pair")
     if pairs:
         settings = IsotopeSettings(settings.substitutions, settings.fractionation + tuple(map(tuple, pairs)),
-                                   settings.temperature_K)
+                                   settings.temperature_K, settings.pools)
     if temperatures is not None:
         temperatures_K(temperatures, name="--temperature", ndim=1)
     study.sections["isotopes"] = settings

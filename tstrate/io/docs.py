@@ -33,7 +33,7 @@ STUDY_FILE: tuple[Keys, ...] = (
     study.STUDY_KEYS, study.SPECIES_MAP_KEYS, study.CONDITIONS_KEYS, study.RATE_UNITS_KEYS, study.CHANNEL_KEYS,
     comparison.COMPARISON_KEYS, pressure.FALLOFF_KEYS, pressure.FALLOFF_CHANNELS_KEYS,
     pressure.FALLOFF_CHANNEL_KEYS, pressure.EXCITATION_KEYS, pressure.EXCITATION_ENERGY_KEYS, fits.KEYS,
-    isotopes.KEYS, isotopes.SUBSTITUTION_KEYS, isotopes.ATOMS_KEYS,
+    isotopes.KEYS, isotopes.SUBSTITUTION_KEYS, isotopes.ATOMS_KEYS, isotopes.POOL_KEYS, isotopes.POOL_MEMBER_KEYS,
     uncertainty_section.KEYS, uncertainty_section.SPECIES_TABLE_KEYS, uncertainty_section.SPECIES_KEYS,
     uncertainty_section.ENERGY_KEYS)
 

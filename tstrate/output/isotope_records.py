@@ -50,8 +50,24 @@ def isotopes_record(res) -> dict:
                        "kinetic_epsilon_permil": 1000 * (1 / m.kie - 1),
                        "loss_share": [{"channel": c, "share": w} for c, w in m.weights.items()]}
                       for m in res.route_mix],
+        "positions": [_position_record(p) for p in getattr(res, "positions", ())],
         "mass_dependence": res.statement,
     }
+
+
+def _position_record(p) -> dict:
+    return {"label": p.label, "channel": p.channel, "species": p.species, "atoms": [i + 1 for i in p.atoms],
+            "kie": p.kie, "kie_no_tunnelling": p.kie_no_tunnelling,
+            "kinetic_epsilon_permil": 1000 * (1 / p.kie - 1),
+            "paths": [{"transition_state_atom": t + 1, "kie": f.kie, "kie_no_tunnelling": f.kie_no_tunnelling,
+                       "factors": {n: f.factors[n] for n in KIE_FACTORS},
+                       "imaginary_frequency_ratio": f.imaginary_frequency_ratio} for t, f in p.paths]}
+
+
+def position_label(p, ts_atom=None) -> str:
+    """``18O: H2CO3 atom 1/3`` (a position), with `` via TS0 atom 2`` for one of its paths."""
+    text = f"{p.label}: {p.species} atom {'/'.join(str(i + 1) for i in p.atoms)}"
+    return text if ts_atom is None else f"{text} via TS atom {ts_atom + 1}"
 
 
 def beta_rows(res):
@@ -71,6 +87,17 @@ def kie_rows(res):
                 rows.append([s.substitution.label, k.channel, float(t), float(k.kie[i]),
                              float(k.kie_no_tunnelling[i]), 1000 * (1 / float(k.kie[i]) - 1)]
                             + [float(k.factors[n][i]) for n in KIE_FACTORS])
+    for p in getattr(res, "positions", ()):
+        for i, t in enumerate(res.temperature_K):
+            rows.append([position_label(p), p.channel, float(t), float(p.kie[i]), float(p.kie_no_tunnelling[i]),
+                         1000 * (1 / float(p.kie[i]) - 1)] + [None] * len(KIE_FACTORS))
+            if len(p.paths) > 1:
+                for ts_atom, f in p.paths:
+                    rows.append([position_label(p, ts_atom), p.channel, float(t), float(f.kie[i]),
+                                 float(f.kie_no_tunnelling[i]), 1000 * (1 / float(f.kie[i]) - 1)]
+                                + [float(f.factors[n][i]) for n in KIE_FACTORS])
+            else:
+                rows[-1][6:] = [float(p.paths[0][1].factors[n][i]) for n in KIE_FACTORS]
     return header, rows
 
 
@@ -101,6 +128,12 @@ def _pick(T, most=5):
     return sorted(set(np.linspace(0, len(T) - 1, most).round().astype(int).tolist()))
 
 
+_MODE_TEXT = {"all": "every atom of the element in every species", "atoms": "the listed atoms",
+              "each": "one atom at a time, at each set of equivalent positions of each reactant, followed into "
+                      "the transition state by its bonds; equivalent positions that become inequivalent there "
+                      "are separate reaction paths, summed"}
+
+
 def report_blocks(res, figures=()) -> list:
     """The report's isotopologue section (after its heading)."""
     from tstrate.output import report as rp
@@ -112,7 +145,7 @@ def report_blocks(res, figures=()) -> list:
         "Isotopologues share the parent's geometry, electronic energy and Hessian; their frequencies are "
         "recomputed from the Hessian with the new masses, and their symmetry numbers (and so the path "
         "degeneracies) are detected with the masses. Substitutions: " + "; ".join(
-            f"{s.substitution.label} ({'every atom of the element in every species' if s.substitution.mode == 'all' else 'the listed atoms'})"
+            f"{s.substitution.label} ({_MODE_TEXT[s.substitution.mode]})"
             for s in res.substitutions) + ". Beta factors are for a single heavy atom (trace), averaged over "
         "the element's positions.")]
     rows = []
@@ -121,6 +154,10 @@ def report_blocks(res, figures=()) -> list:
             rows.append((s.substitution.label, k.channel, *[f"{k.kie[i]:.4g}" for i in idx],
                          *[f"{k.kie_no_tunnelling[i]:.4g}" for i in idx[-1:]],
                          f"{k.imaginary_frequency_ratio:.4f}"))
+    for p in getattr(res, "positions", ()):
+        nu = "/".join(f"{f.imaginary_frequency_ratio:.4f}" for _, f in p.paths)
+        rows.append((position_label(p) + (f" ({len(p.paths)} paths)" if len(p.paths) > 1 else ""), p.channel,
+                     *[f"{p.kie[i]:.4g}" for i in idx], *[f"{p.kie_no_tunnelling[i]:.4g}" for i in idx[-1:]], nu))
     if rows:
         B.append(rp.Table(("isotope", "channel", *[f"KIE {t}" for t in temps], f"KIE no tunnelling {temps[-1]}",
                            "nu‡ light / heavy"), tuple(rows),

@@ -561,7 +561,8 @@ _record("isotopes", "Isotopologues of a study", [
     ("substitutions[].label", TEXT, "name of the substitution in the tables"),
     ("substitutions[].isotope", TEXT, "the isotope (D, 13C, 18O, ...)"),
     ("substitutions[].element", TEXT, "its element"),
-    ("substitutions[].mode", TEXT, "all (every atom of the element in every species of a channel) or atoms"),
+    ("substitutions[].mode", TEXT, "all (every atom of the element in every species of a channel), atoms, or "
+     "each (one position at a time: see positions)"),
     ("substitutions[].mass_light_amu", "u", "mass of the most common isotope of the element"),
     ("substitutions[].mass_heavy_amu", "u", "mass of the isotope"),
     ("substitutions[].atoms", OBJ, "the atoms substituted per species (mode atoms; empty otherwise)"),
@@ -587,6 +588,26 @@ _record("isotopes", "Isotopologues of a study", [
     ("substitutions[].kie[].factors.tunnelling", ONE, "kappa_light / kappa_heavy"),
     ("substitutions[].kie[].imaginary_frequency_ratio", ONE, "nu_light / nu_heavy of the imaginary mode: the "
      "classical limit of the KIE without tunnelling"),
+    ("positions", LIST, "KIEs of single substitutions at each set of equivalent positions (mode each)"),
+    ("positions[].label", TEXT, "substitution label"),
+    ("positions[].channel", TEXT, "channel name"),
+    ("positions[].species", TEXT, "the reactant holding the position"),
+    ("positions[].atoms", ONE, "its equivalent atoms, 1-based (list); one carries the isotope"),
+    ("positions[].kie", ONE, "k_light / sum of k_heavy over the paths, with tunnelling, per temperature"),
+    ("positions[].kie_no_tunnelling", ONE, "the same without tunnelling, per temperature"),
+    ("positions[].kinetic_epsilon_permil", "permil", "(1/KIE - 1) x 1000, per temperature"),
+    ("positions[].paths", LIST, "one entry per distinct transition-state position of the substituted atom"),
+    ("positions[].paths[].transition_state_atom", ONE, "the atom of the transition state, 1-based"),
+    ("positions[].paths[].kie", ONE, "k_light / k_heavy of this path alone, per temperature"),
+    ("positions[].paths[].kie_no_tunnelling", ONE, "the same without tunnelling"),
+    ("positions[].paths[].factors", OBJ, "the path's KIE split into factors (as substitutions[].kie[].factors)"),
+    ("positions[].paths[].factors.translational", ONE, "translational mass term"),
+    ("positions[].paths[].factors.rotational", ONE, "rotational mass term"),
+    ("positions[].paths[].factors.symmetry", ONE, "path-degeneracy term"),
+    ("positions[].paths[].factors.vibrational_zpe", ONE, "zero-point term"),
+    ("positions[].paths[].factors.vibrational_excited", ONE, "excited-state vibrational term"),
+    ("positions[].paths[].factors.tunnelling", ONE, "tunnelling term"),
+    ("positions[].paths[].imaginary_frequency_ratio", ONE, "nu_light / nu_heavy of the imaginary mode"),
     ("fractionation", LIST, "equilibrium fractionation of the study's species pairs"),
     ("fractionation[].isotope", TEXT, "substitution label"),
     ("fractionation[].species_a", TEXT, "species A"),
@@ -926,7 +947,10 @@ Beta factors (only with [isotopes]): one row per isotope, species and temperatur
 ), "csv")
 
 _ISO_KIE_CSV = Document("tables/isotopes_kie.csv", "csv-tables.md", """\
-Kinetic isotope effects (only with [isotopes]): one row per isotope, channel and temperature.""", _keys(
+Kinetic isotope effects (only with [isotopes]): one row per isotope, channel and temperature. A
+position of mode `each` is one row (`<label>: <species> atom <n>`) and, when equivalent atoms
+take different transition-state positions, one row per path (`... via TS atom <n>`, with its
+factors; the position's own row has none then).""", _keys(
     ("isotope", TEXT, "substitution label"),
     ("channel", TEXT, "channel name"),
     ("T", K, "temperature"),

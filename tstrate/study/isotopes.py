@@ -25,7 +25,7 @@ from tstrate.errors import InputError
 from tstrate.physics import isotopes as iso
 from tstrate.physics.thermo import HARMONIC, LowModes
 
-MODES = ("all", "atoms")
+MODES = ("all", "atoms", "each")
 
 
 @dataclass(frozen=True)
@@ -34,7 +34,8 @@ class Substitution:
 
     label: name in tables ("D", "18O", ...; unique).
     element, mass_number: the isotope.
-    mode: "all" or "atoms" (module text).
+    mode: "all", "atoms" or "each" (a single substitution at each set of equivalent positions of
+        the reactants, followed into the other stationary points by their connectivity).
     atoms: species name -> 0-based atom indices (mode "atoms").
     channels: the channels whose KIE is computed (empty: every channel).
     """
@@ -57,12 +58,13 @@ class Substitution:
 
 @dataclass(frozen=True)
 class IsotopeSettings:
-    """The ``[isotopes]`` section: substitutions, fractionation pairs, temperatures [K] (None: the
-    study's)."""
+    """The ``[isotopes]`` section: substitutions, fractionation pairs (species or pool names),
+    temperatures [K] (None: the study's), pools: name -> {species: mole fraction} (summing to 1)."""
 
     substitutions: tuple[Substitution, ...]
     fractionation: tuple[tuple[str, str], ...] = ()
     temperature_K: np.ndarray | None = None
+    pools: dict = field(default_factory=dict)
 
 
 @dataclass(frozen=True)
@@ -134,12 +136,36 @@ class RouteMix:
 
 
 @dataclass(frozen=True)
+class PositionKIE:
+    """KIE of a single substitution at one set of equivalent positions of a reactant (mode
+    "each").
+
+    label: the substitution's label; channel; species: the reactant; atoms: its equivalent atoms
+        (0-based), one of which carries the isotope.
+    paths: (transition-state atom (0-based), KIEFactors) for each distinct transition-state
+        position the substituted atom can take: equivalent atoms of the reactant may become
+        inequivalent in the transition state (a donor and an acceptor), and each is a reaction
+        path of its own (with the path degeneracy of the substituted symmetry numbers).
+    kie, kie_no_tunnelling: k_light / sum over paths of k_heavy,path, per temperature.
+    """
+
+    label: str
+    channel: str
+    species: str
+    atoms: tuple[int, ...]
+    paths: tuple
+    kie: np.ndarray
+    kie_no_tunnelling: np.ndarray
+
+
+@dataclass(frozen=True)
 class IsotopeResult:
     temperature_K: np.ndarray
     substitutions: tuple[SubstitutionResult, ...]
     fractionation: tuple[Fractionation, ...]
     three_isotope: tuple[ThreeIsotope, ...]
     route_mix: tuple[RouteMix, ...] = ()
+    positions: tuple[PositionKIE, ...] = ()
     statement: str = iso.MASS_DEPENDENCE_STATEMENT
 
 
@@ -190,6 +216,91 @@ def _heavy_map(study, ch, sub: Substitution) -> dict:
     return out
 
 
+def _correspondence(study, names, ts) -> list[tuple[str, int]]:
+    """(species name, atom) of each transition-state atom, for the species ``names`` (one side of
+    a channel, or one complex), from their connectivity (:mod:`tstrate.physics.atom_map`)."""
+    from tstrate.physics.atom_map import corresponding_atoms
+
+    sps = [study.species[n] for n in names]
+    try:
+        to_ts = corresponding_atoms([(s.symbols, s.positions_A) for s in sps], ts.symbols, ts.positions_A)
+    except ValueError as exc:
+        raise InputError(f"atoms of {' + '.join(names)} and of {ts.name}: {exc}", field="mode",
+                         hint='use mode = "atoms" and list the corresponding atoms') from None
+    owner = [(n, k) for n, s in zip(names, sps) for k in range(s.natoms)]
+    back = [None] * ts.natoms
+    for src, t in enumerate(to_ts):
+        back[t] = owner[src]
+    return back
+
+
+def position_kies(study, sub: Substitution, T, light_rates: dict, low_modes: LowModes = HARMONIC
+                  ) -> list[PositionKIE]:
+    """The KIE of a single substitution at each set of equivalent positions of each reactant
+    (:class:`PositionKIE`) of the channels ``sub`` covers. Reactants that appear twice in a channel
+    are skipped (one copy cannot be told from the other). Separated products that appear twice are
+    left light: only the forward rate constant, which does not involve them, is used."""
+    from tstrate.physics.tst import channel_rates
+
+    out = []
+    for ch in study.channels:
+        if sub.channels and ch.name not in sub.channels:
+            continue
+        ts = study.species[ch.transition_state]
+        if sub.element not in ts.symbols:
+            continue
+        sides = {"reactants": list(ch.reactants), "products": list(ch.products)}
+        maps = {key: _correspondence(study, names, ts) for key, names in sides.items()}
+        for extra in (ch.complex, ch.product_complex):
+            if extra:
+                maps[extra] = _correspondence(study, [extra], ts)
+        to_ts = {owner: t for t, owner in enumerate(maps["reactants"])}
+        ts_classes = iso.equivalent_atom_classes(ts, sub.element)
+        ts_class_of = {a: i for i, c in enumerate(ts_classes) for a in c}
+        for name in dict.fromkeys(ch.reactants):
+            if ch.reactants.count(name) > 1 or sub.element not in study.species[name].symbols:
+                continue
+            for cls in iso.equivalent_atom_classes(study.species[name], sub.element):
+                images = {}
+                for a in cls:  # one path per distinct transition-state position
+                    t = to_ts[(name, a)]
+                    images.setdefault(ts_class_of[t], (a, t))
+                paths = []
+                for a, t in images.values():
+                    atoms = {name: (a,), ch.transition_state: (t,)}
+                    for key, m in maps.items():
+                        owner, k = m[t]
+                        if key == "reactants":
+                            continue
+                        if key == "products" and ch.products.count(owner) > 1:
+                            continue  # left light (module text)
+                        atoms[owner] = (k,)
+                    heavy = dict(study.species)
+                    for n, idx in atoms.items():
+                        _refuse_without_hessian(study, n)
+                        heavy[n] = iso.substituted_species(study.species[n], {idx[0]: sub.mass_number}, name=n)
+                    if ch.name not in light_rates:
+                        light_rates[ch.name] = channel_rates(ch, study.species, T, low_modes=low_modes)
+                    hr = channel_rates(ch, heavy, T, low_modes=low_modes)
+                    paths.append((t, hr, iso.kie_factors(light_rates[ch.name], hr, study.species, heavy, ch)))
+                light = light_rates[ch.name]
+                k_heavy = sum(p[1].k for p in paths)
+                k_heavy_cl = sum(p[1].k_classical for p in paths)
+                out.append(PositionKIE(sub.label, ch.name, name, tuple(cls), tuple((t, f) for t, _, f in paths),
+                                       light.k / k_heavy, light.k_classical / k_heavy_cl))
+    return out
+
+
+def pool_ln_beta(ln_betas: dict, fractions: dict, atom_counts: dict) -> np.ndarray:
+    """ln beta of a pool of species in exchange equilibrium: the mean of its members' beta factors
+    weighted by the number of atoms of the element each holds, sum_i x_i n_i beta_i / sum_i x_i n_i
+    (x_i the mole fractions, n_i the atoms per molecule; trace substitution, so the heavy isotope's
+    share in each member is proportional to n_i beta_i)."""
+    w = {m: fractions[m] * atom_counts[m] for m in fractions}
+    total = sum(w.values())
+    return np.log(sum(w[m] * np.exp(ln_betas[m]) for m in fractions) / total)
+
+
 def route_mixes(study, comparisons, low_modes: LowModes = HARMONIC) -> list[RouteMix]:
     """The effective KIE of every comparison's route mix (:class:`RouteMix`), for every substitution
     that touches all of its routes' channels."""
@@ -201,8 +312,8 @@ def route_mixes(study, comparisons, low_modes: LowModes = HARMONIC) -> list[Rout
         T = comp.temperature_K
         chans = [r.channel for r in comp.routes]
         for sub in settings.substitutions:
-            if sub.channels and not set(chans) <= set(sub.channels):
-                continue
+            if sub.mode == "each" or (sub.channels and not set(chans) <= set(sub.channels)):
+                continue  # position by position: no single route-mix isotopologue
             kies = {}
             for name in chans:
                 ch = study.channel(name)
@@ -235,6 +346,7 @@ def study_isotopes(study, *, low_modes: LowModes = HARMONIC, temperature_K=None,
                         else study.conditions.temperature_K), ndim=1)
     light_rates = {}
     results = []
+    positions: list[PositionKIE] = []
     for i, sub in enumerate(settings.substitutions):
         try:
             betas = []
@@ -245,7 +357,9 @@ def study_isotopes(study, *, low_modes: LowModes = HARMONIC, temperature_K=None,
                 b = species_beta(sp, sub.element, sub.mass_number, T)
                 betas.append(SpeciesBeta(name, b.ln_beta, b.positions, b.ln_f_by_position))
             kies = []
-            for ch in study.channels:
+            if sub.mode == "each":
+                positions += position_kies(study, sub, T, light_rates, low_modes)
+            for ch in ([] if sub.mode == "each" else study.channels):
                 if sub.channels and ch.name not in sub.channels:
                     continue
                 heavy = _heavy_map(study, ch, sub)
@@ -264,6 +378,11 @@ def study_isotopes(study, *, low_modes: LowModes = HARMONIC, temperature_K=None,
     fractionation = []
     for r in results:
         beta = {b.species: b.ln_beta for b in r.betas}
+        for pool, members in settings.pools.items():
+            if all(m in beta for m in members):
+                beta[pool] = pool_ln_beta({m: beta[m] for m in members}, members,
+                                          {m: study.species[m].symbols.count(r.substitution.element)
+                                           for m in members})
         for a, b in settings.fractionation:
             if a in beta and b in beta:
                 fractionation.append(Fractionation(r.substitution.label, a, b, beta[a] - beta[b]))
@@ -302,4 +421,4 @@ def study_isotopes(study, *, low_modes: LowModes = HARMONIC, temperature_K=None,
             mixes = tuple(route_mixes(study, comparisons, low_modes))
         except InputError as exc:
             raise exc.within(file=study.file, prefix="isotopes") from None
-    return IsotopeResult(T, tuple(results), tuple(fractionation), tuple(three), mixes)
+    return IsotopeResult(T, tuple(results), tuple(fractionation), tuple(three), mixes, tuple(positions))

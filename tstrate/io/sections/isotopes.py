@@ -15,6 +15,11 @@
     atoms = { H2CO3 = [1], TS0 = [2], CO2 = [], H2O = [1] }   # 1-based, per species of the channel
     channels = ["bare"]
 
+    [[isotopes.substitution]]
+    isotope = "D"
+    mode = "each"                            # one KIE per set of equivalent positions of each reactant;
+                                             # the atom is found in the TS and products by their bonds
+
 Beta factors (trace, a single substitution at each set of equivalent positions) are computed for
 every minimum holding the element, whatever the mode. Every species the substitutions touch must
 carry a ``[hessian]``.
@@ -33,9 +38,19 @@ KEYS = Keys(("isotopes",), "[isotopes]", "Isotopologues of the study: beta facto
                     default_text="the study's temperatures", unit="K"),
                 Key("fractionation", "list of strings", "pairs `[\"A\", \"B\"]` of species (a list of two-name "
                     "lists): alpha = beta_A / beta_B for every isotope both hold"),
+                Key("pools", "table", "named pools of species in exchange equilibrium, each with the mole "
+                    "fractions of its members (`pools = { water = { H2O = 0.99, \"(H2O)2\" = 0.01 } }`); a "
+                    "fractionation pair may name a pool: its beta is the atom-weighted mean of its members'"),
                 Key("substitution", "array of tables", "the isotopes (`[[isotopes.substitution]]` below)",
                     required=True),
             ))
+POOL_KEYS = Keys(("isotopes", "pools"), "pools = { ... }", "Pools of species for fractionation.",
+                 any_key=Key("<pool name>", "table", "species name -> mole fraction in the pool (positive; "
+                             "normalised to 1)"))
+POOL_MEMBER_KEYS = Keys(("isotopes", "pools", "*"), "pools.<pool name> = { ... }",
+                        "The members of one pool.",
+                        any_key=Key("<species name>", "number", "mole fraction of the species in the pool "
+                                    "(positive; the fractions are normalised to 1)", unit="1"))
 SUBSTITUTION_KEYS = Keys(("isotopes", "substitution", "[]"), "[[isotopes.substitution]]",
                          "One isotope. Two substitutions of one element with the same placement (e.g. 17O "
                          "and 18O) also give the three-isotope exponents.", (
@@ -43,7 +58,9 @@ SUBSTITUTION_KEYS = Keys(("isotopes", "substitution", "[]"), "[[isotopes.substit
                                  "any isotope RDKit's periodic table knows", required=True),
                              Key("label", "string", "name in the tables", default_text="the isotope"),
                              Key("mode", "string", "`all`: every atom of the element in every species of a "
-                                 "channel; `atoms`: the atoms listed in `atoms`", default="all", choices=MODES),
+                                 "channel; `atoms`: the atoms listed in `atoms`; `each`: a single substitution at "
+                                 "each set of equivalent positions of each reactant, one KIE per position, the "
+                                 "atom followed into the other stationary points by their bonds", default="all", choices=MODES),
                              Key("atoms", "table", "species name -> list of 1-based atom numbers to substitute "
                                  "(mode `atoms`); give the corresponding atom in every species of the channel "
                                  "(the heavy atoms must balance)"),
@@ -64,13 +81,34 @@ def read_isotopes(table, study) -> IsotopeSettings:
     temps = t.number_list("temperature_K", None)
     if temps is not None and (not temps or min(temps) <= 0):
         raise t.error("temperature_K", "temperatures must be positive (kelvin)")
+    pools = {}
+    if "pools" in t:
+        pt = t.table("pools")
+        for name in list(pt.data):
+            if name in study.species:
+                raise pt.error(name, f"pool {name!r} has the name of a species", hint="name it differently")
+            mt = pt.table(name)
+            members = {}
+            for sp in list(mt.data):
+                if sp not in study.species:
+                    raise mt.error(sp, f"unknown species {sp!r}", hint="add it to [species]")
+                x = mt.get(sp, float)
+                if not (x > 0 and x < float("inf")):
+                    raise mt.error(sp, f"mole fraction must be positive, got {x!r}")
+                members[sp] = x
+            if not members:
+                raise pt.error(name, "a pool needs at least one species")
+            total = sum(members.values())
+            pools[name] = {k: v / total for k, v in members.items()}
+            mt.reject_unknown(POOL_MEMBER_KEYS)
+        pt.reject_unknown(POOL_KEYS)
     pairs = []
     raw = t.get("fractionation", list, [])
     for i, pair in enumerate(raw):
         if (not isinstance(pair, list) or len(pair) != 2 or not all(isinstance(x, str) for x in pair)):
             raise t.error(f"fractionation[{i}]", "expected a pair of species names, [\"A\", \"B\"]")
         for x in pair:
-            if x not in study.species:
+            if x not in study.species and x not in pools:
                 raise t.error(f"fractionation[{i}]", f"unknown species {x!r}", hint="add it to [species]")
         pairs.append((pair[0], pair[1]))
     subs, labels = [], set()
@@ -104,4 +142,4 @@ def read_isotopes(table, study) -> IsotopeSettings:
         st.reject_unknown(SUBSTITUTION_KEYS)
         subs.append(st.build(Substitution, label, element, a, mode, atoms, chans))
     t.reject_unknown(KEYS)
-    return IsotopeSettings(tuple(subs), tuple(pairs), None if temps is None else np.array(temps))
+    return IsotopeSettings(tuple(subs), tuple(pairs), None if temps is None else np.array(temps), pools)
