@@ -288,9 +288,20 @@ def test_channel_without_falloff_is_exported_as_its_high_pressure_expression(tmp
     assert "(+M)" not in text.split("reactions:")[1]
     # with falloff (k/k_inf down to 0.5) it is a pressure-dependent form
     k2 = c0.k_SI[:, None] / (1 + 1e3 / P[None, :])
-    c2 = fit_study(study, falloff_grid={"bare": ChannelGrid(P, k2, k_inf_SI=c0.k_SI)}).channel_fit("bare")
+    fits2 = fit_study(study, falloff_grid={"bare": ChannelGrid(P, k2, k_inf_SI=c0.k_SI)})
+    c2 = fits2.channel_fit("bare")
     assert c2.mechanism_kind in ("pressure_table", "chebyshev_falloff")
     assert measure(c2.expression, c2.check_points).max_rel == c2.export.deviation.max_rel
+    # the per-pressure table asked for: Cantera's pressure-dependent-Arrhenius reads it as tstrate does
+    fits3 = fit_study(study, mechanism_form="pressure_table",
+                      falloff_grid={"bare": ChannelGrid(P, k2, k_inf_SI=c0.k_SI)})
+    assert fits3.channel_fit("bare").mechanism_kind == "pressure_table"
+    assert any("is for falloff channels" in n for n in fits3.channel_fit("water").export.notes)
+    path = write_mechanism(fits3, tmp_path / "plog.yaml")
+    check_written(fits3, mechanism_path=path, fits_json=json.loads(json.dumps(fits_to_json(fits3))))
+    gas = ct.Solution(str(path))
+    assert gas.reaction(0).reaction_type == "pressure-dependent-Arrhenius"
+    assert_within_stated(gas, fits3)
 
 
 # ----------------------------------------------------------------------------- the demo

@@ -468,6 +468,13 @@ def build_report(result, doc: dict, inputs: list[dict], figures) -> list:
             B.append(rp.Table(tuple(header), tuple(tuple(_fmt_cell(c) for c in r) for r in rows),
                               "Modified Arrhenius fits of k(T) at each tabulated pressure (also in "
                               "fits.json and tables/fits_at_each_pressure.csv)."))
+        from tstrate.expressions.troe import troe_bound_notes
+
+        exported = {c.name: c.export.label for c in result.fits.channels}
+        for cf in result.falloff.channels:
+            held = f"; mechanism.yaml holds {exported[cf.name]}" if cf.name in exported else ""
+            for note in troe_bound_notes(cf.troe):
+                B.append(rp.Paragraph(f"channel {cf.name!r}: {note} (Troe table above{held})."))
         for s in result.falloff.skipped:
             B.append(rp.Paragraph(f"Channel {s.name}: {s.reason}."))
         B += [rp.Figure(p, c) for s, p, c in figures if s == "falloff"]

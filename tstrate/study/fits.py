@@ -1,37 +1,43 @@
-"""Fitted parameters of a whole study: Arrhenius forms per channel, NASA polynomials per species.
+"""Fitted parameters of a whole study: the rate expression each channel is exported in, NASA
+polynomials per species.
 
 This is the step between tstrate's own numbers and the files kinetics software
 loads (see :mod:`tstrate.output.mechanism`).
 
 Channels
 --------
-For every channel the TST rate constant *with tunnelling* at the study's
-temperatures is fitted to the two-parameter Arrhenius form (Arrhenius,
-Z. Phys. Chem. 4, 226 (1889)) and to the modified, three-parameter form
+For every channel the canonical TST rate constant (with the channel's own tunnelling model,
+``none`` included) at the study's temperatures is fitted to the two-parameter Arrhenius form
+(Arrhenius, Z. Phys. Chem. 4, 226 (1889)) and to the modified, three-parameter form
 k = A (T/T0)^n exp(-Ea/RT) (Kooij, Z. Phys. Chem. 12, 155 (1893)) with
-:func:`tstrate.expressions.arrhenius.fit_arrhenius`. The max and RMS relative
-deviation of k and the fitted range are kept; a deviation above
-``max_deviation`` (5 % by default) yields a warning that suggests split
-ranges, and ``split=True`` (automatic break) or ``split=<break in K>`` adds a
-two-range fit. The mechanism file uses one expression per channel
-(``mechanism_form``, the modified form by default); split fits are reported
-in the JSON only, since a single elementary reaction cannot hold two ranges.
+:func:`tstrate.expressions.arrhenius.fit_arrhenius`; both go to fits.json. ``split=True``
+(automatic break) or ``split=<break in K>`` adds a two-range fit, in fits.json only, since a
+single elementary reaction cannot hold two ranges.
 
-With ``mechanism_form="chebyshev"`` every channel also gets a Chebyshev fit
-of log10 k(T) over the reduced inverse temperature (Venkatesh, Chang, Dean,
-Cohen and Carr, AIChE J. 43, 1331 (1997);
-:func:`tstrate.expressions.chebyshev.fit_chebyshev`), and a channel whose falloff
-grid k(T, P) is passed in ``falloff_grid`` a two-dimensional fit over 1/T and
-log P on the study's temperatures and pressures. Deep tunnelling makes ln k
-curve in 1/T more than (T/T0)^n can follow; six Chebyshev terms follow it
-to well under 1 % (the demo study: 13.8 % and 15.9 % for the modified
-Arrhenius form, below 0.3 % for Chebyshev). The Arrhenius fits are kept
-alongside.
+What the mechanism holds is chosen per channel (:mod:`tstrate.expressions.choice`): each
+candidate is measured against the computed rates on the whole grid *and between grid points*
+(temperatures midway in 1/T, pressures midway in ln P, where the rates are computed too), and
+with ``mechanism_form="auto"`` (the default) the simplest that meets ``max_deviation`` is
+exported:
 
-Falloff channels take a Troe expression
-(:class:`~tstrate.expressions.troe.TroeFit` with k0 and k_inf as Arrhenius
-expressions, a, T***, T*, optional T**; Troe, Ber. Bunsenges. Phys. Chem. 87,
-161 (1983)), so it can come from tstrate's falloff step or from anywhere else.
+- k(T) channels: Arrhenius, modified Arrhenius, then Chebyshev expansions of log10 k over the
+  reduced inverse temperature (Venkatesh, Chang, Dean, Cohen and Carr, AIChE J. 43, 1331
+  (1997); :func:`tstrate.expressions.chebyshev.fit_chebyshev`) with 1, 2, ... terms;
+- falloff channels with a computed k(T, P) (``falloff_grid``): the Troe expression
+  (:class:`~tstrate.expressions.troe.TroeFit` with k0 and k_inf as Arrhenius expressions; Troe,
+  Ber. Bunsenges. Phys. Chem. 87, 161 (1983)) measured with the limit expressions written, a
+  per-pressure table of modified Arrhenius expressions, then two-dimensional Chebyshev bases
+  (1/T x log P) by growing number of coefficients. A channel whose k/k_inf exceeds 0.99 at
+  every grid point has no falloff to describe and is exported as its high-pressure k(T)
+  expression, with a statement saying so.
+
+When no form meets the tolerance the best one is exported and the miss is stated; a form the
+study asks for (``mechanism_form`` other than "auto") is honoured and flagged when it misses,
+with the simplest form that would meet it. Chebyshev term counts given explicitly are used as
+given. The deviation reported for the exported expression is the one measured this way
+(:attr:`ChannelFit.export`), and :mod:`tstrate.output.mechanism_check` measures it again from
+the numbers written. Deep tunnelling makes ln k curve in 1/T more than (T/T0)^n can follow,
+which is why the demo's channels need Chebyshev expansions of 3 to 5 terms in 1/T.
 
 Species
 -------
@@ -620,6 +626,9 @@ def _fit_channel(cr, ch, *, max_deviation, T0_K, split, mechanism_form, troe, fi
         points = kT_points
         ladder = kT_ladder
     requested = mechanism_form
+    if requested in ("troe", "pressure_table") and not pressure_dependent:
+        notes.append(f"the requested form {requested!r} is for falloff channels; this channel's k does not "
+                     "depend on pressure, so its modified Arrhenius expression is written")
     if points is None:      # a Troe expression alone: nothing to measure against
         nan = float("nan")
         chosen = Candidate("troe", troe, "Troe", Deviation(nan, nan, nan, nan, nan, 0, 0))

@@ -174,6 +174,15 @@ def compute_study(study: Study, *, low_modes: LowModes = HARMONIC,
                      chebyshev_temperature_terms=opts.chebyshev_temperature_terms,
                      chebyshev_pressure_terms=opts.chebyshev_pressure_terms,
                      falloff_grid=grid or None, rates=list(rates))
+    if falloff is not None:
+        # the Troe fit's parameters at a bound concern the mechanism only when it holds that Troe form
+        # (the report's falloff section states them for its Troe table either way)
+        from tstrate.expressions.troe import troe_bound_notes
+
+        kinds = {c.name: c.mechanism_kind for c in fits.channels}
+        unused = {f"channel {cf.name!r}: {n}" for cf in falloff.channels if kinds.get(cf.name) != "troe"
+                  for n in troe_bound_notes(cf.troe)}
+        warnings = [w for w in warnings if w not in unused]
     warnings += list(fits.warnings)
     for cf in fits.channels:
         warnings += list(cf.warnings)
