@@ -4,6 +4,7 @@ reaction's k evaluated at a channel's check points (the computed grid and the po
 from __future__ import annotations
 
 import numpy as np
+import pytest
 
 from tstrate.units import K_B, N_A
 
@@ -41,5 +42,5 @@ def assert_within_stated(gas, fits, bath=None, rtol=1e-6):
         worst = float(np.max(np.abs(ratios[c.name] - 1)))
         stated = c.export.deviation.max_rel
         assert worst <= stated * (1 + rtol) + 1e-9, (c.name, worst, stated)
-        assert worst == __import__("pytest").approx(stated, rel=1e-5, abs=1e-9), (c.name, worst, stated)
+        assert worst == pytest.approx(stated, rel=1e-5, abs=1e-9), (c.name, worst, stated)
     return ratios

@@ -25,7 +25,7 @@ from pathlib import Path
 import numpy as np
 import pytest
 
-from tests.output.cantera_check import assert_within_stated, cantera_ratios
+from tests.output.cantera_check import assert_within_stated
 from tstrate.expressions.arrhenius import fit_arrhenius_split
 from tstrate.expressions.choice import between_temperatures, measure
 from tstrate.io.study import read_study
@@ -165,8 +165,6 @@ def test_falloff_misfit_troe_is_not_exported_and_the_miss_is_stated(falloff_run)
 
 def test_requested_troe_is_honoured_flagged_and_shows_its_fit_error(falloff_run, tmp_path):
     study, result, *_ = falloff_run
-    from tstrate.study.run import compute_study  # noqa: F401  (same path as tstrate run)
-
     from tstrate.model.settings import FitOptions
 
     secs = dict(study.sections, fits=FitOptions(mechanism_form="troe"))

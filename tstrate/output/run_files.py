@@ -362,6 +362,13 @@ def build_report(result, doc: dict, inputs: list[dict], figures) -> list:
                             f"{_dt.datetime.now(_dt.timezone.utc).strftime('%Y-%m-%d %H:%M UTC')}."),
                rp.Paragraph(CAUTION)]
 
+    missed = [cf for cf in result.fits.channels
+              if not cf.export.meets_tolerance and np.isfinite(cf.export.deviation.max_rel)]
+    if missed:
+        B.append(rp.Paragraph("Tolerance missed: " + "; ".join(
+            f"the mechanism's {cf.export.label} expression of {cf.name} deviates from the computed rates by up to "
+            f"{100 * cf.export.deviation.max_rel:.3g} % (tolerance {100 * cf.export.tolerance:g} %)" for cf in missed)
+            + ". See Fitted parameters."))
     B.append(rp.Heading("Inputs"))
     B.append(rp.Table(("file", "SHA-256"), tuple((i["file"], i["sha256"]) for i in inputs)))
     rows = []
@@ -514,12 +521,13 @@ def build_report(result, doc: dict, inputs: list[dict], figures) -> list:
             if fit is None:
                 continue
             p_range = "-" if fit.Pmin_Pa is None else f"{fit.Pmin_Pa / 1e5:.3g}-{fit.Pmax_Pa / 1e5:.3g}"
+            d = cf.export.deviation if cf.expression is fit else None
             rows.append((cf.name, label, "x".join(str(n) for n in fit.coefficients.shape),
-                         f"{fit.Tmin_K:g}-{fit.Tmax_K:g}", p_range, f"{100 * fit.max_rel_deviation:.2f}",
-                         f"{100 * fit.rms_rel_deviation:.2f}"))
+                         f"{fit.Tmin_K:g}-{fit.Tmax_K:g}", p_range, f"{100 * fit.max_rel_deviation:.3g}",
+                         "-" if d is None or not d.n_between else f"{100 * d.max_rel_between:.3g}"))
     if rows:
         B.append(rp.Table(("channel", "form", "terms (T x p)", "range / K", "range / bar",
-                           "max deviation / %", "rms deviation / %"), tuple(rows),
+                           "max deviation on grid / %", "max deviation between grid points / %"), tuple(rows),
                           "Chebyshev expansions of log10 k in 1/T and log p (coefficients in fits.json)."))
     rows = []
     for cf in result.fits.channels:
