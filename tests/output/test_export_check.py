@@ -34,6 +34,8 @@ from tstrate.output.mechanism import mechanism_yaml, write_mechanism
 from tstrate.output.mechanism_check import check_written
 from tstrate.study.fits import ChannelGrid, fit_study
 
+pytestmark = pytest.mark.fitting     # rerun by .ci/run with 1 and 2 BLAS threads
+
 ct = pytest.importorskip("cantera")
 
 ROOT = Path(__file__).resolve().parents[2]
