@@ -123,8 +123,8 @@ def test_mechanism_reproduces_tstrate_in_cantera(study, tmp_path):
             n = ch["order"]
             k_cm = k_ct * (1e6 / avogadro) ** (n - 1)
             k_ts = ch["rate_constant"][j]
-            fit = dev[dev["mechanism_expression"]]  # the expression written to the mechanism
-            tol = 1.01 * fit["max_deviation_percent"] / 100 + 1e-6
+            fit = dev["mechanism"]  # what the mechanism holds, its deviation measured on the grid and between
+            tol = fit["max_deviation_percent"] / 100 * (1 + 1e-6) + 1e-9
             assert k_cm == pytest.approx(k_ts, rel=tol), (ch["name"], T)
             # Kc in Cantera's kmol/m3 units against tstrate's molecule cm-3 units
             dn = sum(gas.reaction(i).products.values()) - sum(gas.reaction(i).reactants.values())

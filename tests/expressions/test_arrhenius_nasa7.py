@@ -123,7 +123,8 @@ def test_warning_on_curvature_points_at_crossover():
     T = np.arange(150.0, 401.0, 5.0)
     fit = fit_arrhenius(T, _two_channel(T), order=2)
     assert fit.max_rel_deviation > 0.05
-    assert fit.warning is not None and "split" in fit.warning
+    # the warning names where ln k curves most (a fact of the data); the split break is the split fit's own
+    assert fit.warning is not None and "most curved in 1/T near" in fit.warning and "split" not in fit.warning
     # For ln(A1 e^{-th1 x} + A2 e^{-th2 x}) with x = 1/T the second derivative is
     # (th1 - th2)^2 p (1 - p), p the share of one term: largest where both terms are equal,
     # T_x = (th1 - th2) / ln(A1/A2) = 2700 / ln(1e4) = 293.2 K. The discrete estimate sits on

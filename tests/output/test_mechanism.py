@@ -54,23 +54,25 @@ def _exported_h(fit, species, T):
 def test_carbonic_mechanism_reproduces_tstrate_within_1_percent(carbonic, carbonic_fits, tmp_path):
     """k(T), Kc(T) and k_reverse(T) from Cantera against tstrate at the study temperatures.
 
-    The fits of this study deviate by < 0.6 % (asserted), so 1 % holds for k; Kc comes from
-    the polynomials (errors < 0.1 % in ln Kc); k_reverse = k / Kc adds both.
+    The exported expressions of this study (the simplest meeting the 5 % tolerance) deviate by
+    < 5 % (asserted) on the grid and between grid points, so that holds for Cantera's k; Kc
+    comes from the polynomials (errors < 0.1 % in ln Kc); k_reverse = k / Kc adds both.
     """
     gas, _ = _load(carbonic_fits, tmp_path)
     rates = {cr.channel: cr for cr in study_rates(carbonic)}
     for i, c in enumerate(carbonic_fits.channels):
-        assert c.expression.max_rel_deviation < 0.006
+        dev = c.export.deviation.max_rel
+        assert c.export.meets_tolerance and dev < 0.05
         cr = rates[c.name]
         for j, T in enumerate(cr.temperature_K):
             gas.TPX = T, 1e5, "CO2:1"
             k_ct = gas.forward_rate_constants[i] / PER_KMOL ** (cr.order - 1)
             assert k_ct == pytest.approx(c.expression.rate(T), rel=1e-9)     # exact conversion
-            assert k_ct == pytest.approx(cr.k[j], rel=0.01)
+            assert k_ct == pytest.approx(cr.k[j], rel=dev * (1 + 1e-6))
             kc_ct = gas.equilibrium_constants[i]
             assert kc_ct == pytest.approx(_kc_tstrate_in_cantera_units(cr)[j], rel=0.01)
             kr_ct = gas.reverse_rate_constants[i] / PER_KMOL ** (cr.reverse_order - 1)
-            assert kr_ct == pytest.approx(cr.k_reverse[j], rel=0.02)
+            assert kr_ct == pytest.approx(cr.k_reverse[j], rel=dev + 0.01)
 
 
 def test_toy_mechanism_reproduces_fit_and_tstrate_within_fit_error(tmp_path):
@@ -278,9 +280,9 @@ def test_unwritable_folder_is_one_line_input_error(carbonic_fits, tmp_path):
 
 
 def test_non_finite_parameter_is_refused(carbonic_fits):
-    bad = dataclasses.replace(carbonic_fits.channels[0],
-                              modified=dataclasses.replace(carbonic_fits.channels[0].modified,
-                                                           n=float("nan")))
+    c0 = carbonic_fits.channels[0]
+    bad = dataclasses.replace(c0, export=dataclasses.replace(
+        c0.export, expression=dataclasses.replace(c0.modified, n=float("nan")), kind="modified_arrhenius"))
     fits = dataclasses.replace(carbonic_fits, channels=(bad,) + carbonic_fits.channels[1:])
     with pytest.raises(InputError, match="non-finite"):
         mechanism_yaml(fits)

@@ -91,6 +91,14 @@ def outputs(demo_run, tmp_path_factory):
     troe = TroeFit(k0=arrhenius_expression(1e-16, -3.0, 150e3, order=2), kinf=kinf, a=0.6, T3_K=300.0,
                     T1_K=3000.0, T2_K=5000.0, bath_gas="CO2")
     got.append(("mechanism.yaml", _yaml(mechanism_yaml(fit_study(carbonic, troe={"bare": troe})))))
+    # a per-pressure Arrhenius table (pressure-dependent-Arrhenius) from an invented smooth k(T, P) grid
+    import numpy as np
+
+    bare = fit_study(carbonic).channel_fit("bare")
+    P = np.logspace(3, 6, 4)
+    grid = {"bare": (P, bare.k_SI[:, None] / (1 + 1e3 / P[None, :]))}
+    got.append(("mechanism.yaml", _yaml(mechanism_yaml(fit_study(carbonic, mechanism_form="pressure_table",
+                                                                 falloff_grid=grid)))))
 
     rotor = tmp / "h2co3_rotor.toml"
     rotor.write_text((ROOT / "tests/data/falloff/h2co3.toml").read_text() + FREE_ROTOR)

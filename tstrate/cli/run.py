@@ -79,26 +79,11 @@ def run(args) -> int:
 
         print_json(run_summary(result, out, files))
         return 0
-    from tstrate.output.records import rate_unit
+    from tstrate.output.run_files import export_summary
 
     print(f"{study.title}\nwrote {len(files)} files to {out}/ (report: {out / 'report.html'})")
     for cf in result.fits.channels:
-        kind = cf.mechanism_kind
-        if kind.startswith("chebyshev"):
-            fit = cf.chebyshev_falloff if kind == "chebyshev_falloff" else cf.chebyshev
-            nt, np_ = fit.coefficients.shape
-            over = f", {fit.Pmin_Pa / 1e5:.3g}-{fit.Pmax_Pa / 1e5:.3g} bar" if kind == "chebyshev_falloff" else ""
-            print(f"  {cf.name}: Chebyshev {nt} x {np_} terms in mechanism.yaml, {fit.Tmin_K:g}-{fit.Tmax_K:g} K"
-                  f"{over}, max deviation {100 * fit.max_rel_deviation:.2f} %")
-            continue
-        if kind == "troe":
-            print(f"  {cf.name}: Troe falloff in mechanism.yaml (see fits.json)")
-            continue
-        e = cf.expression
-        form = f"(T/{e.T0_K:g} K)^{e.n:.2f} " if e.modified else ""
-        print(f"  {cf.name}: k = {e.A_in(rate_unit(e.order, study.conditions.rate_units)):.3e} {form}exp(-Ea/RT), Ea = {e.Ea_J_per_mol / 1e3:.2f} kJ/mol "
-              f"[A in {rate_unit(e.order, study.conditions.rate_units)}], {e.Tmin_K:g}-{e.Tmax_K:g} K, "
-              f"max deviation {100 * e.max_rel_deviation:.1f} %")
+        print(f"  {cf.name}: {export_summary(cf, study.conditions.rate_units)}")
     for w in result.warnings:
         print(f"warning: {w}", file=sys.stderr)
     print("Estimates bounded by the electronic-structure inputs; check against experiment and "

@@ -262,11 +262,8 @@ def fit_arrhenius(temperature_K, k_SI, *, order: int, modified: bool = False,
         warning = (f"{form} fit deviates by up to {100 * max_dev:.1f} % "
                    f"(threshold {100 * max_deviation:.1f} %) over {T.min():g}-{T.max():g} K")
         if T_curv is not None:
-            warning += (f"; ln k is most curved in 1/T near {T_curv:.0f} K (low-temperature "
-                        f"tunnelling often does this): consider fitting split ranges at about "
-                        f"{T_curv:.0f} K")
-            if not modified:
-                warning += " or the modified form"
+            # a fact about the data only: the break a split fit chooses is fit_arrhenius_split's
+            warning += f"; ln k is most curved in 1/T near {T_curv:.0f} K"
 
     return ArrheniusFit(A=math.exp(ln_A), n=n, Ea_J_per_mol=Ea_over_R * R, T0_K=float(T0_K),
                         order=order, modified=bool(modified), Tmin_K=float(T.min()),

@@ -27,11 +27,9 @@ US_STANDARD_RANGE_KM = (0.0, 86.0)
 T0_DEFAULT_K = 298.15
 #: Default threshold of the max relative deviation of a fitted k that triggers a warning (fraction).
 MAX_DEVIATION_DEFAULT = 0.05
-#: Default numbers of Chebyshev terms in 1/T and in log P.
-CHEBYSHEV_TEMPERATURE_TERMS_DEFAULT = 6
-CHEBYSHEV_PRESSURE_TERMS_DEFAULT = 4
-#: The rate expressions a mechanism may hold for each channel.
-MECHANISM_FORMS = ("modified", "arrhenius", "chebyshev")
+#: The rate expressions a mechanism may hold for each channel: "auto" (the simplest form that meets
+#: max_deviation), or one form for every channel (pressure-dependent forms apply to falloff channels).
+MECHANISM_FORMS = ("auto", "arrhenius", "modified", "troe", "pressure_table", "chebyshev")
 
 
 @dataclass(frozen=True)
@@ -40,16 +38,16 @@ class FitOptions:
 
     max_deviation: warning threshold of the max relative deviation of k (a fraction, > 0).
     split: False (no split fit), True (break searched) or a break temperature [K] (> 0).
-    mechanism_form: one of :data:`MECHANISM_FORMS`.
+    mechanism_form: one of :data:`MECHANISM_FORMS` ("auto": the simplest form meeting max_deviation).
     T0_K: reference temperature of the modified Arrhenius form [K] (> 0).
     chebyshev_temperature_terms, chebyshev_pressure_terms: numbers of Chebyshev terms in
-        1/T and log P (>= 1), or None for the defaults (6 and 4, lowered to the number of
-        temperatures or pressures when there are fewer); only with the chebyshev form.
+        1/T and log P (>= 1), or None to take the smallest basis that meets max_deviation;
+        only with the chebyshev form.
     """
 
     max_deviation: float = MAX_DEVIATION_DEFAULT
     split: bool | float = False
-    mechanism_form: str = "modified"
+    mechanism_form: str = "auto"
     T0_K: float = T0_DEFAULT_K
     chebyshev_temperature_terms: int | None = None
     chebyshev_pressure_terms: int | None = None

@@ -11,7 +11,9 @@ from typing import Mapping
 from tstrate.expressions.arrhenius import ArrheniusFit
 from tstrate.expressions.chebyshev import ChebyshevFit
 from tstrate.expressions.nasa7 import Nasa7Fit
-from tstrate.expressions.troe import TroeFit
+from tstrate.expressions.choice import KIND_LABELS
+from tstrate.expressions.pressure_table import PressureTableFit
+from tstrate.expressions.troe import TroeFit, troe_bound_notes
 from tstrate.output.records import to_jsonable
 from tstrate.study.fits import StudyFits
 from tstrate.units import P_STANDARD, rate_from_SI
@@ -85,6 +87,7 @@ def chebyshev_record(fit: ChebyshevFit, unit: str | None = None) -> dict:
 
 def _troe_record(t: TroeFit, rate_units) -> dict:
     return {
+        "form": "Troe falloff k = k_inf [Pr/(1 + Pr)] F, Pr = k0 [M] / k_inf",
         "k0_low_pressure": arrhenius_record(t.k0, (rate_units or {}).get(t.k0.order)),
         "kinf_high_pressure": arrhenius_record(t.kinf, (rate_units or {}).get(t.kinf.order)),
         "a": t.a,
@@ -92,9 +95,10 @@ def _troe_record(t: TroeFit, rate_units) -> dict:
         "T1_K": t.T1_K,
         "T2_K": t.T2_K,
         "Fcent_formula": "(1-a) exp(-T/T3) + a exp(-T/T1) + exp(-T2/T) (last term only with T2)",
-        "max_deviation_percent": _pct(t.max_rel_deviation),
-        "rms_deviation_percent": _pct(t.rms_rel_deviation),
+        "fit_max_deviation_tabulated_limits_percent": _pct(t.max_rel_deviation),
+        "fit_rms_deviation_tabulated_limits_percent": _pct(t.rms_rel_deviation),
         "parameters_at_bound": [name for name, _ in t.at_bound],
+        "parameters_at_bound_notes": list(troe_bound_notes(t)),
         "bath_gas": t.bath_gas,
         "source": t.source,
     }
@@ -119,19 +123,53 @@ def _nasa_record(n: Nasa7Fit) -> dict:
     }
 
 
-def mechanism_fit_record(cf, rate_units: Mapping[int, str] | None = None) -> dict:
-    """The fitted expression the mechanism file holds for one channel (``cf`` a channel of
-    :class:`tstrate.study.fits.StudyFits`): a Chebyshev record for the Chebyshev forms, else
-    the Arrhenius record of the channel's expression (for a Troe channel, its Arrhenius form)."""
+def pressure_table_record(table: PressureTableFit, unit: str | None = None) -> dict:
+    """A per-pressure table of Arrhenius expressions with units in the keys."""
+    return {"form": "modified Arrhenius expressions at tabulated pressures, ln k linear in ln P between "
+                    "them, the nearest pressure's expression outside the table",
+            "order": table.order,
+            "entries": [{"pressure_bar": None if p is None else p / _BAR, **arrhenius_record(f, unit)}
+                        for p, _, f in table.rows()]}
+
+
+def expression_record(kind: str, expression, rate_units: Mapping[int, str] | None = None) -> dict:
+    """The record of an expression of ``kind`` (a key of
+    :data:`~tstrate.expressions.choice.KIND_LABELS`)."""
     from tstrate.output.records import rate_unit
 
-    unit = rate_unit(cf.order, rate_units)
-    kind = cf.mechanism_kind
-    if kind == "chebyshev_falloff":
-        return chebyshev_record(cf.chebyshev_falloff, unit)
-    if kind == "chebyshev":
-        return chebyshev_record(cf.chebyshev, unit)
-    return arrhenius_record(cf.expression, unit)
+    if kind == "troe":
+        return _troe_record(expression, rate_units)
+    unit = rate_unit(expression.order, rate_units)
+    if kind in ("chebyshev", "chebyshev_falloff"):
+        return chebyshev_record(expression, unit)
+    if kind == "pressure_table":
+        return pressure_table_record(expression, unit)
+    return arrhenius_record(expression, unit)
+
+
+def export_record(cf, rate_units: Mapping[int, str] | None = None) -> dict:
+    """What the mechanism file holds for one channel and how far it is from the computed rates."""
+    e = cf.export
+    rec = {"kind": e.kind, "form": KIND_LABELS[e.kind], "label": e.label,
+           "requested_form": e.requested, "tolerance_percent": 100.0 * e.tolerance,
+           "meets_tolerance": bool(e.meets_tolerance),
+           "deviation_measured_at": "the computed grid and the points between grid points (temperatures midway "
+                                    "in 1/T, pressures midway in ln P), from the numbers written",
+           **e.deviation.to_record(),
+           "forms_tried": [{"label": label, "max_deviation_percent": _pct(d)} for label, d in e.tried],
+           "notes": list(e.notes), "warnings": list(e.warnings),
+           "expression": expression_record(e.kind, e.expression, rate_units)}
+    if e.kind.startswith("chebyshev"):
+        rec["chebyshev_basis"] = [e.expression.n_temperature, e.expression.n_pressure]
+    if e.kind == "troe":
+        rec["troe_fit_max_deviation_tabulated_limits_percent"] = _pct(e.expression.max_rel_deviation)
+    return rec
+
+
+def mechanism_fit_record(cf, rate_units: Mapping[int, str] | None = None) -> dict:
+    """The expression the mechanism file holds for one channel (``cf`` a channel of
+    :class:`tstrate.study.fits.StudyFits`), whatever its form, with its measured deviation."""
+    return export_record(cf, rate_units)
 
 
 def fits_to_json(fits: StudyFits, rate_units: Mapping[int, str] | None = None) -> dict:
@@ -156,7 +194,9 @@ def fits_to_json(fits: StudyFits, rate_units: Mapping[int, str] | None = None) -
             "rate_constant_data_SI": c.k_SI,
             "rate_constant_data_SI_unit": {1: "s-1", 2: "m3 molecule-1 s-1",
                                            3: "m6 molecule-2 s-1"}[c.order],
-            "includes_tunnelling": True,
+            "includes_tunnelling": c.includes_tunnelling,
+            "tunnelling": c.tunnelling,
+            "method": c.method,
             "arrhenius": arrhenius_record(c.arrhenius, u),
             "modified_arrhenius": arrhenius_record(c.modified, u),
             "split": None if c.split is None else {
@@ -169,10 +209,11 @@ def fits_to_json(fits: StudyFits, rate_units: Mapping[int, str] | None = None) -
             "chebyshev": None if c.chebyshev is None else chebyshev_record(c.chebyshev, u),
             "chebyshev_falloff": None if c.chebyshev_falloff is None
             else chebyshev_record(c.chebyshev_falloff, u),
-            # the key of the record above that the mechanism holds; a channel written in Troe
-            # form names its Arrhenius form (the Troe record is under falloff_troe)
-            "mechanism_expression": c.mechanism_kind if c.mechanism_kind.startswith("chebyshev")
-            else ("arrhenius" if c.mechanism_form == "arrhenius" else "modified_arrhenius"),
+            "pressure_table": None if c.pressure_table is None
+            else pressure_table_record(c.pressure_table, u),
+            # what the mechanism holds (its kind, record and measured deviation)
+            "mechanism_expression": c.mechanism_kind,
+            "mechanism": export_record(c, units),
             "Kc_check_max_abs_ln_difference": c.max_abs_ln_kc_error,
             "falloff_troe": None if c.troe is None else _troe_record(c.troe, units),
             "warnings": list(c.warnings),
@@ -219,9 +260,13 @@ def fits_to_json(fits: StudyFits, rate_units: Mapping[int, str] | None = None) -
         "bath_gas": fits.bath_gas,
         "species": species,
         "channels": channels,
+        "tolerance_percent": 100.0 * fits.channels[0].export.tolerance if fits.channels else None,
+        "tolerance_missed": [c.name for c in fits.channels
+                             if not c.export.meets_tolerance and math.isfinite(c.export.deviation.max_rel)],
         "warnings": list(fits.warnings) + [w for c in fits.channels for w in c.warnings],
     }
     return to_jsonable(out)
 
 
-__all__ = ["arrhenius_record", "chebyshev_record", "fits_to_json", "mechanism_fit_record"]
+__all__ = ["arrhenius_record", "chebyshev_record", "fits_to_json", "mechanism_fit_record", "export_record",
+           "expression_record", "pressure_table_record"]

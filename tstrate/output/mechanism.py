@@ -156,16 +156,21 @@ def _header(fits, cn) -> list[str]:
         "# Units: A in s-1 (unimolecular), cm3 molecule-1 s-1 (bimolecular), cm6 molecule-2 s-1",
         "# (termolecular; falloff low-pressure limits one order higher); b is the temperature",
         "# exponent with T in K (k = A T^b exp(-Ea/RT)); Ea is given as Ea/R in K.",
-        "# Rate constants are TST with tunnelling, fitted over "
-        f"{float(min(fits.temperature_K)):g}-{float(max(fits.temperature_K)):g} K; "
-        "reverse rates follow from the",
-        "# NASA polynomials (reversible reactions).",
+        f"# Rate constants fitted over {float(min(fits.temperature_K)):g}-{float(max(fits.temperature_K)):g} K; "
+        "each reaction's note says how its rates were computed",
+        "# (method, tunnelling), which form it holds and how far that form is from the computed rates",
+        "# (measured from the numbers in this file, on the grid and between grid points); reverse rates",
+        "# follow from the NASA polynomials (reversible reactions).",
         *([] if not any(c.mechanism_kind.startswith("chebyshev") for c in fits.channels) else [
             "# Chebyshev reactions: log10 k = sum a[t][p] T_t(x) T_p(y) with k in the units above,",
             "# x = (2/T - 1/Tmin - 1/Tmax)/(1/Tmax - 1/Tmin), y = (2 ln P - ln Pmin - ln Pmax)/"
             "(ln Pmax - ln Pmin), P in Pa;",
             "# one pressure column: k independent of pressure (range 1e-30 to 1e30 Pa). Valid only "
             "inside the temperature range."]),
+        *([] if not any(c.mechanism_kind == "pressure_table" for c in fits.channels) else [
+            "# pressure-dependent-Arrhenius reactions: one expression per pressure (P in Pa), ln k linear "
+            "in ln P between them,",
+            "# the nearest pressure's expression outside the tabulated range."]),
         "# Thermochemistry: NASA 7-coefficient polynomials fitted to tstrate's ideal-gas "
         f"thermochemistry (low modes: {fits.low_modes.label}),",
         "# standard state 1 bar.",
@@ -179,6 +184,11 @@ def _header(fits, cn) -> list[str]:
     if renamed:
         lines.append("# Species renamed for Cantera: "
                      + "; ".join(f"{n!r} -> {c!r}" for n, c in renamed))
+    missed = [c.name for c in fits.channels
+              if not c.export.meets_tolerance and math.isfinite(c.export.deviation.max_rel)]
+    if missed:
+        lines.append("# TOLERANCE MISSED: the expressions of " + ", ".join(missed) + " deviate from the "
+                     "computed rates by more than the tolerance (see their notes).")
     warnings = list(fits.warnings) + [w for c in fits.channels for w in c.warnings]
     if warnings:
         lines.append("# Warnings:")
@@ -198,37 +208,51 @@ def _species_block(s, cn) -> list[str]:
             + n.mechanism_block(P_STANDARD) + [f"  note: {_q(note)}"])
 
 
+def deviation_text(c) -> str:
+    """The measured deviation of a channel's exported expression, in words (as the file says it)."""
+    d = c.export.deviation
+    if not math.isfinite(d.max_rel):
+        return "deviation not measured (no computed k(T, P) given)"
+    text = (f"max deviation {100 * d.max_rel:.3g} % from the computed rates at {d.n_grid} grid points"
+            + (f" and {d.n_between} points between them" if d.n_between else ""))
+    text += (f" (tolerance {100 * c.export.tolerance:g} %"
+             + ("" if c.export.meets_tolerance else ", MISSED") + ")")
+    return text
+
+
 def _reaction_block(c, cn, duplicate: bool) -> list[str]:
     lhs, rhs = _side(c.reactants, cn), _side(c.products, cn)
     kind = c.mechanism_kind
+    e = c.expression
+    note = f"channel {c.name}; {c.method}; "
     if kind.startswith("chebyshev"):
-        f = c.chebyshev_falloff if kind == "chebyshev_falloff" else c.chebyshev
-        note = (f"channel {c.name}; Chebyshev fit ({f.n_temperature} x {f.n_pressure} terms) of "
-                f"{'k(T, P)' if f.pressure_dependent else 'k(T)'} over {f.Tmin_K:g}-{f.Tmax_K:g} K")
-        if f.pressure_dependent:
-            note += f" and {f.Pmin_Pa / 1e5:g}-{f.Pmax_Pa / 1e5:g} bar"
-            if c.troe is not None and c.troe.bath_gas:
-                note += f" (falloff computed for bath gas {c.troe.bath_gas})"
-        note += f", max deviation {100 * f.max_rel_deviation:.2f} %"
-        lines = [f"- equation: {_q(f'{lhs} <=> {rhs}')}"] + f.mechanism_block()
-    elif c.troe is None:
-        e = c.expression
-        note = (f"channel {c.name}; {'modified ' if e.modified else ''}Arrhenius fit over "
-                f"{e.Tmin_K:g}-{e.Tmax_K:g} K, max deviation {100 * e.max_rel_deviation:.2f} %")
+        note += (f"Chebyshev fit ({e.n_temperature} x {e.n_pressure} terms) of "
+                 f"{'k(T, P)' if e.pressure_dependent else 'k(T)'} over {e.Tmin_K:g}-{e.Tmax_K:g} K")
+        if e.pressure_dependent:
+            note += f" and {e.Pmin_Pa / 1e5:g}-{e.Pmax_Pa / 1e5:g} bar"
+        lines = [f"- equation: {_q(f'{lhs} <=> {rhs}')}"] + e.mechanism_block()
+    elif kind in ("arrhenius", "modified_arrhenius"):
+        note += (f"{'modified ' if e.modified else ''}Arrhenius fit over {e.Tmin_K:g}-{e.Tmax_K:g} K")
+        lines = [f"- equation: {_q(f'{lhs} <=> {rhs}')}"] + e.mechanism_block()
+    elif kind == "pressure_table":
+        p = e.pressure_Pa
+        note += (f"modified Arrhenius expressions at {len(e.fits)} pressures ({p.min() / 1e5:g}-{p.max() / 1e5:g} "
+                 "bar, ln k linear in ln P between them)")
         lines = [f"- equation: {_q(f'{lhs} <=> {rhs}')}"] + e.mechanism_block()
     else:
-        t = c.troe
         if c.order + 1 > 3:
             raise InputError(f"channel {c.name!r}: a falloff reaction with {c.order} reactants "
                              "would need a low-pressure limit of order 4", field="troe")
-        note = f"channel {c.name}; Troe falloff"
-        if t.max_rel_deviation is not None and math.isfinite(t.max_rel_deviation):
-            note += f", fit max deviation {100 * t.max_rel_deviation:.2f} %"
-        if t.bath_gas:
-            note += f", computed for bath gas {t.bath_gas}"
-        if t.source:
-            note += f"; {t.source}"
-        lines = [f"- equation: {_q(f'{lhs} (+M) <=> {rhs} (+M)')}"] + t.mechanism_block()
+        note += "Troe falloff"
+        if e.source:
+            note += f" ({e.source})"
+        lines = [f"- equation: {_q(f'{lhs} (+M) <=> {rhs} (+M)')}"] + e.mechanism_block()
+    bath = c.troe.bath_gas if c.troe is not None else None
+    if bath and kind in ("troe", "pressure_table", "chebyshev_falloff"):
+        note += f", computed for bath gas {bath}"
+    note += f"; {deviation_text(c)}"
+    if c.export.notes:
+        note += "; " + "; ".join(c.export.notes)
     if duplicate:
         lines.append("  duplicate: true")
     lines.append(f"  note: {_q(note)}")
@@ -242,7 +266,7 @@ def _duplicates(channels) -> set[str]:
         r, p = tuple(sorted(c.reactants)), tuple(sorted(c.products))
         kind = c.mechanism_kind
         written = ("Chebyshev" if kind.startswith("chebyshev")
-                   else "falloff" if kind == "troe" else "elementary")
+                   else "falloff" if kind == "troe" else "plog" if kind == "pressure_table" else "elementary")
         key = (frozenset([r, p]) if r != p else frozenset([r]), written)
         keys.setdefault(key, []).append(c.name)
     return {n for names in keys.values() if len(names) > 1 for n in names}

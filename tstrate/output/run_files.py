@@ -50,9 +50,11 @@ METHODS = (
     "Falloff: RRKM k(E) on an energy grain (Beyer-Swinehart counts), strong collisions scaled by a "
     "collision efficiency (Troe's weak-collision relation), Lennard-Jones collision rates; Troe "
     "parameters fitted to the computed curves.",
-    "Fits: Arrhenius and modified Arrhenius by least squares on ln k; NASA 7-coefficient polynomials "
-    "(two ranges) fitted to the thermochemistry, enthalpies shifted by per-element offsets (not "
-    "enthalpies of formation).",
+    "Fits: Arrhenius and modified Arrhenius by least squares on ln k, Chebyshev expansions of log10 k, "
+    "per-pressure Arrhenius tables; per channel the mechanism holds the simplest form that meets the "
+    "tolerance on the grid and between grid points (or the form asked for, flagged when it misses); NASA "
+    "7-coefficient polynomials (two ranges) fitted to the thermochemistry, enthalpies shifted by "
+    "per-element offsets (not enthalpies of formation).",
 )
 
 
@@ -131,17 +133,43 @@ def fits_document(result) -> dict:
 
 def run_summary(result, output_dir, files) -> dict:
     """The ``tstrate run --json`` summary: the folder, the files written, and per channel the
-    kind of expression in mechanism.yaml with its fitted record."""
-    from tstrate.output.fit_records import mechanism_fit_record
+    expression mechanism.yaml holds (its kind, record and measured deviation), its method and warnings."""
+    from tstrate.output.fit_records import export_record
 
     units = result.study.conditions.rate_units
+    fits = result.fits
     return {
         "study": result.study.file, "output_dir": str(output_dir), "files": [str(f) for f in files],
-        "channels": [{"name": c.name, "mechanism_kind": c.mechanism_kind,
-                      "mechanism_fit": mechanism_fit_record(c, units),
-                      "warnings": list(c.warnings)} for c in result.fits.channels],
+        "channels": [{"name": c.name, "mechanism_kind": c.mechanism_kind, "method": c.method,
+                      "tunnelling": c.tunnelling, "includes_tunnelling": c.includes_tunnelling,
+                      "mechanism_fit": export_record(c, units),
+                      "warnings": list(c.warnings)} for c in fits.channels],
+        "tolerance_missed": [c.name for c in fits.channels
+                             if not c.export.meets_tolerance and np.isfinite(c.export.deviation.max_rel)],
         "warnings": list(result.warnings),
     }
+
+
+def export_summary(cf, rate_units=None) -> str:
+    """One line on what mechanism.yaml holds for a channel and how far it is from the computed rates."""
+    from tstrate.output.mechanism import deviation_text
+
+    e = cf.export
+    text = e.label
+    if e.kind in ("arrhenius", "modified_arrhenius"):
+        from tstrate.output.records import rate_unit
+
+        f = e.expression
+        unit = rate_unit(f.order, rate_units)
+        text += (f": A = {f.A_in(unit):.3e} {unit}" + (f", n = {f.n:.3g} (T0 = {f.T0_K:g} K)" if f.modified else "")
+                 + f", Ea = {f.Ea_J_per_mol / 1e3:.2f} kJ/mol")
+    elif e.kind == "troe":
+        t = e.expression
+        text += (f": a = {t.a:.4g}, T*** = {t.T3_K:.4g} K, T* = {t.T1_K:.4g} K"
+                 + ("" if t.T2_K is None else f", T** = {t.T2_K:.4g} K")
+                 + ("" if t.max_rel_deviation is None else
+                    f"; Troe fit with tabulated limits {100 * t.max_rel_deviation:.3g} %"))
+    return f"{text}; {deviation_text(cf)}"
 
 
 def pressure_fit_rows(result):
@@ -177,7 +205,19 @@ def write_all(result, folder: Path, *, progress: Callable[[str], None] | None = 
 
     step("tables")
     written.append(write_mechanism(result.fits, folder / "mechanism.yaml"))
-    written.append(write_json(folder / "fits.json", fits_document(result)))
+    # every expression written is read back from the file and measured again
+    from tstrate.output.mechanism_check import check_written
+
+    checked = check_written(result.fits, mechanism_path=folder / "mechanism.yaml")
+    fits_doc = fits_document(result)
+    for rec in fits_doc["channels"]:
+        dev = checked[rec["name"]].get("mechanism_yaml")
+        rec["mechanism"]["checked_from_mechanism_yaml_max_deviation_percent"] = (
+            None if dev is None or not np.isfinite(dev.max_rel) else 100.0 * dev.max_rel)
+    written.append(write_json(folder / "fits.json", fits_doc))
+    import json as _json
+
+    check_written(result.fits, fits_json=_json.loads((folder / "fits.json").read_text()))
     written.append(write_fits_csv(folder / "fits.csv", result.fits, units))
     written.append(write_thermo_csv(folder / "tables" / "thermochemistry.csv", result.thermo))
     written += write_rate_tables(folder / "tables", result.rates, units)
@@ -284,11 +324,11 @@ def limits(result) -> list[str]:
     if result.falloff is not None and any(cf.model.tunnelling == "eckart" for cf in result.falloff.channels):
         out.append("Falloff of channels with Eckart tunnelling: the Troe k0 is an effective value fitted "
                    "together with the broadening parameters, not the strong-collision low-pressure limit.")
-    wild = [cf.name for cf in result.fits.channels
-            if cf.mechanism_kind in ("arrhenius", "modified_arrhenius") and abs(cf.expression.n) > 10]
-    if wild:
-        out.append(f"Fitted expressions of {', '.join(wild)} have |n| > 10: they reproduce k only inside the "
-                   "fitted temperature range and must not be extrapolated; split ranges (fits.json) fit better.")
+    from tstrate.expressions.choice import large_exponent_notes
+
+    for cf in result.fits.channels:
+        for note in large_exponent_notes(cf.mechanism_kind, cf.expression):
+            out.append(f"Channel {cf.name}: the exported {cf.export.label} expression: {note}.")
     if result.low_modes.method == LOW_MODES_HARMONIC:
         low = DEFAULT_LOW_MODE_CUTOFF_CM1
         soft = [n for n, sp in result.study.species.items()
@@ -324,6 +364,13 @@ def build_report(result, doc: dict, inputs: list[dict], figures) -> list:
                             f"{_dt.datetime.now(_dt.timezone.utc).strftime('%Y-%m-%d %H:%M UTC')}."),
                rp.Paragraph(CAUTION)]
 
+    missed = [cf for cf in result.fits.channels
+              if not cf.export.meets_tolerance and np.isfinite(cf.export.deviation.max_rel)]
+    if missed:
+        B.append(rp.Paragraph("Tolerance missed: " + "; ".join(
+            f"the mechanism's {cf.export.label} expression of {cf.name} deviates from the computed rates by up to "
+            f"{100 * cf.export.deviation.max_rel:.3g} % (tolerance {100 * cf.export.tolerance:g} %)" for cf in missed)
+            + ". See Fitted parameters."))
     B.append(rp.Heading("Inputs"))
     B.append(rp.Table(("file", "SHA-256"), tuple((i["file"], i["sha256"]) for i in inputs)))
     rows = []
@@ -421,7 +468,9 @@ def build_report(result, doc: dict, inputs: list[dict], figures) -> list:
                          f"{np.nanmin(ratio):.4g} - {np.nanmax(ratio):.4g}", cf.model.external_rotation))
         B.append(rp.Table(("channel", "a", "T*** / K", "T* / K", "T** / K", "max deviation / %",
                            "rms deviation / %", "k_inf / k_TST", "external rotation"), tuple(rows),
-                          "Troe parameters fitted to the computed falloff curves; k_inf from the RRKM k(E) "
+                          "Troe parameters fitted to the computed falloff curves, with the tabulated limits (an "
+                          "effective k0 for tunnelling channels); the deviation of what mechanism.yaml holds is in "
+                          "Fitted parameters. k_inf from the RRKM k(E) "
                           "against canonical TST over the study's temperatures (a falloff off by more than "
                           "10 % is not exported to the mechanism)."))
         if result.pressure_fits:
@@ -429,6 +478,13 @@ def build_report(result, doc: dict, inputs: list[dict], figures) -> list:
             B.append(rp.Table(tuple(header), tuple(tuple(_fmt_cell(c) for c in r) for r in rows),
                               "Modified Arrhenius fits of k(T) at each tabulated pressure (also in "
                               "fits.json and tables/fits_at_each_pressure.csv)."))
+        from tstrate.expressions.troe import troe_bound_notes
+
+        exported = {c.name: c.export.label for c in result.fits.channels}
+        for cf in result.falloff.channels:
+            held = f"; mechanism.yaml holds {exported[cf.name]}" if cf.name in exported else ""
+            for note in troe_bound_notes(cf.troe):
+                B.append(rp.Paragraph(f"channel {cf.name!r}: {note} (Troe table above{held})."))
         for s in result.falloff.skipped:
             B.append(rp.Paragraph(f"Channel {s.name}: {s.reason}."))
         B += [rp.Figure(p, c) for s, p, c in figures if s == "falloff"]
@@ -460,23 +516,38 @@ def build_report(result, doc: dict, inputs: list[dict], figures) -> list:
     B.append(rp.Table(("channel", "form", "A", "A unit", "n", "Ea / kJ mol-1", "range / K",
                        "max deviation / %", "rms deviation / %"), tuple(rows),
                       f"k = A (T/T0)^n exp(-Ea/RT), T0 = {result.fits.channels[0].modified.T0_K:g} K "
-                      "for the modified form; the mechanism file uses the "
-                      f"{result.fits.channels[0].mechanism_form} form."))
+                      "for the modified form, fitted to the k(T) table; deviations at the table's temperatures "
+                      "(the expression exported for each channel is in the next table)."))
     rows = []
     for cf in result.fits.channels:
         for label, fit in (("Chebyshev k(T)", cf.chebyshev), ("Chebyshev k(T, p)", cf.chebyshev_falloff)):
             if fit is None:
                 continue
             p_range = "-" if fit.Pmin_Pa is None else f"{fit.Pmin_Pa / 1e5:.3g}-{fit.Pmax_Pa / 1e5:.3g}"
+            d = cf.export.deviation if cf.expression is fit else None
             rows.append((cf.name, label, "x".join(str(n) for n in fit.coefficients.shape),
-                         f"{fit.Tmin_K:g}-{fit.Tmax_K:g}", p_range, f"{100 * fit.max_rel_deviation:.2f}",
-                         f"{100 * fit.rms_rel_deviation:.2f}"))
+                         f"{fit.Tmin_K:g}-{fit.Tmax_K:g}", p_range, f"{100 * fit.max_rel_deviation:.3g}",
+                         "-" if d is None or not d.n_between else f"{100 * d.max_rel_between:.3g}"))
     if rows:
         B.append(rp.Table(("channel", "form", "terms (T x p)", "range / K", "range / bar",
-                           "max deviation / %", "rms deviation / %"), tuple(rows),
+                           "max deviation on grid / %", "max deviation between grid points / %"), tuple(rows),
                           "Chebyshev expansions of log10 k in 1/T and log p (coefficients in fits.json)."))
-    B.append(rp.Paragraph("The mechanism file holds, per channel: " + "; ".join(
-        f"{cf.name}: {cf.mechanism_kind.replace('_', ' ')}" for cf in result.fits.channels) + "."))
+    rows = []
+    for cf in result.fits.channels:
+        e, d = cf.export, cf.export.deviation
+        pc = (lambda x: "-" if not np.isfinite(x) else f"{100 * x:.3g}")
+        rows.append((cf.name, e.label, e.requested, cf.method, pc(d.max_rel_grid), pc(d.max_rel_between),
+                     f"{100 * e.tolerance:g}", "yes" if e.meets_tolerance else
+                     ("not measured" if not np.isfinite(d.max_rel) else "NO")))
+    B.append(rp.Table(("channel", "mechanism.yaml holds", "form asked", "rates computed by",
+                       "max deviation on grid / %", "max deviation between grid points / %", "tolerance / %",
+                       "meets tolerance"), tuple(rows),
+                      "What mechanism.yaml holds per channel, measured from the numbers written against the "
+                      "computed rates on the grid and between grid points (temperatures midway in 1/T, pressures "
+                      "midway in ln p)."))
+    notes = [f"{cf.name}: {n}" for cf in result.fits.channels for n in cf.export.notes]
+    if notes:
+        B.append(rp.Bullets(tuple(notes)))
     rows = [(s.name, f"{s.nasa7.Tmin_K:g}-{s.nasa7.Tmid_K:g}-{s.nasa7.Tmax_K:g}",
              f"{100 * s.nasa7.max_rel_error_cp:.3f}", f"{100 * s.nasa7.max_rel_error_h:.3f}",
              f"{100 * s.nasa7.max_rel_error_s:.3f}") for s in result.fits.species]

@@ -478,6 +478,7 @@ _record("chebyshev", "Chebyshev expression", [
 ])
 
 _record("troe_fit", "Troe falloff expression (fits.json)", [
+    ("form", TEXT, "the expression: Troe falloff k = k_inf [Pr/(1 + Pr)] F, Pr = k0 [M] / k_inf"),
     ("k0_low_pressure", OBJ, "low-pressure limit", "arrhenius"),
     ("kinf_high_pressure", OBJ, "high-pressure limit", "arrhenius"),
     ("a", ONE, "Troe a"),
@@ -486,11 +487,52 @@ _record("troe_fit", "Troe falloff expression (fits.json)", [
     ("T2_K", K, "Troe T** (or null)"),
     ("parameters_at_bound", TEXT, "names of the Troe parameters at a bound of the fit (list); their values "
                                   "are the bounds and the data do not determine them"),
+    ("parameters_at_bound_notes", TEXT, "what each parameter at a bound means, in words (list)"),
     ("Fcent_formula", TEXT, "Fcent in terms of the parameters"),
-    ("max_deviation_percent", PCT, "largest deviation of the Troe form from the computed falloff (or null)"),
-    ("rms_deviation_percent", PCT, "rms deviation (or null)"),
+    ("fit_max_deviation_tabulated_limits_percent", PCT, "largest deviation of the Troe fit from the computed "
+     "falloff with the tabulated limits (an effective k0 for tunnelling channels), or null; the deviation of "
+     "the expression with its Arrhenius limits is in the channel's mechanism record"),
+    ("fit_rms_deviation_tabulated_limits_percent", PCT, "rms deviation of the same (or null)"),
     ("bath_gas", TEXT, "bath gas the falloff was computed for"),
     ("source", TEXT, "where the parameters come from (or null)"),
+])
+
+_record("pressure_table", "Per-pressure table of Arrhenius expressions", [
+    ("form", TEXT, "the expression: one modified Arrhenius expression per pressure, ln k linear in ln p between"),
+    ("order", ONE, "reaction order"),
+    ("entries", LIST, "one expression per pressure"),
+    ("entries[]", OBJ, "the expression at one pressure", "arrhenius"),
+    ("entries[].pressure_bar", BAR, "its pressure"),
+])
+
+_record("exported", "What mechanism.yaml holds for a channel", [
+    ("kind", TEXT, "arrhenius, modified_arrhenius, troe, pressure_table, chebyshev or chebyshev_falloff"),
+    ("form", TEXT, "the kind in words"),
+    ("label", TEXT, "the form with its basis (e.g. Chebyshev 5 x 2)"),
+    ("requested_form", TEXT, "auto or the study's mechanism_form"),
+    ("tolerance_percent", PCT, "the study's max_deviation_percent"),
+    ("meets_tolerance", FLAG, "whether the deviation is within the tolerance"),
+    ("deviation_measured_at", TEXT, "where the deviation is measured"),
+    ("max_deviation_percent", PCT, "largest deviation of the written expression from the computed rates, on "
+                                   "the grid and between grid points (null when not measured)"),
+    ("max_deviation_on_grid_percent", PCT, "the same on the computed grid"),
+    ("max_deviation_between_grid_points_percent", PCT, "the same between grid points (null without any)"),
+    ("ratio_to_computed_min", ONE, "smallest k_expression / k_computed"),
+    ("ratio_to_computed_max", ONE, "largest k_expression / k_computed"),
+    ("n_grid_points", ONE, "grid points measured"),
+    ("n_points_between", ONE, "points between grid points measured"),
+    ("forms_tried", LIST, "every form measured, simplest first"),
+    ("forms_tried[].label", TEXT, "the form"),
+    ("forms_tried[].max_deviation_percent", PCT, "its largest deviation"),
+    ("notes", TEXT, "plain statements about the exported expression (list)"),
+    ("warnings", TEXT, "those that say it misses the tolerance or must not be extrapolated (list)"),
+    ("expression", OBJ, "the expression", "arrhenius|troe_fit|pressure_table|chebyshev"),
+    ("chebyshev_basis", ONE, "terms in 1/T and in log p (Chebyshev kinds only)"),
+    ("troe_fit_max_deviation_tabulated_limits_percent", PCT, "deviation of the Troe fit with tabulated limits "
+                                                             "(Troe only, or null)"),
+    ("checked_from_mechanism_yaml_max_deviation_percent", PCT, "the largest deviation measured again from the "
+                                                              "numbers read back from mechanism.yaml (fits.json "
+                                                              "of tstrate run only)"),
 ])
 
 _record("nasa7", "NASA 7-coefficient polynomials", [
@@ -824,7 +866,9 @@ with its range and its deviation from what it was fitted to.""", _keys(
     ("channels[].fitted_temperatures_K", K, "the fitted temperatures"),
     ("channels[].rate_constant_data_SI", "@rate_constant_data_SI_unit", "the rate constants fitted, per temperature"),
     ("channels[].rate_constant_data_SI_unit", TEXT, "their unit (SI per molecule)"),
-    ("channels[].includes_tunnelling", FLAG, "whether the fitted rate constants include tunnelling"),
+    ("channels[].includes_tunnelling", FLAG, "whether the channel's rate constants include tunnelling"),
+    ("channels[].tunnelling", TEXT, "the channel's tunnelling model"),
+    ("channels[].method", TEXT, "how the exported rates were computed"),
     ("channels[].arrhenius", OBJ, "two-parameter Arrhenius fit", "arrhenius"),
     ("channels[].modified_arrhenius", OBJ, "three-parameter (modified) Arrhenius fit", "arrhenius"),
     ("channels[].split", OBJ, "fits over two temperature ranges (or null)"),
@@ -833,14 +877,18 @@ with its range and its deviation from what it was fitted to.""", _keys(
     ("channels[].split.max_deviation_percent", PCT, "largest deviation of the pair"),
     ("channels[].split.low", OBJ, "fit below the break", "arrhenius"),
     ("channels[].split.high", OBJ, "fit above the break", "arrhenius"),
-    ("channels[].chebyshev", OBJ, "Chebyshev fit of k(T) (or null)", "chebyshev"),
-    ("channels[].chebyshev_falloff", OBJ, "Chebyshev fit of k(T, p) (or null)", "chebyshev"),
-    ("channels[].mechanism_expression", TEXT, "key of the record above that mechanism.yaml holds (a Troe "
-                                              "channel names its Arrhenius form)"),
+    ("channels[].chebyshev", OBJ, "the exported Chebyshev fit of k(T) (or null)", "chebyshev"),
+    ("channels[].chebyshev_falloff", OBJ, "the exported Chebyshev fit of k(T, p) (or null)", "chebyshev"),
+    ("channels[].pressure_table", OBJ, "modified Arrhenius expressions at each pressure of a falloff "
+                                       "channel (or null)", "pressure_table"),
+    ("channels[].mechanism_expression", TEXT, "the kind of expression mechanism.yaml holds (as mechanism.kind)"),
+    ("channels[].mechanism", OBJ, "what mechanism.yaml holds and its measured deviation", "exported"),
     ("channels[].Kc_check_max_abs_ln_difference", ONE, "largest |ln Kc(NASA) - ln Kc(tstrate)| over the "
                                                        "fitted temperatures"),
     ("channels[].falloff_troe", OBJ, "Troe falloff (or null)", "troe_fit"),
     ("channels[].warnings", TEXT, "warnings of the channel's fits (list)"),
+    ("tolerance_percent", PCT, "the study's max_deviation_percent"),
+    ("tolerance_missed", TEXT, "channels whose exported expression misses it (list)"),
     ("warnings", TEXT, "all warnings of the fits (list)"),
     ("fits_at_each_pressure", OBJ, "modified Arrhenius fits of k(T) at each pressure of a falloff channel "
                                    "(only with falloff)"),
@@ -1024,8 +1072,9 @@ polynomials). The keys are those of Cantera's format; units follow its `units` b
 (molecule, cm, s; activation energies as Ea/R in K), pressures are written with their unit
 (Pa). A header comment gives the source study, the caution, the units, the enthalpy zero
 (per-element offsets in kJ/mol per atom), renamed species and the fit warnings. Reactions are
-`elementary` (fitted Arrhenius form), `falloff` (Troe, with `(+M)`) or `Chebyshev`, by the
-study's `mechanism_form`.""", _keys(
+`elementary` (fitted Arrhenius form), `falloff` (Troe, with `(+M)`),
+`pressure-dependent-Arrhenius` (per-pressure table) or `Chebyshev`: per channel the simplest form
+meeting the tolerance, or the study's `mechanism_form`.""", _keys(
     ("generator", TEXT, "tstrate"),
     ("date", TEXT, "time of writing, ISO 8601, UTC"),
     ("units", OBJ, "Cantera's units block"),
@@ -1056,7 +1105,7 @@ study's `mechanism_form`.""", _keys(
                             "H in kJ/mol)"),
     ("reactions", LIST, "one reversible reaction per channel"),
     ("reactions[].equation", TEXT, "the reaction (<=>, with (+M) for falloff)"),
-    ("reactions[].type", TEXT, "elementary, falloff or Chebyshev"),
+    ("reactions[].type", TEXT, "elementary, falloff, pressure-dependent-Arrhenius or Chebyshev"),
     ("reactions[].rate-constant", OBJ, "Arrhenius parameters of an elementary reaction"),
     ("reactions[].rate-constant.A", "molecule, cm, s (order)", "A of k = A T^b exp(-Ea/RT), T in K"),
     ("reactions[].rate-constant.b", ONE, "temperature exponent"),
@@ -1074,13 +1123,21 @@ study's `mechanism_form`.""", _keys(
     ("reactions[].Troe.T3", K, "T***"),
     ("reactions[].Troe.T1", K, "T*"),
     ("reactions[].Troe.T2", K, "T** (when given)"),
+    ("reactions[].rate-constants", LIST, "per-pressure Arrhenius expressions of a pressure-dependent-Arrhenius "
+                                         "reaction"),
+    ("reactions[].rate-constants[].P", TEXT, "the pressure with its unit (Pa)"),
+    ("reactions[].rate-constants[].A", "molecule, cm, s (order)", "A of k = A T^b exp(-Ea/RT) at that pressure"),
+    ("reactions[].rate-constants[].b", ONE, "temperature exponent"),
+    ("reactions[].rate-constants[].Ea", K, "Ea / R"),
     ("reactions[].temperature-range", K, "Chebyshev temperature range"),
     ("reactions[].pressure-range", TEXT, "Chebyshev pressure range with its unit (Pa); 1e-30 to 1e30 Pa when "
                                          "k does not depend on pressure"),
     ("reactions[].data", ONE, "Chebyshev coefficients of log10 k (k in the file's units); rows 1/T terms, "
                               "columns log P terms"),
     ("reactions[].duplicate", FLAG, "true for channels with the same stoichiometry and type"),
-    ("reactions[].note", TEXT, "channel, fitted form, range and largest deviation in %; pressures in bar"),
+    ("reactions[].note", TEXT, "channel, how its rates were computed, the form, range and the largest deviation "
+                               "in % measured from the file's numbers on the grid and between grid points "
+                               "against the tolerance, and plain statements; pressures in bar"),
 ), "yaml")
 
 
@@ -1143,10 +1200,14 @@ _COMMANDS = [
         ("files", TEXT, "files written (list)"),
         ("channels", LIST, "one entry per channel"),
         ("channels[].name", TEXT, "channel name"),
-        ("channels[].mechanism_kind", TEXT, "arrhenius, modified_arrhenius, troe, chebyshev or chebyshev_falloff"),
-        ("channels[].mechanism_fit", OBJ, "the fitted expression in the mechanism: a Chebyshev record for the "
-                                          "Chebyshev kinds, else an Arrhenius record", "arrhenius|chebyshev"),
-        ("channels[].warnings", TEXT, "warnings of the channel's fits (list)"),
+        ("channels[].mechanism_kind", TEXT, "arrhenius, modified_arrhenius, troe, pressure_table, chebyshev or "
+                                            "chebyshev_falloff"),
+        ("channels[].method", TEXT, "how the exported rates were computed"),
+        ("channels[].tunnelling", TEXT, "the channel's tunnelling model"),
+        ("channels[].includes_tunnelling", FLAG, "whether the channel's rate constants include tunnelling"),
+        ("channels[].mechanism_fit", OBJ, "the expression in the mechanism and its measured deviation", "exported"),
+        ("channels[].warnings", TEXT, "warnings about the channel's exported expression (list)"),
+        ("tolerance_missed", TEXT, "channels whose exported expression misses the tolerance (list)"),
         ("warnings", TEXT, "warnings of the run (list)"),
     ]),
     _cmd("isotopes", "Isotopologues of a study: KIEs, beta factors, fractionation, three-isotope exponents.", [

@@ -184,6 +184,20 @@ def channel_falloff(study: Study, channel: Channel, *, settings: FalloffSettings
     return fit_falloff(curves, bath_gas=study.conditions.bath_gas)
 
 
+def falloff_rates_at(study: Study, channel: Channel, temperature_K, pressure_Pa, *,
+                     settings: FalloffSettings | None = None, bath: coll.LennardJones | None = None) -> np.ndarray:
+    """k(T, P) [s^-1] (n_T, n_P) of one unimolecular channel at the temperatures [K] and pressures [Pa]
+    given (e.g. between the study's grid points, where exported expressions are checked), computed
+    as on the study's grid."""
+    settings = settings or falloff_section(study).for_channel(channel.name)
+    t = temperatures_K(temperature_K, ndim=1)
+    p = np.asarray(pressure_Pa, dtype=float)
+    bath = bath or bath_parameters(study)
+    model = channel_model(study, channel, settings, max_temperature_K=float(t.max()))
+    curves = falloff_on_grid(model, settings, bath, t, number_density_m3(p[None, :], t[:, None]), p)
+    return np.asarray(curves.rate_constant_per_s, dtype=float)
+
+
 def canonical_tst(study: Study, channel: Channel, temperature_K, tunnelling: str = "none") -> np.ndarray:
     """k_TST(T) [s^-1] of the channel from :func:`tstrate.physics.tst.channel_rates`, with Eckart
     tunnelling when ``tunnelling == "eckart"`` and without tunnelling otherwise."""

@@ -1,37 +1,43 @@
-"""Fitted parameters of a whole study: Arrhenius forms per channel, NASA polynomials per species.
+"""Fitted parameters of a whole study: the rate expression each channel is exported in, NASA
+polynomials per species.
 
 This is the step between tstrate's own numbers and the files kinetics software
 loads (see :mod:`tstrate.output.mechanism`).
 
 Channels
 --------
-For every channel the TST rate constant *with tunnelling* at the study's
-temperatures is fitted to the two-parameter Arrhenius form (Arrhenius,
-Z. Phys. Chem. 4, 226 (1889)) and to the modified, three-parameter form
+For every channel the canonical TST rate constant (with the channel's own tunnelling model,
+``none`` included) at the study's temperatures is fitted to the two-parameter Arrhenius form
+(Arrhenius, Z. Phys. Chem. 4, 226 (1889)) and to the modified, three-parameter form
 k = A (T/T0)^n exp(-Ea/RT) (Kooij, Z. Phys. Chem. 12, 155 (1893)) with
-:func:`tstrate.expressions.arrhenius.fit_arrhenius`. The max and RMS relative
-deviation of k and the fitted range are kept; a deviation above
-``max_deviation`` (5 % by default) yields a warning that suggests split
-ranges, and ``split=True`` (automatic break) or ``split=<break in K>`` adds a
-two-range fit. The mechanism file uses one expression per channel
-(``mechanism_form``, the modified form by default); split fits are reported
-in the JSON only, since a single elementary reaction cannot hold two ranges.
+:func:`tstrate.expressions.arrhenius.fit_arrhenius`; both go to fits.json. ``split=True``
+(automatic break) or ``split=<break in K>`` adds a two-range fit, in fits.json only, since a
+single elementary reaction cannot hold two ranges.
 
-With ``mechanism_form="chebyshev"`` every channel also gets a Chebyshev fit
-of log10 k(T) over the reduced inverse temperature (Venkatesh, Chang, Dean,
-Cohen and Carr, AIChE J. 43, 1331 (1997);
-:func:`tstrate.expressions.chebyshev.fit_chebyshev`), and a channel whose falloff
-grid k(T, P) is passed in ``falloff_grid`` a two-dimensional fit over 1/T and
-log P on the study's temperatures and pressures. Deep tunnelling makes ln k
-curve in 1/T more than (T/T0)^n can follow; six Chebyshev terms follow it
-to well under 1 % (the demo study: 13.8 % and 15.9 % for the modified
-Arrhenius form, below 0.3 % for Chebyshev). The Arrhenius fits are kept
-alongside.
+What the mechanism holds is chosen per channel (:mod:`tstrate.expressions.choice`): each
+candidate is measured against the computed rates on the whole grid *and between grid points*
+(temperatures midway in 1/T, pressures midway in ln P, where the rates are computed too), and
+with ``mechanism_form="auto"`` (the default) the simplest that meets ``max_deviation`` is
+exported:
 
-Falloff channels take a Troe expression
-(:class:`~tstrate.expressions.troe.TroeFit` with k0 and k_inf as Arrhenius
-expressions, a, T***, T*, optional T**; Troe, Ber. Bunsenges. Phys. Chem. 87,
-161 (1983)), so it can come from tstrate's falloff step or from anywhere else.
+- k(T) channels: Arrhenius, modified Arrhenius, then Chebyshev expansions of log10 k over the
+  reduced inverse temperature (Venkatesh, Chang, Dean, Cohen and Carr, AIChE J. 43, 1331
+  (1997); :func:`tstrate.expressions.chebyshev.fit_chebyshev`) with 1, 2, ... terms;
+- falloff channels with a computed k(T, P) (``falloff_grid``): the Troe expression
+  (:class:`~tstrate.expressions.troe.TroeFit` with k0 and k_inf as Arrhenius expressions; Troe,
+  Ber. Bunsenges. Phys. Chem. 87, 161 (1983)) measured with the limit expressions written, a
+  per-pressure table of modified Arrhenius expressions, then two-dimensional Chebyshev bases
+  (1/T x log P) by growing number of coefficients. A channel whose k/k_inf exceeds 0.99 at
+  every grid point has no falloff to describe and is exported as its high-pressure k(T)
+  expression, with a statement saying so.
+
+When no form meets the tolerance the best one is exported and the miss is stated; a form the
+study asks for (``mechanism_form`` other than "auto") is honoured and flagged when it misses,
+with the simplest form that would meet it. Chebyshev term counts given explicitly are used as
+given. The deviation reported for the exported expression is the one measured this way
+(:attr:`ChannelFit.export`), and :mod:`tstrate.output.mechanism_check` measures it again from
+the numbers written. Deep tunnelling makes ln k curve in 1/T more than (T/T0)^n can follow,
+which is why the demo's channels need Chebyshev expansions of 3 to 5 terms in 1/T.
 
 Species
 -------
@@ -101,10 +107,13 @@ from tstrate.errors import InputError
 from tstrate.expressions.arrhenius import (MAX_DEVIATION_DEFAULT, T0_DEFAULT_K, ArrheniusFit,
                                            SplitArrheniusFit, fit_arrhenius, fit_arrhenius_split)
 from tstrate.expressions.chebyshev import ChebyshevFit, fit_chebyshev
+from tstrate.expressions.choice import (Candidate, CheckPoints, Deviation, ExportChoice, between_temperatures,
+                                        chebyshev_bases, choose_expression, grid_points, large_exponent_notes,
+                                        temperature_points)
 from tstrate.expressions.nasa7 import Nasa7Fit, fit_nasa7
-from tstrate.expressions.troe import TroeFit
-from tstrate.model.settings import (CHEBYSHEV_PRESSURE_TERMS_DEFAULT, CHEBYSHEV_TEMPERATURE_TERMS_DEFAULT,
-                                    MECHANISM_FORMS)
+from tstrate.expressions.pressure_table import PressureTableFit, fit_pressure_table
+from tstrate.expressions.troe import TroeFit, troe_bound_notes
+from tstrate.model.settings import MECHANISM_FORMS
 from tstrate.physics.thermo import HARMONIC, LowModes, thermochemistry
 from tstrate.units import K_B, P_STANDARD, R
 
@@ -183,19 +192,26 @@ class SpeciesFit:
 
 @dataclass(frozen=True)
 class ChannelFit:
-    """Fitted expressions of one channel.
+    """Fitted expressions of one channel, and the one exported to mechanisms.
 
-    temperature_K, k_SI: the data fitted (TST with tunnelling, SI per molecule).
+    temperature_K, k_SI: the k(T) data fitted (canonical TST, with the channel's tunnelling, SI
+        per molecule).
     arrhenius, modified: two- and three-parameter fits over all temperatures.
-    split: two-range fit when asked, else None.
-    mechanism_form: "modified", "arrhenius" or "chebyshev": the expression written to mechanisms.
+    split: two-range fit when asked, else None (fits.json only).
+    mechanism_form: the form asked for ("auto" or one of :data:`MECHANISM_FORMS`).
     max_abs_ln_kc_error: max |ln Kc from the NASA polynomials - tstrate's ln Kc|
         over the fitted temperatures (dimensionless).
-    troe: falloff parameters, or None.
-    warnings: sentences about the fits.
-    chebyshev: Chebyshev fit of k(T) (pressure-independent) with the chebyshev form, else None.
-    chebyshev_falloff: Chebyshev fit of the falloff k(T, P) [SI, T in K, P in Pa] when the
-        chebyshev form was asked and a falloff grid given, else None.
+    troe: falloff parameters given for the channel, or None.
+    warnings: sentences about the exported expression (misses, cautions) and Kc.
+    chebyshev: the Chebyshev fit of k(T) when it is exported (or, with the chebyshev form, the
+        best one tried), else None.
+    chebyshev_falloff: the Chebyshev fit of k(T, P) [SI, T in K, P in Pa] when it is exported.
+    pressure_table: modified Arrhenius expressions at each pressure of a falloff grid, or None.
+    export: the :class:`~tstrate.expressions.choice.ExportChoice` - what the mechanism holds and
+        its deviation measured on the grid and between grid points.
+    check_points: the computed rates it was measured at.
+    tunnelling: the channel's tunnelling model ("none", "wigner", "skodje-truhlar", "eckart").
+    method: how the exported rates were computed, in words.
     """
 
     name: str
@@ -214,27 +230,27 @@ class ChannelFit:
     warnings: tuple[str, ...] = ()
     chebyshev: ChebyshevFit | None = None
     chebyshev_falloff: ChebyshevFit | None = None
+    pressure_table: PressureTableFit | None = None
+    export: ExportChoice | None = None
+    check_points: CheckPoints | None = None
+    tunnelling: str = "none"
+    method: str = ""
 
     @property
-    def expression(self) -> ArrheniusFit:
-        """The single Arrhenius expression of the channel: the two-parameter form with
-        ``mechanism_form="arrhenius"``, else the modified form (the mechanism file holds it
-        unless the channel is written as a Chebyshev or Troe reaction; see
-        :attr:`mechanism_kind`)."""
-        return self.arrhenius if self.mechanism_form == "arrhenius" else self.modified
+    def expression(self):
+        """The exported expression (:attr:`export`): an ArrheniusFit, TroeFit,
+        PressureTableFit or ChebyshevFit."""
+        return self.export.expression
 
     @property
     def mechanism_kind(self) -> str:
-        """What the mechanism file holds for this channel: "chebyshev_falloff" (k(T, P)),
-        "chebyshev" (k(T)), "troe" (falloff parameters), "modified_arrhenius" or "arrhenius"."""
-        if self.mechanism_form == "chebyshev":
-            if self.chebyshev_falloff is not None:
-                return "chebyshev_falloff"
-            if self.troe is None and self.chebyshev is not None:
-                return "chebyshev"
-        if self.troe is not None:
-            return "troe"
-        return "arrhenius" if self.mechanism_form == "arrhenius" else "modified_arrhenius"
+        """What the mechanism file holds for this channel: "arrhenius", "modified_arrhenius",
+        "troe", "pressure_table", "chebyshev" (k(T)) or "chebyshev_falloff" (k(T, P))."""
+        return self.export.kind
+
+    @property
+    def includes_tunnelling(self) -> bool:
+        return self.tunnelling != "none"
 
     @property
     def equation(self) -> str:
@@ -450,12 +466,52 @@ def ln_kc_from_nasa(reactant_fits, product_fits, temperature_K) -> np.ndarray:
 # the whole study
 # ============================================================================
 
-def _chebyshev_terms(requested, count, default):
-    return min(default, count) if requested is None else int(requested)
+@dataclass(frozen=True)
+class ChannelGrid:
+    """Computed k(T, P) of a falloff channel, for its pressure-dependent expressions.
+
+    pressure_Pa (n_P,) [Pa] or None when the columns are at number densities; k_SI (n_T, n_P) on
+    the fitted temperatures [SI per molecule]; k_inf_SI (n_T,) its high-pressure limit, or None;
+    number_density_m3 (n_T, n_P) [m^-3] of the columns (needed without pressures);
+    fine_temperature_K (m_T,), fine_pressure_Pa (m_P,), fine_k_SI (m_T, m_P): the rates also
+    computed between grid points (on the union of the grid and the midpoints), or None.
+    """
+
+    pressure_Pa: np.ndarray | None
+    k_SI: np.ndarray
+    k_inf_SI: np.ndarray | None = None
+    number_density_m3: np.ndarray | None = None
+    fine_temperature_K: np.ndarray | None = None
+    fine_pressure_Pa: np.ndarray | None = None
+    fine_k_SI: np.ndarray | None = None
+
+
+def _as_grid(value) -> ChannelGrid:
+    if isinstance(value, ChannelGrid):
+        return value
+    P, k = value[:2]
+    return ChannelGrid(None if P is None else np.asarray(P, dtype=float), np.asarray(k, dtype=float))
+
+
+#: A falloff channel whose k(T, P) / k_inf exceeds this at every grid point is exported as its
+#: high-pressure expression (no falloff over the grid).
+NO_FALLOFF_RATIO = 0.99
+
+
+def channel_method(tunnelling: str, kind: str | None) -> str:
+    """A plain description of how an exported channel's rate constants were computed."""
+    tun = {"none": "without tunnelling", "wigner": "with Wigner tunnelling",
+           "skodje-truhlar": "with Skodje-Truhlar tunnelling",
+           "eckart": "with Eckart tunnelling"}.get(tunnelling, f"with {tunnelling} tunnelling")
+    if kind in ("troe", "pressure_table", "chebyshev_falloff"):
+        # the falloff's k(E) is Eckart-corrected for Eckart channels, else classical
+        tun = "with Eckart tunnelling" if tunnelling == "eckart" else "without tunnelling"
+        return f"RRKM falloff k(T, P) on an energy grain {tun} in k(E)"
+    return f"canonical TST {tun}"
 
 
 def _fit_channel(cr, ch, *, max_deviation, T0_K, split, mechanism_form, troe, file,
-                 cheb_T_terms=None, cheb_P_terms=None, grid=None):
+                 cheb_T_terms=None, cheb_P_terms=None, grid=None, between=None):
     T, k = cr.temperature_K, cr.k
     where = dict(file=file, field=f"channel {ch.name}")
     if np.unique(T).size < 3:
@@ -480,39 +536,178 @@ def _fit_channel(cr, ch, *, max_deviation, T0_K, split, mechanism_form, troe, fi
                                  hint=exc.hint) from None
     except InputError as exc:
         raise exc.located(**where) from None
-    warnings = [f"channel {ch.name}: {w}" for w in (arr.warning, mod.warning) if w]
-    if sp is not None:
-        warnings += [f"channel {ch.name} split fit ({side} range): {f.warning}"
-                     for side, f in (("low", sp.low), ("high", sp.high)) if f.warning]
     if troe is not None and troe.kinf is None:
         raise InputError("the Troe expression has no limit expressions k0 and kinf", **where,
                          hint="join them with TroeFit.with_limits(k0, kinf)")
     if troe is not None and troe.kinf.order != cr.order:
         raise InputError(f"Troe k_inf has order {troe.kinf.order} but the channel has "
                          f"{cr.order} reactant(s)", **where)
-    cheb = cheb_p = None
-    if mechanism_form == "chebyshev":
-        n_T = _chebyshev_terms(cheb_T_terms, np.unique(T).size, CHEBYSHEV_TEMPERATURE_TERMS_DEFAULT)
-        cheb = _chebyshev(T, k, cr.order, n_T, None, 1, max_deviation, ch.name, file)
-        if grid is not None:
-            P, kP = grid
-            P = np.asarray(P, dtype=float)
-            kP = np.asarray(kP, dtype=float)
-            if kP.ndim != 2 or kP.shape[0] != T.size:
-                raise InputError(f"falloff grid of shape {kP.shape} does not match the "
-                                 f"{T.size} fitted temperatures", **where)
-            n_P = _chebyshev_terms(cheb_P_terms, np.unique(P).size, CHEBYSHEV_PRESSURE_TERMS_DEFAULT)
-            cheb_p = _chebyshev(T, kP, cr.order, n_T, P, n_P, max_deviation, ch.name, file)
-        elif troe is not None:
-            warnings.append(f"channel {ch.name}: no falloff grid k(T, P) was given, so the "
-                            "mechanism keeps the Troe form for this channel")
-        for f, what in ((cheb, "k(T)"), (cheb_p, "k(T, P)")):
-            if f is not None and f.warning:
-                warnings.append(f"channel {ch.name} {what}: {f.warning}")
+    if grid is not None:
+        grid = _as_grid(grid)
+        if grid.k_SI.ndim != 2 or grid.k_SI.shape[0] != T.size:
+            raise InputError(f"falloff grid of shape {grid.k_SI.shape} does not match the "
+                             f"{T.size} fitted temperatures", **where)
+    fixed_T = cheb_T_terms is not None
+    fixed_P = cheb_P_terms is not None
+    if fixed_T and mechanism_form == "chebyshev":
+        _chebyshev(T, k, cr.order, int(cheb_T_terms), None, 1, max_deviation, ch.name, file)  # checks the count
+    if (fixed_P and mechanism_form == "chebyshev" and grid is not None and grid.pressure_Pa is not None):
+        _chebyshev(T, grid.k_SI, cr.order, 1, grid.pressure_Pa, int(cheb_P_terms), max_deviation, ch.name, file)
+
+    # ---- check points: k(T) on the grid and between its temperatures
+    kT_points = temperature_points(T, k, *(between if between is not None else ((), ())))
+    notes: list[str] = []
+    warnings: list[str] = []
+    falloff_points = None
+    table = None
+    if grid is not None and grid.pressure_Pa is not None:
+        if grid.fine_k_SI is not None:
+            falloff_points = grid_points(grid.fine_temperature_K, grid.fine_pressure_Pa, grid.fine_k_SI,
+                                         grid_temperature_K=T, grid_pressure_Pa=grid.pressure_Pa)
+        else:
+            falloff_points = grid_points(T, grid.pressure_Pa, grid.k_SI)
+        table = fit_pressure_table(T, grid.k_SI, order=cr.order, pressure_Pa=grid.pressure_Pa,
+                                   modified=True, T0_K=T0_K, max_deviation=max_deviation)
+    elif grid is not None and grid.number_density_m3 is not None:
+        falloff_points = grid_points(T, None, grid.k_SI, number_density_m3=grid.number_density_m3)
+
+    no_falloff = (grid is not None and grid.k_inf_SI is not None
+                  and bool(np.all(grid.k_SI / np.asarray(grid.k_inf_SI)[:, None] > NO_FALLOFF_RATIO)))
+    pressure_dependent = (troe is not None or grid is not None) and not no_falloff
+    if no_falloff:
+        notes.append(f"no falloff over the computed grid (k/k_inf > {NO_FALLOFF_RATIO:g} at every temperature "
+                     "and pressure): exported as its high-pressure expression, not as a falloff reaction")
+
+    def cheb_T(n):
+        return lambda: fit_chebyshev(T, k, order=cr.order, n_temperature=n, max_deviation=max_deviation)
+
+    def cheb_TP(nt, npr):
+        return lambda: fit_chebyshev(T, grid.k_SI, order=cr.order, n_temperature=nt, pressure_Pa=grid.pressure_Pa,
+                                     n_pressure=npr, max_deviation=max_deviation)
+
+    n_T = np.unique(T).size
+
+    def kT_ladder(form):
+        cands = []
+        if form in ("auto", "arrhenius"):
+            cands.append(("arrhenius", "Arrhenius", lambda: arr))
+        if form in ("auto", "modified", "troe", "pressure_table"):
+            cands.append(("modified_arrhenius", "modified Arrhenius", lambda: mod))
+        if form in ("auto", "chebyshev"):
+            bases = [(int(cheb_T_terms), 1)] if (fixed_T and form == "chebyshev") else chebyshev_bases(n_T)
+            cands += [("chebyshev", f"Chebyshev {nt} x 1", cheb_T(nt)) for nt, _ in bases]
+        return cands
+
+    def falloff_ladder(form):
+        cands = []
+        if troe is not None and form in ("auto", "arrhenius", "modified", "troe"):
+            cands.append(("troe", "Troe", lambda: troe))
+        if table is not None and form in ("auto", "pressure_table") + (("arrhenius", "modified", "troe")
+                                                                       if troe is None else ()):
+            cands.append(("pressure_table", "per-pressure Arrhenius table", lambda: table))
+        if grid is not None and grid.pressure_Pa is not None and form in ("auto", "chebyshev"):
+            n_P = np.unique(grid.pressure_Pa).size
+            if form == "chebyshev" and (fixed_T or fixed_P):
+                bases = [(int(cheb_T_terms) if fixed_T else t, int(cheb_P_terms) if fixed_P else p)
+                         for t, p in chebyshev_bases(n_T, n_P)
+                         if (not fixed_T or t == int(cheb_T_terms)) and (not fixed_P or p == int(cheb_P_terms))]
+                bases = list(dict.fromkeys(bases))
+            else:
+                bases = chebyshev_bases(n_T, n_P)
+            cands += [("chebyshev_falloff", f"Chebyshev {nt} x {npr}", cheb_TP(nt, npr)) for nt, npr in bases]
+        return cands
+
+    if pressure_dependent:
+        points = falloff_points
+        ladder = falloff_ladder
+        if troe is not None and falloff_points is None:
+            notes.append("no computed k(T, P) was given with the Troe expression, so its deviation is not measured")
+    else:
+        points = kT_points
+        ladder = kT_ladder
+    requested = mechanism_form
+    if requested in ("troe", "pressure_table") and not pressure_dependent:
+        notes.append(f"the requested form {requested!r} is for falloff channels; this channel's k does not "
+                     "depend on pressure, so its modified Arrhenius expression is written")
+    if points is None:      # a Troe expression alone: nothing to measure against
+        nan = float("nan")
+        chosen = Candidate("troe", troe, "Troe", Deviation(nan, nan, nan, nan, nan, 0, 0))
+        tried = [chosen]
+    else:
+        chosen, tried = choose_expression(ladder(requested), points, max_deviation)
+        if chosen is None and requested != "auto":
+            notes.append(f"the requested form {requested!r} cannot be written for this channel; the simplest "
+                         "form meeting the tolerance is used instead")
+            chosen, tried = choose_expression(ladder("auto"), points, max_deviation)
+        if chosen is None:
+            raise InputError("no rate expression could be fitted and written for this channel", **where)
+    dev = chosen.deviation
+    meets = bool(dev.max_rel <= max_deviation)
+    pct = 100 * max_deviation
+
+    def where_text(d):
+        return ("on the grid and between grid points" if d.n_between else "on the computed grid")
+
+    if points is not None and not meets:
+        what = (f"the requested form {requested!r} ({chosen.label})" if requested != "auto"
+                else f"no supported form meets the {pct:g} % tolerance; the best, {chosen.label},")
+        miss = (f"{what} deviates from the computed rates by up to {100 * dev.max_rel:.3g} % {where_text(dev)} "
+                f"(k_expr/k from {dev.ratio_min:.3g} to {dev.ratio_max:.3g})")
+        if requested != "auto":
+            miss += f", above the {pct:g} % tolerance"
+            alt, _ = choose_expression(ladder("auto"), points, max_deviation)
+            if alt is not None and alt.deviation.max_rel <= max_deviation:
+                miss += f"; {alt.label} would meet it ({100 * alt.deviation.max_rel:.3g} %)"
+        warnings.append(miss)
+    if chosen.kind in ("arrhenius", "modified_arrhenius") and not meets:
+        if sp is not None:
+            warnings.append(f"two ranges split at {sp.break_K:g} K deviate by up to {100 * sp.max_rel_deviation:.3g} % "
+                            "(fits.json \"split\"); a mechanism reaction holds one expression, so the file keeps "
+                            f"the {chosen.label} expression")
+        else:
+            try:
+                hint = fit_arrhenius_split(T, k, order=cr.order, modified=chosen.kind == "modified_arrhenius",
+                                           T0_K=T0_K, max_deviation=max_deviation)
+                warnings.append(f"two ranges split at {hint.break_K:g} K (the break split = true chooses) would "
+                                f"deviate by up to {100 * hint.max_rel_deviation:.3g} %, in fits.json only")
+            except InputError:
+                pass
+    elif sp is not None and chosen.kind in ("arrhenius", "modified_arrhenius"):
+        notes.append(f"the split fit (break {sp.break_K:g} K) is in fits.json only: a mechanism reaction holds "
+                     "one expression")
+    if chosen.kind == "troe":
+        t = chosen.expression
+        if t.max_rel_deviation is not None and math.isfinite(t.max_rel_deviation):
+            notes.append(f"Troe parameters fitted to the computed falloff curves with tabulated limits (an effective "
+                         f"k0 fitted with them for tunnelling channels) deviate by up to "
+                         f"{100 * t.max_rel_deviation:.3g} %; the file's expression, with Arrhenius limits, by "
+                         + ("(not measured)" if points is None else f"{100 * dev.max_rel:.3g} %"))
+        notes += list(troe_bound_notes(t))
+    if chosen.kind in ("chebyshev", "chebyshev_falloff"):
+        f = chosen.expression
+        notes.append(f"Chebyshev basis {f.n_temperature} x {f.n_pressure} (terms in 1/T x log P)"
+                     + ("" if fixed_T or fixed_P else
+                        (", the smallest that meets the tolerance" if meets else ", the best tried")))
+    caution = large_exponent_notes(chosen.kind, chosen.expression)
+    warnings += caution
+    notes = notes + warnings
+    choice = ExportChoice(kind=chosen.kind, expression=chosen.expression, label=chosen.label, deviation=dev,
+                          tolerance=float(max_deviation), requested=requested, meets_tolerance=meets,
+                          tried=tuple((c.label, c.deviation.max_rel) for c in tried), notes=tuple(notes),
+                          warnings=tuple(warnings))
+    cheb = next((c.expression for c in tried if c.kind == "chebyshev" and c is chosen), None)
+    cheb_p = next((c.expression for c in tried if c.kind == "chebyshev_falloff" and c is chosen), None)
+    if cheb is None and mechanism_form == "chebyshev" and not pressure_dependent:
+        cheb = min((c for c in tried if c.kind == "chebyshev"), key=lambda c: c.deviation.max_rel,
+                   default=None)
+        cheb = None if cheb is None else cheb.expression
+    warnings = [f"channel {ch.name}: {w}" for w in warnings]
     return dict(name=ch.name, reactants=tuple(ch.reactants), products=tuple(ch.products),
                 order=cr.order, reverse_order=cr.reverse_order, temperature_K=T, k_SI=k,
                 arrhenius=arr, modified=mod, split=sp, mechanism_form=mechanism_form,
-                troe=troe, chebyshev=cheb, chebyshev_falloff=cheb_p), warnings
+                troe=troe, chebyshev=cheb, chebyshev_falloff=cheb_p, pressure_table=table, export=choice,
+                check_points=points, tunnelling=cr.tunnelling,
+                method=channel_method(cr.tunnelling, chosen.kind)), warnings
 
 
 def _chebyshev(T, k, order, n_T, P, n_P, max_deviation, channel, file):
@@ -533,13 +728,14 @@ def _chebyshev(T, k, order, n_T, P, n_P, max_deviation, channel, file):
 
 def fit_study(study, *, temperature_K=None, low_modes: LowModes = HARMONIC,
               max_deviation: float = MAX_DEVIATION_DEFAULT, T0_K: float = T0_DEFAULT_K,
-              split: bool | float = False, mechanism_form: str = "modified",
+              split: bool | float = False, mechanism_form: str = "auto",
               nasa_range_K=NASA_RANGE_DEFAULT_K, nasa_T_mid_K: float | None = NASA_T_MID_DEFAULT_K,
               nasa_adjust_mid: bool = True,
               troe: Mapping[str, TroeFit] | None = None, bath_gas: str | None = None,
               bath_species=None, chebyshev_temperature_terms: int | None = None,
               chebyshev_pressure_terms: int | None = None,
-              falloff_grid: Mapping[str, tuple] | None = None, rates=None) -> StudyFits:
+              falloff_grid: Mapping[str, tuple] | None = None, rates=None,
+              rates_between=None) -> StudyFits:
     """Fit every channel's k(T) and every exported species' thermochemistry.
 
     Parameters
@@ -547,11 +743,13 @@ def fit_study(study, *, temperature_K=None, low_modes: LowModes = HARMONIC,
     study: a :class:`tstrate.model.Study`.
     temperature_K: temperatures [K] to fit k(T) over (default: the study's).
     low_modes: low-mode treatment for rates and thermochemistry.
-    max_deviation: warning threshold of the max relative deviation of k (fraction).
+    max_deviation: tolerance (fraction) of the exported expressions, measured on the grid and
+        between grid points.
     T0_K: reference temperature of the modified Arrhenius form [K].
     split: False (no split fit), True (break searched) or a break temperature [K].
-    mechanism_form: "modified" (default), "arrhenius" or "chebyshev": the expression for
-        mechanisms (see :attr:`ChannelFit.mechanism_kind`).
+    mechanism_form: "auto" (default: per channel the simplest form meeting ``max_deviation``),
+        or "arrhenius", "modified", "troe", "pressure_table", "chebyshev" for every channel
+        (see :attr:`ChannelFit.export`; a form that misses is flagged).
     nasa_range_K, nasa_T_mid_K: NASA range and common temperature [K]; the range is
         widened to the study temperatures (:func:`nasa_range`).
     nasa_adjust_mid: let the fit move the common temperature when the fit at
@@ -563,21 +761,22 @@ def fit_study(study, *, temperature_K=None, low_modes: LowModes = HARMONIC,
     bath_species: the :class:`~tstrate.model.Species` of a bath gas that is not a study species
         (default: ``study.reference_species``, which :func:`tstrate.io.study.read_study` fills
         from the reference species shipped in the package).
-    chebyshev_temperature_terms, chebyshev_pressure_terms: numbers of Chebyshev terms in 1/T
-        and log P for the chebyshev form (default 6 and 4, or fewer when there are fewer
-        temperatures or pressures); an explicit count above the number of points is an
-        InputError naming the [fits] key.
-    falloff_grid: channel name -> (pressure_Pa (n_P,), k (n_T, n_P) in SI per molecule) on the
-        fitted temperatures, for a two-dimensional Chebyshev fit of falloff channels.
+    chebyshev_temperature_terms, chebyshev_pressure_terms: fixed numbers of Chebyshev terms in 1/T
+        and log P for the chebyshev form (default: the smallest basis meeting the tolerance); an
+        explicit count above the number of points is an InputError naming the [fits] key.
+    falloff_grid: channel name -> :class:`ChannelGrid` (or (pressure_Pa (n_P,), k (n_T, n_P) in
+        SI per molecule)) on the fitted temperatures, for the pressure-dependent forms.
     rates: the study's TST results (:func:`tstrate.study.rates.study_rates`) when the caller
         has them already, computed with the same ``low_modes`` and temperatures; else computed here.
+    rates_between: the same at :func:`~tstrate.expressions.choice.between_temperatures` of the
+        fitted temperatures (computed here when not given), where the k(T) expressions are checked too.
     """
     import tstrate
     from tstrate.study.rates import study_rates
 
     if mechanism_form not in MECHANISM_FORMS:
         raise InputError(f"unknown mechanism form {mechanism_form!r}", field="mechanism_form",
-                         hint="use modified, arrhenius or chebyshev")
+                         hint="use " + ", ".join(MECHANISM_FORMS))
     if not (isinstance(max_deviation, (int, float)) and max_deviation > 0):
         raise InputError(f"max_deviation must be a positive fraction, got {max_deviation!r}",
                          field="max_deviation")
@@ -668,7 +867,12 @@ def fit_study(study, *, temperature_K=None, low_modes: LowModes = HARMONIC,
             study_warnings.append(f"species {f.name}: NASA fit error up to {100 * worst:.2f} % "
                                   f"over {n.Tmin_K:g}-{n.Tmax_K:g} K")
 
-    # ---- channels
+    # ---- channels: rates between the fitted temperatures, for the checks
+    T_between = between_temperatures(T_fit)
+    if rates_between is None and T_between.size:
+        rates_between = study_rates(study, low_modes=low_modes, temperature_K=T_between)
+    between_of = {r.channel: (T_between, r.k) for r in (rates_between or ())
+                  if np.shape(r.temperature_K) == T_between.shape and np.allclose(r.temperature_K, T_between)}
     channel_fits = []
     for cr, ch in zip(rates, study.channels):
         kwargs, warnings = _fit_channel(cr, ch, max_deviation=max_deviation, T0_K=T0_K, split=split,
@@ -676,7 +880,8 @@ def fit_study(study, *, temperature_K=None, low_modes: LowModes = HARMONIC,
                                         file=study.file,
                                         cheb_T_terms=chebyshev_temperature_terms,
                                         cheb_P_terms=chebyshev_pressure_terms,
-                                        grid=falloff_grid.get(ch.name))
+                                        grid=falloff_grid.get(ch.name),
+                                        between=between_of.get(ch.name))
         ln_kc = ln_kc_from_nasa([by_name[n] for n in ch.reactants],
                                 [by_name[n] for n in ch.products], cr.temperature_K)
         kc_err = float(np.max(np.abs(ln_kc - cr.ln_kc)))

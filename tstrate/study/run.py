@@ -147,10 +147,8 @@ def compute_study(study: Study, *, low_modes: LowModes = HARMONIC,
                 continue
             if cf.troe.k0 is not None:  # the Troe expression with its limits, for the mechanism
                 troe[cf.name] = cf.troe
-            if cf.pressure_Pa is not None:  # k(T, P) on the study's grid, for Chebyshev fits
-                grid[cf.name] = (cf.pressure_Pa, cf.rate_constant_per_s)
+            grid[cf.name] = export_grid(study, cf)   # k(T, P) on the grid and between its points
             pressure_fits[cf.name], w = fits_at_each_pressure(cf)
-            warnings += w
 
     excitations = None
     if study.sections.get("excitation"):
@@ -178,6 +176,15 @@ def compute_study(study: Study, *, low_modes: LowModes = HARMONIC,
                      chebyshev_temperature_terms=opts.chebyshev_temperature_terms,
                      chebyshev_pressure_terms=opts.chebyshev_pressure_terms,
                      falloff_grid=grid or None, rates=list(rates))
+    if falloff is not None:
+        # the Troe fit's parameters at a bound concern the mechanism only when it holds that Troe form
+        # (the report's falloff section states them for its Troe table either way)
+        from tstrate.expressions.troe import troe_bound_notes
+
+        kinds = {c.name: c.mechanism_kind for c in fits.channels}
+        unused = {f"channel {cf.name!r}: {n}" for cf in falloff.channels if kinds.get(cf.name) != "troe"
+                  for n in troe_bound_notes(cf.troe)}
+        warnings = [w for w in warnings if w not in unused]
     warnings += list(fits.warnings)
     for cf in fits.channels:
         warnings += list(cf.warnings)
@@ -207,6 +214,27 @@ def high_pressure_mismatch(cf) -> float:
     ratio = np.asarray(cf.k_high_pressure_per_s, dtype=float) / np.asarray(cf.canonical_tst_per_s, dtype=float)
     ratio = ratio[np.isfinite(ratio)]
     return float(np.max(np.abs(ratio - 1.0))) if ratio.size else 0.0
+
+
+def export_grid(study: Study, cf):
+    """The :class:`~tstrate.study.fits.ChannelGrid` of a falloff channel: k(T, P) on the study's grid, its
+    k_inf, and (with pressures) k(T, P) recomputed on the grid joined with the points between grid
+    points, where the exported expression is checked."""
+    from tstrate.expressions.choice import between_pressures, between_temperatures
+    from tstrate.study.falloff import falloff_rates_at
+    from tstrate.study.fits import ChannelGrid
+
+    T = np.asarray(cf.temperature_K, dtype=float)
+    if cf.pressure_Pa is None:
+        return ChannelGrid(None, cf.rate_constant_per_s, cf.k_high_pressure_per_s,
+                           number_density_m3=cf.number_density_m3)
+    P = np.asarray(cf.pressure_Pa, dtype=float)
+    T_f = np.unique(np.concatenate([T, between_temperatures(T)]))
+    P_f = np.unique(np.concatenate([P, between_pressures(P)]))
+    channel = next(c for c in study.channels if c.name == cf.name)
+    k_f = falloff_rates_at(study, channel, T_f, P_f)
+    return ChannelGrid(P, cf.rate_constant_per_s, cf.k_high_pressure_per_s, cf.number_density_m3,
+                       fine_temperature_K=T_f, fine_pressure_Pa=P_f, fine_k_SI=k_f)
 
 
 def fits_at_each_pressure(cf, *, max_deviation: float | None = None):

@@ -1,45 +1,50 @@
-"""The optional ``[fits]`` table of a study file: how rate constants are fitted.
+"""The optional ``[fits]`` table of a study file: how rate constants are fitted and exported.
 
     [fits]
-    max_deviation_percent = 5          # warn when a fit misses a point by more than this
+    max_deviation_percent = 5          # the tolerance: exported expressions meet it or say so
     split = true                       # also fit two temperature ranges (true: break searched;
-                                       # or a break temperature in K, e.g. split = 220)
-    mechanism_form = "modified"        # "modified" (A (T/T0)^n exp(-Ea/RT)), "arrhenius" or
-                                       # "chebyshev" (log10 k as a Chebyshev polynomial in 1/T,
-                                       # and in log P for falloff channels)
+                                       # or a break temperature in K, e.g. split = 220); in
+                                       # fits.json only (one mechanism reaction holds one range)
+    mechanism_form = "auto"            # "auto": per channel the simplest form meeting the
+                                       # tolerance (Arrhenius, modified Arrhenius, Troe, a
+                                       # per-pressure table, Chebyshev with the smallest basis);
+                                       # or one of "arrhenius", "modified", "troe",
+                                       # "pressure_table", "chebyshev" for every channel
     T0_K = 298.15                      # reference temperature of the modified form
-    chebyshev_temperature_terms = 6    # number of Chebyshev terms in 1/T (chebyshev form only)
-    chebyshev_pressure_terms = 4       # number of Chebyshev terms in log P (falloff channels)
+    chebyshev_temperature_terms = 6    # fixed number of Chebyshev terms in 1/T (chebyshev form only)
+    chebyshev_pressure_terms = 4       # fixed number of Chebyshev terms in log P (falloff channels)
 
 The Chebyshev term counts may be given only with ``mechanism_form = "chebyshev"``;
 each must be a whole number of at least 1 and at most the number of study
-temperatures (pressures), which the fit checks. Left out, they are 6 and 4, or
-the number of temperatures (pressures) when that is smaller.
+temperatures (pressures), which the fit checks. Left out, the smallest basis that
+meets the tolerance on the grid and between grid points is taken.
 """
 
 from __future__ import annotations
 
 from tstrate.io.keys import Key, Keys, field_default
-from tstrate.model.settings import (CHEBYSHEV_PRESSURE_TERMS_DEFAULT, CHEBYSHEV_TEMPERATURE_TERMS_DEFAULT,
-                                    MAX_DEVIATION_DEFAULT, MECHANISM_FORMS, T0_DEFAULT_K, FitOptions)
+from tstrate.model.settings import MAX_DEVIATION_DEFAULT, MECHANISM_FORMS, T0_DEFAULT_K, FitOptions
 
 #: the keys of [fits] (the documentation is generated from this)
 KEYS = Keys(("fits",), "[fits]", "How rate constants are fitted and written to the mechanism.", (
-    Key("max_deviation_percent", "number", "warn when a fit misses a computed k by more than this",
+    Key("max_deviation_percent", "number", "tolerance of the exported expressions: the largest deviation "
+        "from the computed k, on the grid and between grid points, that needs no warning",
         default=100 * MAX_DEVIATION_DEFAULT, unit="%"),
     Key("split", "true or false, or a number", "also fit two temperature ranges: true searches the break, "
         "a number gives the break temperature", default=field_default(FitOptions, "split"), unit="K"),
-    Key("mechanism_form", "string", "the expression of each channel in the mechanism: modified Arrhenius "
-        "A (T/T0)^n exp(-Ea/RT), Arrhenius, or Chebyshev polynomials of log10 k in 1/T (and log P for "
-        "falloff channels)", default=field_default(FitOptions, "mechanism_form"), choices=MECHANISM_FORMS),
+    Key("mechanism_form", "string", "the expression of each channel in the mechanism: auto (the simplest "
+        "form meeting max_deviation_percent), or for every channel Arrhenius, modified Arrhenius "
+        "A (T/T0)^n exp(-Ea/RT), Troe (falloff channels), a per-pressure Arrhenius table (falloff channels) "
+        "or Chebyshev polynomials of log10 k in 1/T (and log P for falloff channels); a form that misses "
+        "the tolerance is flagged", default=field_default(FitOptions, "mechanism_form"), choices=MECHANISM_FORMS),
     Key("T0_K", "number", "reference temperature of the modified Arrhenius form", default=T0_DEFAULT_K,
         unit="K"),
     Key("chebyshev_temperature_terms", "integer", "number of Chebyshev terms in 1/T, at most the number of "
-        "temperatures (chebyshev form only)", default_text=f"{CHEBYSHEV_TEMPERATURE_TERMS_DEFAULT}, or the "
-        "number of temperatures when smaller", unit="1"),
+        "temperatures (chebyshev form only)", default_text="the smallest basis meeting the tolerance",
+        unit="1"),
     Key("chebyshev_pressure_terms", "integer", "number of Chebyshev terms in log P of falloff channels, at "
-        "most the number of pressures (chebyshev form only)", default_text=f"{CHEBYSHEV_PRESSURE_TERMS_DEFAULT}, "
-        "or the number of pressures when smaller", unit="1"),
+        "most the number of pressures (chebyshev form only)",
+        default_text="the smallest basis meeting the tolerance", unit="1"),
 ))
 
 
