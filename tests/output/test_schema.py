@@ -70,7 +70,7 @@ def outputs(demo_run, tmp_path_factory):
 
     study, out, summary = demo_run
     got = [("tstrate run --json", summary)]
-    for name in ("results.json", "fits.json", "inputs.json"):
+    for name in ("results.json", "fits.json", "inputs.json", "evaluation_forms.json"):
         got.append((name, json.loads((out / name).read_text())))
     got.append(("fits.csv", _csv_header(out / "fits.csv")))
     for path in sorted((out / "tables").glob("*.csv")):
@@ -91,6 +91,16 @@ def outputs(demo_run, tmp_path_factory):
     troe = TroeFit(k0=arrhenius_expression(1e-16, -3.0, 150e3, order=2), kinf=kinf, a=0.6, T3_K=300.0,
                     T1_K=3000.0, T2_K=5000.0, bath_gas="CO2")
     got.append(("mechanism.yaml", _yaml(mechanism_yaml(fit_study(carbonic, troe={"bare": troe})))))
+
+    # reference expressions ([[reference_rate]]): the invented falloff study of tests/study with references
+    from tests.study.test_evaluation_references import _study as reference_study
+    from tstrate.output.folder import write_outputs
+
+    refs = compute_study(read_study(reference_study(tmp / "references")))
+    write_outputs(refs, tmp / "references_out")
+    got.append(("results.json", json.loads((tmp / "references_out" / "results.json").read_text())))
+    got.append(("tables/reference_ratios.csv", _csv_header(tmp / "references_out" / "tables" / "reference_ratios.csv")))
+    got.append(("evaluation_forms.json", json.loads((tmp / "references_out" / "evaluation_forms.json").read_text())))
 
     rotor = tmp / "h2co3_rotor.toml"
     rotor.write_text((ROOT / "tests/data/falloff/h2co3.toml").read_text() + FREE_ROTOR)

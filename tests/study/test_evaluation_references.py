@@ -134,7 +134,7 @@ def test_reference_ratios_against_the_expressions_written_out(run):
     tp = [r for r in rows if r["quantity"] == "k(T, p)"]
     assert tp and all(1e-5 <= float(r["p [bar]"]) <= 1.0 for r in tp)     # the reference's pressure range
     for r in tp:
-        T, M = float(r["T [K]"]), float(r["[M] [molecule cm-3]"])
+        T, M = float(r["T [K]"]), float(r["number density [molecule cm-3]"])
         ref = _iupac_by_hand(T, M, 2.55e-3, 4.8, 20600.0, 2.9e13, -0.56, 19900.0, 0.74)
         assert float(r["k reference"]) == pytest.approx(ref, rel=1e-10)
         assert float(r["computed / reference [1]"]) == pytest.approx(float(r["k computed"]) / ref, rel=1e-10)

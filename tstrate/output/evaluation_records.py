@@ -67,10 +67,8 @@ def form_parameters(expr, units) -> dict:
     order = expr.order
     if expr.form == "arrhenius":
         A, unit = _in(expr.A, order, units)
-        out = {"A": A, "A_unit": unit, "E_over_R_K": float(expr.E_over_R_K)}
-        if expr.n:
-            out.update({"n": float(expr.n), "T0_K": float(expr.T0_K)})
-        return out
+        return {"A": A, "A_unit": unit, "E_over_R_K": float(expr.E_over_R_K),
+                "temperature_exponent": float(expr.n), "T0_K": float(expr.T0_K)}
     k0, k0_unit = _in(expr.k0_300, order + 1, units)
     kinf, kinf_unit = _in(expr.kinf_300, order, units)
     out = {"k0_300K": k0, "k0_unit": k0_unit, "n": float(expr.n), "kinf_300K": kinf, "kinf_unit": kinf_unit,
@@ -174,7 +172,7 @@ def references_record(result) -> list[dict]:
     return out
 
 
-RATIO_CSV_HEADER = ["reference", "channel", "kind", "quantity", "T [K]", "p [bar]", "[M] [molecule cm-3]",
+RATIO_CSV_HEADER = ["reference", "channel", "kind", "quantity", "T [K]", "p [bar]", "number density [molecule cm-3]",
                     "k computed", "k reference", "k unit", "computed / reference [1]"]
 
 
