@@ -301,17 +301,26 @@ def fit_evaluation_arrhenius(temperature_K, k_SI, *, order: int, check_temperatu
     return EvaluationFit(expr, float(T.min()), float(T.max()), mx, rms, int(T.size), n_check)
 
 
-def _power_law_start(T, k, with_exponential: bool):
-    """ln A(300), exponent (k ~ (T/300)^-x) and E/R of a limit by linear least squares."""
-    cols = [np.ones_like(T), -np.log(T / T_REF_K)]
-    if with_exponential:
-        cols.append(-1.0 / T)
-    design = np.column_stack(cols)
-    coef, *_ = np.linalg.lstsq(design, np.log(k), rcond=None)
-    return list(coef) + ([] if with_exponential else [0.0])
+#: shapes of the falloff limits: power laws (T/300)^-n, Arrhenius factors exp(-E/RT), or both
+LIMIT_SHAPES = ("power", "arrhenius", "both")
 
 
-def _fit_falloff(kind, T, M, k, k0_T, kinf_T, order, *, with_exponentials=False, check=None):
+def _limit_start(T, k, shape: str):
+    """ln A(300), exponent (k ~ (T/300)^-x) and E/R [K] of a limit by linear least squares."""
+    cols = [np.ones_like(T)]
+    if shape in ("power", "both"):
+        cols.append(-np.log(T / T_REF_K))
+    if shape in ("arrhenius", "both"):
+        cols.append(-1.0 / T + 1.0 / T_REF_K)      # exp(-E/R (1/T - 1/300)): A stays k(300 K)
+    coef, *_ = np.linalg.lstsq(np.column_stack(cols), np.log(k), rcond=None)
+    coef = list(coef)
+    a = coef.pop(0)
+    x = coef.pop(0) if shape in ("power", "both") else 0.0
+    b = coef.pop(0) if shape in ("arrhenius", "both") else 0.0
+    return a + b / T_REF_K, x, b       # ln of the prefactor of exp(-E/RT) at 300 K, exponent, E/R
+
+
+def _fit_falloff(kind, T, M, k, k0_T, kinf_T, order, *, shape="power", check=None):
     from scipy.optimize import least_squares
 
     T = _as_float_array(T).ravel()
@@ -328,30 +337,31 @@ def _fit_falloff(kind, T, M, k, k0_T, kinf_T, order, *, with_exponentials=False,
     _positive("kinf_SI", kinf_T)
     TT = np.broadcast_to(T[:, None], M.shape)
     ln_k, ln_k0, ln_kinf = np.log(k), np.log(k0_T), np.log(kinf_T)
-    a0, n0, b0 = _power_law_start(T, k0_T, with_exponentials)
-    ai, mi, bi = _power_law_start(T, kinf_T, with_exponentials)
+    a0, n0, b0 = _limit_start(T, k0_T, shape)
+    ai, mi, bi = _limit_start(T, kinf_T, shape)
     iupac = kind is IUPACFalloff
+    # the full vector: ln k0(300) prefactor, n, ln k_inf(300) prefactor, m, logit Fc, E0/R, E_inf/R
+    full = np.array([a0, n0, ai, mi, math.log(0.6 / 0.4), b0, bi], dtype=float)
+    free = [0, 2] + ([1, 3] if shape in ("power", "both") else []) + ([4] if iupac else []) \
+        + ([5, 6] if iupac and shape in ("arrhenius", "both") else [])
 
-    def build(p):
+    def build(q):
+        p = full.copy()
+        p[free] = q
         kw = dict(k0_300=math.exp(p[0]), n=float(p[1]), kinf_300=math.exp(p[2]), m=float(p[3]), order=order)
         if not iupac:
             return JPLFalloff(**kw)
         fc = 1.0 / (1.0 + math.exp(-p[4]))
-        extra = dict(k0_E_over_R_K=float(p[5]), kinf_E_over_R_K=float(p[6])) if with_exponentials else {}
-        return IUPACFalloff(**kw, Fc=min(max(fc, 1e-6), 1.0), **extra)
+        return IUPACFalloff(**kw, Fc=min(max(fc, 1e-6), 1.0), k0_E_over_R_K=float(p[5]),
+                            kinf_E_over_R_K=float(p[6]))
 
-    def residuals(p):
-        e = build(p)
+    def residuals(q):
+        e = build(q)
         # the computed k(T, [M]) and its two limits, all on ln k with equal weight per point
         return np.concatenate([(np.log(e.rate(TT, M)) - ln_k).ravel(),
                                np.log(e.k0(T)) - ln_k0, np.log(e.kinf(T)) - ln_kinf])
 
-    p0 = [a0, n0, ai, mi]
-    if iupac:
-        p0.append(math.log(0.6 / 0.4))
-        if with_exponentials:
-            p0 += [b0, bi]
-    sol = least_squares(residuals, np.asarray(p0, dtype=float), method="lm", x_scale="jac", max_nfev=4000)
+    sol = least_squares(residuals, full[free], method="lm", x_scale="jac", max_nfev=4000)
     expr = build(sol.x)
     dev_fit = relative_deviation(expr.rate(TT, M), k)
     dev_check = None
@@ -383,18 +393,28 @@ def fit_iupac_falloff(temperature_K, number_density_m3, k_SI, k0_SI, kinf_SI, *,
                       max_deviation: float = 0.05, check=None) -> EvaluationFit:
     """k0(300), n, k_inf(300), m and a constant F_c of the IUPAC form, as :func:`fit_jpl_falloff`.
 
-    The association form (pure power laws) first; when it misses ``max_deviation`` (a fraction),
-    the limits get Arrhenius factors exp(-E/RT) (IUPAC's decomposition form) and the better of the
-    two is kept (stated in ``notes``).
+    The limits take the simplest of three shapes that meets ``max_deviation`` (a fraction): the
+    association form's power laws (T/300)^-n; Arrhenius factors exp(-E/RT) alone (the form IUPAC
+    gives decompositions, n = m = 0); both (with three or more temperatures). When none meets it,
+    the best is kept. A shape other than power laws is stated in ``notes``.
     """
-    plain = _fit_falloff(IUPACFalloff, temperature_K, number_density_m3, k_SI, k0_SI, kinf_SI, order, check=check)
-    if plain.max_rel_deviation <= max_deviation or np.unique(np.ravel(temperature_K)).size < 3:
-        return plain
-    barrier = _fit_falloff(IUPACFalloff, temperature_K, number_density_m3, k_SI, k0_SI, kinf_SI, order,
-                           with_exponentials=True, check=check)
-    if barrier.max_rel_deviation < plain.max_rel_deviation:
-        from dataclasses import replace
+    args = (temperature_K, number_density_m3, k_SI, k0_SI, kinf_SI, order)
+    n_T = np.unique(np.ravel(temperature_K)).size
+    tried = []
+    for shape in LIMIT_SHAPES:
+        if shape == "both" and n_T < 3:
+            continue
+        fit = _fit_falloff(IUPACFalloff, *args, shape=shape, check=check)
+        tried.append((shape, fit))
+        if fit.max_rel_deviation <= max_deviation:
+            break
+    shape, fit = tried[-1] if tried[-1][1].max_rel_deviation <= max_deviation else \
+        min(tried, key=lambda sf: sf[1].max_rel_deviation)
+    if shape == "power":
+        return fit
+    from dataclasses import replace
 
-        return replace(barrier, notes=("limits with Arrhenius factors exp(-E/RT) (the power laws alone deviate "
-                                       f"by up to {100 * plain.max_rel_deviation:.3g} %)",))
-    return plain
+    what = {"arrhenius": "limits as Arrhenius expressions exp(-E/RT) (n = m = 0)",
+            "both": "limits with power laws and Arrhenius factors (T/300)^-n exp(-E/RT)"}[shape]
+    power = tried[0][1].max_rel_deviation
+    return replace(fit, notes=(f"{what}: the power laws alone deviate by up to {100 * power:.3g} %",))

@@ -233,10 +233,9 @@ def report_blocks(result, doc: dict) -> list:
             if r["form"] == "arrhenius":
                 params = f"A = {r['A']:.3g} {r['A_unit']}, E/R = {r['E_over_R_K']:.4g} K"
             else:
-                params = (f"k0(300) = {r['k0_300K']:.3g} {r['k0_unit']}, n = {r['n']:.3g}; k_inf(300) = "
-                          f"{r['kinf_300K']:.3g} {r['kinf_unit']}, m = {r['m']:.3g}; F_c = {r['Fc']:.3g}")
-                if r["form"] == "iupac_falloff" and (r["k0_E_over_R_K"] or r["kinf_E_over_R_K"]):
-                    params += f"; E/R of k0, k_inf = {r['k0_E_over_R_K']:.4g}, {r['kinf_E_over_R_K']:.4g} K"
+                params = (f"k0 = {_limit_text(r['k0_300K'], r['n'], r.get('k0_E_over_R_K', 0.0))} "
+                          f"{r['k0_unit']}; k_inf = {_limit_text(r['kinf_300K'], r['m'], r.get('kinf_E_over_R_K', 0.0))} "
+                          f"{r['kinf_unit']}; F_c = {r['Fc']:.3g}")
             p = r["pressure_range_bar"]
             rng = f"{r['temperature_range_K'][0]:g}-{r['temperature_range_K'][1]:g} K" + (
                 f", {p[0]:.3g}-{p[1]:.3g} bar" if p else "")
@@ -282,6 +281,16 @@ def report_blocks(result, doc: dict) -> list:
                           "k in each channel's rate-constant unit; sources: " + "; ".join(
                               dict.fromkeys(f"{r['label']}: {r['source']}" for r in recs)) + "."))
     return B
+
+
+def _limit_text(a: float, x: float, e_over_r: float) -> str:
+    """A (T/300)^-x exp(-E/T) as the evaluations write it (factors equal to 1 left out)."""
+    text = f"{a:.3g}"
+    if x:
+        text += f" (T/300)^{-x:.3g}"
+    if e_over_r:
+        text += f" exp({-e_over_r:.4g}/T)"
+    return text
 
 
 def _pick(n: int, most: int = 6) -> list[int]:

@@ -714,10 +714,12 @@ _record("evaluation_parameters", "Parameters of an evaluation form", [
     ("E_over_R_K", K, "E/R (arrhenius)"),
     ("temperature_exponent", ONE, "n of (T/T0)^n (arrhenius; 0 for the fitted form)"),
     ("T0_K", K, "T0 of (T/T0)^n (arrhenius)"),
-    ("k0_300K", "@k0_unit", "k0 at 300 K (falloff forms; without [M])"),
+    ("k0_300K", "@k0_unit", "prefactor of k0 = k0_300K (T/300)^-n exp(-k0_E_over_R_K/T), without [M] (falloff "
+                            "forms): k0 at 300 K when k0_E_over_R_K = 0"),
     ("k0_unit", TEXT, "unit of k0 (one order above the channel)"),
     ("n", ONE, "k0 ~ (T/300)^-n (falloff forms)"),
-    ("kinf_300K", "@kinf_unit", "k_inf at 300 K (falloff forms)"),
+    ("kinf_300K", "@kinf_unit", "prefactor of k_inf = kinf_300K (T/300)^-m exp(-kinf_E_over_R_K/T) (falloff "
+                                "forms): k_inf at 300 K when kinf_E_over_R_K = 0"),
     ("kinf_unit", TEXT, "unit of k_inf"),
     ("m", ONE, "k_inf ~ (T/300)^-m (falloff forms)"),
     ("Fc", ONE, "broadening factor F_c (0.6 for jpl_falloff)"),

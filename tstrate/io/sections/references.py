@@ -65,9 +65,11 @@ KEYS = Keys(("reference_rate", "[]"), "[[reference_rate]]",
                 Key("T0_K", "number", "reference temperature of (T/T0)^n (arrhenius)", default=300.0, unit="K"),
                 Key("n", "number", "arrhenius: exponent of (T/T0)^n; falloff forms: k0 ~ (T/300)^-n",
                     default=0.0, unit="1"),
-                Key("k0_300K", "number", "k0 at 300 K (falloff forms)", required="falloff forms",
+                Key("k0_300K", "number", "k0 at 300 K (falloff forms); with `k0_E_over_R_K` the prefactor of "
+                    "k0_300K (T/300)^-n exp(-k0_E_over_R_K/T)", required="falloff forms",
                     unit="@k0_unit"),
-                Key("kinf_300K", "number", "k_inf at 300 K (falloff forms)", required="falloff forms",
+                Key("kinf_300K", "number", "k_inf at 300 K (falloff forms); with `kinf_E_over_R_K` the prefactor, "
+                    "as for k0", required="falloff forms",
                     unit="@unit"),
                 Key("m", "number", "k_inf ~ (T/300)^-m (falloff forms)", default=0.0, unit="1"),
                 Key("Fc", "number", "broadening factor (iupac_falloff; jpl_falloff is 0.6)", default=0.6,
