@@ -212,3 +212,27 @@ def test_every_altitude_curve_is_in_a_legend():
              for t in lg.get_texts()]
     for needed in ("Stern-Volmer", "stepwise", "pressure", "temperature", "central 68 %", "central 95 %"):
         assert any(needed in t for t in texts), needed
+
+
+def test_arrhenius_figure_panels_name_their_unit_and_legend_every_curve():
+    from tstrate.output.plots import arrhenius_figure
+
+    T = np.array([200.0, 250.0, 300.0])
+    recs = [{"name": f"c{o}", "order": o, "temperature_K": T, "rate_constant": 1e-10 * np.exp(-1000.0 / T),
+             "rate_constant_no_tunnelling": 1e-10 * np.exp(-1200.0 / T), "tunnelling": "eckart",
+             "rate_constant_unit": unit} for o, unit in ((1, "s-1"), (2, "cm3 molecule-1 s-1"),
+                                                          (3, "cm6 molecule-2 s-1"))]
+    bands = {"c1": np.vstack([recs[0]["rate_constant"] * f for f in (0.1, 0.5, 2.0, 10.0)])}
+    refs = {"c2": [("ref", T, recs[1]["rate_constant"] * 2)]}
+    fig = arrhenius_figure(recs, "t", bands=bands, references=refs)
+    panels = [a for a in fig.axes if a.get_visible() and a.get_title()]
+    assert [a.get_title() for a in panels] == ["unimolecular channels, k in s-1",
+                                                "bimolecular channels, k in cm3 molecule-1 s-1",
+                                                "termolecular channels, k in cm6 molecule-2 s-1"]
+    for a in panels:
+        texts = [t.get_text() for t in a.get_legend().get_texts()]
+        drawn = [x.get_label() for x in a.get_lines() + a.collections if not x.get_label().startswith("_")]
+        assert sorted(texts) == sorted(drawn)
+        assert a.xaxis.label.get_fontsize() >= 10
+    assert "c1: central 68 %" in [t.get_text() for t in panels[0].get_legend().get_texts()]
+    assert "c2: ref" in [t.get_text() for t in panels[1].get_legend().get_texts()]

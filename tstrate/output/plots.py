@@ -81,8 +81,10 @@ def arrhenius_figure(records: list[dict], title: str | None = None, bands: dict 
                         label=f"{r['name']} ({r['tunnelling']})")
                 if bands and r["name"] in bands:
                     b = np.log10(bands[r["name"]])
-                    ax.fill_between(inv_t, b[0], b[3], color=colour, alpha=0.12, lw=0)
-                    ax.fill_between(inv_t, b[1], b[2], color=colour, alpha=0.25, lw=0)
+                    ax.fill_between(inv_t, b[0], b[3], color=colour, alpha=0.12, lw=0,
+                                    label=f"{r['name']}: central 95 %")
+                    ax.fill_between(inv_t, b[1], b[2], color=colour, alpha=0.25, lw=0,
+                                    label=f"{r['name']}: central 68 %")
                 if r["tunnelling"] != "none":
                     ax.plot(inv_t, np.log10(r["rate_constant_no_tunnelling"]), "--", color=colour, lw=1.2,
                             label=f"{r['name']} (no tunnelling)")
@@ -92,7 +94,7 @@ def arrhenius_figure(records: list[dict], title: str | None = None, bands: dict 
                             label=f"{r['name']}: {label}")
                 unit = r["rate_constant_unit"]
             word = _ORDER_WORDS.get(order, f"order {order}")
-            ax.set_title(f"{word} channels, k in {unit}")
+            ax.set_title(f"{word} channels, k in {unit}", y=1.16)
             ax.set_xlabel("1000 / T  [K$^{-1}$]")
             ax.set_ylabel(f"log$_{{10}}$ (k / {unit})")
             ax.grid(alpha=0.3)
