@@ -107,7 +107,7 @@ def evaluation_forms_record(result) -> dict:
                 "within_tolerance": bool(fit.max_rel_deviation <= ev.max_deviation),
                 "n_points": fit.n_points, "n_check_points": fit.n_check_points,
                 "f298": f298, "g_K": g, "uncertainty_pressure_bar": p_unc,
-                "notes": list(fit.notes) + list(c.notes),
+                "notes": list(fit.notes) + (list(c.notes) if falloff else []),
             })
     return {"tolerance_percent": 100.0 * ev.max_deviation,
             "forms": {k: v for k, v in FORM_DOCS.items()}, "rows": rows}
@@ -246,6 +246,9 @@ def report_blocks(result, doc: dict) -> list:
                          f"{r['max_deviation_percent']:.3g}{miss}", unc))
         B.append(rp.Table(("channel", "form", "parameters", "range", "max deviation / %", "f298, g"), tuple(rows),
                           f"Tolerance {ev['tolerance_percent']:g} % (the study's max_deviation_percent)."))
+        notes = [f"{r['channel']}, {FORM_TITLES[r['form']]}: {n}" for r in ev["rows"] for n in r["notes"]]
+        if notes:
+            B.append(rp.Bullets(tuple(dict.fromkeys(notes))))
     if getattr(result, "references", ()):
         B.append(rp.Heading("Reference expressions"))
         B.append(rp.Paragraph("Computed against evaluated or measured expressions given in the study "

@@ -123,6 +123,11 @@ def channel_falloff_forms(cf, *, order: int = 1, max_deviation: float = MAX_DEVI
         iupac = fit_iupac_falloff(*args, order=order, max_deviation=max_deviation, check=check)
     except (InputError, ValueError, FloatingPointError) as exc:  # a fit that cannot be made: said, not fatal
         return None, None, tuple(notes + [f"falloff evaluation forms not fitted: {exc}"])
+    if order == 1 and jpl.max_rel_deviation > max_deviation:
+        from dataclasses import replace
+
+        jpl = replace(jpl, notes=jpl.notes + ("the NASA/JPL form is written for association reactions: its power "
+                                              "laws cannot follow the exp(-E/RT) of this channel's barrier",))
     return jpl, iupac, tuple(notes)
 
 
