@@ -236,7 +236,8 @@ def rate_energy_figure(res):
     e_cm1 = rate.energies_J_per_mol / CM1_J_PER_MOL
     k = np.asarray(rate.rate_per_s, dtype=float)
     top = float(np.log10(k.max()))
-    bottom = top - 20.0                   # deep-tunnelling tail: 20 decades shown
+    lowest = float(np.log10(k[k > 0].min()))
+    bottom = max(top - 20.0, lowest - 1.0)   # a deep-tunnelling tail: 20 decades shown
     # grains with k(E) = 0 (no state of the transition state within reach) break the line and are
     # marked along the bottom of the axis, not joined over
     log_k = np.where(k > 0, np.log10(np.where(k > 0, k, 1.0)), np.nan)
