@@ -348,10 +348,12 @@ def _fit_falloff(kind, T, M, k, k0_T, kinf_T, order, *, shape="power", check=Non
     def build(q):
         p = full.copy()
         p[free] = q
-        kw = dict(k0_300=math.exp(p[0]), n=float(p[1]), kinf_300=math.exp(p[2]), m=float(p[3]), order=order)
+        # prefactors kept inside the float range while the optimiser explores
+        kw = dict(k0_300=math.exp(min(max(p[0], -700.0), 700.0)), n=float(p[1]),
+                  kinf_300=math.exp(min(max(p[2], -700.0), 700.0)), m=float(p[3]), order=order)
         if not iupac:
             return JPLFalloff(**kw)
-        fc = 1.0 / (1.0 + math.exp(-p[4]))
+        fc = 1.0 / (1.0 + math.exp(-min(max(p[4], -700.0), 700.0)))
         return IUPACFalloff(**kw, Fc=min(max(fc, 1e-6), 1.0), k0_E_over_R_K=float(p[5]),
                             kinf_E_over_R_K=float(p[6]))
 

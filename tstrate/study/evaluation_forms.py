@@ -119,9 +119,10 @@ def channel_falloff_forms(cf, *, order: int = 1, max_deviation: float = MAX_DEVI
     check = tuple(a[keep_check] for a in check)
     args = (T[good], M[good], k[good], k0[good], kinf[good])
     try:
-        jpl = fit_jpl_falloff(*args, order=order, check=check)
-        iupac = fit_iupac_falloff(*args, order=order, max_deviation=max_deviation, check=check)
-    except (InputError, ValueError, FloatingPointError) as exc:  # a fit that cannot be made: said, not fatal
+        with np.errstate(over="ignore", invalid="ignore", divide="ignore"):
+            jpl = fit_jpl_falloff(*args, order=order, check=check)
+            iupac = fit_iupac_falloff(*args, order=order, max_deviation=max_deviation, check=check)
+    except (InputError, ValueError, FloatingPointError, OverflowError) as exc:  # a fit that cannot be made: said, not fatal
         return None, None, tuple(notes + [f"falloff evaluation forms not fitted: {exc}"])
     if order == 1 and jpl.max_rel_deviation > max_deviation:
         from dataclasses import replace
