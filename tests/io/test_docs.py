@@ -144,6 +144,15 @@ def study_data() -> dict:
                            "species": {"H2CO3": {"energy": {"value": 4.0, "unit": "kJ/mol"},
                                                  "frequency_scale_percent": 3.0,
                                                  "imaginary_frequency_percent": 20.0}}}
+    data["reference_rate"] = [
+        {"channel": "one_water", "source": "invented", "form": "arrhenius", "A": 1e-12, "E_over_R_K": 300.0,
+         "n": 1.5, "T0_K": 298.0, "unit": "cm3 molecule-1 s-1", "label": "measured (invented)", "kind": "measured",
+         "temperature_range_K": [200.0, 300.0]},
+        {"channel": "bare", "source": "invented", "form": "iupac_falloff", "k0_300K": 1e-10, "n": 2.0,
+         "kinf_300K": 1e12, "m": 0.0, "Fc": 0.4, "N": 1.2, "k0_E_over_R_K": 20000.0, "kinf_E_over_R_K": 19000.0,
+         "unit": "s-1", "k0_unit": "cm3 molecule-1 s-1", "pressure_range_bar": [1e-3, 1.0], "bath_gas": "N2",
+         "temperature_range_K": [250.0, 300.0]},
+    ]
     return data
 
 
@@ -289,6 +298,11 @@ def test_study_files_with_every_key_are_read(tmp_path):
     assert falloff.for_channel("bare").delta_E_down_cm1 == 300.0
     assert falloff.for_channel("bare").collision_efficiency is None   # the override replaces the choice
     assert falloff.for_channel("one_water").delta_E_all_cm1 == -50.0
+    arr, iupac = st.sections["reference_rate"]
+    assert (arr.kind, arr.label, arr.expression.n, arr.expression.T0_K) == ("measured", "measured (invented)", 1.5, 298.0)
+    assert arr.expression.A == pytest.approx(1e-18)                        # cm3 molecule-1 s-1 -> m3 s-1
+    assert (iupac.expression.Fc, iupac.expression.N, iupac.bath_gas, iupac.pressure_min_Pa) == (0.4, 1.2, "N2", 100.0)
+    assert iupac.expression.k0_300 == pytest.approx(1e-16) and iupac.expression.kinf_E_over_R_K == 19000.0
     overtone, near_uv, given = st.sections["excitation"]
     assert (overtone.altitude_step_km, overtone.altitude_range_km, overtone.pressure_scan) == (4.0, (0.0, 40.0), True)
     assert given.energy_J_per_mol == pytest.approx(260e3) and given.temperature_K == (220.0,)
@@ -425,6 +439,7 @@ def test_readme_examples_use_only_documented_keys():
     assert len(blocks) >= 2
     for block in blocks:
         data = tomllib.loads(block)
-        tables = docs.STUDY_FILE if ("species" in data or "uncertainty" in data) else docs.SPECIES_FILE
+        tables = (docs.STUDY_FILE if ("species" in data or "uncertainty" in data or "reference_rate" in data)
+                  else docs.SPECIES_FILE)
         assert undocumented(data, tables) == [], block[:60]
     assert "docs/species-file.md" in readme and "docs/study-file.md" in readme

@@ -70,7 +70,7 @@ def outputs(demo_run, tmp_path_factory):
 
     study, out, summary = demo_run
     got = [("tstrate run --json", summary)]
-    for name in ("results.json", "fits.json", "inputs.json"):
+    for name in ("results.json", "fits.json", "inputs.json", "evaluation_forms.json"):
         got.append((name, json.loads((out / name).read_text())))
     got.append(("fits.csv", _csv_header(out / "fits.csv")))
     for path in sorted((out / "tables").glob("*.csv")):
@@ -99,6 +99,16 @@ def outputs(demo_run, tmp_path_factory):
     grid = {"bare": (P, bare.k_SI[:, None] / (1 + 1e3 / P[None, :]))}
     got.append(("mechanism.yaml", _yaml(mechanism_yaml(fit_study(carbonic, mechanism_form="pressure_table",
                                                                  falloff_grid=grid)))))
+
+    # reference expressions ([[reference_rate]]): the invented falloff study of tests/study with references
+    from tests.study.test_evaluation_references import _study as reference_study
+    from tstrate.output.folder import write_outputs
+
+    refs = compute_study(read_study(reference_study(tmp / "references")))
+    write_outputs(refs, tmp / "references_out")
+    got.append(("results.json", json.loads((tmp / "references_out" / "results.json").read_text())))
+    got.append(("tables/reference_ratios.csv", _csv_header(tmp / "references_out" / "tables" / "reference_ratios.csv")))
+    got.append(("evaluation_forms.json", json.loads((tmp / "references_out" / "evaluation_forms.json").read_text())))
 
     rotor = tmp / "h2co3_rotor.toml"
     rotor.write_text((ROOT / "tests/data/falloff/h2co3.toml").read_text() + FREE_ROTOR)

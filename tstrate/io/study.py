@@ -32,7 +32,8 @@ SECTION_READERS: dict[str, str] = {"comparison": "tstrate.io.sections.comparison
                                   "excitation": "tstrate.io.sections.pressure:read_excitations",
                                   "fits": "tstrate.io.sections.fits:read_fit_options",
                                   "isotopes": "tstrate.io.sections.isotopes:read_isotopes",
-                                  "uncertainty": "tstrate.io.sections.uncertainty:read_uncertainty"}
+                                  "uncertainty": "tstrate.io.sections.uncertainty:read_uncertainty",
+                                  "reference_rate": "tstrate.io.sections.references:read_reference_rates"}
 
 _ORDER_NAMES = {"unimolecular": 1, "bimolecular": 2, "termolecular": 3}
 #: the keys that give the pressures of [conditions] (at most one)
@@ -58,6 +59,8 @@ STUDY_KEYS = Keys((), "top level", "A study names its species files and links th
                           "fractionation (`[isotopes]` below)"),
                       Key("uncertainty", "table", "how sure each number is: input uncertainties and "
                           "sampling (`[uncertainty]` below)"),
+                      Key("reference_rate", "array of tables", "evaluated or measured rate expressions to "
+                          "compare with (`[[reference_rate]]` below)"),
                   ))
 SPECIES_MAP_KEYS = Keys(("species",), "[species]",
                         "One line per species: the name the study uses (quote names with dots or "

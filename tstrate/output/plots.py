@@ -48,42 +48,66 @@ def _plt():
     return plt
 
 
-def arrhenius_figure(records: list[dict], title: str | None = None, bands: dict | None = None):
+_ORDER_WORDS = {1: "unimolecular", 2: "bimolecular", 3: "termolecular"}
+
+
+def arrhenius_figure(records: list[dict], title: str | None = None, bands: dict | None = None,
+                     references: dict | None = None):
     """log10 k against 1000/T, one colour per channel; dashed without tunnelling.
 
     ``records`` are channel records from :func:`tstrate.output.records.channel_rates_record`.
-    Channels of different molecularity get separate panels (their units differ).
+    Channels of different molecularity get separate panels (their units differ), at most two
+    side by side, each titled with its molecularity and unit, its legend below it.
     ``bands``: channel -> (4, T) k at 2.5, 16, 84 and 97.5 % in the record's unit, drawn as
     shaded 95 % and 68 % bands (:mod:`tstrate.output.uncertainty_records`).
+    ``references``: channel -> [(label, T [K], k in the record's unit)], drawn dash-dotted with
+    open markers in the channel's colour over their own range
+    (:func:`tstrate.output.evaluation_records.arrhenius_overlays`).
     """
     plt = _plt()
     orders = sorted({r["order"] for r in records})
-    fig, axes = plt.subplots(1, len(orders), figsize=(5.2 * len(orders), 4.2), squeeze=False)
-    for ax, order in zip(axes[0], orders):
-        for i, r in enumerate(x for x in records if x["order"] == order):
-            colour = f"C{i}"
-            inv_t = 1000.0 / np.asarray(r["temperature_K"])
-            ax.plot(inv_t, np.log10(r["rate_constant"]), "-", color=colour,
-                    label=f"{r['name']} ({r['tunnelling']})")
-            if bands and r["name"] in bands:
-                b = np.log10(bands[r["name"]])
-                ax.fill_between(inv_t, b[0], b[3], color=colour, alpha=0.12, lw=0)
-                ax.fill_between(inv_t, b[1], b[2], color=colour, alpha=0.25, lw=0)
-            if r["tunnelling"] != "none":
-                ax.plot(inv_t, np.log10(r["rate_constant_no_tunnelling"]), "--", color=colour,
-                        label=f"{r['name']} (no tunnelling)")
-            unit = r["rate_constant_unit"]
-        ax.set_xlabel("1000 / T  [K$^{-1}$]")
-        ax.set_ylabel(f"log$_{{10}}$ (k / {unit})")
-        ax.grid(alpha=0.3)
-        ax.legend(fontsize=8)
-        top = ax.secondary_xaxis("top", functions=(lambda x: 1000.0 / np.maximum(x, 1e-9),
-                                                    lambda t: 1000.0 / np.maximum(t, 1e-9)))
-        top.set_xticks(_nice_temperatures(ax.get_xlim()))
-        top.set_xlabel("T  [K]")
-    if title:
-        fig.suptitle(title)
-    fig.tight_layout()
+    ncols = min(2, len(orders))
+    nrows = -(-len(orders) // ncols)
+    with plt.rc_context({"font.size": 11, "axes.titlesize": 11, "axes.labelsize": 11, "legend.fontsize": 9}):
+        fig, axes = plt.subplots(nrows, ncols, figsize=(6.6 * ncols, 5.6 * nrows), squeeze=False)
+        for ax in axes.ravel()[len(orders):]:
+            ax.set_visible(False)
+        for ax, order in zip(axes.ravel(), orders):
+            unit = None
+            for i, r in enumerate(x for x in records if x["order"] == order):
+                colour = f"C{i}"
+                inv_t = 1000.0 / np.asarray(r["temperature_K"])
+                ax.plot(inv_t, np.log10(r["rate_constant"]), "-", color=colour, lw=1.8,
+                        label=f"{r['name']} ({r['tunnelling']})")
+                if bands and r["name"] in bands:
+                    b = np.log10(bands[r["name"]])
+                    ax.fill_between(inv_t, b[0], b[3], color=colour, alpha=0.12, lw=0,
+                                    label=f"{r['name']}: central 95 %")
+                    ax.fill_between(inv_t, b[1], b[2], color=colour, alpha=0.25, lw=0,
+                                    label=f"{r['name']}: central 68 %")
+                if r["tunnelling"] != "none":
+                    ax.plot(inv_t, np.log10(r["rate_constant_no_tunnelling"]), "--", color=colour, lw=1.2,
+                            label=f"{r['name']} (no tunnelling)")
+                for label, t_ref, k_ref in (references or {}).get(r["name"], ()):
+                    ax.plot(1000.0 / np.asarray(t_ref), np.log10(k_ref), "-.", color=colour, lw=1.3,
+                            marker="o", mfc="none", markevery=max(1, len(t_ref) // 6),
+                            label=f"{r['name']}: {label}")
+                unit = r["rate_constant_unit"]
+            word = _ORDER_WORDS.get(order, f"order {order}")
+            ax.set_title(f"{word} channels, k in {unit}", y=1.16)
+            ax.set_xlabel("1000 / T  [K$^{-1}$]")
+            ax.set_ylabel(f"log$_{{10}}$ (k / {unit})")
+            ax.grid(alpha=0.3)
+            handles, _ = ax.get_legend_handles_labels()
+            ax.legend(loc="upper center", bbox_to_anchor=(0.5, -0.14), ncol=2 if len(handles) > 3 else 1,
+                      frameon=False)
+            top = ax.secondary_xaxis("top", functions=(lambda x: 1000.0 / np.maximum(x, 1e-9),
+                                                        lambda t: 1000.0 / np.maximum(t, 1e-9)))
+            top.set_xticks(_nice_temperatures(ax.get_xlim()))
+            top.set_xlabel("T  [K]")
+        if title:
+            fig.suptitle(title, fontsize=12)
+        fig.tight_layout()
     return fig
 
 

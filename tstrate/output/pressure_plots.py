@@ -10,6 +10,8 @@ from tstrate.physics.states import CM1_J_PER_MOL
 from tstrate.units import K_B
 
 _BAR = 1e5
+#: open markers of reference expressions, one per reference
+_REF_MARKERS = ("o", "s", "^", "D", "v")
 
 
 def _plt():
@@ -25,7 +27,7 @@ def _pick(n: int, most: int) -> list[int]:
     return sorted({int(round(x)) for x in np.linspace(0, n - 1, most)})
 
 
-def falloff_figure(cf, title: str | None = None, max_curves: int = 5, bands=None):
+def falloff_figure(cf, title: str | None = None, max_curves: int = 5, bands=None, references=None):
     """Falloff curves of one channel (a ChannelFalloff), two panels against log10 p.
 
     Left: log10 k; right: log10 (k / k_inf), where the shapes can be compared. Solid: the
@@ -37,6 +39,10 @@ def falloff_figure(cf, title: str | None = None, max_curves: int = 5, bands=None
     Number-density studies are drawn against [M] instead of pressure.
     ``bands``: (4, T, P) k / k_inf at 2.5, 16, 84 and 97.5 % on the study's grid, shaded on the right
     panel (the uncertainty of the falloff's shape; that of k_inf is on the Arrhenius plot).
+    ``references``: [(label, expression, Tmin_K, Tmax_K, pmin_Pa, pmax_Pa)] falloff expressions
+    (:mod:`tstrate.expressions.evaluation_forms`) drawn dash-dotted with open markers at each plotted
+    temperature inside their range, over their pressure range (the right panel divides them by the
+    computed k_inf).
     """
     from matplotlib.lines import Line2D
 
@@ -70,6 +76,20 @@ def falloff_figure(cf, title: str | None = None, max_curves: int = 5, bands=None
             axis.plot(x_curve[[0, -1]], np.log10([k_inf / scale] * 2), "--", color=colour, lw=1.0)
             axis.plot(x_curve, np.log10(lind / scale), ls=lind_style, color=colour, lw=1.0)
             axis.plot(x_fit, np.log10(k_troe / scale), ":", color="k", lw=1.3, alpha=0.8)
+        for r_i, (_label, expr, tlo, thi, plo, phi) in enumerate(references or ()):
+            if not (tlo * (1 - 1e-12) <= t <= thi * (1 + 1e-12)):
+                continue
+            p_curve = m_curve * K_B * t
+            inside = np.ones(p_curve.shape, dtype=bool)
+            if plo is not None:
+                inside &= (p_curve >= plo * (1 - 1e-12)) & (p_curve <= phi * (1 + 1e-12))
+            if not inside.any():
+                continue
+            k_ref = np.asarray(expr.rate(t, m_curve[inside]), dtype=float)
+            for axis, scale in ((ax, 1.0), (axr, k_inf)):
+                axis.plot(x_curve[inside], np.log10(k_ref / scale), ls="-.", color=colour, lw=1.2,
+                          marker=_REF_MARKERS[r_i % len(_REF_MARKERS)], mfc="none", ms=5,
+                          markevery=max(1, int(inside.sum()) // 6))
         handles.append(Line2D([], [], color=colour, lw=1.8, label=f"{t:g} K"))
     xlabel = "log$_{10}$ (p / bar)" if by_pressure else "log$_{10}$ ([M] / molecule cm$^{-3}$)"
     for axis in (ax, axr):
@@ -91,12 +111,16 @@ def falloff_figure(cf, title: str | None = None, max_curves: int = 5, bands=None
                                                       else "")),
               Line2D([], [], color="k", ls=":", lw=1.3,
                      label=f"Troe fit (max dev. {100 * cf.troe.max_rel_deviation:.2g} %)")]
-    fig.legend(handles=handles, loc="lower center", bbox_to_anchor=(0.5, 0.05), ncol=len(handles), fontsize=8,
-               frameon=False)
-    fig.legend(handles=styles, loc="lower center", bbox_to_anchor=(0.5, 0.0), ncol=len(styles), fontsize=8,
+    styles += [Line2D([], [], color="0.3", ls="-.", lw=1.2, marker=_REF_MARKERS[i % len(_REF_MARKERS)], mfc="none",
+                      label=f"reference: {r[0]}") for i, r in enumerate(references or ())]
+    ncol = min(len(styles), 4)
+    style_rows = -(-len(styles) // ncol)
+    fig.legend(handles=handles, loc="lower center", bbox_to_anchor=(0.5, 0.045 * style_rows + 0.005),
+               ncol=len(handles), fontsize=8, frameon=False)
+    fig.legend(handles=styles, loc="lower center", bbox_to_anchor=(0.5, 0.0), ncol=ncol, fontsize=8,
                frameon=False)
     fig.suptitle(title or f"falloff of {cf.name}: {cf.model.reactant.name} in {cf.bath.name}", fontsize=11)
-    fig.tight_layout(rect=(0, 0.11, 1, 1))
+    fig.tight_layout(rect=(0, 0.045 * style_rows + 0.06, 1, 1))
     return fig
 
 
@@ -159,36 +183,49 @@ def yield_pressure_figure(res, max_curves: int = 5):
 def yield_altitude_figure(res, bands: dict | None = None):
     """Altitude against the fraction reacting (linear), the fraction deactivated (log) and p, T.
 
+    Every curve is in a legend: the two panels of fractions share one (Stern-Volmer, stepwise and
+    the shaded bands), the right panel has its own (pressure, temperature).
     ``bands``: "stern_volmer" / "stepwise" -> (4, Z) fractions at 2.5, 16, 84 and 97.5 %, shaded."""
+    from matplotlib.lines import Line2D
+    from matplotlib.patches import Patch
+
     plt = _plt()
     g = res.profile
     z_km = res.altitude_m * 1e-3
-    fig, (ax, axq, axp) = plt.subplots(1, 3, figsize=(11.0, 5.0), sharey=True,
+    fig, (ax, axq, axp) = plt.subplots(1, 3, figsize=(11.0, 5.4), sharey=True,
                                        gridspec_kw={"width_ratios": [1.5, 1.5, 1]})
+    shaded = []
     for key, colour in (("stern_volmer", "C0"), ("stepwise", "C3")):
         if bands and key in bands:
             ax.fill_betweenx(z_km, bands[key][0], bands[key][3], color=colour, alpha=0.10, lw=0)
             ax.fill_betweenx(z_km, bands[key][1], bands[key][2], color=colour, alpha=0.22, lw=0)
-    ax.plot(g.stern_volmer, z_km, "-o", ms=3, color="C0", label="Stern-Volmer")
-    axq.plot(_log_quenched(g.stern_volmer), z_km, "-o", ms=3, color="C0", label="Stern-Volmer")
+            name = "Stern-Volmer" if key == "stern_volmer" else "stepwise"
+            shaded += [Patch(color=colour, alpha=0.22, lw=0, label=f"{name}, central 68 %"),
+                       Patch(color=colour, alpha=0.10, lw=0, label=f"{name}, central 95 %")]
+    ax.plot(g.stern_volmer, z_km, "-o", ms=3, color="C0")
+    axq.plot(_log_quenched(g.stern_volmer), z_km, "-o", ms=3, color="C0")
+    curves = [Line2D([], [], color="C0", marker="o", ms=3, label="Stern-Volmer, $\\beta_c Z$[M]")]
     if g.stepwise is not None:
-        ax.plot(g.stepwise, z_km, "--s", ms=3, color="C3", label="stepwise")
-        axq.plot(_log_quenched(g.stepwise), z_km, "--s", ms=3, color="C3", label="stepwise")
+        ax.plot(g.stepwise, z_km, "--s", ms=3, color="C3")
+        axq.plot(_log_quenched(g.stepwise), z_km, "--s", ms=3, color="C3")
+        curves.append(Line2D([], [], color="C3", ls="--", marker="s", ms=3, label="stepwise <$\\Delta E$>$_{down}$"))
     ax.set_xlim(-0.03, 1.03)
     ax.set_xlabel("fraction reacting before deactivation")
     axq.set_xlabel("log$_{10}$ (fraction deactivated)")
     ax.set_ylabel("altitude  [km]")
     for axis in (ax, axq, axp):
         axis.grid(alpha=0.3)
-    ax.legend(fontsize=8, loc="best")
-    axp.plot(np.log10(g.pressure_Pa / _BAR), z_km, "-", color="0.3")
+    line_p, = axp.plot(np.log10(g.pressure_Pa / _BAR), z_km, "-", color="0.3", label="pressure")
     axp.set_xlabel("log$_{10}$ (p / bar)")
     twin = axp.twiny()
-    twin.plot(g.temperature_K, z_km, "-", color="C1")
+    line_t, = twin.plot(g.temperature_K, z_km, "-", color="C1", label="temperature")
     twin.set_xlabel("T  [K]", color="C1")
     twin.tick_params(axis="x", colors="C1")
+    axp.legend(handles=[line_p, line_t], fontsize=8, loc="upper right")
+    fig.legend(handles=curves + shaded, loc="lower center", ncol=min(4, len(curves + shaded)), fontsize=8,
+               frameon=False)
     fig.suptitle(_title(res, f", along {res.profile_source}"), fontsize=10)
-    fig.tight_layout()
+    fig.tight_layout(rect=(0, 0.09 if shaded else 0.06, 1, 1))
     return fig
 
 
@@ -197,9 +234,25 @@ def rate_energy_figure(res):
     plt = _plt()
     rate = res.model.rate
     e_cm1 = rate.energies_J_per_mol / CM1_J_PER_MOL
-    keep = rate.rate_per_s > 1e-20 * rate.rate_per_s.max()   # deep-tunnelling tail: 20 decades shown
+    k = np.asarray(rate.rate_per_s, dtype=float)
+    top = float(np.log10(k.max()))
+    lowest = float(np.log10(k[k > 0].min()))
+    bottom = max(top - 20.0, lowest - 1.0)   # a deep-tunnelling tail: 20 decades shown
+    # grains with k(E) = 0 (no state of the transition state within reach) break the line and are
+    # marked along the bottom of the axis, not joined over
+    log_k = np.where(k > 0, np.log10(np.where(k > 0, k, 1.0)), np.nan)
     fig, ax = plt.subplots(figsize=(6.4, 4.2))
-    ax.plot(e_cm1[keep], np.log10(rate.rate_per_s[keep]), "-", color="C0", lw=1.2, label="RRKM k(E)")
+    ax.plot(e_cm1, log_k, "-", color="C0", lw=1.2, label="RRKM k(E)")
+    pos = k > 0
+    first = float(e_cm1[pos].min()) if pos.any() else float(e_cm1.max())
+    if first > float(e_cm1.min()):
+        ax.axvspan(float(e_cm1.min()), first, color="0.85", alpha=0.6, lw=0,
+                   label=f"k(E) = 0 below {first:.0f} cm$^{{-1}}$")
+    gaps = ~pos & (e_cm1 > first)
+    if gaps.any():
+        ax.plot(e_cm1[gaps], np.full(int(gaps.sum()), bottom + 0.3), "|", color="C0", ms=7, alpha=0.7,
+                label=f"k(E) = 0 ({int(gaps.sum())} grains above it)")
+    ax.set_ylim(bottom, top + 1.0)
     ax.axvline(rate.barrier_J_per_mol / CM1_J_PER_MOL, color="0.4", ls="--", lw=1.0, label="barrier E$_0$")
     energies = [g.energy_J_per_mol for g in (res.pressure, res.profile) if g is not None]
     if energies:

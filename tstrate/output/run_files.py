@@ -109,6 +109,10 @@ def _results_json(result) -> dict:
         from tstrate.output.uncertainty_records import uncertainty_record
 
         doc["uncertainty"] = uncertainty_record(result.uncertainty, units)
+    if getattr(result, "references", ()):
+        from tstrate.output.evaluation_records import references_record
+
+        doc["references"] = references_record(result)
     return doc
 
 
@@ -238,7 +242,18 @@ def write_all(result, folder: Path, *, progress: Callable[[str], None] | None = 
                                      ("uncertainty_ranking", ur.sensitivity_table(unc))):
             atomic_write_text(folder / "tables" / f"{stem}.csv", csv_text(header, rows))
             written.append(folder / "tables" / f"{stem}.csv")
+    from tstrate.output import evaluation_records as er
+
+    evaluation = None
+    if getattr(result, "evaluation_forms", None) is not None:
+        evaluation = er.evaluation_forms_record(result)
+        written.append(write_json(folder / "evaluation_forms.json", evaluation))
+        atomic_write_text(folder / "tables" / "evaluation_forms.csv", csv_text(*er.evaluation_forms_table(evaluation)))
+        written.append(folder / "tables" / "evaluation_forms.csv")
     doc = _results_json(result)
+    if "references" in doc:
+        atomic_write_text(folder / "tables" / "reference_ratios.csv", csv_text(*er.reference_ratio_table(doc["references"])))
+        written.append(folder / "tables" / "reference_ratios.csv")
     atomic_write_text(folder / "results.json", json_text(doc))
     written.append(folder / "results.json")
     inputs = [{"file": f, "sha256": file_sha256(f)} for f in input_files(study)]
@@ -247,7 +262,8 @@ def write_all(result, folder: Path, *, progress: Callable[[str], None] | None = 
 
     step("plots")
     bands = ur.arrhenius_bands(unc, doc["channels"]) if unc is not None else None
-    paths = _save(arrhenius_figure(doc["channels"], study.title, bands=bands), folder / "plots",
+    paths = _save(arrhenius_figure(doc["channels"], study.title, bands=bands,
+                                   references=er.arrhenius_overlays(result) or None), folder / "plots",
                   figure_stem("arrhenius"))
     written += paths
     figures.append(("rates", paths[0], "Arrhenius plot: log10 k against 1000/T; dashed lines "
@@ -267,7 +283,8 @@ def write_all(result, folder: Path, *, progress: Callable[[str], None] | None = 
 
         for cf in result.falloff.channels:
             fb = ur.falloff_bands(unc, cf.name) if unc is not None else None
-            paths = _save(falloff_figure(cf, bands=fb), folder / "plots", figure_stem("falloff", cf.name))
+            paths = _save(falloff_figure(cf, bands=fb, references=er.falloff_overlays(result, cf.name) or None),
+                          folder / "plots", figure_stem("falloff", cf.name))
             written += paths
             figures.append(("falloff", paths[0], f"Falloff of channel {cf.name}: log10 k against "
                             "log10 p at several temperatures."))
@@ -298,7 +315,8 @@ def write_all(result, folder: Path, *, progress: Callable[[str], None] | None = 
                         "lines without tunnelling."))
 
     step("report")
-    blocks = build_report(result, doc, inputs, [(s, p.relative_to(folder), c) for s, p, c in figures])
+    blocks = build_report(result, doc, inputs, [(s, p.relative_to(folder), c) for s, p, c in figures],
+                          evaluation=evaluation)
     atomic_write_text(folder / "report.md", rp.to_markdown(blocks))
     atomic_write_text(folder / "report.html", rp.to_html(blocks, folder, study.title))
     written += [folder / "report.md", folder / "report.html"]
@@ -354,7 +372,7 @@ def _pick_temperatures(T: np.ndarray, most: int = 6) -> list[int]:
     return sorted(set(np.linspace(0, len(T) - 1, most).round().astype(int).tolist()))
 
 
-def build_report(result, doc: dict, inputs: list[dict], figures) -> list:
+def build_report(result, doc: dict, inputs: list[dict], figures, evaluation: dict | None = None) -> list:
     """The report's blocks (see :mod:`tstrate.output.report`)."""
     import tstrate
 
@@ -553,6 +571,9 @@ def build_report(result, doc: dict, inputs: list[dict], figures) -> list:
              f"{100 * s.nasa7.max_rel_error_s:.3f}") for s in result.fits.species]
     B.append(rp.Table(("species", "NASA range / K", "max Cp error / %", "max H error / %",
                        "max S error / %"), tuple(rows), "NASA 7-coefficient polynomials."))
+    from tstrate.output.evaluation_records import report_blocks as evaluation_blocks
+
+    B += evaluation_blocks(result, evaluation)
     if getattr(result, "uncertainty", None) is not None:
         from tstrate.output.uncertainty_records import report_blocks
 
@@ -565,6 +586,8 @@ def build_report(result, doc: dict, inputs: list[dict], figures) -> list:
     B.append(rp.Heading("Files"))
     B.append(rp.Bullets(("mechanism.yaml: Cantera-format mechanism", "fits.json, fits.csv: fitted "
                          "parameters", "results.json: every number computed", "tables/: CSV tables",
-                         "plots/: PNG and SVG figures", "inputs.json: input files and hashes")))
+                         "plots/: PNG and SVG figures", "inputs.json: input files and hashes",
+                         "evaluation_forms.json, tables/evaluation_forms.csv: the rates in the forms of data "
+                         "evaluations")))
     B.append(rp.Paragraph(CAUTION))
     return B

@@ -786,6 +786,136 @@ _record("uncertainty_results", "Uncertainty and sensitivity of the results", [
 ], "Only when the study has an [uncertainty] section (and `run` is not false). The deterministic numbers "
    "elsewhere in the file are unchanged.")
 
+_record("evaluation_parameters", "Parameters of an evaluation form", [
+    ("A", "@A_unit", "A of k = A (T/T0)^n exp(-(E/R)/T) (arrhenius)"),
+    ("A_unit", TEXT, "unit of A (the channel's order)"),
+    ("E_over_R_K", K, "E/R (arrhenius)"),
+    ("temperature_exponent", ONE, "n of (T/T0)^n (arrhenius; 0 for the fitted form)"),
+    ("T0_K", K, "T0 of (T/T0)^n (arrhenius)"),
+    ("k0_300K", "@k0_unit", "prefactor of k0 = k0_300K (T/300)^-n exp(-k0_E_over_R_K/T), without [M] (falloff "
+                            "forms): k0 at 300 K when k0_E_over_R_K = 0"),
+    ("k0_unit", TEXT, "unit of k0 (one order above the channel)"),
+    ("n", ONE, "k0 ~ (T/300)^-n (falloff forms)"),
+    ("kinf_300K", "@kinf_unit", "prefactor of k_inf = kinf_300K (T/300)^-m exp(-kinf_E_over_R_K/T) (falloff "
+                                "forms): k_inf at 300 K when kinf_E_over_R_K = 0"),
+    ("kinf_unit", TEXT, "unit of k_inf"),
+    ("m", ONE, "k_inf ~ (T/300)^-m (falloff forms)"),
+    ("Fc", ONE, "broadening factor F_c (0.6 for jpl_falloff)"),
+    ("N", ONE, "width N of the IUPAC form (0.75 - 1.27 log10 F_c unless given)"),
+    ("k0_E_over_R_K", K, "E/R of exp(-E/RT) in k0 (iupac_falloff)"),
+    ("kinf_E_over_R_K", K, "E/R of exp(-E/RT) in k_inf (iupac_falloff)"),
+], "Keys by form: arrhenius A, A_unit, E_over_R_K, temperature_exponent, T0_K; jpl_falloff k0_300K, k0_unit, n, "
+   "kinf_300K, kinf_unit, m, Fc; iupac_falloff those and N, k0_E_over_R_K, kinf_E_over_R_K.")
+
+_record("reference_comparison", "A reference expression against the computed rate constants", [
+    ("channel", TEXT, "the channel"),
+    ("label", TEXT, "the reference's name"),
+    ("source", TEXT, "where it comes from"),
+    ("kind", TEXT, "evaluated or measured"),
+    ("form", TEXT, "arrhenius, jpl_falloff or iupac_falloff"),
+    ("", OBJ, "its parameters", "evaluation_parameters"),
+    ("temperature_range_K", K, "its range of validity [lowest, highest]"),
+    ("pressure_range_bar", BAR, "its pressure range (null: any)"),
+    ("bath_gas", TEXT, "its collision partner (null when not given)"),
+    ("rate_constant_unit", TEXT, "unit of the k columns of the ratios (the channel's order)"),
+    ("ratio_min", ONE, "smallest computed / reference over the overlap (null without overlap)"),
+    ("ratio_max", ONE, "largest computed / reference"),
+    ("ratios", LIST, "one entry per grid point inside the reference's range"),
+    ("ratios[].quantity", TEXT, "k (arrhenius reference against TST k), k_inf (falloff reference's limit against "
+                                "TST k) or k(T, p) (against the computed falloff)"),
+    ("ratios[].temperature_K", K, "temperature"),
+    ("ratios[].pressure_bar", BAR, "pressure (k(T, p) rows of pressure studies, else null)"),
+    ("ratios[].number_density_per_cm3", PER_CM3, "[M] (k(T, p) rows, else null)"),
+    ("ratios[].k_computed", "@../rate_constant_unit", "computed k"),
+    ("ratios[].k_reference", "@../rate_constant_unit", "the reference's k"),
+    ("ratios[].ratio_computed_to_reference", ONE, "computed / reference"),
+    ("note", TEXT, "why there is no or only a partial comparison (null otherwise)"),
+])
+
+_EVAL_FORMS = Document("evaluation_forms.json", "results-json.md", """\
+The computed rate constants in the forms data evaluations publish: A and E/R of every channel, and
+for falloff channels the NASA/JPL termolecular form (F_c = 0.6) and the IUPAC form (k0, k_inf, F_c),
+with their fit ranges and the deviations measured on the study grid and between its points; with
+[uncertainty], the pair f(298 K) and g of the uncertainty step.""", _keys(
+    ("tolerance_percent", PCT, "the study's max_deviation_percent"),
+    ("forms", OBJ, "the formula of each form"),
+    ("forms.arrhenius", TEXT, "the Arrhenius form"),
+    ("forms.jpl_falloff", TEXT, "the NASA/JPL termolecular form"),
+    ("forms.iupac_falloff", TEXT, "the IUPAC form"),
+    ("rows", LIST, "one entry per channel and form"),
+    ("rows[].channel", TEXT, "channel name"),
+    ("rows[].form", TEXT, "arrhenius, jpl_falloff or iupac_falloff"),
+    ("rows[].order", ONE, "reaction order of the channel"),
+    ("rows[]", OBJ, "the parameters", "evaluation_parameters"),
+    ("rows[].temperature_range_K", K, "fitted temperatures [lowest, highest]"),
+    ("rows[].pressure_range_bar", BAR, "fitted pressures (falloff forms of pressure studies, else null)"),
+    ("rows[].number_density_range_per_cm3", PER_CM3, "fitted [M] (falloff forms, else null)"),
+    ("rows[].bath_gas", TEXT, "collision partner (falloff forms, else null)"),
+    ("rows[].max_deviation_percent", PCT, "largest |k_form/k - 1| on the grid and between its points"),
+    ("rows[].rms_deviation_percent", PCT, "root mean square of the same"),
+    ("rows[].k0_max_deviation_percent", PCT, "largest deviation of the form's k0 from the computed one (falloff "
+                                             "forms; for Eckart channels the effective k0 of the Troe fit)"),
+    ("rows[].kinf_max_deviation_percent", PCT, "the same for k_inf"),
+    ("rows[].within_tolerance", FLAG, "max_deviation_percent within tolerance_percent"),
+    ("rows[].n_points", ONE, "points fitted"),
+    ("rows[].n_check_points", ONE, "further points between them in the deviation"),
+    ("rows[].f298", ONE, "f(298 K) of the uncertainty step's f(T) = f298 exp|g (1/T - 1/298 K)| (null without "
+                         "[uncertainty]; falloff forms: at uncertainty_pressure_bar)"),
+    ("rows[].g_K", K, "g of the same pair"),
+    ("rows[].uncertainty_pressure_bar", BAR, "the pressure of the falloff pair (nearest 1 bar), else null"),
+    ("rows[].notes", TEXT, "plain statements about the fit (list)"),
+))
+
+_EVAL_CSV = Document("tables/evaluation_forms.csv", "csv-tables.md", """\
+The rows of evaluation_forms.json, one per channel and form; columns that do not apply to a form
+are empty.""", _keys(
+    ("channel", TEXT, "channel name"),
+    ("form", TEXT, "arrhenius, jpl_falloff or iupac_falloff"),
+    ("Tmin", K, "lowest fitted temperature"),
+    ("Tmax", K, "highest fitted temperature"),
+    ("pmin", BAR, "lowest fitted pressure"),
+    ("pmax", BAR, "highest fitted pressure"),
+    ("bath gas", TEXT, "collision partner"),
+    ("A", "@A unit", "A (arrhenius)"),
+    ("A unit", TEXT, "unit of A"),
+    ("E/R", K, "E/R (arrhenius)"),
+    ("k0(300 K)", "@k0 unit", "k0 at 300 K"),
+    ("k0 unit", TEXT, "unit of k0"),
+    ("n", ONE, "k0 ~ (T/300)^-n"),
+    ("kinf(300 K)", "@kinf unit", "k_inf at 300 K"),
+    ("kinf unit", TEXT, "unit of k_inf"),
+    ("m", ONE, "k_inf ~ (T/300)^-m"),
+    ("Fc", ONE, "broadening factor"),
+    ("N", ONE, "IUPAC width"),
+    ("k0 E/R", K, "E/R in k0 (IUPAC)"),
+    ("kinf E/R", K, "E/R in k_inf (IUPAC)"),
+    ("max deviation", PCT, "largest deviation"),
+    ("rms deviation", PCT, "rms deviation"),
+    ("k0 max deviation", PCT, "largest deviation of k0"),
+    ("kinf max deviation", PCT, "largest deviation of k_inf"),
+    ("points", ONE, "points fitted"),
+    ("check points", ONE, "points between them"),
+    ("f298", ONE, "f(298 K) of the uncertainty step"),
+    ("g", K, "g of the uncertainty step"),
+    ("uncertainty pressure", BAR, "pressure of the falloff pair"),
+), "csv")
+
+_REF_CSV = Document("tables/reference_ratios.csv", "csv-tables.md", """\
+Computed against reference rate expressions ([[reference_rate]]), one row per reference and grid
+point inside its range (only with references).""", _keys(
+    ("reference", TEXT, "the reference's label"),
+    ("channel", TEXT, "channel"),
+    ("kind", TEXT, "evaluated or measured"),
+    ("quantity", TEXT, "k, k_inf or k(T, p)"),
+    ("T", K, "temperature"),
+    ("p", BAR, "pressure (k(T, p) rows of pressure studies)"),
+    ("number density", PER_CM3, "[M] (k(T, p) rows)"),
+    ("k computed", "@k unit", "computed k"),
+    ("k reference", "@k unit", "the reference's k"),
+    ("k unit", TEXT, "unit of the k columns"),
+    ("computed / reference", ONE, "the ratio"),
+), "csv")
+
 _RESULTS = Document("results.json", "results-json.md", """\
 Every number `tstrate run` computed, in one JSON document. The sections `comparisons`,
 `falloff` and `excitations` appear only when the study asks for them.""", _keys(
@@ -807,6 +937,8 @@ Every number `tstrate run` computed, in one JSON document. The sections `compari
     ("excitations[]", OBJ, "one excitation", "excitation"),
     ("isotopes", OBJ, "isotopologues (only with an [isotopes] section)", "isotopes"),
     ("uncertainty", OBJ, "how sure each number is (only with [uncertainty])", "uncertainty_results"),
+    ("references", LIST, "one entry per [[reference_rate]] of the study (only with them)"),
+    ("references[]", OBJ, "one reference expression and its ratios", "reference_comparison"),
 ))
 
 _INPUTS = Document("inputs.json", "results-json.md", """\
@@ -1253,7 +1385,8 @@ _COMMANDS.append(_cmd("uncertainty", "Uncertainty and sensitivity of every resul
 DOCUMENTS: dict[str, Document] = {d.name: d for d in
                                   [_RESULTS, _INPUTS, _FITS, _FITS_CSV, _THERMO_CSV, _RATES_CSV,
                                    _PFITS_CSV, _ISO_BETA_CSV, _ISO_KIE_CSV, _ISO_FRAC_CSV, _ISO_THETA_CSV,
-                                   _UNC_CSV, _UNC_RANK_CSV, _MECHANISM, *_COMMANDS]}
+                                   _UNC_CSV, _UNC_RANK_CSV, _EVAL_FORMS, _EVAL_CSV, _REF_CSV, _MECHANISM,
+                                   *_COMMANDS]}
 
 PAGES = {
     "results-json.md": ("results.json and inputs.json", """\

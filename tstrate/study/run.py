@@ -50,6 +50,9 @@ class StudyResult:
     capture: physics.capture.CaptureLimit per bimolecular channel (TST against the capture ceiling).
     isotopes: study.isotopes.IsotopeResult when the study has an [isotopes] section, else None.
     uncertainty: study.uncertainty.StudyUncertainty when the study's [uncertainty] asks for it, else None.
+    evaluation_forms: study.evaluation_forms.StudyEvaluationForms (A and E/R per channel, the NASA/JPL
+        and IUPAC falloff forms per falloff channel), or None.
+    references: study.references.ReferenceComparison per [[reference_rate]] (empty without).
     """
 
     study: Study
@@ -65,6 +68,8 @@ class StudyResult:
     capture: tuple = field(default=())
     isotopes: object | None = None
     uncertainty: object | None = None
+    evaluation_forms: object | None = None
+    references: tuple = ()
 
 
 def steps(study: Study) -> list[str]:
@@ -188,10 +193,16 @@ def compute_study(study: Study, *, low_modes: LowModes = HARMONIC,
     warnings += list(fits.warnings)
     for cf in fits.channels:
         warnings += list(cf.warnings)
+    from tstrate.study.evaluation_forms import study_evaluation_forms
+    from tstrate.study.references import compare_references
+
+    evaluation_forms = study_evaluation_forms(study, rates, falloff, low_modes=low_modes,
+                                              max_deviation=opts.max_deviation)
+    references = compare_references(study, rates, falloff)
     result = StudyResult(study=study, low_modes=low_modes, thermo=thermo, rates=rates,
                          comparisons=comparisons, falloff=falloff, excitations=excitations, fits=fits,
                          pressure_fits=pressure_fits, warnings=tuple(dict.fromkeys(warnings)), capture=capture,
-                         isotopes=isotopes)
+                         isotopes=isotopes, evaluation_forms=evaluation_forms, references=references)
     if wants_uncertainty(study):
         step("uncertainty")
         from dataclasses import replace
