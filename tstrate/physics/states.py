@@ -267,7 +267,9 @@ def count_states(frequencies_cm1, max_energy_J_per_mol: float, *, grain_cm1: flo
         (see :func:`check_grain`).
     rotors:
         :class:`Rotor` objects convolved in (internal free rotors, K-rotor,
-        2-D external rotor) before the oscillators are added.
+        2-D external rotor) before the oscillators are added; any degree of freedom with
+        ``counts(n_grains, grain_J_per_mol)`` (:mod:`tstrate.physics.modes`), such as a
+        hindered rotor's exact levels, is convolved the same way.
     refine:
         Refine a grain that is too coarse instead of only warning.
     """
@@ -286,8 +288,9 @@ def count_states(frequencies_cm1, max_energy_J_per_mol: float, *, grain_cm1: flo
     counts = np.zeros(n)
     counts[0] = 1.0
     for rotor in rotors:
-        if not isinstance(rotor, Rotor):
-            raise InputError(f"rotors must be Rotor objects, got {type(rotor).__name__}", field="rotors")
+        if not callable(getattr(rotor, "counts", None)):
+            raise InputError(f"rotors must be Rotor objects or other degrees of freedom with counts(), got "
+                             f"{type(rotor).__name__}", field="rotors")
         counts = convolve_counts(counts, rotor.counts(n, grain))
     if freqs.size:
         counts = add_oscillators(counts, freqs, grain_cm1)
