@@ -32,9 +32,9 @@ import numpy as np
 
 from tstrate.geometry import bonds as covalent_bonds
 
-#: geometric tolerance for the symmetry number of a top [Angstrom] (common practice, as for the
-#: rotational symmetry of the whole molecule)
-TOP_SYMMETRY_TOLERANCE_A = 0.05
+#: geometric tolerance for the symmetry number of a top [Angstrom] (our choice: it accepts the tilt of a few
+#: degrees of a methyl group in an optimised structure, such as methanol's, and no distinct atoms)
+TOP_SYMMETRY_TOLERANCE_A = 0.15
 #: the folds tried for a top's symmetry number, highest first
 TOP_FOLDS = (6, 4, 3, 2)
 #: a top whose own moment about the bond axis is below this is no rotor [u Angstrom^2]
