@@ -86,3 +86,20 @@ def test_rigid_scan_and_species_file_round_trip(tmp_path):
     s1 = thermochemistry(new, 298.15).entropy_J_per_mol_K
     s2 = thermochemistry(back, 298.15).entropy_J_per_mol_K
     np.testing.assert_allclose(s1, s2, atol=1e-6)
+
+
+@pytest.mark.slow
+def test_compute_rotors_command(tmp_path, capsys):
+    from tstrate.cli.main import main
+    from tstrate.io.species import read_species, write_species
+
+    sp, _ = _methanol_minimum()
+    src = write_species(sp, tmp_path / "meoh.toml")
+    out = tmp_path / "meoh_rotors.toml"
+    assert main(["compute", "rotors", str(src), "-o", str(out), "--step-deg", "20", "--quiet"]) == 0
+    text = capsys.readouterr().out
+    assert "rotor C1-O2" in text and "projection" in text
+    [r] = read_species(out).hindered_rotors
+    assert r.symmetry_number == 3 and len(r.points_deg) == 6
+    # an existing output is refused without --force, with exit status 2 as a one-line error
+    assert main(["compute", "rotors", str(src), "-o", str(out), "--quiet"]) == 2
