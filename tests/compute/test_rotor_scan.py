@@ -103,3 +103,16 @@ def test_compute_rotors_command(tmp_path, capsys):
     assert r.symmetry_number == 3 and len(r.points_deg) == 6
     # an existing output is refused without --force, with exit status 2 as a one-line error
     assert main(["compute", "rotors", str(src), "-o", str(out), "--quiet"]) == 2
+
+
+def test_relaxed_scan_of_a_transition_state_is_refused():
+    from pathlib import Path
+
+    from tstrate.compute.rotor_scan import species_with_scanned_rotors
+    from tstrate.errors import InputError
+    from tstrate.io.species import read_species
+
+    ts = read_species(Path(__file__).resolve().parents[1] / "data" / "falloff" / "ts_bare.toml")
+    with pytest.raises(InputError, match="leaves the saddle point") as err:
+        species_with_scanned_rotors(ts, relaxed=True)
+    assert "ts_bare.toml" in str(err.value) and "rigid" in str(err.value)

@@ -112,3 +112,13 @@ def test_bond_errors(tmp_path):
     path.write_text(body + "[[hindered_rotors]]\nbond_atoms = [1, 2]\nreplaces_cm1 = 500\nbarriers_cm1 = [0, 0, 1]\n")
     with pytest.raises(InputError, match="0 real modes within"):
         read_species(path)
+
+
+def test_a_poor_fit_is_reported_in_the_warnings(tmp_path):
+    # a sawtooth cannot be followed by one harmonic: RMS error of several kJ/mol
+    angles = list(range(0, 360, 30))
+    energies = [float(a % 120) / 10 for a in angles]
+    sp = read_species(_with_rotor_table(tmp_path, f"angles_deg = {angles}\nenergies_kJ_per_mol = {energies}\n"
+                                        "fourier_terms = 1\n"))
+    assert any("Fourier fit misses the points" in w for w in sp.warnings)
+    assert sp.hindered_rotors[0].fit_rms_J_per_mol > 500

@@ -4,7 +4,7 @@ For each rotatable bond of a species (:func:`tstrate.physics.torsions.find_torsi
 asked for) the top is turned about the bond over one period, 360/sigma degrees, in equal steps:
 
 - **rigid** scan: the top is turned as a rigid body (Rodrigues' rotation); one single point per angle;
-- **relaxed** scan: at each angle the dihedral (a frame neighbour, the bond, a top atom) is held by
+- **relaxed** scan (minima only: a transition state would be minimised off its saddle): at each angle the dihedral (a frame neighbour, the bond, a top atom) is held by
   ASE's ``FixInternals`` and every other coordinate is minimised with BFGS, each angle starting
   from the relaxed geometry of the previous one.
 
@@ -116,6 +116,10 @@ def species_with_scanned_rotors(species: Species, settings: Settings = Settings(
     from tstrate.io.species import HinderedRotorInput, resolve_hindered_rotor
     from tstrate.physics.vibrations import vibrational_analysis
 
+    if relaxed and species.kind == "transition_state":
+        raise InputError(f"{species.name!r} is a transition state: a relaxed scan minimises every other "
+                         "coordinate and leaves the saddle point", file=species.source, field="relaxed",
+                         hint="scan transition states rigidly (leave out --relaxed)")
     if species.hessian_J_per_m2 is None:
         raise InputError(f"species {species.name!r} has no Hessian; the modes the rotors replace are found by "
                          "projection onto its normal modes", file=species.source, field="hessian")

@@ -278,6 +278,11 @@ def check_wavenumber_bounds(freqs, allow_imaginary_below_cm1: float = 0.0, *, fi
                               "right, set accept_unusual_wavenumbers = true (--accept-unusual-wavenumbers)")
 
 
+#: a rotor's Fourier fit whose RMS error exceeds both of these is reported in the species' warnings
+#: (our choice: 0.5 kJ/mol, and 5 % of the span of the points)
+FIT_RMS_WARNING_J_PER_MOL = 500.0
+FIT_RMS_WARNING_FRACTION = 0.05
+
 #: name of the reduced-moment definition computed from the geometry (HinderedRotor.moment_definition)
 PITZER_MOMENT = "Pitzer 1946 (zero overall linear and angular momentum)"
 
@@ -346,6 +351,11 @@ def resolve_hindered_rotor(spec: HinderedRotorInput, symbols, positions_A, masse
             points_deg = tuple(np.rad2deg(fit.angles_rad))
             points_e = tuple(fit.energies_J_per_mol)
             rms, worst = fit.rms_J_per_mol, fit.max_abs_J_per_mol
+            span = float(np.ptp(fit.energies_J_per_mol))
+            if warnings is not None and rms > max(FIT_RMS_WARNING_J_PER_MOL, FIT_RMS_WARNING_FRACTION * span):
+                warnings.append(f"{key}: the Fourier fit misses the points by {rms / 1e3:.3g} kJ/mol RMS (largest "
+                                f"{worst / 1e3:.3g} kJ/mol, over a span of {span / 1e3:.3g} kJ/mol); more "
+                                "fourier_terms or a smoother scan may be needed")
         elif form == "barriers":
             pot = rot.TorsionPotential.from_barriers(spec.potential[1])
         else:
