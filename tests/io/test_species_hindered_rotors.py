@@ -20,7 +20,7 @@ from tstrate.physics.rotors import TorsionPotential, rotor_model
 from tstrate.physics.states import count_states
 from tstrate.physics.thermo import harmonic_oscillators, thermochemistry, zero_point_energy_J_per_mol
 from tstrate.physics.unimolecular import free_rotor_states
-from tstrate.units import CM1_J, N_A, R
+from tstrate.units import CM1_J, N_A
 
 DATA = Path(__file__).resolve().parents[1] / "data" / "rotors"
 CM1 = CM1_J * N_A

@@ -30,7 +30,7 @@ import math
 
 import numpy as np
 import pytest
-from scipy.constants import N_A, R, c as c_light, h, hbar, k as kB, physical_constants
+from scipy.constants import N_A, R, c as c_light, h, k as kB, physical_constants
 from scipy.special import i0e
 
 from tstrate.physics import torsions

@@ -17,7 +17,7 @@ from pathlib import Path
 
 import numpy as np
 import pytest
-from scipy.constants import R, c as c_light, h, k as kB, N_A
+from scipy.constants import N_A, R, c as c_light, h
 
 from tstrate.io.species import HinderedRotorInput, resolve_hindered_rotor
 from tstrate.io.study import read_study

@@ -70,9 +70,9 @@ from tstrate.arrays import temperatures_K
 from tstrate.errors import InputError
 from tstrate.model import Channel, Species
 from tstrate.model.settings import FalloffSettings
-from tstrate.physics.rotors import rotor_model
 from tstrate.physics import collisions as coll
 from tstrate.physics.falloff import strong_collision_falloff, thermal_distribution
+from tstrate.physics.rotors import rotor_model
 from tstrate.physics.rrkm import ExternalRotation, MicrocanonicalRate, microcanonical_rate
 from tstrate.physics.states import (CM1_J_PER_MOL, GRAIN_FRACTION_OF_LOWEST, Rotor, StateCounts,
                                     convolve_counts, count_states)
