@@ -48,7 +48,7 @@ THERMAL_SPAN_KT = 50.0
 #: most harmonics fitted by default (common practice for torsional scans: up to six terms)
 DEFAULT_MAX_HARMONICS = 6
 #: largest free-rotor basis (m up to this value; a matrix of 2 M + 1 rows)
-MAX_BASIS_M = 4000
+MAX_BASIS_M = 2000
 
 
 def rotational_constant_J_per_mol(moment_amu_A2: float) -> float:
