@@ -84,6 +84,23 @@ def species_files(tmp_path) -> list[Path]:
         electronic_levels=[{"energy_cm1": 0.0, "degeneracy": 1}, {"energy_cm1": 8000.0, "degeneracy": 3}],
         free_rotors=[{"replaces_cm1": 220.0, "symmetry_number": 1, "reduced_moment_amu_A2": 0.85},
                      {"replaces_cm1": 550.0, "symmetry_number": 2, "rotational_constant_cm1": 20.0}],
+        # hindered rotors: the two C-O torsions, each potential form once; the modes they replace are
+        # invented (each needs its own), read only for the keys
+        hindered_rotors=[
+            {"bond_atoms": [1, 3], "replaces_cm1": 3640.0, "symmetry_number": 1, "reduced_moment_amu_A2": 0.8,
+             "angles_deg": [0.0, 90.0, 180.0, 270.0], "energies_kJ_per_mol": [0.0, 20.0, 40.0, 20.0],
+             "fourier_terms": 1},
+            {"bond_atoms": [1, 4], "replaces_cm1": 3630.0, "angles_deg": [0.0, 120.0, 240.0],
+             "energies_cm1": [0.0, 900.0, 900.0]},
+            {"bond_atoms": [1, 3], "replaces_cm1": 1830.0, "angles_deg": [0.0, 120.0, 240.0],
+             "energies_hartree": [-264.1, -264.09, -264.09]},
+            {"bond_atoms": [1, 4], "replaces_cm1": 1450.0, "barriers_cm1": [500.0, 3000.0]},
+            {"bond_atoms": [1, 3], "replaces_cm1": 1380.0, "barriers_kJ_per_mol": [5.0, 30.0]},
+            {"bond_atoms": [1, 4], "replaces_cm1": 1180.0, "cos_terms_cm1": [-250.0, -1500.0],
+             "sin_terms_cm1": [10.0, 0.0]},
+            {"bond_atoms": [1, 3], "replaces_cm1": 1010.0, "cos_terms_kJ_per_mol": [-2.5, -15.0],
+             "sin_terms_kJ_per_mol": [0.0, 0.1]},
+        ],
         provenance={"method": "invented test data"})
     d2o = tomllib.loads((DATA / "species" / "d2o_hessian.toml").read_text())
     d2o["frequencies_cm1"] = [1200.0, 2700.0, 2800.0]   # only counted when a Hessian is given
@@ -265,6 +282,8 @@ def test_species_files_with_every_key_are_read(tmp_path):
     assert h2co3.provenance["single_point_method"] == "CCSD(T)/CBS (invented)"
     assert [(lv.energy_cm1, lv.degeneracy) for lv in h2co3.electronic_levels] == [(0.0, 1), (8000.0, 3)]
     assert [r.replaces_cm1 for r in h2co3.free_rotors] == [220.0, 550.0]
+    assert [r.potential_source for r in h2co3.hindered_rotors] == ["points"] * 3 + ["barriers"] * 2 + ["terms"] * 2
+    assert h2co3.hindered_rotors[0].reduced_moment_amu_A2 == 0.8 and h2co3.hindered_rotors[1].symmetry_number == 1
     np.testing.assert_allclose(h2co3.masses_amu, parsed[0]["masses_amu"])
     assert h2co3.lennard_jones == (4.2, 400.0)
     assert d2o.masses_amu[1] == pytest.approx(2.014, abs=1e-3)   # deuterium from `isotopes`

@@ -113,6 +113,7 @@ def outputs(demo_run, tmp_path_factory):
     rotor = tmp / "h2co3_rotor.toml"
     rotor.write_text((ROOT / "tests/data/falloff/h2co3.toml").read_text() + FREE_ROTOR)
     got.append(("tstrate thermo --json", run_cli_json(["thermo", str(DEMO / "h2co3.toml"), str(rotor),
+                                                       str(ROOT / "tests/data/rotors/ethane.toml"),
                                                        "-T", "200", "300", "--json"])))
     for command in ("rates", "compare", "falloff", "excite", "isotopes"):
         got.append((f"tstrate {command} --json", run_cli_json([command, str(study), "--json"])))

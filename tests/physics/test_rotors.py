@@ -30,7 +30,7 @@ import math
 
 import numpy as np
 import pytest
-from scipy.constants import N_A, R, c as c_light, h, hbar, k as kB, physical_constants
+from scipy.constants import N_A, R, c as c_light, h, k as kB, physical_constants
 from scipy.special import i0e
 
 from tstrate.physics import torsions
@@ -223,7 +223,8 @@ def test_methanol_entropy_and_reduced_moment():
     symbols, x = methanol()
     m = default_masses_amu(symbols)
     [tor] = torsions.find_torsions(symbols, x, m)
-    assert tor.symmetry_number == 1 and sorted(symbols[i] for i in tor.top) == ["H", "O"]
+    # the OH top is onefold, its methyl frame threefold: the rotation's symmetry number is 3
+    assert tor.symmetry_number == 3 and sorted(symbols[i] for i in tor.top) == ["H", "O"]
     moment = torsions.reduced_moment_amu_A2(x, m, tor.frame_atom, tor.top_atom, tor.top)
     assert b_cm1(moment) == pytest.approx(27.6, rel=0.03)  # F of Lees and Baker 1968 (from memory)
     # the potential in the rotor's own frame: the OH top turns, threefold through the methyl group
@@ -248,3 +249,25 @@ def test_rotate_top_keeps_bonds_and_finds_h2co3_torsions():
     assert np.allclose(d0[t.frame_atom, t.top_atom], d1[t.frame_atom, t.top_atom])
     with pytest.raises(ValueError, match="not bonded"):
         torsions.top_atoms(6, torsions.covalent_bonds(symbols, x), 4, 5)
+
+
+def test_free_and_hindered_rotors_answer_the_same_protocol():
+    """tstrate.physics.modes.DegreeOfFreedom: a states.Rotor (free) against the free-rotor formula of
+    thermo.internal_free_rotor (McQuarrie 1976), and a hindered rotor of vanishing barrier against both."""
+    from tstrate.physics.modes import DegreeOfFreedom
+    from tstrate.physics.states import Rotor
+    from tstrate.physics.thermo import internal_free_rotor
+
+    moment, sigma = 2.0, 3
+    T = np.array([200.0, 300.0, 1000.0])
+    classical = Rotor.from_moment_of_inertia(moment, sigma)
+    quantum = Rotor.from_moment_of_inertia(moment, sigma, quantum=True)
+    hindered = cosine_rotor(1e-6, sigma, moment)
+    for dof in (classical, quantum, hindered):
+        assert isinstance(dof, DegreeOfFreedom)
+    ref = internal_free_rotor(moment * AMU * 1e-20, sigma, T)
+    for got, want in zip(classical.thermo_parts(T), ref):
+        np.testing.assert_allclose(got, want, rtol=1e-12)
+    for got, want in zip(quantum.thermo_parts(T), hindered.thermo_parts(T)):
+        np.testing.assert_allclose(got, want, rtol=0, atol=1e-8)
+    assert classical.zpe_J_per_mol == 0.0 and abs(hindered.zpe_J_per_mol) < 1e-3

@@ -24,6 +24,9 @@ or from the output of a quantum-chemistry program.
             given the atoms that move
   read      species from an output file cclib parses (or a geometry ASE reads),
             optionally with a separate high-level single-point energy
+  rotors    hindered rotors of a species file: every rotatable bond (or --bond) scanned by
+            GFN2-xTB, rigid or relaxed, fitted as a Fourier series; the mode each replaces
+            found by projection onto the normal modes of the file's Hessian
   refine    better energies with PySCF: DFT/HF single points (default wB97X-D3BJ/def2-TZVP),
             optional DFT re-optimisation and Hessian, optional frozen-core CCSD(T)
 
@@ -155,6 +158,24 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
                         "as with a geometry file)",
             multiplicity_help="spin multiplicity 2S+1 (default: the one QC_FILE gives; required when "
                               "it gives none, as with xtb outputs and geometry files)")
+
+    p = sub.add_parser("rotors", help="hindered rotors of a species file from GFN2-xTB torsional scans",
+                       description="Scan every rotatable bond of a species (or the --bond ones) over one "
+                                   "period by GFN2-xTB and write the species with [[hindered_rotors]]: the "
+                                   "points, their Fourier fit, Pitzer's reduced moment, and the mode each "
+                                   "rotor replaces (by projection onto the normal modes of the file's Hessian).")
+    p.add_argument("species", metavar="SPECIES", help="species file (.toml) with a [hessian]")
+    p.add_argument("-o", "--output", help="species file to write (.toml); without it only a summary is printed")
+    p.add_argument("--bond", nargs=2, type=int, action="append", metavar=("FRAME", "TOP"),
+                   help="scan only this bond (1-based atoms, the top beyond the second); repeatable "
+                        "(default: every rotatable bond)")
+    p.add_argument("--step-deg", type=float, default=15.0, help="scan step in degrees (default %(default)s)")
+    p.add_argument("--relaxed", action="store_true", help="relax every other coordinate at each angle "
+                   "(default: rigid scan)")
+    p.add_argument("--fourier-terms", type=int, default=None, help="harmonics fitted (default: as many as "
+                   "the points allow, at most 6)")
+    _common(p, charge_help="ignored: the species file's charge is used",
+            multiplicity_help="ignored: the species file's multiplicity is used")
 
     from tstrate.cli.compute_refine import add_refine_arguments
     from tstrate.cli.compute_relay_any import add_relay_any_arguments
@@ -410,6 +431,38 @@ def _run_read(args) -> int:
     return 0
 
 
+def _run_rotors(args) -> int:
+    from tstrate.compute.rotor_scan import species_with_scanned_rotors
+    from tstrate.io.species import read_species
+
+    (out,) = _outputs(args, [args.species], "output")
+    sp = read_species(args.species)
+    bonds = [(a - 1, b - 1) for a, b in args.bond] if args.bond else None
+    new, scans = species_with_scanned_rotors(sp, _settings(args), bonds=bonds, step_deg=args.step_deg,
+                                             relaxed=args.relaxed, fourier_terms=args.fourier_terms)
+    new = new.with_changes(provenance=new.provenance | {"command": _command_line(args)})
+    _write(new, out)
+    lines = [_describe(new, out)]
+    for r in new.hindered_rotors:
+        barrier = (max(r.points_J_per_mol) - min(r.points_J_per_mol)) / 1e3 if r.points_J_per_mol else float("nan")
+        fit = f", fit RMS {r.fit_rms_J_per_mol / 1e3:.3f} kJ/mol" if r.fit_rms_J_per_mol is not None else ""
+        lines.append(f"  rotor {new.symbols[r.bond_atoms[0]]}{r.bond_atoms[0] + 1}-"
+                     f"{new.symbols[r.bond_atoms[1]]}{r.bond_atoms[1] + 1}: sigma {r.symmetry_number}, "
+                     f"I = {r.reduced_moment_amu_A2:.4f} u A2, barrier {barrier:.2f} kJ/mol{fit}; replaces "
+                     f"{r.replaces_cm1:.1f} cm-1 ({r.mode_assignment}"
+                     + (f", overlap {r.mode_overlap:.2f})" if r.mode_overlap is not None else ")"))
+    if args.json:
+        from tstrate.cli.common import print_json
+
+        from tstrate.output.records import hindered_rotor_records
+
+        print_json({"species": new.name, "output": str(out) if out else None,
+                    "hindered_rotors": hindered_rotor_records(new)})
+    else:
+        _print_text(lines)
+    return 0
+
+
 def _run_relay_any(args) -> int:
     from tstrate.cli.compute_relay_any import run_relay_any
 
@@ -428,7 +481,7 @@ def _run_refine(args) -> int:
 def run(args) -> int:
     action = {"minimum": _run_minimum, "saddle": _run_saddle, "relay": _run_relay,
               "read": _run_read, "refine": _run_refine,
-              "relay-any": _run_relay_any}[args.compute_command]
+              "relay-any": _run_relay_any, "rotors": _run_rotors}[args.compute_command]
     try:
         return action(args)
     except InputError as exc:

@@ -5,14 +5,18 @@ from __future__ import annotations
 HELP = "thermochemistry (S, Cp, H(T)-H(0), G, ZPE) of species files at 1 bar (or 1 atm)"
 DESCRIPTION = """\
 Ideal-gas thermochemistry of one or more species files: rigid rotor, harmonic
-oscillator (with optional quasi-harmonic treatment of low modes) and electronic
+oscillator (with optional quasi-harmonic treatment of low modes), free and
+hindered internal rotors ([[free_rotors]], [[hindered_rotors]]) and electronic
 levels, standard state 1 bar (--standard-pressure atm for 1 atm).
 
 JSON output (--json): one object with a list "species"; each entry has name,
 formula, kind, symmetry_number, optical_isomers, linear, frequencies_cm1
 (scaled, imaginary negative), free_rotors (each with replaces_cm1,
 symmetry_number, reduced_moment_amu_A2; the replaced modes are not harmonic
-and have no zero-point energy), zpe_kJ_per_mol, and arrays over temperature_K:
+and have no zero-point energy), hindered_rotors (bond, top_atoms,
+symmetry_number, reduced_moment_amu_A2, barrier_kJ_per_mol, Fourier terms,
+fit_rms_kJ_per_mol, replaces_cm1, mode_assignment, mode_overlap, zpe_cm1,
+levels_cm1), zpe_kJ_per_mol, and arrays over temperature_K:
 entropy_J_per_mol_K, heat_capacity_J_per_mol_K, enthalpy_increment_kJ_per_mol
 (H(T)-H(0)), gibbs_increment_kJ_per_mol (G(T)-H(0)); plus standard_pressure_bar
 conventions (standard pressure, masses, symmetry tolerance, optical isomers)

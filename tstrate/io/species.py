@@ -17,6 +17,7 @@ from __future__ import annotations
 
 import json
 import logging
+from dataclasses import dataclass
 import math
 import re
 from pathlib import Path
@@ -28,12 +29,12 @@ from tstrate.errors import InputError
 from tstrate.geometry import DEFAULT_TOLERANCE_A, is_linear
 from tstrate.io.keys import Key, Keys
 from tstrate.io.tables import Table, energy_keys, load_toml
-from tstrate.model.species import (KINDS, ROTOR_MATCH_CM1, ElectronicLevel, FreeRotor, Species,
-                                   check_geometry)
+from tstrate.model.species import (KINDS, ROTOR_MATCH_CM1, ElectronicLevel, FreeRotor, HinderedRotor,
+                                   Species, check_geometry)
 from tstrate.physics import symmetry as sym
 from tstrate.physics.vibrations import (HESSIAN_UNITS_J_PER_M2, default_masses_amu,
                                         isotope_mass_amu, vibrational_analysis)
-from tstrate.units import energy_to_J_per_mol
+from tstrate.units import CM1_J, HARTREE_J, N_A, energy_to_J_per_mol
 
 log = logging.getLogger(__name__)
 
@@ -83,6 +84,8 @@ SPECIES_KEYS = Keys((), "top level", "One species: a minimum or a transition sta
         default_text="one level of degeneracy `multiplicity`"),
     Key("free_rotors", "array of tables", "free internal rotors in place of harmonic modes "
         "(`[[free_rotors]]` below)"),
+    Key("hindered_rotors", "array of tables", "one-dimensional hindered internal rotors in place of harmonic "
+        "modes (`[[hindered_rotors]]` below)"),
     Key("hessian", "table", "Cartesian Hessian (`[hessian]` below)", required="one of `frequencies_cm1` / "
         "`[hessian]`"),
     Key("provenance", "table", "free-form notes on where the data come from (`[provenance]` below)"),
@@ -129,6 +132,59 @@ FREE_ROTORS_KEYS = Keys(
         Key("rotational_constant_cm1", "number", "rotational constant B = h / (8 pi^2 c I) of the rotor",
             required="one of `reduced_moment_amu_A2` / `rotational_constant_cm1`", unit="cm-1"),
     ))
+#: energy units of hindered-rotor potential keys, by key suffix: J/mol per unit
+ROTOR_ENERGY_SUFFIXES = {"kJ_per_mol": 1e3, "cm1": CM1_J * N_A, "hartree": HARTREE_J * N_A}
+_ONE_POTENTIAL = ("one potential form: `angles_deg` with `energies_*`, or `barriers_*`, or `cos_terms_*` "
+                  "(with optional `sin_terms_*`)")
+HINDERED_ROTORS_KEYS = Keys(
+    ("hindered_rotors", "[]"), "[[hindered_rotors]]",
+    "One table per one-dimensional hindered rotor: the top (the atoms bonded beyond `bond_atoms[1]`, found "
+    "from the connectivity) turns about the bond against the rest of the molecule. The torsion angle phi "
+    "is 0 at the file's geometry and grows right-handed about the direction from the first atom to the "
+    "second; the potential is a Fourier series, V(0) = 0, given by its coefficients or fitted to points "
+    "(the fit's RMS and largest error are reported). The rotor's levels are the exact eigenvalues of the "
+    "1-D Schrodinger equation in a free-rotor basis; they enter the partition function, the zero-point "
+    "energy and RRKM / master-equation state counts, and each counts 1/symmetry_number. The rotor "
+    "replaces one harmonic mode: the mode of largest overlap with the torsion among the normal modes "
+    "of the `[hessian]` (projection), or the mode within "
+    f"{ROTOR_MATCH_CM1:g} cm-1 of `replaces_cm1` (wavenumber match). Scans are written by `tstrate compute "
+    "rotors`.", (
+        Key("bond_atoms", "list of numbers", "the bond, `[frame atom, top atom]`, 1-based atom numbers of "
+            "`geometry`", required=True, unit="1"),
+        Key("symmetry_number", "integer", "symmetry number of the rotor",
+            default_text="detected: the least common multiple of the folds of the top and of the rest of "
+            "the molecule about the bond (the largest n of 6, 4, 3, 2 for which a turn by 360/n degrees maps "
+            "the side onto itself, else 1): 3 for a methyl group or for methanol", unit="1"),
+        Key("reduced_moment_amu_A2", "number", "reduced moment of inertia of the rotor",
+            default_text="Pitzer's reduced moment from the geometry (zero overall linear and angular "
+            "momentum)", unit="u Angstrom^2"),
+        Key("replaces_cm1", "number", "the harmonic mode the rotor replaces, unscaled (wavenumber match)",
+            default_text="by projection of the torsion onto the normal modes of the `[hessian]`", unit="cm-1"),
+        Key("angles_deg", "list of numbers", "torsion angles of potential points, from the geometry",
+            required=_ONE_POTENTIAL, unit="degree"),
+        Key("energies_kJ_per_mol", "list of numbers", "energies of the points (any common zero)",
+            required="with `angles_deg`: one of `energies_kJ_per_mol` / `energies_cm1` / `energies_hartree`",
+            unit="kJ/mol"),
+        Key("energies_cm1", "list of numbers", "energies of the points (any common zero)",
+            required="with `angles_deg`: one of the `energies_*`", unit="cm-1"),
+        Key("energies_hartree", "list of numbers", "energies of the points (any common zero)",
+            required="with `angles_deg`: one of the `energies_*`", unit="hartree"),
+        Key("fourier_terms", "integer", "harmonics fitted to the points (multiples of the symmetry number)",
+            default_text="as many as the points allow, at most 6", unit="1"),
+        Key("barriers_cm1", "list of numbers", "V_1, V_2, ... of V(phi) = sum_k (V_k / 2) (1 - cos k phi) "
+            "(the tabulated form: `[0, 0, 1024]` is a threefold barrier of 1024 cm-1)",
+            required=_ONE_POTENTIAL, unit="cm-1"),
+        Key("barriers_kJ_per_mol", "list of numbers", "as `barriers_cm1`", required=_ONE_POTENTIAL,
+            unit="kJ/mol"),
+        Key("cos_terms_cm1", "list of numbers", "a_1, a_2, ... of V(phi) = sum_k [a_k cos k phi + b_k sin k "
+            "phi] + constant", required=_ONE_POTENTIAL, unit="cm-1"),
+        Key("sin_terms_cm1", "list of numbers", "b_1, b_2, ... of the same series", default_text="zeros",
+            unit="cm-1"),
+        Key("cos_terms_kJ_per_mol", "list of numbers", "as `cos_terms_cm1`", required=_ONE_POTENTIAL,
+            unit="kJ/mol"),
+        Key("sin_terms_kJ_per_mol", "list of numbers", "as `sin_terms_cm1`", default_text="zeros",
+            unit="kJ/mol"),
+    ))
 HESSIAN_KEYS = Keys(("hessian",), "[hessian]",
                     "The Cartesian Hessian at the geometry; the frequencies are computed from it (mass "
                     "weighting, translations and rotations projected out).", (
@@ -144,7 +200,7 @@ PROVENANCE_KEYS = Keys(("provenance",), "[provenance]",
 
 #: every table of a species file, in the order the documentation lists them
 SPECIES_FILE = (SPECIES_KEYS, ENERGY_KEYS, SINGLE_POINT_KEYS, ISOTOPES_KEYS, LENNARD_JONES_KEYS,
-                ELECTRONIC_LEVELS_KEYS, FREE_ROTORS_KEYS, HESSIAN_KEYS, PROVENANCE_KEYS)
+                ELECTRONIC_LEVELS_KEYS, FREE_ROTORS_KEYS, HINDERED_ROTORS_KEYS, HESSIAN_KEYS, PROVENANCE_KEYS)
 
 
 # ---- geometry ---------------------------------------------------------------------
@@ -222,6 +278,124 @@ def check_wavenumber_bounds(freqs, allow_imaginary_below_cm1: float = 0.0, *, fi
                               "right, set accept_unusual_wavenumbers = true (--accept-unusual-wavenumbers)")
 
 
+#: a rotor's Fourier fit whose RMS error exceeds both of these is reported in the species' warnings
+#: (our choice: 0.5 kJ/mol, and 5 % of the span of the points)
+FIT_RMS_WARNING_J_PER_MOL = 500.0
+FIT_RMS_WARNING_FRACTION = 0.05
+
+#: name of the reduced-moment definition computed from the geometry (HinderedRotor.moment_definition)
+PITZER_MOMENT = "Pitzer 1946 (zero overall linear and angular momentum)"
+
+
+@dataclass(frozen=True)
+class HinderedRotorInput:
+    """A hindered rotor as a species file (or a caller) gives it, before the geometry, masses and
+    normal modes fill in what is left out. 0-based ``bond_atoms``; energies in J/mol; angles in rad.
+
+    potential: ("points", angles_rad, energies_J_per_mol, fourier_terms or None),
+        ("barriers", V_k list) or ("terms", cos list, sin list).
+    key: where errors point, e.g. ``hindered_rotors[0]``.
+    """
+
+    bond_atoms: tuple[int, int]
+    potential: tuple
+    symmetry_number: int | None = None
+    reduced_moment_amu_A2: float | None = None
+    replaces_cm1: float | None = None
+    potential_source: str | None = None
+    key: str = "hindered_rotors"
+
+
+def resolve_hindered_rotor(spec: HinderedRotorInput, symbols, positions_A, masses_amu, normal_modes=None, *,
+                           file=None, avoid_cm1=(), warnings: list | None = None,
+                           allow_imaginary: bool = False) -> HinderedRotor:
+    """A :class:`HinderedRotor` from ``spec``: the top from the connectivity, the symmetry number and
+    Pitzer's reduced moment from the geometry unless given, the potential fitted or converted, and the
+    mode it replaces by projection onto ``normal_modes`` (a :class:`~tstrate.physics.vibrations.NormalModes`)
+    unless ``replaces_cm1`` is given. ``avoid_cm1``: wavenumbers of modes already replaced;
+    ``allow_imaginary``: small imaginary modes of a minimum (tolerated as real) may be chosen."""
+    from tstrate.geometry import bonds
+    from tstrate.physics import rotors as rot
+    from tstrate.physics import torsions
+
+    key = spec.key
+    n = len(symbols)
+
+    def bad(sub, problem, hint=None):
+        return InputError(problem, file=file, field=f"{key}.{sub}" if sub else key, hint=hint)
+
+    frame, tip = (int(a) for a in spec.bond_atoms)
+    if not (0 <= frame < n and 0 <= tip < n):
+        raise bad("bond_atoms", f"atoms {frame + 1} and {tip + 1}: the geometry has {n} atoms")
+    try:
+        top = torsions.top_atoms(n, bonds(symbols, positions_A), frame, tip)
+    except ValueError as exc:
+        raise bad("bond_atoms", str(exc), hint="name two bonded atoms, frame atom first, on no ring") from None
+    if torsions.top_moment_amu_A2(positions_A, masses_amu, frame, tip, top) < torsions.MIN_TOP_MOMENT_AMU_A2:
+        raise bad("bond_atoms", f"the top beyond atom {tip + 1} has no moment about the bond (all its atoms "
+                  "lie on the axis)")
+    sigma = spec.symmetry_number
+    if sigma is None:
+        sigma = torsions.rotor_symmetry_number(symbols, positions_A, masses_amu, frame, tip, top)
+    if spec.reduced_moment_amu_A2 is None:
+        moment, definition = torsions.reduced_moment_amu_A2(positions_A, masses_amu, frame, tip, top), PITZER_MOMENT
+    else:
+        moment, definition = float(spec.reduced_moment_amu_A2), "given"
+    form = spec.potential[0]
+    points_deg, points_e, rms, worst = (), (), None, None
+    try:
+        if form == "points":
+            _, angles, energies, terms = spec.potential
+            fit = rot.fit_potential(angles, energies, symmetry_number=sigma, harmonics=terms)
+            pot = fit.potential
+            points_deg = tuple(np.rad2deg(fit.angles_rad))
+            points_e = tuple(fit.energies_J_per_mol)
+            rms, worst = fit.rms_J_per_mol, fit.max_abs_J_per_mol
+            span = float(np.ptp(fit.energies_J_per_mol))
+            if warnings is not None and rms > max(FIT_RMS_WARNING_J_PER_MOL, FIT_RMS_WARNING_FRACTION * span):
+                warnings.append(f"{key}: the Fourier fit misses the points by {rms / 1e3:.3g} kJ/mol RMS (largest "
+                                f"{worst / 1e3:.3g} kJ/mol, over a span of {span / 1e3:.3g} kJ/mol); more "
+                                "fourier_terms or a smoother scan may be needed")
+        elif form == "barriers":
+            pot = rot.TorsionPotential.from_barriers(spec.potential[1])
+        else:
+            pot = rot.TorsionPotential(spec.potential[1], spec.potential[2])
+    except ValueError as exc:
+        raise bad("angles_deg" if form == "points" else None, str(exc)) from None
+    if pot.minimum_J_per_mol < -1.0 and warnings is not None:
+        warnings.append(f"{key}: the potential falls {-pot.minimum_J_per_mol / 1e3:.2f} kJ/mol below its value "
+                        "at the geometry; the geometry is not at the rotor's lowest well (the rotor's "
+                        "zero-point energy is measured from the geometry and comes out lower)")
+    overlap = None
+    if normal_modes is not None:
+        nm_f = np.abs(np.asarray(normal_modes.frequencies_cm1, dtype=float))
+        ov = torsions.mode_overlaps(positions_A, masses_amu, frame, tip, top, normal_modes.modes)
+        usable = np.array([not any(abs(f - a) <= ROTOR_MATCH_CM1 for a in avoid_cm1) for f in nm_f])
+        if not allow_imaginary:  # the reaction coordinate of a transition state is never a rotor
+            usable &= np.asarray(normal_modes.frequencies_cm1) > 0
+        best = int(np.argmax(np.where(usable, ov, -1.0)))
+    if spec.replaces_cm1 is None:
+        if normal_modes is None:
+            raise bad("replaces_cm1", "the mode the rotor replaces is unknown",
+                      hint="give replaces_cm1, or a [hessian] so that it is found by projection")
+        replaces, assignment, overlap = float(nm_f[best]), "projection", float(ov[best])
+    else:
+        replaces, assignment = float(spec.replaces_cm1), "wavenumber"
+        if normal_modes is not None:
+            j = int(np.argmin(np.abs(nm_f - replaces)))
+            overlap = float(ov[j])
+            if j != best and warnings is not None:
+                warnings.append(f"{key}: replaces_cm1 = {replaces:g} cm-1 names a mode of overlap {ov[j]:.2f} "
+                                f"with the torsion; the mode at {nm_f[best]:.1f} cm-1 overlaps most ({ov[best]:.2f})")
+    return HinderedRotor(bond_atoms=(frame, tip), top_atoms=top, symmetry_number=int(sigma),
+                         reduced_moment_amu_A2=float(moment), cos_terms_J_per_mol=tuple(pot.cos_J_per_mol),
+                         sin_terms_J_per_mol=tuple(pot.sin_J_per_mol), replaces_cm1=replaces,
+                         mode_assignment=assignment, mode_overlap=overlap,
+                         potential_source=spec.potential_source or form, points_deg=points_deg,
+                         points_J_per_mol=points_e, fit_rms_J_per_mol=rms, fit_max_J_per_mol=worst,
+                         moment_definition=definition)
+
+
 def build_species(name: str, symbols, positions_A, *, charge: int = 0, multiplicity: int = 1,
                   kind: str = "minimum", frequencies_cm1=None, hessian_J_per_m2=None,
                   energy_J_per_mol: float | None = None, geometry_energy_J_per_mol: float | None = None,
@@ -230,7 +404,7 @@ def build_species(name: str, symbols, positions_A, *, charge: int = 0, multiplic
                   masses_amu=None, isotopes: dict[int, int] | None = None,
                   electronic_levels=(), allow_imaginary_below_cm1: float = 0.0,
                   lennard_jones=None, provenance: dict | None = None, source: str | None = None,
-                  symmetry_tolerance_A: float = DEFAULT_TOLERANCE_A, free_rotors=(),
+                  symmetry_tolerance_A: float = DEFAULT_TOLERANCE_A, free_rotors=(), hindered_rotors=(),
                   symmetry_confirmed_with_isotopes: bool = False,
                   accept_unusual_wavenumbers: bool = False) -> Species:
     """Validate inputs and build a :class:`Species` (the one path from files and from Python).
@@ -239,7 +413,9 @@ def build_species(name: str, symbols, positions_A, *, charge: int = 0, multiplic
     given the frequencies are computed from it with the final masses; when both
     are given the listed frequencies are only checked for count. ``free_rotors``
     are :class:`~tstrate.model.FreeRotor` s; each must match one real mode (see the
-    module docstring).
+    module docstring). ``hindered_rotors`` are :class:`~tstrate.model.HinderedRotor` s or
+    :class:`HinderedRotorInput` s, resolved here with the final masses and the Hessian's normal modes
+    (:func:`resolve_hindered_rotor`).
 
     ``symmetry_number``, ``optical_isomers`` and ``linear`` left None are detected from the
     geometry and the final masses (:func:`tstrate.physics.symmetry.rotational_symmetry`); the
@@ -266,6 +442,7 @@ def build_species(name: str, symbols, positions_A, *, charge: int = 0, multiplic
                          field="allow_imaginary_below_cm1")
 
     is_lin = is_linear(positions, masses, symmetry_tolerance_A) if linear is None else bool(linear)
+    nm = None
     if hessian_J_per_m2 is not None:
         try:
             nm = vibrational_analysis(hessian_J_per_m2, positions, masses, is_lin)
@@ -316,6 +493,14 @@ def build_species(name: str, symbols, positions_A, *, charge: int = 0, multiplic
                         f"{detected.tolerance_A:g} Angstrom)")
     if optical_isomers is None:
         optical_isomers = detected_isomers
+    resolved = []
+    avoid = [r.replaces_cm1 for r in free_rotors]
+    for r in hindered_rotors:
+        if isinstance(r, HinderedRotorInput):
+            r = resolve_hindered_rotor(r, symbols, positions, masses, nm, file=file, avoid_cm1=avoid,
+                                       warnings=warnings, allow_imaginary=kind == "minimum")
+        avoid.append(r.replaces_cm1)
+        resolved.append(r)
     for w in warnings:
         log.warning("%s: %s", name, w)
 
@@ -328,7 +513,7 @@ def build_species(name: str, symbols, positions_A, *, charge: int = 0, multiplic
         linear=is_lin, electronic_levels=tuple(electronic_levels), hessian_J_per_m2=hessian_J_per_m2,
         geometry_energy_J_per_mol=geometry_energy_J_per_mol, provenance=dict(provenance or {}),
         source=source, lennard_jones=lennard_jones, free_rotors=tuple(free_rotors),
-        symmetry_given=given, rotation_group=None if "symmetry_number" in given else detected.group,
+        hindered_rotors=tuple(resolved), symmetry_given=given, rotation_group=None if "symmetry_number" in given else detected.group,
         warnings=tuple(warnings),
     )
 
@@ -420,6 +605,8 @@ def read_species(path: str | Path, *, name: str | None = None) -> Species:
         rotors.append(FreeRotor(replaces, sigma, value) if given[0] == "reduced_moment_amu_A2"
                       else FreeRotor.from_rotational_constant(replaces, sigma, value))
 
+    hindered = [_hindered_rotor_input(rt, len(symbols)) for rt in t.tables("hindered_rotors")]
+
     lj = None
     if "lennard_jones" in t:
         lt = t.table("lennard_jones")
@@ -456,11 +643,68 @@ def read_species(path: str | Path, *, name: str | None = None) -> Species:
         masses_amu=masses, isotopes=isotopes, electronic_levels=levels,
         allow_imaginary_below_cm1=t.get("allow_imaginary_below_cm1", float,
                                         SPECIES_KEYS.default("allow_imaginary_below_cm1")),
-        lennard_jones=lj, provenance=provenance, source=file, free_rotors=rotors,
+        lennard_jones=lj, provenance=provenance, source=file, free_rotors=rotors, hindered_rotors=hindered,
         symmetry_confirmed_with_isotopes=confirmed,
         accept_unusual_wavenumbers=t.get("accept_unusual_wavenumbers", bool,
                                          SPECIES_KEYS.default("accept_unusual_wavenumbers")),
     )
+
+
+def _suffixed(rt: Table, stem: str):
+    """(values in J/mol, key) of the one ``stem_<unit>`` key given, or (None, None)."""
+    given = [f"{stem}_{u}" for u in ROTOR_ENERGY_SUFFIXES if f"{stem}_{u}" in rt and f"{stem}_{u}" in HINDERED_ROTORS_KEYS]
+    if len(given) > 1:
+        raise rt.error(given[1], f"give one of {', '.join(given)}, not several")
+    if not given:
+        return None, None
+    unit = given[0][len(stem) + 1:]
+    return [v * ROTOR_ENERGY_SUFFIXES[unit] for v in rt.number_list(given[0], min_length=1)], given[0]
+
+
+def _hindered_rotor_input(rt: Table, natoms: int) -> HinderedRotorInput:
+    atoms = rt.number_list("bond_atoms")
+    if len(atoms) != 2 or any(a != int(a) or not 1 <= a <= natoms for a in atoms) or atoms[0] == atoms[1]:
+        raise rt.error("bond_atoms", f"expected two different atom numbers from 1 to {natoms}, got {atoms}")
+    sigma = rt.get("symmetry_number", int, None)
+    if sigma is not None and not 1 <= sigma <= 12:
+        raise rt.error("symmetry_number", f"must be from 1 to 12, got {sigma}")
+    moment = rt.get("reduced_moment_amu_A2", float, None)
+    if moment is not None and not moment > 0:
+        raise rt.error("reduced_moment_amu_A2", f"must be positive, got {moment!r}")
+    replaces = rt.get("replaces_cm1", float, None)
+    if replaces is not None and not replaces > 0:
+        raise rt.error("replaces_cm1", f"must be a positive wavenumber, got {replaces!r}")
+    energies, e_key = _suffixed(rt, "energies")
+    barriers, b_key = _suffixed(rt, "barriers")
+    cos, c_key = _suffixed(rt, "cos_terms")
+    sin, s_key = _suffixed(rt, "sin_terms")
+    forms = [k for k in (e_key or ("angles_deg" if "angles_deg" in rt else None), b_key, c_key) if k]
+    if len(forms) != 1:
+        raise rt.error(forms[1] if forms else None, "give " + _ONE_POTENTIAL
+                       + (f", not {' and '.join(forms)}" if forms else ""))
+    if s_key and not c_key:
+        raise rt.error(s_key, f"{s_key} goes with a cos_terms_* key")
+    terms = rt.get("fourier_terms", int, None)
+    if terms is not None and not e_key:
+        raise rt.error("fourier_terms", "fourier_terms goes with points (angles_deg and energies_*)")
+    if e_key or "angles_deg" in rt:
+        angles = rt.number_list("angles_deg")
+        if energies is None:
+            raise rt.error("angles_deg", "the points need energies: energies_kJ_per_mol, energies_cm1 or "
+                           "energies_hartree")
+        if len(angles) != len(energies):
+            raise rt.error(e_key, f"{len(energies)} energies for {len(angles)} angles")
+        potential = ("points", np.deg2rad(angles), np.asarray(energies), terms)
+    elif b_key:
+        potential = ("barriers", barriers)
+    else:
+        sin = sin if sin is not None else [0.0] * len(cos)
+        if len(sin) != len(cos):
+            raise rt.error(s_key, f"{len(sin)} sine terms for {len(cos)} cosine terms")
+        potential = ("terms", cos, sin)
+    rt.reject_unknown(HINDERED_ROTORS_KEYS)
+    return HinderedRotorInput((int(atoms[0]) - 1, int(atoms[1]) - 1), potential, sigma, moment, replaces,
+                              key=rt.prefix)
 
 
 # ---- writing ----------------------------------------------------------------------
@@ -539,6 +783,23 @@ def species_to_toml(species: Species, *, include_hessian: bool = True,
         lines += ["", "[[free_rotors]]", f"replaces_cm1 = {_toml_num(rotor.replaces_cm1)}",
                   f"symmetry_number = {rotor.symmetry_number}",
                   f"reduced_moment_amu_A2 = {_toml_num(rotor.reduced_moment_amu_A2)}"]
+    cm1 = CM1_J * N_A
+    with_hessian = include_hessian and species.hessian_J_per_m2 is not None
+    for r in species.hindered_rotors:
+        lines += ["", "[[hindered_rotors]]", f"bond_atoms = [{r.bond_atoms[0] + 1}, {r.bond_atoms[1] + 1}]",
+                  f"symmetry_number = {r.symmetry_number}"]
+        if r.moment_definition == "given":
+            lines.append(f"reduced_moment_amu_A2 = {_toml_num(r.reduced_moment_amu_A2)}")
+        if r.mode_assignment == "wavenumber" or not with_hessian:
+            lines.append(f"replaces_cm1 = {_toml_num(r.replaces_cm1)}")
+        if r.points_deg:
+            lines.append("angles_deg = [" + ", ".join(_toml_num(a) for a in r.points_deg) + "]")
+            lines.append("energies_kJ_per_mol = [" + ", ".join(_toml_num(e / 1e3) for e in r.points_J_per_mol)
+                         + "]")
+            lines.append(f"fourier_terms = {len(r.cos_terms_J_per_mol) // r.symmetry_number}")
+        else:
+            lines.append("cos_terms_cm1 = [" + ", ".join(_toml_num(a / cm1) for a in r.cos_terms_J_per_mol) + "]")
+            lines.append("sin_terms_cm1 = [" + ", ".join(_toml_num(b / cm1) for b in r.sin_terms_J_per_mol) + "]")
     if species.provenance:
         lines += ["", "[provenance]"]
         lines += [f"{_toml_key(k)} = {_toml_str(str(v))}" for k, v in species.provenance.items()]

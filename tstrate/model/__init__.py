@@ -5,5 +5,5 @@ name says otherwise (``_A``, ``_amu``, ``_cm1``).
 """
 
 from tstrate.model.species import (KINDS, TUNNELLING_FLOORS, TUNNELLING_MODELS, Channel,  # noqa: F401
-                                   ElectronicLevel, FreeRotor, Species)
+                                   ElectronicLevel, FreeRotor, HinderedRotor, Species)
 from tstrate.model.study import Conditions, Study  # noqa: F401

@@ -94,6 +94,58 @@ class FreeRotor:
         return cls(replaces_cm1, symmetry_number, moment_kg_m2 / (AMU * 1e-20))
 
 
+#: how the harmonic mode a hindered rotor replaces was chosen (values of HinderedRotor.mode_assignment)
+MODE_ASSIGNMENTS = ("projection", "wavenumber")
+#: largest symmetry number of an internal rotor accepted
+MAX_ROTOR_SYMMETRY_NUMBER = 12
+#: largest barrier of a torsional potential accepted [J/mol] (beyond any torsion: 1000 kJ/mol)
+MAX_TORSION_BARRIER_J_PER_MOL = 1.0e6
+
+
+@dataclass(frozen=True)
+class HinderedRotor:
+    """A 1-D hindered internal rotor that replaces one harmonic mode of a species.
+
+    bond_atoms: (frame atom, top atom), 0-based; the top turns about the bond axis.
+    top_atoms: 0-based atoms of the top (the top atom and all bonded beyond it), sorted.
+    symmetry_number: sigma of the rotor (3 for a methyl group).
+    reduced_moment_amu_A2: reduced moment of inertia [u Angstrom^2] (Pitzer's, from the geometry,
+        unless given).
+    cos_terms_J_per_mol, sin_terms_J_per_mol: (K,) Fourier coefficients of V(phi) [J/mol], harmonics
+        k = 1 .. K, V(0) = 0 at the species' geometry (see :mod:`tstrate.physics.rotors`).
+    replaces_cm1: unscaled wavenumber [cm^-1] of the real mode the rotor replaces.
+    mode_assignment: "projection" (the mode of largest overlap with the torsion, from the Hessian)
+        or "wavenumber" (the mode nearest a given wavenumber).
+    mode_overlap: squared overlap of the torsion with the replaced mode (0-1), when a Hessian is known.
+    potential_source: where the potential comes from ("points", "barriers", "terms", "scan ...").
+    points_deg, points_J_per_mol: the scan or file points the series was fitted to (angles [deg]
+        from the geometry, energies [J/mol] on the fit's scale), empty when given as coefficients.
+    fit_rms_J_per_mol, fit_max_J_per_mol: RMS and largest residual of that fit [J/mol].
+    moment_definition: the name of the reduced-moment definition used.
+    """
+
+    bond_atoms: tuple[int, int]
+    top_atoms: tuple[int, ...]
+    symmetry_number: int
+    reduced_moment_amu_A2: float
+    cos_terms_J_per_mol: tuple[float, ...]
+    sin_terms_J_per_mol: tuple[float, ...]
+    replaces_cm1: float | None = None
+    mode_assignment: str = "wavenumber"
+    mode_overlap: float | None = None
+    potential_source: str = "terms"
+    points_deg: tuple[float, ...] = ()
+    points_J_per_mol: tuple[float, ...] = ()
+    fit_rms_J_per_mol: float | None = None
+    fit_max_J_per_mol: float | None = None
+    moment_definition: str = "given"
+
+    @property
+    def label(self) -> str:
+        """``C1-O3`` style: the bond's atoms, 1-based (elements added by the species)."""
+        return f"{self.bond_atoms[0] + 1}-{self.bond_atoms[1] + 1}"
+
+
 @dataclass(frozen=True)
 class Species:
     """One stationary point with everything thermochemistry and rates need.
@@ -123,6 +175,7 @@ class Species:
     source: the file the species was read from, if any.
     lennard_jones: collision parameters (sigma [Angstrom], epsilon/k_B [K]) for falloff, if given.
     free_rotors: :class:`FreeRotor` s, each replacing one real harmonic mode (default none).
+    hindered_rotors: :class:`HinderedRotor` s, each replacing one real harmonic mode (default none).
     symmetry_given: which of :data:`SYMMETRY_FIELDS` were given (overrides); the others were
         detected from the geometry and masses, and a species file written from this record
         leaves them out, so that they are detected again (with the masses then in effect).
@@ -152,6 +205,7 @@ class Species:
     source: str | None = None
     lennard_jones: tuple[float, float] | None = None  # (sigma [Angstrom], epsilon/k_B [K])
     free_rotors: tuple[FreeRotor, ...] = ()
+    hindered_rotors: tuple[HinderedRotor, ...] = ()
     symmetry_given: tuple[str, ...] = SYMMETRY_FIELDS
     rotation_group: str | None = None
     warnings: tuple[str, ...] = ()
@@ -207,7 +261,7 @@ class Species:
         f = np.asarray(self.frequencies_cm1, dtype=float)
         free = [i for i in range(f.size) if f[i] > 0]
         taken = []
-        for rotor in self.free_rotors:
+        for rotor in self.free_rotors + self.hindered_rotors:
             if not free:
                 raise ValueError(f"{self.name}: more free rotors than real modes")
             j = min(free, key=lambda i: abs(f[i] - rotor.replaces_cm1))
@@ -219,7 +273,7 @@ class Species:
     def harmonic_frequencies_cm1(self) -> np.ndarray:
         """Scaled real wavenumbers [cm^-1] treated as harmonic oscillators: the real modes minus
         those replaced by free rotors. These enter Q_vib, the ZPE, state counts and thermal energies."""
-        if not self.free_rotors:
+        if not (self.free_rotors or self.hindered_rotors):
             return self.real_frequencies_cm1
         f = self.scaled_frequencies_cm1
         keep = f > 0
@@ -449,6 +503,7 @@ def _validate_species(sp: Species) -> None:
         raise bad("warnings", "warnings must be sentences (strings)")
     store("warnings", warnings)
     store("free_rotors", _check_free_rotors(tuple(sp.free_rotors), freqs, bad))
+    store("hindered_rotors", _check_hindered_rotors(tuple(sp.hindered_rotors), sp, freqs, bad))
 
 
 def _check_free_rotors(free_rotors, freqs: np.ndarray, bad) -> tuple[FreeRotor, ...]:
@@ -484,6 +539,69 @@ def _check_free_rotors(free_rotors, freqs: np.ndarray, bad) -> tuple[FreeRotor, 
                       f"free_rotors[{used[j]}]", hint="each mode can be replaced once")
         used[j] = i
         out.append(FreeRotor(float(freqs[j]), int(sigma), float(rotor.reduced_moment_amu_A2)))
+    return tuple(out)
+
+
+def _check_hindered_rotors(rotors, sp: Species, freqs: np.ndarray, bad) -> tuple[HinderedRotor, ...]:
+    """Atoms, symmetry number, moment and potential of each hindered rotor; each must replace one
+    real mode (by ``replaces_cm1``, within ROTOR_MATCH_CM1) that no free rotor and no other
+    hindered rotor replaces."""
+    n = len(sp.symbols)
+    real = np.flatnonzero(freqs > 0)
+    taken = {}
+    for i, fr in enumerate(sp.free_rotors):
+        taken[int(real[np.argmin(np.abs(freqs[real] - fr.replaces_cm1))])] = f"free_rotors[{i}]"
+    out = []
+    for i, r in enumerate(rotors):
+        key = f"hindered_rotors[{i}]"
+        if not isinstance(r, HinderedRotor):
+            raise bad(key, f"expected a HinderedRotor, got {type(r).__name__}")
+        atoms = tuple(int(a) for a in r.bond_atoms)
+        top = tuple(sorted(int(a) for a in r.top_atoms))
+        if len(atoms) != 2 or atoms[0] == atoms[1] or not all(0 <= a < n for a in atoms):
+            raise bad(f"{key}.bond_atoms", f"two different atoms of the {n} are needed, got "
+                      f"{[a + 1 for a in r.bond_atoms]} (1-based)")
+        if atoms[1] not in top or atoms[0] in top or not all(0 <= a < n for a in top) \
+                or len(set(top)) != len(top):
+            raise bad(f"{key}.top_atoms", "the top must hold the bond's second atom and not its first")
+        sigma = r.symmetry_number
+        if isinstance(sigma, bool) or not 1 <= finite_or_nan(sigma) <= MAX_ROTOR_SYMMETRY_NUMBER \
+                or int(sigma) != sigma:
+            raise bad(f"{key}.symmetry_number", f"must be an integer from 1 to {MAX_ROTOR_SYMMETRY_NUMBER}, "
+                      f"got {sigma!r}")
+        if not finite_or_nan(r.reduced_moment_amu_A2) > 0:
+            raise bad(f"{key}.reduced_moment_amu_A2", f"must be positive, got {r.reduced_moment_amu_A2!r}")
+        a = tuple(float(x) for x in r.cos_terms_J_per_mol)
+        b = tuple(float(x) for x in r.sin_terms_J_per_mol) or tuple(0.0 for _ in a)
+        if len(a) != len(b) or not all(math.isfinite(x) for x in a + b):
+            raise bad(f"{key}.potential", "the Fourier terms must be finite numbers, as many sine as cosine terms")
+        if sum(abs(x) for x in a + b) > MAX_TORSION_BARRIER_J_PER_MOL:
+            raise bad(f"{key}.potential", f"a torsional potential spanning over "
+                      f"{MAX_TORSION_BARRIER_J_PER_MOL / 1e3:g} kJ/mol is beyond any torsion",
+                      hint="check the energies' unit")
+        if r.mode_assignment not in MODE_ASSIGNMENTS:
+            raise bad(f"{key}.mode_assignment", f"unknown {r.mode_assignment!r}; use one of {MODE_ASSIGNMENTS}")
+        nu = finite_or_nan(r.replaces_cm1)
+        if not nu > 0:
+            raise bad(f"{key}.replaces_cm1", "the mode the rotor replaces is unknown",
+                      hint="give replaces_cm1, or a [hessian] so that the mode is found by projection")
+        dist = np.abs(freqs[real] - nu)
+        hits = real[dist <= ROTOR_MATCH_CM1]
+        if len(hits) != 1:
+            nearest = ", ".join(f"{freqs[j]:.2f}" for j in real[np.argsort(dist)[:3]]) or "none"
+            raise bad(f"{key}.replaces_cm1", f"{len(hits)} real modes within {ROTOR_MATCH_CM1:g} cm-1 of "
+                      f"{nu:g} cm-1; nearest modes: {nearest} cm-1",
+                      hint="give the unscaled wavenumber of exactly one mode")
+        j = int(hits[0])
+        if j in taken:
+            raise bad(f"{key}.replaces_cm1", f"the mode at {freqs[j]:.2f} cm-1 is already replaced by "
+                      f"{taken[j]}", hint="each mode can be replaced once")
+        taken[j] = key
+        out.append(replace(r, bond_atoms=atoms, top_atoms=top, symmetry_number=int(sigma),
+                           reduced_moment_amu_A2=float(r.reduced_moment_amu_A2), cos_terms_J_per_mol=a,
+                           sin_terms_J_per_mol=b, replaces_cm1=float(freqs[j]),
+                           points_deg=tuple(float(x) for x in r.points_deg),
+                           points_J_per_mol=tuple(float(x) for x in r.points_J_per_mol)))
     return tuple(out)
 
 

@@ -22,6 +22,8 @@ FIGURE_STEMS = {
     # panels: pressure, altitude, k_of_E
     "excitation": "excitation_{name}_{panel}",
     "isotopes": "isotopes_kie",
+    # {name}: species, {panel}: the rotor's bond (C1-O3)
+    "rotor": "rotor_{name}_{panel}",
 }
 #: the formats each figure is written in
 FIGURE_FORMATS = ("png", "svg")
@@ -165,3 +167,40 @@ def save_figure(fig, path, formats=None) -> list[Path]:
         written.append(target)
     _plt().close(fig)
     return written
+
+
+def rotor_figure(record: dict, species: str):
+    """A hindered rotor's potential V(phi) (the Fourier fit, the points it was fitted to) with its
+    levels as horizontal lines, energies in kJ/mol. ``record`` is one entry of
+    :func:`tstrate.output.records.hindered_rotor_records`."""
+    from tstrate.units import CM1_J, N_A
+
+    plt = _plt()
+    fig, ax = plt.subplots(figsize=(6.4, 4.4))
+    cm1_kj = CM1_J * N_A / 1e3
+    phi = np.linspace(0.0, 2 * np.pi, 721)
+    k = np.arange(1, len(record["cos_terms_cm1"]) + 1)
+    a = np.array(record["cos_terms_cm1"]) * cm1_kj
+    b = np.array(record["sin_terms_cm1"]) * cm1_kj
+    v = np.cos(np.outer(phi, k)) @ a + np.sin(np.outer(phi, k)) @ b - a.sum()
+    ax.plot(np.rad2deg(phi), v, color="C0", label="Fourier series")
+    if record["points_deg"]:
+        ax.plot(record["points_deg"], record["points_kJ_per_mol"], "o", color="C1", ms=4,
+                label="points" + (f" (fit RMS {record['fit_rms_kJ_per_mol']:.3g} kJ/mol)"
+                                  if record["fit_rms_kJ_per_mol"] is not None else ""))
+    ground = record["zpe_cm1"] * cm1_kj
+    top = v.max() + 0.3 * (v.max() - v.min() + 1.0)
+    for i, lv in enumerate(record["levels_cm1"]):
+        e = ground + lv * cm1_kj
+        if e > top:
+            break
+        ax.axhline(e, color="0.6", lw=0.7, label="levels" if i == 0 else None)
+    ax.set_xlim(0, 360)
+    ax.set_ylim(min(v.min(), 0.0) - 0.05 * (top - v.min()), top)
+    ax.set_xlabel("torsion angle phi from the geometry [degree]")
+    ax.set_ylabel("V(phi) [kJ/mol]")
+    ax.set_title(f"{species}: rotor {record['bond']} (sigma = {record['symmetry_number']}, "
+                 f"I = {record['reduced_moment_amu_A2']:.3g} u A^2)")
+    ax.legend(loc="upper right", fontsize=8)
+    fig.tight_layout()
+    return fig

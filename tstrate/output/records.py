@@ -106,6 +106,43 @@ def channel_rates_record(cr, rate_units: dict | None = None) -> dict:
     }
 
 
+#: levels of each hindered rotor listed in JSON output (from its ground level)
+ROTOR_LEVELS_LISTED = 40
+
+
+def hindered_rotor_records(sp) -> list[dict]:
+    """The hindered rotors of species ``sp``, units in the keys (1-based atoms)."""
+    from tstrate.physics.rotors import rotor_model
+    from tstrate.units import CM1_J, N_A
+
+    cm1 = CM1_J * N_A
+    out = []
+    for r in sp.hindered_rotors:
+        model = rotor_model(r)
+        pot = model.potential
+        levels = model.levels_J_per_mol(max(pot.barrier_J_per_mol * 3.0, 4e4))[:ROTOR_LEVELS_LISTED]
+        out.append({
+            "bond": f"{sp.symbols[r.bond_atoms[0]]}{r.bond_atoms[0] + 1}-{sp.symbols[r.bond_atoms[1]]}"
+                    f"{r.bond_atoms[1] + 1}",
+            "bond_atoms": [a + 1 for a in r.bond_atoms], "top_atoms": [a + 1 for a in r.top_atoms],
+            "symmetry_number": r.symmetry_number, "reduced_moment_amu_A2": r.reduced_moment_amu_A2,
+            "moment_definition": r.moment_definition, "replaces_cm1": r.replaces_cm1,
+            "mode_assignment": r.mode_assignment, "mode_overlap": r.mode_overlap,
+            "potential_source": r.potential_source,
+            "barrier_kJ_per_mol": pot.barrier_J_per_mol / 1e3,
+            "potential_minimum_kJ_per_mol": pot.minimum_J_per_mol / 1e3,
+            "cos_terms_cm1": [a / cm1 for a in r.cos_terms_J_per_mol],
+            "sin_terms_cm1": [b / cm1 for b in r.sin_terms_J_per_mol],
+            "fit_rms_kJ_per_mol": None if r.fit_rms_J_per_mol is None else r.fit_rms_J_per_mol / 1e3,
+            "fit_max_kJ_per_mol": None if r.fit_max_J_per_mol is None else r.fit_max_J_per_mol / 1e3,
+            "points_deg": list(r.points_deg), "points_kJ_per_mol": [e / 1e3 for e in r.points_J_per_mol],
+            "zpe_cm1": model.zpe_J_per_mol / cm1,
+            "harmonic_wavenumber_cm1": model.harmonic_wavenumber_cm1(),
+            "levels_cm1": (levels / cm1).tolist(),
+        })
+    return out
+
+
 def thermo_record(th, sp) -> dict:
     """One species' thermochemistry (``th`` from :func:`tstrate.physics.thermo.thermochemistry`
     of the species ``sp``) with units in the keys; arrays run over ``temperature_K``."""
@@ -118,6 +155,7 @@ def thermo_record(th, sp) -> dict:
         "frequencies_cm1": sp.scaled_frequencies_cm1, "zpe_kJ_per_mol": th.zpe_J_per_mol * kj,
         "free_rotors": [{"replaces_cm1": r.replaces_cm1, "symmetry_number": r.symmetry_number,
                          "reduced_moment_amu_A2": r.reduced_moment_amu_A2} for r in sp.free_rotors],
+        "hindered_rotors": hindered_rotor_records(sp),
         "temperature_K": th.temperature_K, "entropy_J_per_mol_K": th.entropy_J_per_mol_K,
         "heat_capacity_J_per_mol_K": th.heat_capacity_J_per_mol_K,
         "enthalpy_increment_kJ_per_mol": th.enthalpy_increment_J_per_mol * kj,

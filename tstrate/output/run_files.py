@@ -306,6 +306,15 @@ def write_all(result, folder: Path, *, progress: Callable[[str], None] | None = 
                 figures.append(("excitation", paths[0], f"{ex.spec.name}: fraction reacting "
                                 "before deactivation against altitude."))
 
+    from tstrate.output.plots import rotor_figure
+
+    for th in doc["thermochemistry"]:
+        for rec in th.get("hindered_rotors", []):
+            paths = _save(rotor_figure(rec, th["name"]), folder / "plots", figure_stem("rotor", th["name"], rec["bond"]))
+            written += paths
+            figures.append(("rotors", paths[0], f"{th['name']}: potential of the hindered rotor {rec['bond']} "
+                            "(Fourier series and the points it was fitted to) with its levels."))
+
     if result.isotopes is not None and any(s.kie for s in result.isotopes.substitutions):
         from tstrate.output.isotope_plots import kie_figure
 
@@ -422,6 +431,21 @@ def build_report(result, doc: dict, inputs: list[dict], figures, evaluation: dic
                      f"{rec['enthalpy_increment_kJ_per_mol'][j]:.3f}"))
     B.append(rp.Table(("species", "formula", "ZPE / kJ mol-1", "S(298.15 K) / J mol-1 K-1",
                        "Cp(298.15 K) / J mol-1 K-1", "H(298.15 K)-H(0) / kJ mol-1"), tuple(rows)))
+
+    rotor_rows = [(rec["name"], h["bond"], h["symmetry_number"], f"{h['reduced_moment_amu_A2']:.4f}",
+                   f"{h['barrier_kJ_per_mol']:.2f}",
+                   "-" if h["fit_rms_kJ_per_mol"] is None else f"{h['fit_rms_kJ_per_mol']:.3f}",
+                   f"{h['replaces_cm1']:.1f} ({h['mode_assignment']}"
+                   + (f", overlap {h['mode_overlap']:.2f})" if h["mode_overlap"] is not None else ")"),
+                   h["potential_source"])
+                  for rec in doc["thermochemistry"] for h in rec.get("hindered_rotors", [])]
+    if rotor_rows:
+        B.append(rp.Heading("Hindered rotors", 3))
+        B.append(rp.Table(("species", "bond", "sigma", "I / u A2", "barrier / kJ mol-1", "fit RMS / kJ mol-1",
+                           "replaces / cm-1", "potential"), tuple(rotor_rows),
+                          "Exact 1-D levels in a free-rotor basis; reduced moments by Pitzer's definition unless "
+                          "given; each rotor replaces the harmonic mode named."))
+        B += [rp.Figure(p, c) for s, p, c in figures if s == "rotors"]
 
     B.append(rp.Heading("Rate constants"))
     rows = []

@@ -172,14 +172,41 @@ _record("thermo", "Thermochemistry of one species", [
     ("free_rotors[].replaces_cm1", CM1, "the (unscaled) wavenumber of the mode the rotor replaces"),
     ("free_rotors[].symmetry_number", ONE, "symmetry number of the rotor"),
     ("free_rotors[].reduced_moment_amu_A2", "amu Å2", "reduced moment of inertia of the rotor"),
-    ("zpe_kJ_per_mol", KJ, "harmonic zero-point energy (free rotors have none)"),
+    ("hindered_rotors", LIST, "one-dimensional hindered rotors that replace harmonic modes (may be empty)"),
+    ("hindered_rotors[].bond", TEXT, "the bond, e.g. C1-O3 (1-based atoms, the top beyond the second)"),
+    ("hindered_rotors[].bond_atoms", ONE, "the bond's atoms, 1-based: [frame atom, top atom]"),
+    ("hindered_rotors[].top_atoms", ONE, "the atoms of the top, 1-based"),
+    ("hindered_rotors[].symmetry_number", ONE, "symmetry number of the rotor (each level counts 1/sigma)"),
+    ("hindered_rotors[].reduced_moment_amu_A2", "amu Å2", "reduced moment of inertia of the rotor"),
+    ("hindered_rotors[].moment_definition", TEXT, "the reduced-moment definition (Pitzer 1946, or given)"),
+    ("hindered_rotors[].replaces_cm1", CM1, "the (unscaled) wavenumber of the mode the rotor replaces"),
+    ("hindered_rotors[].mode_assignment", TEXT, "how that mode was chosen: projection or wavenumber"),
+    ("hindered_rotors[].mode_overlap", ONE, "squared overlap of the torsion with that mode (0-1), or null "
+     "without a Hessian"),
+    ("hindered_rotors[].potential_source", TEXT, "points, barriers, terms, or the scan that made the points"),
+    ("hindered_rotors[].barrier_kJ_per_mol", KJ, "highest minus lowest value of the potential"),
+    ("hindered_rotors[].potential_minimum_kJ_per_mol", KJ, "lowest value of the potential, V(0) = 0 at the "
+     "geometry (negative: the geometry is not the lowest well)"),
+    ("hindered_rotors[].cos_terms_cm1", CM1, "a_k of V(phi) = sum_k a_k cos k phi + b_k sin k phi + c"),
+    ("hindered_rotors[].sin_terms_cm1", CM1, "b_k of the same series"),
+    ("hindered_rotors[].fit_rms_kJ_per_mol", KJ, "RMS error of the Fourier fit to the points, or null"),
+    ("hindered_rotors[].fit_max_kJ_per_mol", KJ, "largest error of the fit, or null"),
+    ("hindered_rotors[].points_deg", "degree", "angles of the points fitted (empty: given as coefficients)"),
+    ("hindered_rotors[].points_kJ_per_mol", KJ, "energies of the points, on the fit's scale"),
+    ("hindered_rotors[].zpe_cm1", CM1, "ground level of the rotor above V(0)"),
+    ("hindered_rotors[].harmonic_wavenumber_cm1", CM1, "sqrt(V''(0) / I) / (2 pi c): the rotor's small-"
+     "vibration wavenumber at the geometry"),
+    ("hindered_rotors[].levels_cm1", CM1, "the lowest levels (up to 40) from the ground level, each counting "
+     "1/symmetry_number"),
+    ("zpe_kJ_per_mol", KJ, "zero-point energy: harmonic (free rotors have none) plus the hindered rotors' "
+     "ground levels"),
     ("temperature_K", K, "temperatures of the arrays below"),
     ("entropy_J_per_mol_K", JK, "standard entropy S at the standard pressure (1 bar unless stated), per temperature"),
     ("heat_capacity_J_per_mol_K", JK, "heat capacity Cp, per temperature"),
     ("enthalpy_increment_kJ_per_mol", KJ, "H(T) - H(0), per temperature"),
     ("gibbs_increment_kJ_per_mol", KJ, "G(T) - H(0) at the standard pressure, per temperature"),
-], "Ideal gas, rigid rotor, harmonic oscillator (with the low-mode treatment), electronic levels; "
-   "1 bar standard state unless the document's conventions say 1 atm.")
+], "Ideal gas, rigid rotor, harmonic oscillator (with the low-mode treatment), free and hindered "
+   "internal rotors, electronic levels; 1 bar standard state unless the document's conventions say 1 atm.")
 
 _record("channel_rates", "Rate constants of one channel (transition-state theory)", [
     ("name", TEXT, "channel name"),
@@ -1499,7 +1526,7 @@ def _leaf_kinds(v) -> set:
 SUFFIX_UNITS = (
     ("_J_per_mol_K", JK), ("_kJ_per_mol", KJ), ("_amu_A2", "amu Å2"), ("_per_cm3", PER_CM3),
     ("_per_bar", "bar-1"), ("_per_s", PER_S), ("_percent", PCT), ("_cm1", CM1), ("_bar", BAR),
-    ("_km", "km"), ("_K", K), ("_A", "Å"), ("_permil", "permil"), ("_amu", "u"),
+    ("_km", "km"), ("_K", K), ("_A", "Å"), ("_permil", "permil"), ("_amu", "u"), ("_deg", "degree"),
 )
 #: unit spellings that break the convention wherever they end a key name
 FORBIDDEN_SUFFIXES = ("_J_per_mol", "_Pa", "_m3", "_hartree", "_relative_deviation", "_fraction_percent")

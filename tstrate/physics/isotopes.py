@@ -121,6 +121,10 @@ def substituted_species(parent: Species, isotopes: dict[int, int], *, name: str 
         raise InputError(f"species {parent.name!r} has free rotors; their reduced moments would change with the "
                          "masses, and isotopologues of such species are not supported", file=parent.source,
                          field="free_rotors")
+    if parent.hindered_rotors:
+        raise InputError(f"species {parent.name!r} has hindered rotors; their reduced moments would change with "
+                         "the masses, and isotopologues of such species are not supported", file=parent.source,
+                         field="hindered_rotors")
     masses = np.array(parent.masses_amu, dtype=float)
     for idx, a in isotopes.items():
         if not 0 <= idx < parent.natoms:

@@ -9,8 +9,9 @@ answers the same questions:
 - ``counts(n_grains, grain_J_per_mol)``: its states in each energy grain from its ground level
   (grain i centred on i * grain), for convolution into RRKM and master-equation state counts.
 
-:class:`tstrate.physics.rotors.HinderedRotorModel` implements it; :func:`tstrate.physics.states.count_states`
-convolves any object with ``counts`` into its oscillators.
+:class:`tstrate.physics.rotors.HinderedRotorModel` (exact levels) and :class:`tstrate.physics.states.Rotor`
+(free 1-D and 2-D rotors) implement it; :func:`tstrate.physics.states.count_states` convolves any object
+with ``counts`` into its oscillators.
 """
 
 from __future__ import annotations

@@ -33,6 +33,7 @@ from __future__ import annotations
 
 import math
 from dataclasses import dataclass, field
+from functools import lru_cache
 
 import numpy as np
 
@@ -47,7 +48,7 @@ THERMAL_SPAN_KT = 50.0
 #: most harmonics fitted by default (common practice for torsional scans: up to six terms)
 DEFAULT_MAX_HARMONICS = 6
 #: largest free-rotor basis (m up to this value; a matrix of 2 M + 1 rows)
-MAX_BASIS_M = 4000
+MAX_BASIS_M = 2000
 
 
 def rotational_constant_J_per_mol(moment_amu_A2: float) -> float:
@@ -330,6 +331,28 @@ class HinderedRotorModel:
             return float("nan")
         omega = math.sqrt(k / (self.moment_amu_A2 * AMU * 1e-20))
         return omega / (2 * math.pi * C * 100.0)
+
+
+@lru_cache(maxsize=512)
+def rotor_model(rotor) -> HinderedRotorModel:
+    """The physics of a :class:`tstrate.model.HinderedRotor` record (cached per record: the levels
+    are solved once)."""
+    return HinderedRotorModel(rotor.reduced_moment_amu_A2, rotor.symmetry_number,
+                              TorsionPotential(rotor.cos_terms_J_per_mol, rotor.sin_terms_J_per_mol))
+
+
+def rotor_partition_function(potential: TorsionPotential, moment_amu_A2: float, symmetry_number: int,
+                             temperature_K, *, max_level_energy_J_per_mol: float | None = None):
+    """A rotor's partition function and levels from its potential and reduced moment, without a species.
+
+    Returns ``(ln_q, levels_J_per_mol)``: ln q from the ground level on the temperatures [K], and the
+    levels of the 2 pi problem from the ground level [J/mol] (each counting 1/symmetry_number), up to
+    ``max_level_energy_J_per_mol`` (by default 50 k_B T above the ground level at the highest T).
+    """
+    model = HinderedRotorModel(moment_amu_A2, symmetry_number, potential)
+    t = np.atleast_1d(np.asarray(temperature_K, dtype=float))
+    top = THERMAL_SPAN_KT * R * float(t.max()) if max_level_energy_J_per_mol is None else max_level_energy_J_per_mol
+    return model.thermo_parts(t)[0], model.levels_J_per_mol(top)
 
 
 def classical_ln_q(model: HinderedRotorModel, temperature_K) -> np.ndarray:

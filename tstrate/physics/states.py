@@ -98,6 +98,35 @@ class Rotor:
         """Rotor from a (reduced) moment of inertia [amu Angstrom^2]."""
         return cls(rotational_constant_cm1(moment_of_inertia_amu_A2), symmetry_number, dimension, quantum)
 
+    @property
+    def zpe_J_per_mol(self) -> float:
+        """A free rotor's ground level (m = 0 or J = 0) is at zero energy [J/mol]."""
+        return 0.0
+
+    def thermo_parts(self, temperature_K):
+        """ln q, U/RT, S/R, Cv/R of this rotor alone (the degree-of-freedom protocol of
+        :mod:`tstrate.physics.modes`): the classical forms q_1D = sqrt(pi k T / B) / sigma
+        (U/RT = Cv/R = 1/2) and q_2D = k T / (sigma B) (U/RT = Cv/R = 1), or with ``quantum`` the
+        sum over the levels B m^2 or B J(J+1)."""
+        t = np.atleast_1d(np.asarray(temperature_K, dtype=float))
+        b = self.rotational_constant_cm1 * CM1_J_PER_MOL
+        half = 0.5 * self.dimension
+        if not self.quantum:
+            y = R * t / b
+            ln_q = (0.5 * np.log(math.pi * y) if self.dimension == 1 else np.log(y)) - math.log(self.symmetry_number)
+            return ln_q, np.full_like(t, half), ln_q + half, np.full_like(t, half)
+        top = int(math.sqrt(60.0 * R * float(t.max()) / b)) + 2
+        k = np.arange(0, top + 1)
+        energy = b * k**2 if self.dimension == 1 else b * k * (k + 1)
+        g = np.where(k == 0, 1.0, 2.0) if self.dimension == 1 else 2.0 * k + 1.0
+        x = energy[None, :] / (R * t[:, None])
+        w = g * np.exp(-x)
+        z = w.sum(axis=1)
+        u = (w * x).sum(axis=1) / z
+        cv = (w * x**2).sum(axis=1) / z - u**2
+        ln_q = np.log(z) - math.log(self.symmetry_number)
+        return ln_q, u, ln_q + u, cv
+
     def counts(self, n_grains: int, grain_J_per_mol: float) -> np.ndarray:
         """States of this rotor alone in each grain (length ``n_grains``)."""
         b = self.rotational_constant_cm1 * CM1_J_PER_MOL
@@ -267,7 +296,9 @@ def count_states(frequencies_cm1, max_energy_J_per_mol: float, *, grain_cm1: flo
         (see :func:`check_grain`).
     rotors:
         :class:`Rotor` objects convolved in (internal free rotors, K-rotor,
-        2-D external rotor) before the oscillators are added.
+        2-D external rotor) before the oscillators are added; any degree of freedom with
+        ``counts(n_grains, grain_J_per_mol)`` (:mod:`tstrate.physics.modes`), such as a
+        hindered rotor's exact levels, is convolved the same way.
     refine:
         Refine a grain that is too coarse instead of only warning.
     """
@@ -286,8 +317,9 @@ def count_states(frequencies_cm1, max_energy_J_per_mol: float, *, grain_cm1: flo
     counts = np.zeros(n)
     counts[0] = 1.0
     for rotor in rotors:
-        if not isinstance(rotor, Rotor):
-            raise InputError(f"rotors must be Rotor objects, got {type(rotor).__name__}", field="rotors")
+        if not callable(getattr(rotor, "counts", None)):
+            raise InputError(f"rotors must be Rotor objects or other degrees of freedom with counts(), got "
+                             f"{type(rotor).__name__}", field="rotors")
         counts = convolve_counts(counts, rotor.counts(n, grain))
     if freqs.size:
         counts = add_oscillators(counts, freqs, grain_cm1)

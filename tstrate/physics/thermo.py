@@ -31,6 +31,11 @@ level, so a free rotor has no zero-point energy: the ZPE sums only the remaining
 modes (:attr:`tstrate.model.Species.harmonic_frequencies_cm1`). The low-mode treatments
 apply to the remaining harmonic modes only.
 
+Hindered internal rotors (``[[hindered_rotors]]``, :class:`tstrate.model.HinderedRotor`) also
+replace one harmonic mode each; their ln q, U, S and Cv come from the exact 1-D levels of
+:mod:`tstrate.physics.rotors` (q from the rotor's ground level) and join the free rotors in the
+"internal_rotation" part; their ground level above V(0) joins the zero-point energy.
+
 Conventions: molar quantities per mole of molecules; standard state 1 bar
 for translation unless a pressure is given; ``ln_q_per_volume`` gives the
 translational partition function per unit volume [m^-3] for concentration
@@ -47,6 +52,7 @@ import numpy as np
 from tstrate.arrays import temperatures_K
 from tstrate.errors import InputError
 from tstrate.model import Species
+from tstrate.physics.rotors import rotor_model
 from tstrate.units import CM1_J, H, K_B, N_A, P_STANDARD, R
 
 #: average moment of inertia that bounds the free rotor of the entropy blend [kg m^2] (Grimme 2012)
@@ -188,9 +194,16 @@ def internal_free_rotor(moment_kg_m2: float, symmetry_number: int, T: np.ndarray
 
 
 def _free_rotor_parts(species: Species, T: np.ndarray):
+    """Free and hindered internal rotors together (the "internal_rotation" part)."""
     z = np.zeros_like(T)
     parts = [internal_free_rotor(r.moment_kg_m2, r.symmetry_number, T) for r in species.free_rotors]
+    parts += [rotor_model(r).thermo_parts(T) for r in species.hindered_rotors]
     return tuple(sum((p[k] for p in parts), z) for k in range(4))
+
+
+def hindered_rotor_zpe_J_per_mol(species: Species) -> float:
+    """Sum of the hindered rotors' ground levels above the energy of the geometry [J/mol]."""
+    return float(sum(rotor_model(r).zpe_J_per_mol for r in species.hindered_rotors))
 
 
 def electronic(levels, T: np.ndarray):
@@ -217,14 +230,16 @@ class Thermo:
     pressure ``pressure_Pa`` (1 bar unless stated).
 
     temperature_K: temperatures [K].
-    zpe_J_per_mol: harmonic zero-point energy [J/mol] (real modes not replaced by free rotors).
+    zpe_J_per_mol: zero-point energy [J/mol]: harmonic (real modes not replaced by rotors) plus the
+        hindered rotors' ground levels.
     energy_J_per_mol: electronic energy of the species [J/mol], or None when unknown.
     enthalpy_increment_J_per_mol: H(T) - H(0) [J/mol].
     entropy_J_per_mol_K: S(T) [J/(mol K)].
     heat_capacity_J_per_mol_K: Cp(T) [J/(mol K)].
     ln_q: dict of ln partition functions by part ("translational", "rotational",
         "vibrational", "internal_rotation", "electronic"), the vibrational one from the
-        zero-point level; "internal_rotation" is the free rotors' (zero without any).
+        zero-point level; "internal_rotation" is the free and hindered rotors' (zero without any),
+        the hindered ones from their ground levels.
     """
 
     species: str
@@ -264,9 +279,9 @@ class Thermo:
 
 
 def zero_point_energy_J_per_mol(species: Species) -> float:
-    """Harmonic ZPE of the real (scaled) modes not replaced by free rotors [J/mol]
-    (a free rotor has no zero-point energy)."""
-    return float(0.5 * np.sum(species.harmonic_frequencies_cm1) * CM1_J * N_A)
+    """Zero-point energy [J/mol]: harmonic ZPE of the real (scaled) modes not replaced by rotors,
+    plus each hindered rotor's ground level above V(0) (a free rotor has no zero-point energy)."""
+    return float(0.5 * np.sum(species.harmonic_frequencies_cm1) * CM1_J * N_A) + hindered_rotor_zpe_J_per_mol(species)
 
 
 def _vibrational_parts(freqs: np.ndarray, T: np.ndarray, low_modes: LowModes):

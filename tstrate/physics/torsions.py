@@ -32,9 +32,9 @@ import numpy as np
 
 from tstrate.geometry import bonds as covalent_bonds
 
-#: geometric tolerance for the symmetry number of a top [Angstrom] (common practice, as for the
-#: rotational symmetry of the whole molecule)
-TOP_SYMMETRY_TOLERANCE_A = 0.05
+#: geometric tolerance for the symmetry number of a top [Angstrom] (our choice: it accepts the tilt of a few
+#: degrees of a methyl group in an optimised structure, such as methanol's, and no distinct atoms)
+TOP_SYMMETRY_TOLERANCE_A = 0.15
 #: the folds tried for a top's symmetry number, highest first
 TOP_FOLDS = (6, 4, 3, 2)
 #: a top whose own moment about the bond axis is below this is no rotor [u Angstrom^2]
@@ -47,7 +47,7 @@ class Torsion:
 
     frame_atom, top_atom: the bond; the top holds ``top_atom`` and everything bonded beyond it.
     top: sorted atom indices of the top.
-    symmetry_number: the top's symmetry number about the bond axis (3 for a methyl group).
+    symmetry_number: the rotation's symmetry number (:func:`rotor_symmetry_number`; 3 for a methyl group).
     """
 
     frame_atom: int
@@ -140,6 +140,20 @@ def top_symmetry_number(symbols, positions_A, masses_amu, frame_atom: int, top_a
     return 1
 
 
+def rotor_symmetry_number(symbols, positions_A, masses_amu, frame_atom: int, top_atom: int, top,
+                          tolerance_A: float = TOP_SYMMETRY_TOLERANCE_A) -> int:
+    """Symmetry number of the internal rotation: the least common multiple of the folds of the top
+    and of the frame about the bond axis (:func:`top_symmetry_number` of each side): 3 for ethane
+    and for methanol (its methyl frame), 6 for nitromethane (a twofold top on a threefold frame)."""
+    import math
+
+    n = len(symbols)
+    frame = tuple(a for a in range(n) if a not in set(top))
+    a = top_symmetry_number(symbols, positions_A, masses_amu, frame_atom, top_atom, top, tolerance_A)
+    b = top_symmetry_number(symbols, positions_A, masses_amu, top_atom, frame_atom, frame, tolerance_A)
+    return a * b // math.gcd(a, b)
+
+
 def torsion_vector(positions_A, masses_amu, frame_atom: int, top_atom: int, top, *,
                    linear: bool = False) -> np.ndarray:
     """The mass-weighted Cartesian displacement of the torsion per radian, with overall
@@ -201,5 +215,5 @@ def find_torsions(symbols, positions_A, masses_amu, bond_set=None) -> tuple[Tors
         other = tuple(a for a in range(n) if a not in top)
         if top_moment_amu_A2(x, m, tip, frame, other) < MIN_TOP_MOMENT_AMU_A2:
             continue
-        out.append(Torsion(frame, tip, top, top_symmetry_number(symbols, x, m, frame, tip, top)))
+        out.append(Torsion(frame, tip, top, rotor_symmetry_number(symbols, x, m, frame, tip, top)))
     return tuple(out)

@@ -72,6 +72,7 @@ from tstrate.model import Channel, Species
 from tstrate.model.settings import FalloffSettings
 from tstrate.physics import collisions as coll
 from tstrate.physics.falloff import strong_collision_falloff, thermal_distribution
+from tstrate.physics.rotors import rotor_model
 from tstrate.physics.rrkm import ExternalRotation, MicrocanonicalRate, microcanonical_rate
 from tstrate.physics.states import (CM1_J_PER_MOL, GRAIN_FRACTION_OF_LOWEST, Rotor, StateCounts,
                                     convolve_counts, count_states)
@@ -102,10 +103,11 @@ def rotational_constants_cm1(species: Species) -> np.ndarray:
     return H / (8.0 * math.pi**2 * C * moments) / 100.0
 
 
-def free_rotor_states(species: Species) -> tuple[Rotor, ...]:
-    """The species' declared free internal rotors as classical 1-D :class:`Rotor` s for state counts."""
+def free_rotor_states(species: Species) -> tuple:
+    """The species' declared internal rotors for state counts: free rotors as classical 1-D
+    :class:`Rotor` s, hindered rotors by their exact levels (each 1/sigma, from its ground level)."""
     return tuple(Rotor.from_moment_of_inertia(r.reduced_moment_amu_A2, r.symmetry_number, 1, False)
-                 for r in species.free_rotors)
+                 for r in species.free_rotors) + tuple(rotor_model(r) for r in species.hindered_rotors)
 
 
 @dataclass(frozen=True)

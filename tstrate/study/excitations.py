@@ -106,10 +106,10 @@ def excitation_yield(study: Study, spec: ExcitationSpec) -> ExcitationResult:
         temps.append(prof.temperature_K)
     t_all = np.concatenate(temps)
     # grid top: vibrational energy plus a margin for the K-rotor (its classical share is RT/2)
-    # and RT/2 for each free internal rotor
+    # and RT/2 for each free internal rotor, RT for each hindered one (its harmonic limit)
     reactant = study.species[channel.reactants[0]]
     e_top = spec.energy_J_per_mol + float(np.max(mean_vibrational_energy_J_per_mol(
-        reactant.harmonic_frequencies_cm1, t_all) + (1.0 + 0.5 * len(reactant.free_rotors)) * R * t_all))
+        reactant.harmonic_frequencies_cm1, t_all) + (1.0 + 0.5 * len(reactant.free_rotors) + len(reactant.hindered_rotors)) * R * t_all))
     model = channel_model(study, channel, settings, max_temperature_K=float(t_all.max()),
                                min_top_energy_J_per_mol=e_top)
     warnings = list(model.warnings)

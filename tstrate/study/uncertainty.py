@@ -58,7 +58,7 @@ import numpy as np
 from tstrate.errors import InputError
 from tstrate.model.uncertainty import SpeciesUncertainty, UncertaintySettings, method_default
 from tstrate.physics import uncertainty as pu
-from tstrate.physics.thermo import zero_point_energy_J_per_mol
+from tstrate.physics.thermo import hindered_rotor_zpe_J_per_mol, zero_point_energy_J_per_mol
 from tstrate.physics.tst import zpe_level_J_per_mol
 from tstrate.units import R
 
@@ -217,7 +217,8 @@ class _Species:
         ifs = space.index("frequency_scale", sp.name)
         iim = space.index("imaginary_frequency", sp.name)
         self.scale = np.exp(U[:, ifs]) if ifs is not None else np.ones(S)
-        zpe = zero_point_energy_J_per_mol(sp)
+        # the sampled frequency scale moves the harmonic ZPE only, not the hindered rotors' ground levels
+        zpe = zero_point_energy_J_per_mol(sp) - hindered_rotor_zpe_J_per_mol(sp)
         self.dE0 = (U[:, ie] if ie is not None else np.zeros(S)) + zpe * (self.scale - 1.0)
         self.E0 = zpe_level_J_per_mol(sp) + self.dE0
         self.imag_factor = self.scale * (np.exp(U[:, iim]) if iim is not None else 1.0)
