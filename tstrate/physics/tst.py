@@ -110,6 +110,8 @@ class ChannelRates:
     kappa_other_floor, other_energy_floor_J_per_mol: the tunnelling factor and floor with the
         other choice, for channels through a complex whose model has a floor (Skodje-Truhlar,
         Eckart); None otherwise. k scales with kappa, so k_other = k kappa_other_floor / kappa.
+    ts_conformer_shares: TS conformer label -> (T,) share k_j / k of the rate through it, for a
+        transition-state ensemble (multi-conformer TST); None for one TS structure.
     delta_H/S/G: activation enthalpy [J/mol], entropy [J/(mol K)], Gibbs energy [J/mol]
         at 1 bar standard state.
     degeneracy: the reaction-path degeneracy in effect (the user's override, else the
@@ -146,11 +148,46 @@ class ChannelRates:
     tunnelling_floor: str | None = None
     kappa_other_floor: np.ndarray | None = None
     other_energy_floor_J_per_mol: float | None = None
+    ts_conformer_shares: dict | None = None
 
 
 def channel_rates(channel: Channel, species: dict, temperature_K, *,
                   low_modes: LowModes = HARMONIC) -> ChannelRates:
-    """Canonical TST k(T) of one channel, with tunnelling, reverse rate and activation quantities."""
+    """Canonical TST k(T) of one channel, with tunnelling, reverse rate and activation quantities.
+
+    Any species of the channel may be a conformer ensemble (:mod:`tstrate.physics.ensembles`):
+    reactants, complexes and products enter through their ensemble partition functions, measured
+    from their representatives' zero-point levels (the lowest conformer as the study reader builds
+    them). A transition-state ensemble gives multi-conformer TST: k = sum_j k_j, where k_j is the
+    rate through TS conformer j alone, with its own partition function, barrier E0_j - E0_ref(reactants),
+    imaginary frequency and tunnelling factor; ``kappa`` is then the effective sum_j k_j / sum_j
+    k_classical_j and ``ts_conformer_shares`` gives k_j / k. Barriers, Eckart heights and the
+    imaginary frequency reported are those of the representative TS conformer.
+    """
+    ts = species[channel.transition_state]
+    whole = _one_ts_rates(channel, species, temperature_K, low_modes=low_modes)
+    if not ts.conformers:
+        return whole
+    from dataclasses import replace
+
+    from tstrate.physics.ensembles import conformer_labels, conformer_members
+
+    parts = [_one_ts_rates(channel, {**species, channel.transition_state: m}, temperature_K,
+                           low_modes=low_modes) for m in conformer_members(ts)]
+    k = sum(p.k for p in parts)
+    k_cl = sum(p.k_classical for p in parts)
+    kappa_other = None
+    if whole.kappa_other_floor is not None:
+        kappa_other = sum(p.k_classical * p.kappa_other_floor for p in parts) / k_cl
+    ln_k = np.log(k)
+    return replace(whole, k=k, k_classical=k_cl, kappa=k / k_cl, k_reverse=np.exp(ln_k - whole.ln_kc),
+                   kappa_other_floor=kappa_other,
+                   ts_conformer_shares={lb: p.k / k for lb, p in zip(conformer_labels(ts), parts)})
+
+
+def _one_ts_rates(channel: Channel, species: dict, temperature_K, *,
+                  low_modes: LowModes = HARMONIC) -> ChannelRates:
+    """:func:`channel_rates` with the tunnelling factor of the (representative) TS only."""
     T = np.atleast_1d(temperatures_K(temperature_K))
     reac = [species[n] for n in channel.reactants]
     prod = [species[n] for n in channel.products]

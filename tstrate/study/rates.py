@@ -22,6 +22,16 @@ def study_rates(study, *, low_modes: LowModes = HARMONIC, temperature_K=None) ->
     return out
 
 
+def study_conformers(study, *, low_modes: LowModes = HARMONIC, temperature_K=None) -> dict:
+    """Species name -> :class:`~tstrate.physics.ensembles.EnsembleParts` of each conformer ensemble
+    of the study (members, energies relative to the representative, populations against T)."""
+    from tstrate.physics.ensembles import ensemble_parts
+
+    T = temperatures_K(study.conditions.temperature_K if temperature_K is None else temperature_K, ndim=1)
+    return {name: ensemble_parts(sp, T, low_modes=low_modes) for name, sp in study.species.items()
+            if sp.conformers}
+
+
 def capture_limits(study, rates) -> tuple[tuple, list[str]]:
     """The capture ceiling of every bimolecular channel (:mod:`tstrate.physics.capture`) against its
     TST rate constant, and a warning for each channel whose k_TST exceeds it somewhere."""

@@ -50,6 +50,8 @@ class StudyResult:
     capture: physics.capture.CaptureLimit per bimolecular channel (TST against the capture ceiling).
     isotopes: study.isotopes.IsotopeResult when the study has an [isotopes] section, else None.
     uncertainty: study.uncertainty.StudyUncertainty when the study's [uncertainty] asks for it, else None.
+    conformers: species name -> :class:`~tstrate.physics.ensembles.EnsembleParts` (members, relative
+        energies, populations against the study temperatures) of each conformer ensemble.
     """
 
     study: Study
@@ -65,6 +67,7 @@ class StudyResult:
     capture: tuple = field(default=())
     isotopes: object | None = None
     uncertainty: object | None = None
+    conformers: dict = field(default_factory=dict)
 
 
 def steps(study: Study) -> list[str]:
@@ -94,7 +97,7 @@ def compute_study(study: Study, *, low_modes: LowModes = HARMONIC,
                   uncertainty_progress: Callable[[str, int, int], None] | None = None) -> StudyResult:
     """Compute everything ``study`` asks for. ``progress(step)`` is called before each step;
     ``uncertainty_progress(stage, done, total)`` within the uncertainty step."""
-    from tstrate.study.rates import capture_limits, connection_warnings, study_rates
+    from tstrate.study.rates import capture_limits, connection_warnings, study_conformers, study_rates
 
     def step(name):
         log.info("%s", name)
@@ -108,6 +111,9 @@ def compute_study(study: Study, *, low_modes: LowModes = HARMONIC,
     step("thermochemistry")
     thermo = tuple(thermochemistry(sp, T_thermo, low_modes=low_modes) for sp in study.species.values())
     warnings += [w for w in (electronic_level_warning(sp) for sp in study.species.values()) if w]
+    conformers = study_conformers(study, low_modes=low_modes)
+    warnings += [f"species {name}: {w}" for name, sp in study.species.items() for c in sp.conformers
+                 for w in c.warnings]
 
     step("rate constants")
     rates = tuple(study_rates(study, low_modes=low_modes))
@@ -182,7 +188,7 @@ def compute_study(study: Study, *, low_modes: LowModes = HARMONIC,
     result = StudyResult(study=study, low_modes=low_modes, thermo=thermo, rates=rates,
                          comparisons=comparisons, falloff=falloff, excitations=excitations, fits=fits,
                          pressure_fits=pressure_fits, warnings=tuple(dict.fromkeys(warnings)), capture=capture,
-                         isotopes=isotopes)
+                         isotopes=isotopes, conformers=conformers)
     if wants_uncertainty(study):
         step("uncertainty")
         from dataclasses import replace
