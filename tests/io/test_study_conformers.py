@@ -1,0 +1,75 @@
+"""Conformer ensembles in a study file's [species] (tstrate.io.study): a list or a table of conformer
+species files; one-line errors naming the study file and the key."""
+
+from __future__ import annotations
+
+from pathlib import Path
+
+import numpy as np
+import pytest
+
+from tstrate.errors import InputError
+from tstrate.io.study import read_study
+
+DEMO = Path(__file__).resolve().parents[2] / "molecules" / "carbonic_acid"
+
+
+def _study(tmp_path, h2co3_line: str) -> Path:
+    text = (DEMO / "study.toml").read_text()
+    old = 'H2CO3 = "refined/h2co3.toml"'
+    assert old in text, "test setup: the demo's H2CO3 line changed"
+    text = text.replace(old, h2co3_line).replace('"refined/', f'"{DEMO}/refined/')
+    path = tmp_path / "study.toml"
+    path.write_text(text)
+    return path
+
+
+def test_a_table_of_conformer_files_makes_an_ensemble(tmp_path):
+    path = _study(tmp_path, f'H2CO3 = {{ ct = "{DEMO}/refined/h2co3_cis_trans.toml", cc = "{DEMO}/refined/h2co3.toml" }}')
+    study = read_study(path)
+    h2co3 = study.species["H2CO3"]
+    assert h2co3.conformer_label == "cc"  # the lower conformer represents the ensemble
+    assert [c.name for c in h2co3.conformers] == ["H2CO3/ct"]
+    assert study.species_files["H2CO3/ct"].endswith("h2co3_cis_trans.toml")
+    assert h2co3.symmetry_number == 2 and h2co3.conformers[0].symmetry_number == 1  # each its own
+
+
+def test_a_list_of_conformer_files_is_labelled_by_file_name(tmp_path):
+    path = _study(tmp_path, f'H2CO3 = ["{DEMO}/refined/h2co3.toml", "{DEMO}/refined/h2co3_cis_trans.toml"]')
+    h2co3 = read_study(path).species["H2CO3"]
+    assert (h2co3.conformer_label, h2co3.conformers[0].conformer_label) == ("h2co3", "h2co3_cis_trans")
+
+
+@pytest.mark.parametrize("line, match", [
+    ('H2CO3 = ["{d}/refined/h2co3.toml", "{d}/refined/h2o.toml"]', "other atoms"),
+    ('H2CO3 = ["{d}/refined/h2co3.toml", "{d}/h2co3.toml"]', "conformer labels repeat"),
+    ('H2CO3 = ["{d}/refined/h2co3.toml", "{d}/refined/nothing.toml"]', "does not exist"),
+    ('H2CO3 = [1, 2]', "expected a species file, a list"),
+    ('H2CO3 = ["{d}/refined/h2co3.toml", "{d}/refined/ts_bare.toml"]', "kind"),
+])
+def test_bad_ensembles_name_the_study_file_and_key(tmp_path, line, match):
+    path = _study(tmp_path, line.format(d=DEMO))
+    with pytest.raises(InputError, match=match) as err:
+        read_study(path)
+    assert err.value.file == str(path) and err.value.field == "species.H2CO3"
+    assert "\n" not in str(err.value)
+
+
+def test_the_demo_ensemble_lowers_each_rate_by_the_reference_population(tmp_path):
+    """Every demo channel starts from H2CO3: with the cis-trans conformer added, each k and K falls by
+    the cis-cis population (the complexes and TSs are unchanged), computed here from the two files."""
+    from tstrate.io.species import read_species
+    from tstrate.physics.thermo import ln_partition_function_per_volume
+    from tstrate.physics.tst import zpe_level_J_per_mol
+    from tstrate.study.rates import study_rates
+    from tstrate.units import R
+
+    T = np.array([150.0, 300.0])
+    base = read_study(DEMO / "study.toml")
+    ens = read_study(_study(tmp_path, f'H2CO3 = ["{DEMO}/refined/h2co3.toml", "{DEMO}/refined/h2co3_cis_trans.toml"]'))
+    a = [ln_partition_function_per_volume(s, T) - zpe_level_J_per_mol(s) / (R * T)
+         for s in (read_species(DEMO / "refined/h2co3.toml"), read_species(DEMO / "refined/h2co3_cis_trans.toml"))]
+    x_cc = 1.0 / (1.0 + np.exp(a[1] - a[0]))
+    for r0, r1 in zip(study_rates(base, temperature_K=T), study_rates(ens, temperature_K=T)):
+        np.testing.assert_allclose(r1.k / r0.k, x_cc, rtol=1e-9)
+        np.testing.assert_allclose(np.exp(r1.ln_kc - r0.ln_kc), x_cc, rtol=1e-9)
