@@ -77,8 +77,15 @@ def channel_rates_record(cr, rate_units: dict | None = None) -> dict:
         "delta_S_activation_J_per_mol_K": cr.delta_S_J_per_mol_K,
         "delta_G_activation_kJ_per_mol": cr.delta_G_J_per_mol * kj,
         "reaction_path_degeneracy": cr.degeneracy,
+        "transition_state_conformer_shares": _ts_shares(cr),
         "standard_state": "1 bar (activation quantities, Kp); rate constants per molecule",
     }
+
+
+def _ts_shares(cr):
+    from tstrate.output.conformer_records import ts_shares_record
+
+    return ts_shares_record(cr)
 
 
 def thermo_record(th, sp) -> dict:

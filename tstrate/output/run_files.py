@@ -101,6 +101,10 @@ def _results_json(result) -> dict:
         from tstrate.output.isotope_records import isotopes_record
 
         doc["isotopes"] = isotopes_record(result.isotopes)
+    if getattr(result, "conformers", None):
+        from tstrate.output.conformer_records import conformer_records
+
+        doc["conformers"] = conformer_records(result)
     if getattr(result, "uncertainty", None) is not None:
         from tstrate.output.uncertainty_records import uncertainty_record
 
@@ -188,6 +192,11 @@ def write_all(result, folder: Path, *, progress: Callable[[str], None] | None = 
         for name, rows in CSV_TABLES.items():
             atomic_write_text(folder / "tables" / name, csv_text(*rows(result.isotopes)))
             written.append(folder / "tables" / name)
+    if getattr(result, "conformers", None):
+        from tstrate.output.conformer_records import conformer_rows
+
+        atomic_write_text(folder / "tables" / "conformers.csv", csv_text(*conformer_rows(result)))
+        written.append(folder / "tables" / "conformers.csv")
     unc = getattr(result, "uncertainty", None)
     if unc is not None:
         from tstrate.output import uncertainty_records as ur
@@ -354,6 +363,11 @@ def build_report(result, doc: dict, inputs: list[dict], figures) -> list:
                      f"{rec['enthalpy_increment_kJ_per_mol'][j]:.3f}"))
     B.append(rp.Table(("species", "formula", "ZPE / kJ mol-1", "S(298.15 K) / J mol-1 K-1",
                        "Cp(298.15 K) / J mol-1 K-1", "H(298.15 K)-H(0) / kJ mol-1"), tuple(rows)))
+
+    if doc.get("conformers"):
+        from tstrate.output.conformer_records import conformer_report_blocks
+
+        B += conformer_report_blocks(result, doc, _pick_temperatures)
 
     B.append(rp.Heading("Rate constants"))
     rows = []

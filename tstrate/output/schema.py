@@ -210,8 +210,27 @@ _record("channel_rates", "Rate constants of one channel (transition-state theory
     ("delta_S_activation_J_per_mol_K", JK, "activation entropy at 1 bar, per temperature"),
     ("delta_G_activation_kJ_per_mol", KJ, "activation Gibbs energy at 1 bar, per temperature"),
     ("reaction_path_degeneracy", ONE, "reaction-path degeneracy in effect"),
+    ("transition_state_conformer_shares", LIST, "for a transition state that is a conformer ensemble, one entry "
+     "per TS conformer (null otherwise)"),
+    ("transition_state_conformer_shares[].label", TEXT, "the TS conformer's label"),
+    ("transition_state_conformer_shares[].share", ONE, "its share k_j / k of the rate constant, tunnelling "
+     "included, per temperature"),
     ("standard_state", TEXT, "the standard states used"),
 ], "Canonical transition-state theory with the channel's tunnelling model; arrays run over temperature_K.")
+
+_record("conformer_ensemble", "One conformer ensemble", [
+    ("species", TEXT, "the study's name of the ensemble"),
+    ("kind", TEXT, "minimum or transition_state"),
+    ("temperature_K", K, "temperatures of the populations"),
+    ("conformers", LIST, "one entry per conformer, the reference (lowest E0) first"),
+    ("conformers[].label", TEXT, "the conformer's label ([species] table key, or file name)"),
+    ("conformers[].file", TEXT, "its species file"),
+    ("conformers[].relative_zpe_energy_kJ_per_mol", KJ, "E0 (electronic energy plus ZPE) above the reference"),
+    ("conformers[].relative_electronic_energy_kJ_per_mol", KJ, "electronic energy above the reference's"),
+    ("conformers[].symmetry_number", ONE, "its own rotational symmetry number"),
+    ("conformers[].optical_isomers", ONE, "its own number of optical isomers"),
+    ("conformers[].population", ONE, "Boltzmann population x_i(T), 0 to 1, per temperature"),
+], "q_ens = sum_i q_i exp(-(E0_i - E0_ref)/kT); x_i = q_i exp(-(E0_i - E0_ref)/kT) / q_ens.")
 
 _record("scenario", "One comparison scenario (a comparison at one catalyst abundance)", [
     ("name", TEXT, "name of the [[comparison]]"),
@@ -728,6 +747,8 @@ Every number `tstrate run` computed, in one JSON document. The sections `compari
     ("excitations[]", OBJ, "one excitation", "excitation"),
     ("isotopes", OBJ, "isotopologues (only with an [isotopes] section)", "isotopes"),
     ("uncertainty", OBJ, "how sure each number is (only with [uncertainty])", "uncertainty_results"),
+    ("conformers", LIST, "one entry per conformer ensemble (only when the study has one)"),
+    ("conformers[]", OBJ, "one ensemble", "conformer_ensemble"),
 ))
 
 _INPUTS = Document("inputs.json", "results-json.md", """\
@@ -898,6 +919,19 @@ with falloff; the same fits as fits.json fits_at_each_pressure).""", _keys(
     ("Tmax", K, "highest fitted temperature"),
     ("max deviation", PCT, "largest deviation from k(T, p)"),
     ("rms deviation", PCT, "rms deviation"),
+), "csv")
+
+_CONFORMERS_CSV = Document("tables/conformers.csv", "csv-tables.md", """\
+Conformer populations (only when the study has a conformer ensemble): one row per ensemble,
+conformer and temperature.""", _keys(
+    ("species", TEXT, "the ensemble's name in the study"),
+    ("conformer", TEXT, "the conformer's label"),
+    ("T", K, "temperature"),
+    ("population", ONE, "Boltzmann population in its ensemble, 0 to 1"),
+    ("relative E0", KJ, "electronic energy plus ZPE above the ensemble's lowest conformer"),
+    ("relative E_electronic", KJ, "electronic energy above the lowest conformer's"),
+    ("symmetry number", ONE, "the conformer's rotational symmetry number"),
+    ("optical isomers", ONE, "the conformer's number of optical isomers"),
 ), "csv")
 
 _ISO_BETA_CSV = Document("tables/isotopes_beta.csv", "csv-tables.md", """\
@@ -1150,7 +1184,7 @@ _COMMANDS.append(_cmd("uncertainty", "Uncertainty and sensitivity of every resul
 
 DOCUMENTS: dict[str, Document] = {d.name: d for d in
                                   [_RESULTS, _INPUTS, _FITS, _FITS_CSV, _THERMO_CSV, _RATES_CSV,
-                                   _PFITS_CSV, _ISO_BETA_CSV, _ISO_KIE_CSV, _ISO_FRAC_CSV, _ISO_THETA_CSV,
+                                   _PFITS_CSV, _CONFORMERS_CSV, _ISO_BETA_CSV, _ISO_KIE_CSV, _ISO_FRAC_CSV, _ISO_THETA_CSV,
                                    _UNC_CSV, _UNC_RANK_CSV, _MECHANISM, *_COMMANDS]}
 
 PAGES = {

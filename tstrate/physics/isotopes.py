@@ -111,6 +111,29 @@ def substituted_species(parent: Species, isotopes: dict[int, int], *, name: str 
     from tstrate.physics import symmetry as sym
     from tstrate.physics.vibrations import isotope_mass_amu, vibrational_analysis
 
+    if parent.conformers:
+        # a conformer ensemble: the same atoms substituted in every conformer. Atom numbers refer to
+        # the representative; they carry over to a conformer that lists its atoms in the same order,
+        # or, when every atom of each substituted element is substituted, element by element
+        rep = substituted_species(parent.with_changes(conformers=()), isotopes, name=name, tolerance_A=tolerance_A)
+        confs = []
+        for c in parent.conformers:
+            mapped = dict(isotopes)
+            if c.symbols != parent.symbols:
+                elements = {parent.symbols[i] for i in isotopes if 0 <= i < parent.natoms}
+                whole = all(sorted(i for i in isotopes if parent.symbols[i] == e)
+                            == [i for i, s in enumerate(parent.symbols) if s == e]
+                            and len({isotopes[i] for i in isotopes if parent.symbols[i] == e}) == 1
+                            for e in elements)
+                if not whole:
+                    raise InputError(f"conformer {c.name!r} lists its atoms in another order than "
+                                     f"{parent.name!r}; the substituted atom numbers cannot be carried over",
+                                     file=c.source, field="geometry", hint="give the conformers' atoms in one order")
+                mass_number = {parent.symbols[i]: a for i, a in isotopes.items()}
+                mapped = {i: mass_number[s] for i, s in enumerate(c.symbols) if s in mass_number}
+            confs.append(substituted_species(c, mapped, name=f"{rep.name}/{c.conformer_label}",
+                                             tolerance_A=tolerance_A))
+        return rep.with_changes(conformers=tuple(confs), symmetry_given=rep.symmetry_given)
     tol = DEFAULT_TOLERANCE_A if tolerance_A is None else tolerance_A
     where = dict(file=parent.source, field="hessian")
     if parent.hessian_J_per_m2 is None:
@@ -246,7 +269,11 @@ def trace_ln_beta(species: Species, element: str, mass_number: int, temperature_
     ``element`` (one singly substituted isotopologue per class of equivalent atoms, weighted by the
     class size). Returns (ln beta per temperature, the classes (0-based), ln f per class).
 
+    For a conformer ensemble, beta is that of its representative conformer (the conformers'
+    populations barely change with one heavy atom; their own beta factors are not averaged in).
     """
+    if species.conformers:
+        species = species.with_changes(conformers=())
     T = np.atleast_1d(temperatures_K(temperature_K))
     classes = equivalent_atom_classes(species, element)
     if not classes:

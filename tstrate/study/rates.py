@@ -60,7 +60,8 @@ def connection_warnings(study) -> list[str]:
     downhill from it (``reactant_side_geometry`` / ``product_side_geometry`` in its [provenance]),
     connects to another structure (e.g. another conformer) than the channel's own reactant-side
     species (its complex, or its one reactant) or product complex. Channels whose TS records no
-    connected minima, or whose species have other atoms than the connected minimum, are not checked.
+    connected minima, or whose species have other atoms than the connected minimum, are not checked;
+    a conformer ensemble passes when one of its conformers is the connected minimum.
     """
     from tstrate.physics.conformers import SAME_STRUCTURE_TOLERANCE_A, parse_xyz_lines, structure_difference_A
 
@@ -81,12 +82,15 @@ def connection_warnings(study) -> list[str]:
                            "'Symbol x y z' lines; the connection was not checked")
                 continue
             sp = study.species[target]
-            diff = structure_difference_A(symbols, positions, sp.symbols, sp.positions_A)
+            # a conformer ensemble is connected when any of its conformers is the connected minimum
+            diffs = [structure_difference_A(symbols, positions, m.symbols, m.positions_A)
+                     for m in (sp, *sp.conformers)]
+            diff = None if any(d is None for d in diffs) else min(diffs)
             if diff is not None and diff > SAME_STRUCTURE_TOLERANCE_A:
                 side = "reactant" if key.startswith("reactant") else "product"
                 out.append(f"channel {ch.name}: the transition state {ts.name} connects on its {side} side to "
                            f"another structure than {target} (interatomic distances differ by up to "
                            f"{diff:.2f} Angstrom: another conformer?); the rate constant is then that of "
-                           f"the conformer it connects to - check the channel's species, or add the "
-                           "conformers' equilibrium")
+                           f"the conformer it connects to - check the channel's species, or make the species a "
+                           "conformer ensemble with the connected conformer")
     return out
