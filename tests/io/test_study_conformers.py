@@ -16,7 +16,7 @@ DEMO = Path(__file__).resolve().parents[2] / "molecules" / "carbonic_acid"
 
 def _study(tmp_path, h2co3_line: str) -> Path:
     text = (DEMO / "study.toml").read_text()
-    old = 'H2CO3 = "refined/h2co3.toml"'
+    old = 'H2CO3 = { cis_cis = "refined/h2co3.toml", cis_trans = "refined/h2co3_cis_trans.toml" }'
     assert old in text, "test setup: the demo's H2CO3 line changed"
     text = text.replace(old, h2co3_line).replace('"refined/', f'"{DEMO}/refined/')
     path = tmp_path / "study.toml"
@@ -55,9 +55,11 @@ def test_bad_ensembles_name_the_study_file_and_key(tmp_path, line, match):
     assert "\n" not in str(err.value)
 
 
-def test_the_demo_ensemble_lowers_each_rate_by_the_reference_population(tmp_path):
-    """Every demo channel starts from H2CO3: with the cis-trans conformer added, each k and K falls by
-    the cis-cis population (the complexes and TSs are unchanged), computed here from the two files."""
+def test_the_demo_ensemble_against_separate_conformer_studies(tmp_path):
+    """The demo (H2CO3 the cis-cis + cis-trans ensemble) against the same study with one conformer
+    as H2CO3, and the populations computed here from the two files: the water channels (through
+    complexes of cis-cis H2CO3) fall by the cis-cis population, and the bare channel, whose TS falls
+    into cis-trans H2CO3, is the cis-trans channel times the cis-trans population."""
     from tstrate.io.species import read_species
     from tstrate.physics.thermo import ln_partition_function_per_volume
     from tstrate.physics.tst import zpe_level_J_per_mol
@@ -65,11 +67,18 @@ def test_the_demo_ensemble_lowers_each_rate_by_the_reference_population(tmp_path
     from tstrate.units import R
 
     T = np.array([150.0, 300.0])
-    base = read_study(DEMO / "study.toml")
-    ens = read_study(_study(tmp_path, f'H2CO3 = ["{DEMO}/refined/h2co3.toml", "{DEMO}/refined/h2co3_cis_trans.toml"]'))
+    ens = read_study(DEMO / "study.toml")
+    (tmp_path / "cc").mkdir()
+    (tmp_path / "ct").mkdir()
+    cc = read_study(_study(tmp_path / "cc", f'H2CO3 = "{DEMO}/refined/h2co3.toml"'))
+    ct = read_study(_study(tmp_path / "ct", f'H2CO3 = "{DEMO}/refined/h2co3_cis_trans.toml"'))
     a = [ln_partition_function_per_volume(s, T) - zpe_level_J_per_mol(s) / (R * T)
          for s in (read_species(DEMO / "refined/h2co3.toml"), read_species(DEMO / "refined/h2co3_cis_trans.toml"))]
     x_cc = 1.0 / (1.0 + np.exp(a[1] - a[0]))
-    for r0, r1 in zip(study_rates(base, temperature_K=T), study_rates(ens, temperature_K=T)):
-        np.testing.assert_allclose(r1.k / r0.k, x_cc, rtol=1e-9)
-        np.testing.assert_allclose(np.exp(r1.ln_kc - r0.ln_kc), x_cc, rtol=1e-9)
+    for r, r_cc, r_ct in zip(*(study_rates(s, temperature_K=T) for s in (ens, cc, ct))):
+        np.testing.assert_allclose(np.exp(r.ln_kc - r_cc.ln_kc), x_cc, rtol=1e-9)
+        if r.channel == "bare":
+            assert r.tunnelling_well_conformer == "cis_trans"
+            np.testing.assert_allclose(r.k, (1 - x_cc) * r_ct.k, rtol=1e-9)
+        else:
+            np.testing.assert_allclose(r.k / r_cc.k, x_cc, rtol=1e-9)

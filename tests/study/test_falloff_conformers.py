@@ -1,4 +1,4 @@
-"""Falloff with a conformer-ensemble reactant (tstrate.physics.unimolecular._reactant_counts): the
+"""Falloff with a conformer-ensemble reactant (tstrate.physics.unimolecular._ensemble_counts): the
 energised molecule's density is the sum of its conformers' densities, each shifted by its E0 and
 weighted by n_i/sigma_i. The check: k_inf from k(E) against canonical TST of the same ensemble
 (tstrate.physics.tst, an independent route through the partition functions): the ensemble's
@@ -48,4 +48,22 @@ def test_ensemble_k_inf_follows_the_ensemble_tst(shift_kJ, symmetry):
     assert np.max(np.abs(cf.canonical_tst_per_s / base - 1)) > 0.1
     # ... and k_inf follows it: the split shift errs at second order in grain/kT, f(1-f)/2 (hc 10 cm-1
     # / kT)^2 <= 6.5e-4 of the second conformer's weight at 200 K
+    np.testing.assert_allclose(ratio, single, rtol=3e-4)
+
+
+def test_a_transition_state_ensemble_in_k_of_e_follows_multi_conformer_tst():
+    """The same for a TS ensemble (no tunnelling): two TS conformers, the second 1.7 kJ/mol higher
+    with softer modes on the grid and two optical isomers."""
+    study = read_study(DATA / "study.toml")
+    ts = study.species["TS_bare"]
+    f = np.array(ts.frequencies_cm1)
+    f[f > 0] = np.round(f[f > 0] * 0.95 / 10) * 10
+    zpe_drop = 0.5 * (np.sum(ts.frequencies_cm1[ts.frequencies_cm1 > 0]) - np.sum(f[f > 0])) * 100 * h * c_light * N_A
+    other = ts.with_changes(frequencies_cm1=f, optical_isomers=2, hessian_J_per_m2=None,
+                            energy_J_per_mol=ts.energy_J_per_mol + zpe_drop + 1.7e3)
+    ens = build_ensemble("TS_bare", [("a", ts), ("b", other)])
+    ens_study = dataclasses.replace(study, species=dict(study.species, TS_bare=ens))
+    single, base = _k_ratio(study)
+    ratio, cf = _k_ratio(ens_study)
+    assert np.max(cf.canonical_tst_per_s / base.canonical_tst_per_s) > 1.5
     np.testing.assert_allclose(ratio, single, rtol=3e-4)

@@ -39,6 +39,13 @@ def conformer_records(result) -> list[dict]:
     return out
 
 
+def conformer_effect_records(result) -> list[dict]:
+    """Per channel that uses an ensemble: k and Kc over those with the representatives alone."""
+    return [{"channel": e["channel"], "ensembles": list(e["ensembles"]), "temperature_K": e["temperature_K"],
+             "rate_constant_ratio": e["k_ratio"], "Kc_ratio": e["Kc_ratio"]}
+            for e in getattr(result, "conformer_effects", ())]
+
+
 def conformer_rows(result):
     """(header, rows) of tables/conformers.csv: one row per ensemble, conformer and temperature."""
     rows = []
@@ -66,9 +73,9 @@ ENSEMBLE_NOTE = ("Each ensemble's partition function is q = sum_i q_i exp(-(E0_i
                  "Conformers that differ only along a torsion treated as a hindered or free rotor are one "
                  "well and are not summed twice. The falloff and energised-molecule steps count the states "
                  "of an energised reactant over all its conformers (each density shifted by its E0 and "
-                 "weighted by its optical isomers over its symmetry number); those of a transition-state "
-                 "ensemble by its representative only (a warning says so). Isotope beta factors of an "
-                 "ensemble are its representative's.")
+                 "weighted by its optical isomers over its symmetry number), and those of a transition-state "
+                 "ensemble the same way, with the representative TS conformer's Eckart transmission for all "
+                 "(a warning says so). Isotope beta factors of an ensemble are its representative's.")
 
 
 def conformer_report_blocks(result, doc, pick) -> list:
@@ -89,6 +96,18 @@ def conformer_report_blocks(result, doc, pick) -> list:
                      for c in rec["conformers"])
         B.append(rp.Table(head, rows, f"Ensemble {rec['species']} ({rec['kind'].replace('_', ' ')}); "
                                       "full table in tables/conformers.csv."))
+    effects = doc.get("conformer_effects") or []
+    if effects:
+        T = np.asarray(effects[0]["temperature_K"])
+        idx = pick(T)
+        B.append(rp.Table(("channel", "ensembles", *(f"k ratio at {T[i]:g} K" for i in idx),
+                           *(f"Kc ratio at {T[i]:g} K" for i in idx)),
+                          tuple((e["channel"], ", ".join(e["ensembles"]),
+                                 *(f"{e['rate_constant_ratio'][i]:.3g}" for i in idx),
+                                 *(f"{e['Kc_ratio'][i]:.3g}" for i in idx)) for e in effects),
+                          "How much the conformer ensembles change each rate constant and equilibrium "
+                          "constant: the value with the ensembles over the value with each ensemble's "
+                          "lowest conformer alone."))
     for r in doc["channels"]:
         shares = r.get("transition_state_conformer_shares")
         if not shares:

@@ -78,6 +78,7 @@ def channel_rates_record(cr, rate_units: dict | None = None) -> dict:
         "delta_G_activation_kJ_per_mol": cr.delta_G_J_per_mol * kj,
         "reaction_path_degeneracy": cr.degeneracy,
         "transition_state_conformer_shares": _ts_shares(cr),
+        "tunnelling_well_conformer": getattr(cr, "tunnelling_well_conformer", None),
         "standard_state": "1 bar (activation quantities, Kp); rate constants per molecule",
     }
 

@@ -102,9 +102,10 @@ def _results_json(result) -> dict:
 
         doc["isotopes"] = isotopes_record(result.isotopes)
     if getattr(result, "conformers", None):
-        from tstrate.output.conformer_records import conformer_records
+        from tstrate.output.conformer_records import conformer_effect_records, conformer_records
 
         doc["conformers"] = conformer_records(result)
+        doc["conformer_effects"] = conformer_effect_records(result)
     if getattr(result, "uncertainty", None) is not None:
         from tstrate.output.uncertainty_records import uncertainty_record
 
@@ -402,6 +403,9 @@ def build_report(result, doc: dict, inputs: list[dict], figures) -> list:
             note += (f" kappa counts tunnelling from the {r['tunnelling_floor']} up; with the floor at the "
                      f"{r['other_tunnelling_floor']} instead, k changes by the ratio of the two kappa columns "
                      "(the thermalised complex is there only where collisions stabilise it).")
+        if r.get("tunnelling_well_conformer"):
+            note += (f" Tunnelling forward barrier from the conformer {r['tunnelling_well_conformer']}, "
+                     "which the transition state connects to.")
         if r.get("tunnelling_product_complex"):
             note += (f" Reverse tunnelling barrier from the product complex "
                      f"{r['tunnelling_product_complex']}.")

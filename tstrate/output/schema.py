@@ -215,6 +215,9 @@ _record("channel_rates", "Rate constants of one channel (transition-state theory
     ("transition_state_conformer_shares[].label", TEXT, "the TS conformer's label"),
     ("transition_state_conformer_shares[].share", ONE, "its share k_j / k of the rate constant, tunnelling "
      "included, per temperature"),
+    ("tunnelling_well_conformer", TEXT, "for a reactant-side well (complex, or the one reactant) that is a "
+     "conformer ensemble: the conformer the TS connects to, from which the tunnelling forward barrier and floor "
+     "are measured (null: from the lowest conformer, or no ensemble)"),
     ("standard_state", TEXT, "the standard states used"),
 ], "Canonical transition-state theory with the channel's tunnelling model; arrays run over temperature_K.")
 
@@ -749,6 +752,13 @@ Every number `tstrate run` computed, in one JSON document. The sections `compari
     ("uncertainty", OBJ, "how sure each number is (only with [uncertainty])", "uncertainty_results"),
     ("conformers", LIST, "one entry per conformer ensemble (only when the study has one)"),
     ("conformers[]", OBJ, "one ensemble", "conformer_ensemble"),
+    ("conformer_effects", LIST, "one entry per channel that uses a conformer ensemble (only with ensembles)"),
+    ("conformer_effects[].channel", TEXT, "channel name"),
+    ("conformer_effects[].ensembles", TEXT, "the ensembles the channel uses (list)"),
+    ("conformer_effects[].temperature_K", K, "temperatures of the ratios"),
+    ("conformer_effects[].rate_constant_ratio", ONE, "k with the ensembles over k with each ensemble's "
+     "lowest conformer alone, per temperature"),
+    ("conformer_effects[].Kc_ratio", ONE, "the same for the equilibrium constant, per temperature"),
 ))
 
 _INPUTS = Document("inputs.json", "results-json.md", """\
@@ -1154,6 +1164,20 @@ _COMMANDS = [
         ("output", TEXT, "species file written, or null"),
         ("conformer_energies_kJ_per_mol", KJ, "energy of each minimised conformer above the lowest"),
         ("gradient_calls_hessian", ONE, "calculator calls of the Hessian"),
+        ("from_cache", FLAG, "whether the result came from the cache"),
+    ]),
+    _cmd("compute conformers", "The distinct GFN2-xTB conformers of a SMILES (a conformer ensemble).", [
+        ("conformers", LIST, "one entry per distinct minimum, lowest first"),
+        ("conformers[].label", TEXT, "its label (c1, c2, ...)"),
+        ("conformers[].output", TEXT, "species file written, or null"),
+        ("conformers[].relative_energy_kJ_per_mol", KJ, "electronic energy above the lowest conformer"),
+        ("conformers[].species", OBJ, "the conformer", "species_summary"),
+        ("minimised_energies_kJ_per_mol", KJ, "energy of each embedded conformer after minimisation, above "
+         "the lowest"),
+        ("duplicates_removed", ONE, "minima removed as duplicates (energy and RMSD or distances)"),
+        ("above_energy_window", ONE, "distinct minima dropped above the energy window"),
+        ("study_species_line", TEXT, "the [species] line of a study for the ensemble (null without "
+         "--output-dir)"),
         ("from_cache", FLAG, "whether the result came from the cache"),
     ]),
     _cmd("compute saddle", "A GFN2-xTB saddle point, verified by minimising both ways.", [

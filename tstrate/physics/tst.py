@@ -112,6 +112,10 @@ class ChannelRates:
         Eckart); None otherwise. k scales with kappa, so k_other = k kappa_other_floor / kappa.
     ts_conformer_shares: TS conformer label -> (T,) share k_j / k of the rate through it, for a
         transition-state ensemble (multi-conformer TST); None for one TS structure.
+    tunnelling_well_conformer: the conformer of the reactant-side well (the complex, or the one
+        reactant) that V1 and the energy floor are measured from, when that well is an ensemble and the
+        (representative) TS connects to one of its conformers (:func:`connected_conformer_shift`);
+        None: from the well's lowest conformer.
     delta_H/S/G: activation enthalpy [J/mol], entropy [J/(mol K)], Gibbs energy [J/mol]
         at 1 bar standard state.
     degeneracy: the reaction-path degeneracy in effect (the user's override, else the
@@ -149,6 +153,7 @@ class ChannelRates:
     kappa_other_floor: np.ndarray | None = None
     other_energy_floor_J_per_mol: float | None = None
     ts_conformer_shares: dict | None = None
+    tunnelling_well_conformer: str | None = None
 
 
 def channel_rates(channel: Channel, species: dict, temperature_K, *,
@@ -163,6 +168,13 @@ def channel_rates(channel: Channel, species: dict, temperature_K, *,
     imaginary frequency and tunnelling factor; ``kappa`` is then the effective sum_j k_j / sum_j
     k_classical_j and ``ts_conformer_shares`` gives k_j / k. Barriers, Eckart heights and the
     imaginary frequency reported are those of the representative TS conformer.
+
+    The tunnelling model's reactant-side well (the complex, or the one reactant) is, for an ensemble,
+    the conformer the TS connects to (its [provenance] ``reactant_side_geometry``, compared by sorted
+    interatomic distances): V1 = E0_TS - E0_connected and the energy floor are measured from it, since
+    the 1-D barrier along the reaction path rises from that well. The equilibrium pool of conformers
+    feeds it; the rate is not otherwise changed (in equilibrium, k does not depend on which conformer
+    is counted as the reactant). Without a recorded connection, the lowest conformer.
     """
     ts = species[channel.transition_state]
     whole = _one_ts_rates(channel, species, temperature_K, low_modes=low_modes)
@@ -207,18 +219,23 @@ def _one_ts_rates(channel: Channel, species: dict, temperature_K, *,
 
     # tunnelling barrier heights, measured from the lower well on each side
     pcx = species[channel.product_complex] if channel.product_complex else None
+    # the reactant-side well of the tunnelling model: the complex, or the one reactant; of an
+    # ensemble, the conformer the TS connects to when its provenance records it, else the lowest
+    well = cx if cx is not None else (reac[0] if len(reac) == 1 else None)
+    shift, connected = connected_conformer_shift(ts, well)
     if cx is not None:
         e0_c = zpe_level_J_per_mol(cx)
-        v1 = e0_ts - e0_c
+        e0_well = e0_c + shift
+        v1 = e0_ts - e0_well
 
         def floor_of(choice):
             # never above the barrier top: a submerged TS keeps its over-the-barrier flux
-            return min(max(0.0, e0_r - e0_c), v1) if choice == "reactants" else 0.0
+            return min(max(0.0, e0_r - e0_well), v1) if choice == "reactants" else 0.0
 
         floor = floor_of(channel.tunnelling_floor)
-        b_cx_zpe, b_cx_cl = v1, ts.energy_J_per_mol - cx.energy_J_per_mol
+        b_cx_zpe, b_cx_cl = e0_ts - e0_c, ts.energy_J_per_mol - cx.energy_J_per_mol
     else:
-        v1 = barrier_zpe
+        v1 = barrier_zpe - shift
         floor = 0.0
         b_cx_zpe = b_cx_cl = None
     v2 = e0_ts - (e0_p if pcx is None else zpe_level_J_per_mol(pcx))
@@ -293,7 +310,34 @@ def _one_ts_rates(channel: Channel, species: dict, temperature_K, *,
         tunnelling_floor=channel.tunnelling_floor if cx is not None else None,
         kappa_other_floor=kappa_other,
         other_energy_floor_J_per_mol=None if other_floor is None else float(other_floor),
+        tunnelling_well_conformer=connected,
     )
+
+
+def connected_conformer_shift(ts: Species, well: Species | None) -> tuple[float, str | None]:
+    """(E0_i - E0_ref [J/mol], label) of the conformer i of the ensemble ``well`` that the TS
+    connects to, by the minimum its [provenance] ``reactant_side_geometry`` records (sorted
+    interatomic distances within :data:`tstrate.physics.conformers.SAME_STRUCTURE_TOLERANCE_A`,
+    the closest if several); (0, None) when ``well`` is no ensemble, or the TS records no such
+    minimum, or none of the conformers is it."""
+    if well is None or not well.conformers:
+        return 0.0, None
+    from tstrate.physics.conformers import SAME_STRUCTURE_TOLERANCE_A, parse_xyz_lines, structure_difference_A
+    from tstrate.physics.ensembles import conformer_labels, conformer_members, relative_zpe_levels_J_per_mol
+
+    text = ts.provenance.get("reactant_side_geometry")
+    if not text:
+        return 0.0, None
+    try:
+        symbols, positions = parse_xyz_lines(text)
+    except ValueError:
+        return 0.0, None
+    diffs = [structure_difference_A(symbols, positions, m.symbols, m.positions_A) for m in conformer_members(well)]
+    found = [(d, i) for i, d in enumerate(diffs) if d is not None and d <= SAME_STRUCTURE_TOLERANCE_A]
+    if not found:
+        return 0.0, None
+    i = min(found)[1]
+    return float(relative_zpe_levels_J_per_mol(well)[i]), conformer_labels(well)[i]
 
 
 def ln_eyring_factor(T) -> np.ndarray:

@@ -32,6 +32,25 @@ def study_conformers(study, *, low_modes: LowModes = HARMONIC, temperature_K=Non
             if sp.conformers}
 
 
+def conformer_effects(study, rates, *, low_modes: LowModes = HARMONIC) -> list[dict]:
+    """How much the conformer ensembles change each channel that uses one: per channel,
+    k(ensembles) / k(each ensemble's representative conformer alone) and the same for Kc, on the
+    rates' temperatures. Channels without an ensemble are left out."""
+    from tstrate.physics.tst import channel_rates
+
+    alone = {n: sp.with_changes(conformers=()) for n, sp in study.species.items() if sp.conformers}
+    out = []
+    for ch, cr in zip(study.channels, rates):
+        names = {*ch.reactants, *ch.products, ch.transition_state, ch.complex, ch.product_complex}
+        used = sorted(n for n in names if n in alone)
+        if not used:
+            continue
+        one = channel_rates(ch, {**study.species, **alone}, cr.temperature_K, low_modes=low_modes)
+        out.append({"channel": ch.name, "ensembles": used, "temperature_K": cr.temperature_K,
+                    "k_ratio": cr.k / one.k, "Kc_ratio": np.exp(cr.ln_kc - one.ln_kc)})
+    return out
+
+
 def capture_limits(study, rates) -> tuple[tuple, list[str]]:
     """The capture ceiling of every bimolecular channel (:mod:`tstrate.physics.capture`) against its
     TST rate constant, and a warning for each channel whose k_TST exceeds it somewhere."""

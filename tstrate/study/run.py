@@ -52,6 +52,8 @@ class StudyResult:
     uncertainty: study.uncertainty.StudyUncertainty when the study's [uncertainty] asks for it, else None.
     conformers: species name -> :class:`~tstrate.physics.ensembles.EnsembleParts` (members, relative
         energies, populations against the study temperatures) of each conformer ensemble.
+    conformer_effects: per channel that uses an ensemble, k and Kc with the ensembles over k and Kc
+        with their representative conformers alone (:func:`tstrate.study.rates.conformer_effects`).
     """
 
     study: Study
@@ -68,6 +70,7 @@ class StudyResult:
     isotopes: object | None = None
     uncertainty: object | None = None
     conformers: dict = field(default_factory=dict)
+    conformer_effects: tuple = ()
 
 
 def steps(study: Study) -> list[str]:
@@ -97,7 +100,8 @@ def compute_study(study: Study, *, low_modes: LowModes = HARMONIC,
                   uncertainty_progress: Callable[[str, int, int], None] | None = None) -> StudyResult:
     """Compute everything ``study`` asks for. ``progress(step)`` is called before each step;
     ``uncertainty_progress(stage, done, total)`` within the uncertainty step."""
-    from tstrate.study.rates import capture_limits, connection_warnings, study_conformers, study_rates
+    from tstrate.study.rates import (capture_limits, conformer_effects, connection_warnings, study_conformers,
+                                     study_rates)
 
     def step(name):
         log.info("%s", name)
@@ -117,6 +121,7 @@ def compute_study(study: Study, *, low_modes: LowModes = HARMONIC,
 
     step("rate constants")
     rates = tuple(study_rates(study, low_modes=low_modes))
+    effects = tuple(conformer_effects(study, rates, low_modes=low_modes)) if conformers else ()
     capture, w = capture_limits(study, rates)
     warnings += w + connection_warnings(study)
 
@@ -188,7 +193,7 @@ def compute_study(study: Study, *, low_modes: LowModes = HARMONIC,
     result = StudyResult(study=study, low_modes=low_modes, thermo=thermo, rates=rates,
                          comparisons=comparisons, falloff=falloff, excitations=excitations, fits=fits,
                          pressure_fits=pressure_fits, warnings=tuple(dict.fromkeys(warnings)), capture=capture,
-                         isotopes=isotopes, conformers=conformers)
+                         isotopes=isotopes, conformers=conformers, conformer_effects=effects)
     if wants_uncertainty(study):
         step("uncertainty")
         from dataclasses import replace
