@@ -591,6 +591,8 @@ _record("isotopes", "Isotopologues of a study", [
     ("substitutions[].kie[].factors.symmetry", ONE, "ratio of the path degeneracies, per temperature"),
     ("substitutions[].kie[].factors.vibrational_zpe", ONE, "zero-point term exp(-(dE0_light - dE0_heavy)/RT)"),
     ("substitutions[].kie[].factors.vibrational_excited", ONE, "excited-state vibrational term"),
+    ("substitutions[].kie[].factors.conformers", ONE, "conformer-ensemble term q_ens/q_lowest, TS over "
+     "reactants, light over heavy (1 without ensembles)"),
     ("substitutions[].kie[].factors.tunnelling", ONE, "kappa_light / kappa_heavy"),
     ("substitutions[].kie[].imaginary_frequency_ratio", ONE, "nu_light / nu_heavy of the imaginary mode: the "
      "classical limit of the KIE without tunnelling"),
@@ -966,6 +968,7 @@ Kinetic isotope effects (only with [isotopes]): one row per isotope, channel and
     ("symmetry", ONE, "path-degeneracy factor"),
     ("vibrational_zpe", ONE, "zero-point factor"),
     ("vibrational_excited", ONE, "excited-state vibrational factor"),
+    ("conformers", ONE, "conformer-ensemble factor (1 without ensembles)"),
     ("tunnelling", ONE, "tunnelling factor"),
 ), "csv")
 

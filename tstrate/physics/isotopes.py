@@ -344,7 +344,7 @@ def capital_delta_permil(delta_2_permil, delta_3_permil, theta_ref: float) -> np
 
 #: the factors of ln KIE, in the order the tables list them
 KIE_FACTORS = ("translational", "rotational", "symmetry", "vibrational_zpe", "vibrational_excited",
-               "tunnelling")
+               "conformers", "tunnelling")
 
 
 @dataclass(frozen=True)
@@ -358,6 +358,8 @@ class KIEFactors:
     vibrational_zpe: exp(-(dE0_light - dE0_heavy)/RT), the zero-point part of the barrier.
     vibrational_excited: ratio of the harmonic partition functions from the zero-point levels
         (the excited-state part); imaginary modes left out.
+    conformers: the ratio of the conformer-ensemble terms q_ens/q_representative, TS over reactants,
+        light over heavy (1 without ensembles; the other factors are the representatives').
     tunnelling: kappa_light / kappa_heavy.
     kie, kie_no_tunnelling: k_light/k_heavy with and without tunnelling (the product of the factors).
     imaginary_frequency_ratio: nu_light / nu_heavy of the imaginary mode (the classical limit of
@@ -385,6 +387,15 @@ def _ln_parts(sp: Species, T):
     return trans, rot, vib
 
 
+def _ln_conformers(sp: Species, T) -> np.ndarray:
+    """ln(q_ens / q_representative) of a conformer ensemble (0 for one structure)."""
+    if not sp.conformers:
+        return np.zeros_like(T)
+    from tstrate.physics.thermo import thermochemistry
+
+    return thermochemistry(sp, T).ln_q["conformers"]
+
+
 def kie_factors(light_rates, heavy_rates, light_species: dict, heavy_species: dict, channel) -> KIEFactors:
     """Split k_light/k_heavy of ``channel`` (the ChannelRates of the two isotopologue systems and
     their species maps) into the factors of :class:`KIEFactors`; their product equals the ratio of
@@ -403,11 +414,12 @@ def kie_factors(light_rates, heavy_rates, light_species: dict, heavy_species: di
             translational=ts_p[0] - sum(p[0] for p in r_p),
             rotational=ts_p[1] - sum(p[1] for p in r_p),
             vibrational_excited=ts_p[2] - sum(p[2] for p in r_p),
+            conformers=_ln_conformers(ts, T) - sum(_ln_conformers(s, T) for s in reac),
             e0=zpe_level_J_per_mol(ts) - sum(zpe_level_J_per_mol(s) for s in reac),
             ln_deg=math.log(symmetry_degeneracy(reac, ts) if channel.degeneracy is None else channel.degeneracy),
             imag=ts.imaginary_frequency_cm1)
     L, Hv = parts["light"], parts["heavy"]
-    ln = {k: L[k] - Hv[k] for k in ("translational", "rotational", "vibrational_excited")}
+    ln = {k: L[k] - Hv[k] for k in ("translational", "rotational", "vibrational_excited", "conformers")}
     ln["symmetry"] = np.full_like(T, L["ln_deg"] - Hv["ln_deg"])
     ln["vibrational_zpe"] = -(L["e0"] - Hv["e0"]) / (R * T)
     ln["tunnelling"] = np.log(light_rates.kappa) - np.log(heavy_rates.kappa)

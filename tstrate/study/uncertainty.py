@@ -228,6 +228,8 @@ class _Species:
     def delta(self, T: np.ndarray) -> np.ndarray:
         """(S, T) change of ln q/V - E0/RT."""
         key = T.tobytes()
+        if key not in self._cache and self.sp.conformers:
+            self._cache[key] = self._ensemble_delta(T)
         if key not in self._cache:
             if np.all(self.scale == 1.0) or self.freqs.size == 0:
                 dq = 0.0
@@ -236,6 +238,35 @@ class _Species:
                       - pu.vibrational_ln_q_scaled(self.freqs, T, [1.0], self.low_modes))
             self._cache[key] = dq - self.dE0[:, None] / (R * T[None, :])
         return self._cache[key]
+
+
+    def _ensemble_delta(self, T: np.ndarray) -> np.ndarray:
+        """delta for a conformer ensemble: ln q_ens/V - E0_ref/RT = ln sum_i q_i/V exp(-E0_i/RT), each
+        conformer's modes scaled alike and its ZPE with them, every energy moved by the same shift."""
+        from tstrate.physics.ensembles import conformer_members
+        from tstrate.physics.thermo import ln_partition_function_per_volume
+
+        def ln_terms(scale):
+            out = []
+            for m in conformer_members(self.sp):
+                f = m.harmonic_frequencies_cm1
+                dq = (pu.vibrational_ln_q_scaled(f, T, scale, self.low_modes)
+                      - pu.vibrational_ln_q_scaled(f, T, [1.0], self.low_modes)) if f.size else 0.0
+                e0 = zpe_level_J_per_mol(m) + zero_point_energy_J_per_mol(m) * (np.asarray(scale) - 1.0)
+                out.append(ln_partition_function_per_volume(m, T, low_modes=self.low_modes)[None, :] + dq
+                           - np.atleast_1d(e0)[:, None] / (R * T[None, :]))
+            return np.logaddexp.reduce(np.broadcast_arrays(*out), axis=0)
+
+        ie_shift = self.dE0 - zero_point_energy_J_per_mol(self.sp) * (self.scale - 1.0)  # the energy input
+        return ln_terms(self.scale) - ln_terms([1.0]) - ie_shift[:, None] / (R * T[None, :])
+
+    def conformer_shift(self, label) -> np.ndarray:
+        """(S,) change of E0_label - E0_ref with the samples' frequency scale [J/mol] (0 for the reference)."""
+        from tstrate.physics.ensembles import conformer_labels, conformer_members
+
+        members = dict(zip(conformer_labels(self.sp), conformer_members(self.sp)))
+        dz = zero_point_energy_J_per_mol(members[label]) - zero_point_energy_J_per_mol(self.sp.with_changes(conformers=()))
+        return dz * (self.scale - 1.0)
 
 
 def _channel_ln_k(ch, rates, sp: dict) -> tuple[np.ndarray, np.ndarray]:
@@ -268,6 +299,10 @@ def _channel_ln_k(ch, rates, sp: dict) -> tuple[np.ndarray, np.ndarray]:
                                                                           for n in ch.products))
     shift = 0.0
     shift = tunnelling_inputs(*nominal)[0] - rates.eckart_V1_J_per_mol
+    label = getattr(rates, "tunnelling_well_conformer", None)
+    if label is not None:  # the connected conformer's shift moves with the samples' frequency scale
+        well = sp[ch.complex] if ch.complex else reac[0]
+        shift = shift + well.conformer_shift(label)
     v1, v2, floor = tunnelling_inputs(e0_ts, e0_r, sp[ch.complex].E0 if ch.complex else 0.0 * e0_r, e0_p)
     nu = ts.sp.imaginary_frequency_cm1 * ts.imag_factor
     ln_kap = pu.log_kappa_samples(ch.tunnelling, T, nu, v1, v2, floor)
