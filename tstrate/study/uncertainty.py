@@ -281,7 +281,7 @@ def _channel_ln_k(ch, rates, sp: dict) -> tuple[np.ndarray, np.ndarray]:
     prod = sp[ch.product_complex] if ch.product_complex else None
     e0_p = prod.E0 if prod is not None else sum(sp[n].E0 for n in ch.products)
 
-    def tunnelling_inputs(e0_ts, e0_r, e0_c, e0_p):
+    def tunnelling_inputs(e0_ts, e0_r, e0_c, e0_p, shift):
         # the reactant-side well as the deterministic rate has it: for an ensemble, the conformer the
         # TS connects to (its shift above the lowest conformer kept fixed)
         if ch.complex:
@@ -297,19 +297,19 @@ def _channel_ln_k(ch, rates, sp: dict) -> tuple[np.ndarray, np.ndarray]:
                zpe_level_J_per_mol(sp[ch.complex].sp) if ch.complex else 0.0,
                zpe_level_J_per_mol(prod.sp) if prod is not None else sum(zpe_level_J_per_mol(sp[n].sp)
                                                                           for n in ch.products))
-    shift = 0.0
-    shift = tunnelling_inputs(*nominal)[0] - rates.eckart_V1_J_per_mol
+    shift0 = tunnelling_inputs(*nominal, 0.0)[0] - rates.eckart_V1_J_per_mol
+    shift = shift0
     label = getattr(rates, "tunnelling_well_conformer", None)
     if label is not None:  # the connected conformer's shift moves with the samples' frequency scale
         well = sp[ch.complex] if ch.complex else reac[0]
-        shift = shift + well.conformer_shift(label)
-    v1, v2, floor = tunnelling_inputs(e0_ts, e0_r, sp[ch.complex].E0 if ch.complex else 0.0 * e0_r, e0_p)
+        shift = shift0 + well.conformer_shift(label)
+    v1, v2, floor = tunnelling_inputs(e0_ts, e0_r, sp[ch.complex].E0 if ch.complex else 0.0 * e0_r, e0_p, shift)
     nu = ts.sp.imaginary_frequency_cm1 * ts.imag_factor
     ln_kap = pu.log_kappa_samples(ch.tunnelling, T, nu, v1, v2, floor)
     # the same formula at the nominal inputs (the deterministic kappa of one TS structure; for a TS
     # ensemble, that of its representative): samples move k by their change of kappa
     if ts.sp.conformers:
-        v1n, v2n, floor_n = tunnelling_inputs(*nominal)
+        v1n, v2n, floor_n = tunnelling_inputs(*nominal, shift0)
         ln_kap0 = pu.log_kappa_samples(ch.tunnelling, T, [ts.sp.imaginary_frequency_cm1], v1n, v2n,
                                        np.atleast_1d(floor_n))
         ln_kap = ln_kap - ln_kap0 + np.log(rates.kappa)[None, :]
