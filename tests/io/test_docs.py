@@ -422,7 +422,10 @@ def test_undocumented_study_key_is_refused(tmp_path, table):
 def test_demo_study_and_species_use_only_documented_keys():
     study_toml = tomllib.loads((DEMO / "study.toml").read_text())
     assert undocumented(study_toml, docs.STUDY_FILE) == []
-    named = {DEMO / rel for rel in study_toml["species"].values()}
+    def files(value):  # a species file, or a conformer ensemble's list or table of files
+        return [value] if isinstance(value, str) else list(value.values() if isinstance(value, dict) else value)
+
+    named = {DEMO / rel for value in study_toml["species"].values() for rel in files(value)}
     # study_gfn2.toml: the same study at the GFN2-xTB level (study.toml uses refined/)
     assert undocumented(tomllib.loads((DEMO / "study_gfn2.toml").read_text()), docs.STUDY_FILE) == []
     every = named | set(DEMO.glob("*.toml")) | set(DEMO.glob("refined/*.toml"))

@@ -53,7 +53,11 @@ def _variant_study(study: Path, folder: Path) -> Path:
     text = text[:text.index("[[excitation]]")] + text[text.index("# ---- fits"):]
     assert 'mechanism_form = "chebyshev"' in text
     text = text.replace('mechanism_form = "chebyshev"', 'mechanism_form = "modified"')
-    text += ('\n[[channel]]\nname = "bare-again"\nreactants = ["H2CO3"]\ntransition_state = "TS0"\n'
+    # the duplicate goes through a transition-state ensemble (two identical wells), for its shares
+    old = 'TS0 = "refined/ts_bare.toml"'
+    assert old in text
+    text = text.replace(old, old + '\nTS0pair = { a = "refined/ts_bare.toml", b = "refined/ts_bare.toml" }')
+    text += ('\n[[channel]]\nname = "bare-again"\nreactants = ["H2CO3"]\ntransition_state = "TS0pair"\n'
              'products = ["CO2", "H2O"]\ntunnelling = "wigner"\n')
     path.write_text(text)
     return path
@@ -81,6 +85,9 @@ def outputs(demo_run, tmp_path_factory):
     tmp = tmp_path_factory.mktemp("schema")
     variant = compute_study(read_study(_variant_study(study, tmp / "variant")))
     got.append(("fits.json", json.loads(json_text(fits_document(variant)))))
+    from tstrate.output.run_files import _results_json
+
+    got.append(("results.json", json.loads(json_text(_results_json(variant)))))
     got.append(("mechanism.yaml", _yaml(mechanism_yaml(variant.fits))))
     # Troe with T** (the demo's falloff fits have none): given Troe data on the invented test study
     from tstrate.expressions.troe import TroeFit
@@ -151,6 +158,9 @@ def compute_outputs(tmp_path_factory):
     try:
         got = [("tstrate compute minimum", run_cli_json(["compute", "minimum", "--smiles", "O", "--name", "H2O",
                                                          "--work-dir", str(tmp), "--quiet", "--json"]))]
+        got.append(("tstrate compute conformers", run_cli_json(
+            ["compute", "conformers", "--smiles", "CCO", "--name", "ethanol", "--conformers", "4", "--output-dir",
+             str(tmp / "ethanol"), "--work-dir", str(tmp), "--quiet", "--json"])))
         ts = tmp / "ts.toml"
         got.append(("tstrate compute relay", run_cli_json(["compute", "relay", "--waters", "0", "-o", str(ts),
                                                            "--work-dir", str(tmp), "--quiet", "--json"])))

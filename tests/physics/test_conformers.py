@@ -46,9 +46,16 @@ def test_xyz_lines_round_trip_and_refuse_other_text():
         parse_xyz_lines("not a geometry")
 
 
-def test_the_demo_bare_ts_connects_to_the_cis_trans_conformer():
-    """The bare TS of the demo falls, downhill, into cis-trans H2CO3 while the channel's reactant is the
-    cis-cis conformer: the study says so; the water-assisted TSs connect to their own complexes."""
-    warnings = connection_warnings(read_study(DEMO / "study.toml"))
+def test_the_demo_bare_ts_connects_to_the_cis_trans_conformer(tmp_path):
+    """The bare TS of the demo falls, downhill, into cis-trans H2CO3: with cis-cis H2CO3 alone as the
+    channel's reactant the study says so; the demo's H2CO3, the cis-cis + cis-trans ensemble, holds the
+    connected conformer and passes; the water-assisted TSs connect to their own complexes."""
+    assert connection_warnings(read_study(DEMO / "study.toml")) == []
+    text = (DEMO / "study.toml").read_text()
+    line = 'H2CO3 = { cis_cis = "refined/h2co3.toml", cis_trans = "refined/h2co3_cis_trans.toml" }'
+    assert line in text, "test setup: the demo's H2CO3 line changed"
+    alone = tmp_path / "study.toml"
+    alone.write_text(text.replace(line, 'H2CO3 = "refined/h2co3.toml"').replace('"refined/', f'"{DEMO}/refined/'))
+    warnings = connection_warnings(read_study(alone))
     assert len(warnings) == 1
     assert "channel bare" in warnings[0] and "another conformer" in warnings[0] and "H2CO3" in warnings[0]

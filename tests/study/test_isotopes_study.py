@@ -51,7 +51,16 @@ def test_study_kie_equals_the_ratio_of_two_independent_runs(demo, tmp_path):
     heavy = dict(study.species)
     for name, atom in files.items():
         heavy[name] = read_species(_heavy_file(tmp_path, study.species_files[name], {atom: 13}), name=name)
-    light = {n: read_species(p, name=n) for n, p in study.species_files.items()}
+    light = {n: read_species(p, name=n) for n, p in study.species_files.items() if "/" not in n}
+    # the demo's H2CO3 is the cis-cis + cis-trans ensemble: both conformers get their one C heavy
+    from tstrate.physics.ensembles import build_ensemble
+
+    ct_file = study.species_files["H2CO3/cis_trans"]
+    ct_carbon = read_species(ct_file).symbols.index("C") + 1
+    (tmp_path / "ct").mkdir()
+    for which, cis_trans in ((light, read_species(ct_file)),
+                             (heavy, read_species(_heavy_file(tmp_path / "ct", ct_file, {ct_carbon: 13})))):
+        which["H2CO3"] = build_ensemble("H2CO3", [("cis_cis", which["H2CO3"]), ("cis_trans", cis_trans)])
     k_light = channel_rates(ch, light, T).k
     k_heavy = channel_rates(ch, heavy, T).k
     for label in ("13C (bare, by atom)", "13C"):

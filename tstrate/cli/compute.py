@@ -16,6 +16,7 @@ Make species files by the semi-empirical route (GFN2-xTB through tblite and ASE)
 or from the output of a quantum-chemistry program.
 
   minimum   optimise a SMILES (lowest of several conformers) or a geometry; Hessian
+  conformers the distinct conformers of a SMILES (a conformer ensemble), each with its Hessian
   saddle    transition state from a guess, or from reactant + product (NEB, then Sella);
             verified by minimising both ways along the imaginary mode
   relay     carbonic acid decomposition assisted by 0, 1 or 2 water molecules:
@@ -84,6 +85,26 @@ def add_arguments(parser: argparse.ArgumentParser) -> None:
                            "with --geometry)",
             multiplicity_help="spin multiplicity 2S+1 (default: one more than the radical electrons "
                               "of --smiles; 1 with --geometry)")
+
+    p = sub.add_parser("conformers", help="GFN2-xTB conformer ensemble from a SMILES",
+                       description="Embed conformers of a SMILES, minimise each with GFN2-xTB, remove "
+                                   "duplicates by energy and RMSD (or sorted interatomic distances), and "
+                                   "write one species file (with its Hessian) per distinct minimum, for a "
+                                   "conformer ensemble in a study's [species].")
+    p.add_argument("--smiles", required=True, help="SMILES string (hydrogens are added)")
+    p.add_argument("--name", required=True, help="species name; the files are NAME_c1.toml, NAME_c2.toml ...")
+    p.add_argument("--output-dir", help="folder for the species files (made if missing); without it only a "
+                   "summary is printed")
+    p.add_argument("--conformers", type=int, default=20, help="conformers embedded (default %(default)s)")
+    p.add_argument("--rmsd-A", type=float, default=0.125, metavar="A",
+                   help="two minima within this Kabsch RMSD [Angstrom] and within --energy-tolerance-kJ "
+                        "are one (default %(default)s, common practice)")
+    p.add_argument("--energy-tolerance-kJ", type=float, default=0.2, metavar="KJ_PER_MOL",
+                   help="energy agreement of duplicates [kJ/mol] (default %(default)s)")
+    p.add_argument("--energy-window-kJ", type=float, default=20.0, metavar="KJ_PER_MOL",
+                   help="minima further above the lowest are dropped [kJ/mol] (default %(default)s)")
+    _common(p, charge_help="total charge (default: the sum of the formal charges of --smiles)",
+            multiplicity_help="spin multiplicity 2S+1 (default: one more than the radical electrons of --smiles)")
 
     p = sub.add_parser("saddle", help="GFN2-xTB transition state from a guess or from reactant "
                        "and product", description="Find, characterise and verify a saddle point.")
@@ -327,6 +348,46 @@ def _run_minimum(args) -> int:
     return 0
 
 
+def _run_conformers(args) -> int:
+    from tstrate.compute.conformers import search_conformers
+
+    folder = Path(args.output_dir) if args.output_dir else None
+    if folder is not None and folder.exists() and not folder.is_dir():
+        raise InputError("is a file, not a folder", file=str(folder), field="--output-dir")
+    settings = _settings(args, n_conformers=args.conformers)
+    res = search_conformers(name=args.name, smiles=args.smiles, settings=settings, rmsd_A=args.rmsd_A,
+                            energy_tolerance_J_per_mol=args.energy_tolerance_kJ * 1e3,
+                            energy_window_J_per_mol=args.energy_window_kJ * 1e3, charge=args.charge,
+                            multiplicity=args.multiplicity, cache=_cache(args), progress=_progress(args),
+                            work_dir=args.work_dir, command=_command_line(args))
+    paths = [None if folder is None else folder / f"{args.name}_{lb}.toml" for lb, _ in res.conformers]
+    if folder is not None:
+        existing = [p for p in paths if p.exists()]
+        if existing and not args.force:
+            raise InputError("file exists; refusing to overwrite it", file=str(existing[0]), field="--output-dir",
+                             hint="pass --force to replace it")
+        folder.mkdir(parents=True, exist_ok=True)
+        for (_, sp), path in zip(res.conformers, paths):
+            _write(sp, path)
+    from tstrate.output.compute_records import conformers_document
+
+    doc = conformers_document(res, args.name, paths)
+    if args.json:
+        from tstrate.cli.common import print_json
+
+        print_json(doc)
+    else:
+        lines = [f"{lb}: {c['relative_energy_kJ_per_mol']:.3f} kJ/mol above the lowest; "
+                 + _describe(sp, path) for (lb, sp), path, c in zip(res.conformers, paths, doc["conformers"])]
+        lines.append(f"{len(res.conformers)} distinct of {len(res.minimised_energies_J_per_mol)} embedded "
+                     f"({res.duplicates} duplicates, {res.above_window} above the window)"
+                     + (" (from cache)" if res.from_cache else ""))
+        if folder is not None:
+            lines.append("study [species] line: " + doc["study_species_line"])
+        _print_text(lines)
+    return 0
+
+
 def _saddle_text(res, outs) -> list[str]:
     from tstrate.output.compute_records import saddle_record
 
@@ -479,7 +540,7 @@ def _run_refine(args) -> int:
 
 
 def run(args) -> int:
-    action = {"minimum": _run_minimum, "saddle": _run_saddle, "relay": _run_relay,
+    action = {"minimum": _run_minimum, "conformers": _run_conformers, "saddle": _run_saddle, "relay": _run_relay,
               "read": _run_read, "refine": _run_refine,
               "relay-any": _run_relay_any, "rotors": _run_rotors}[args.compute_command]
     try:

@@ -218,6 +218,23 @@ def study_page() -> str:
         "tables below do not list is refused: in one line that names the file and the key (exit status 2), "
         "for example:", "",
         "```", _unknown_key_line(STUDY_FILE, "study.toml", "condition"), "```", "",
+        "## Conformer ensembles", "",
+        "A species may stand for several conformers in equilibrium: give `[species]` a table label -> "
+        "species file (`H2CO3 = { cis_cis = \"h2co3.toml\", cis_trans = \"h2co3_cis_trans.toml\" }`) or a "
+        "list of files (labelled by their names without `.toml`). Its partition function is "
+        "q = sum_i q_i exp(-(E0_i - E0_ref)/kT), each conformer with its own geometry, frequencies, "
+        "energy, symmetry number and optical isomers (E0: electronic energy plus ZPE; the lowest conformer "
+        "is the reference, and it stands for the ensemble where one structure is needed). Thermochemistry, "
+        "equilibrium constants and rates use the sum; a transition-state ensemble gives multi-conformer TST, "
+        "the sum of the rates through each TS conformer with its own tunnelling factor; the falloff's k(E) "
+        "counts the states of every conformer of the reactant and of the transition state. `tables/conformers.csv`, `results.json` "
+        "(`conformers`, `conformer_effects`, `transition_state_conformer_shares`) and the report give each "
+        "conformer's population against T and how much the ensembles change each k and Kc. "
+        "`tstrate compute conformers` writes the conformer files from a SMILES. **Count each well once**: "
+        "mirror images and permuted identical atoms are counted by the symmetry number and optical isomers, "
+        "not as extra conformers; and conformers that differ only along a torsion that a species treats as a "
+        "hindered or free internal rotor are one well of that rotor (its levels already span all its "
+        "minima), so the ensemble keeps one conformer per well of the torsions that are not rotors.", "",
         "## Example", "",
         "The bundled demo (`molecules/carbonic_acid/study.toml`): carbonic acid decomposing to CO2 + H2O, "
         "bare and assisted by one or two water molecules, in a cold, dry, CO2-rich upper atmosphere and a "

@@ -19,7 +19,8 @@ from typing import Any, Iterable, Iterator
 
 #: how a value is written in TOML (the words the pages use)
 TYPES = ("string", "integer", "number", "true or false", "true or false, or a number", "list of numbers",
-         "list of strings", "number or list of numbers", "table", "array of tables")
+         "list of strings", "number or list of numbers", "table", "array of tables",
+         "string, list of strings or table")
 #: types whose values are numbers: a key of one of these must say its unit ("1" for a pure number)
 NUMERIC_TYPES = frozenset({"integer", "number", "true or false, or a number", "list of numbers",
                            "number or list of numbers"})

@@ -65,8 +65,16 @@ STUDY_KEYS = Keys((), "top level", "A study names its species files and links th
 SPECIES_MAP_KEYS = Keys(("species",), "[species]",
                         "One line per species: the name the study uses (quote names with dots or "
                         "parentheses, `\"H2CO3.H2O\" = ...`) and its [species file](species-file.md).",
-                        any_key=Key("<species name>", "string", "path of the species file, relative to the "
-                                    "study file", required="at least one species"))
+                        any_key=Key("<species name>", "string, list of strings or table",
+                                    "path of the species file, relative to the study file; or a conformer "
+                                    "ensemble: a list of species files, one per conformer (labelled by "
+                                    "their file names without `.toml`), or a table label -> species file "
+                                    "(`H2CO3 = { cis_cis = \"h2co3.toml\", cis_trans = \"h2co3_ct.toml\" "
+                                    "}`). The conformers are Boltzmann-weighted, each with its own energy, "
+                                    "symmetry number and optical isomers; the lowest (ZPE-inclusive) is the "
+                                    "reference. Count each well once: no conformer that differs from "
+                                    "another only along a torsion treated as a hindered or free rotor",
+                                    required="at least one species"))
 CONDITIONS_KEYS = Keys(("conditions",), "[conditions]", "The grid every step is computed on.", (
     Key("temperature_K", "list of numbers", "temperatures, each positive", required=True, unit="K"),
     Key("pressure_bar", "list of numbers", "total pressures, for falloff and energised molecules",
@@ -301,6 +309,44 @@ def _read_channel(t: Table, species: dict, file: str) -> Channel:
     return channel
 
 
+def _read_species_entry(st: Table, name: str, path: Path, species_files: dict):
+    """One line of [species]: a species file, or a conformer ensemble (list or table of files).
+    Records every file read in ``species_files`` (a conformer's under ``name/label``)."""
+    raw = st.data[name]
+    if isinstance(raw, str):
+        entries = [(None, raw)]
+    elif isinstance(raw, list) and raw and all(isinstance(r, str) for r in raw):
+        entries = [(Path(r).name.removesuffix(".toml"), r) for r in raw]
+    elif isinstance(raw, dict) and raw and all(isinstance(r, str) for r in raw.values()):
+        entries = list(raw.items())
+    else:
+        raise st.error(name, "expected a species file, a list of conformer species files or a table "
+                             "label -> conformer species file")
+    members = []
+    for label, rel in entries:
+        spath = Path(rel) if Path(rel).is_absolute() else path.parent / rel
+        if not spath.exists():
+            raise st.error(name, f"species file {rel!r} does not exist")
+        members.append((label, read_species(spath, name=name), str(spath)))
+    if len(members) == 1:
+        species_files[name] = members[0][2]
+        return members[0][1]
+    from tstrate.physics.ensembles import build_ensemble
+
+    labels = [lb for lb, _, _ in members]
+    if len(set(labels)) != len(labels):
+        raise st.error(name, f"conformer labels repeat: {labels}", hint="give a table label -> file")
+    try:
+        ensemble = build_ensemble(name, [(lb, sp) for lb, sp, _ in members])
+    except (InputError, ValueError) as exc:
+        raise st.error(name, f"conformer ensemble: {getattr(exc, 'problem', exc)}") from None
+    files = {lb: f for lb, _, f in members}
+    species_files[name] = files[ensemble.conformer_label]
+    for c in ensemble.conformers:
+        species_files[c.name] = files[c.conformer_label]
+    return ensemble
+
+
 def read_study(path: str | Path) -> Study:
     """Read and validate a study file and every species file it names."""
     path = Path(path)
@@ -316,12 +362,7 @@ def read_study(path: str | Path) -> Study:
     species, species_files = {}, {}
     st.reject_unknown(SPECIES_MAP_KEYS)
     for name in list(st.data):
-        rel = st.get(name, str)
-        spath = Path(rel) if Path(rel).is_absolute() else path.parent / rel
-        if not spath.exists():
-            raise st.error(name, f"species file {rel!r} does not exist")
-        species[name] = read_species(spath, name=name)
-        species_files[name] = str(spath)
+        species[name] = _read_species_entry(st, name, path, species_files)
     if not species:
         raise st.error(None, "no species listed")
     conditions = _read_conditions(t.table("conditions"))

@@ -183,6 +183,13 @@ class Species:
     rotation_group: name of the rotation group detected from the geometry ("C2", "D3", "T",
         "C∞", ...; "atom" for one atom), or None when not detected (symmetry number given).
     warnings: sentences from building the species (symmetry detection), for reports.
+    conformers: the other conformers of this species, when it stands for a conformer ensemble
+        (:mod:`tstrate.physics.ensembles`): each a Species of the same atoms, charge, multiplicity and
+        kind, with an electronic energy and no conformers of its own. This species is the ensemble's
+        representative (the study reader makes it the member of lowest ZPE-inclusive energy), and
+        partition functions, thermochemistry and TST rates sum over it and its conformers, each with
+        its own energy, symmetry number and optical isomers. Default none (one structure).
+    conformer_label: the label of this structure among its ensemble's conformers (reports), or None.
     """
 
     name: str
@@ -209,6 +216,8 @@ class Species:
     symmetry_given: tuple[str, ...] = SYMMETRY_FIELDS
     rotation_group: str | None = None
     warnings: tuple[str, ...] = ()
+    conformers: tuple["Species", ...] = ()
+    conformer_label: str | None = None
 
     def __post_init__(self):
         _validate_species(self)
@@ -504,6 +513,38 @@ def _validate_species(sp: Species) -> None:
     store("warnings", warnings)
     store("free_rotors", _check_free_rotors(tuple(sp.free_rotors), freqs, bad))
     store("hindered_rotors", _check_hindered_rotors(tuple(sp.hindered_rotors), sp, freqs, bad))
+    store("conformers", _check_conformers(sp, tuple(sp.conformers), bad))
+
+
+def _check_conformers(sp: Species, conformers, bad) -> tuple[Species, ...]:
+    """The members of a conformer ensemble must be Species of the same atoms (as a multiset),
+    masses, charge, multiplicity and kind, with energies, labels and no ensembles of their own."""
+    if not conformers:
+        return ()
+    if sp.energy_J_per_mol is None:
+        raise bad("energy", f"species {sp.name!r} stands for a conformer ensemble and needs an energy")
+    labels = [sp.conformer_label]
+    for i, c in enumerate(conformers):
+        key = f"conformers[{i}]"
+        if not isinstance(c, Species):
+            raise bad(key, f"expected a Species, got {type(c).__name__}")
+        if c.conformers:
+            raise bad(key, f"conformer {c.name!r} is itself an ensemble; give the members one level deep")
+        where = f"conformer {c.name!r} of {sp.name!r}"
+        if c.atom_counts != sp.atom_counts:
+            raise bad(key, f"{where} has other atoms ({c.formula} against {sp.formula})")
+        if sorted(np.round(c.masses_amu, 6)) != sorted(np.round(sp.masses_amu, 6)):
+            raise bad(key, f"{where} has other masses (isotopes) than {sp.name!r}")
+        for attr in ("charge", "multiplicity", "kind"):
+            if getattr(c, attr) != getattr(sp, attr):
+                raise bad(key, f"{where} has {attr} {getattr(c, attr)!r}, not {getattr(sp, attr)!r}")
+        if c.energy_J_per_mol is None:
+            raise InputError(f"{where} has no electronic energy; an ensemble weighs its conformers by "
+                             "their energies", file=c.source, field="energy")
+        labels.append(c.conformer_label)
+    if any(lb is None for lb in labels) or len(set(labels)) != len(labels):
+        raise bad("conformer_label", f"the conformers of {sp.name!r} need distinct labels, got {labels}")
+    return conformers
 
 
 def _check_free_rotors(free_rotors, freqs: np.ndarray, bad) -> tuple[FreeRotor, ...]:

@@ -28,6 +28,22 @@ def minimum_document(res, output) -> dict:
             "from_cache": res.from_cache}
 
 
+def conformers_document(res, name: str, outputs) -> dict:
+    """``tstrate compute conformers --json`` (``res`` a :class:`tstrate.compute.conformers.ConformerSearch`;
+    ``outputs`` the file written for each conformer, or None)."""
+    e0 = res.conformers[0][1].energy_J_per_mol
+    entries = ", ".join(f'{lb} = "{p}"' for (lb, _), p in zip(res.conformers, outputs) if p is not None)
+    return {
+        "conformers": [{"label": lb, "output": None if p is None else str(p),
+                        "relative_energy_kJ_per_mol": (sp.energy_J_per_mol - e0) * _KJ,
+                        "species": species_summary_record(sp)} for (lb, sp), p in zip(res.conformers, outputs)],
+        "minimised_energies_kJ_per_mol": [e * _KJ for e in res.minimised_energies_J_per_mol],
+        "duplicates_removed": res.duplicates, "above_energy_window": res.above_window,
+        "study_species_line": f"{name} = {{ {entries} }}" if entries else None,
+        "from_cache": res.from_cache,
+    }
+
+
 def read_document(sp, output) -> dict:
     """``tstrate compute read --json``: the species read from a quantum-chemistry output."""
     return {"species": species_summary_record(sp), "output": output}

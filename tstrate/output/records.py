@@ -100,10 +100,18 @@ def channel_rates_record(cr, rate_units: dict | None = None) -> dict:
         "delta_S_activation_J_per_mol_K": cr.delta_S_J_per_mol_K,
         "delta_G_activation_kJ_per_mol": cr.delta_G_J_per_mol * kj,
         "reaction_path_degeneracy": cr.degeneracy,
+        "transition_state_conformer_shares": _ts_shares(cr),
+        "tunnelling_well_conformer": getattr(cr, "tunnelling_well_conformer", None),
         "standard_pressure_bar": cr.standard_pressure_Pa / 1e5,
         "standard_state": (f"{standard_pressure_name(cr.standard_pressure_Pa)} (activation quantities, Kp); "
                            "rate constants per molecule"),
     }
+
+
+def _ts_shares(cr):
+    from tstrate.output.conformer_records import ts_shares_record
+
+    return ts_shares_record(cr)
 
 
 #: levels of each hindered rotor listed in JSON output (from its ground level)

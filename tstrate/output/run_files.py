@@ -105,6 +105,11 @@ def _results_json(result) -> dict:
         from tstrate.output.isotope_records import isotopes_record
 
         doc["isotopes"] = isotopes_record(result.isotopes)
+    if getattr(result, "conformers", None):
+        from tstrate.output.conformer_records import conformer_effect_records, conformer_records
+
+        doc["conformers"] = conformer_records(result)
+        doc["conformer_effects"] = conformer_effect_records(result)
     if getattr(result, "uncertainty", None) is not None:
         from tstrate.output.uncertainty_records import uncertainty_record
 
@@ -234,6 +239,11 @@ def write_all(result, folder: Path, *, progress: Callable[[str], None] | None = 
         for name, rows in CSV_TABLES.items():
             atomic_write_text(folder / "tables" / name, csv_text(*rows(result.isotopes)))
             written.append(folder / "tables" / name)
+    if getattr(result, "conformers", None):
+        from tstrate.output.conformer_records import conformer_rows
+
+        atomic_write_text(folder / "tables" / "conformers.csv", csv_text(*conformer_rows(result)))
+        written.append(folder / "tables" / "conformers.csv")
     unc = getattr(result, "uncertainty", None)
     if unc is not None:
         from tstrate.output import uncertainty_records as ur
@@ -446,6 +456,10 @@ def build_report(result, doc: dict, inputs: list[dict], figures, evaluation: dic
                           "Exact 1-D levels in a free-rotor basis; reduced moments by Pitzer's definition unless "
                           "given; each rotor replaces the harmonic mode named."))
         B += [rp.Figure(p, c) for s, p, c in figures if s == "rotors"]
+    if doc.get("conformers"):
+        from tstrate.output.conformer_records import conformer_report_blocks
+
+        B += conformer_report_blocks(result, doc, _pick_temperatures)
 
     B.append(rp.Heading("Rate constants"))
     rows = []
@@ -480,6 +494,9 @@ def build_report(result, doc: dict, inputs: list[dict], figures, evaluation: dic
             note += (f" kappa counts tunnelling from the {r['tunnelling_floor']} up; with the floor at the "
                      f"{r['other_tunnelling_floor']} instead, k changes by the ratio of the two kappa columns "
                      "(the thermalised complex is there only where collisions stabilise it).")
+        if r.get("tunnelling_well_conformer"):
+            note += (f" Tunnelling forward barrier from the conformer {r['tunnelling_well_conformer']}, "
+                     "which the transition state connects to.")
         if r.get("tunnelling_product_complex"):
             note += (f" Reverse tunnelling barrier from the product complex "
                      f"{r['tunnelling_product_complex']}.")

@@ -252,8 +252,30 @@ _record("channel_rates", "Rate constants of one channel (transition-state theory
     ("delta_S_activation_J_per_mol_K", JK, "activation entropy at 1 bar, per temperature"),
     ("delta_G_activation_kJ_per_mol", KJ, "activation Gibbs energy at 1 bar, per temperature"),
     ("reaction_path_degeneracy", ONE, "reaction-path degeneracy in effect"),
+    ("transition_state_conformer_shares", LIST, "for a transition state that is a conformer ensemble, one entry "
+     "per TS conformer (null otherwise)"),
+    ("transition_state_conformer_shares[].label", TEXT, "the TS conformer's label"),
+    ("transition_state_conformer_shares[].share", ONE, "its share k_j / k of the rate constant, tunnelling "
+     "included, per temperature"),
+    ("tunnelling_well_conformer", TEXT, "for a reactant-side well (complex, or the one reactant) that is a "
+     "conformer ensemble: the conformer the TS connects to, from which the tunnelling forward barrier and floor "
+     "are measured (null: from the lowest conformer, or no ensemble)"),
     ("standard_state", TEXT, "the standard states used"),
 ], "Canonical transition-state theory with the channel's tunnelling model; arrays run over temperature_K.")
+
+_record("conformer_ensemble", "One conformer ensemble", [
+    ("species", TEXT, "the study's name of the ensemble"),
+    ("kind", TEXT, "minimum or transition_state"),
+    ("temperature_K", K, "temperatures of the populations"),
+    ("conformers", LIST, "one entry per conformer, the reference (lowest E0) first"),
+    ("conformers[].label", TEXT, "the conformer's label ([species] table key, or file name)"),
+    ("conformers[].file", TEXT, "its species file"),
+    ("conformers[].relative_zpe_energy_kJ_per_mol", KJ, "E0 (electronic energy plus ZPE) above the reference"),
+    ("conformers[].relative_electronic_energy_kJ_per_mol", KJ, "electronic energy above the reference's"),
+    ("conformers[].symmetry_number", ONE, "its own rotational symmetry number"),
+    ("conformers[].optical_isomers", ONE, "its own number of optical isomers"),
+    ("conformers[].population", ONE, "Boltzmann population x_i(T), 0 to 1, per temperature"),
+], "q_ens = sum_i q_i exp(-(E0_i - E0_ref)/kT); x_i = q_i exp(-(E0_i - E0_ref)/kT) / q_ens.")
 
 _record("scenario", "One comparison scenario (a comparison at one catalyst abundance)", [
     ("name", TEXT, "name of the [[comparison]]"),
@@ -654,6 +676,8 @@ _record("isotopes", "Isotopologues of a study", [
     ("substitutions[].kie[].factors.symmetry", ONE, "ratio of the path degeneracies, per temperature"),
     ("substitutions[].kie[].factors.vibrational_zpe", ONE, "zero-point term exp(-(dE0_light - dE0_heavy)/RT)"),
     ("substitutions[].kie[].factors.vibrational_excited", ONE, "excited-state vibrational term"),
+    ("substitutions[].kie[].factors.conformers", ONE, "conformer-ensemble term q_ens/q_lowest, TS over "
+     "reactants, light over heavy (1 without ensembles)"),
     ("substitutions[].kie[].factors.tunnelling", ONE, "kappa_light / kappa_heavy"),
     ("substitutions[].kie[].imaginary_frequency_ratio", ONE, "nu_light / nu_heavy of the imaginary mode: the "
      "classical limit of the KIE without tunnelling"),
@@ -966,6 +990,15 @@ Every number `tstrate run` computed, in one JSON document. The sections `compari
     ("uncertainty", OBJ, "how sure each number is (only with [uncertainty])", "uncertainty_results"),
     ("references", LIST, "one entry per [[reference_rate]] of the study (only with them)"),
     ("references[]", OBJ, "one reference expression and its ratios", "reference_comparison"),
+    ("conformers", LIST, "one entry per conformer ensemble (only when the study has one)"),
+    ("conformers[]", OBJ, "one ensemble", "conformer_ensemble"),
+    ("conformer_effects", LIST, "one entry per channel that uses a conformer ensemble (only with ensembles)"),
+    ("conformer_effects[].channel", TEXT, "channel name"),
+    ("conformer_effects[].ensembles", TEXT, "the ensembles the channel uses (list)"),
+    ("conformer_effects[].temperature_K", K, "temperatures of the ratios"),
+    ("conformer_effects[].rate_constant_ratio", ONE, "k with the ensembles over k with each ensemble's "
+     "lowest conformer alone, per temperature"),
+    ("conformer_effects[].Kc_ratio", ONE, "the same for the equilibrium constant, per temperature"),
 ))
 
 _INPUTS = Document("inputs.json", "results-json.md", """\
@@ -1144,6 +1177,19 @@ with falloff; the same fits as fits.json fits_at_each_pressure).""", _keys(
     ("rms deviation", PCT, "rms deviation"),
 ), "csv")
 
+_CONFORMERS_CSV = Document("tables/conformers.csv", "csv-tables.md", """\
+Conformer populations (only when the study has a conformer ensemble): one row per ensemble,
+conformer and temperature.""", _keys(
+    ("species", TEXT, "the ensemble's name in the study"),
+    ("conformer", TEXT, "the conformer's label"),
+    ("T", K, "temperature"),
+    ("population", ONE, "Boltzmann population in its ensemble, 0 to 1"),
+    ("relative E0", KJ, "electronic energy plus ZPE above the ensemble's lowest conformer"),
+    ("relative E_electronic", KJ, "electronic energy above the lowest conformer's"),
+    ("symmetry number", ONE, "the conformer's rotational symmetry number"),
+    ("optical isomers", ONE, "the conformer's number of optical isomers"),
+), "csv")
+
 _ISO_BETA_CSV = Document("tables/isotopes_beta.csv", "csv-tables.md", """\
 Beta factors (only with [isotopes]): one row per isotope, species and temperature.""", _keys(
     ("isotope", TEXT, "substitution label"),
@@ -1169,6 +1215,7 @@ factors; the position's own row has none then).""", _keys(
     ("symmetry", ONE, "path-degeneracy factor"),
     ("vibrational_zpe", ONE, "zero-point factor"),
     ("vibrational_excited", ONE, "excited-state vibrational factor"),
+    ("conformers", ONE, "conformer-ensemble factor (1 without ensembles)"),
     ("tunnelling", ONE, "tunnelling factor"),
 ), "csv")
 
@@ -1383,6 +1430,20 @@ _COMMANDS = [
         ("gradient_calls_hessian", ONE, "calculator calls of the Hessian"),
         ("from_cache", FLAG, "whether the result came from the cache"),
     ]),
+    _cmd("compute conformers", "The distinct GFN2-xTB conformers of a SMILES (a conformer ensemble).", [
+        ("conformers", LIST, "one entry per distinct minimum, lowest first"),
+        ("conformers[].label", TEXT, "its label (c1, c2, ...)"),
+        ("conformers[].output", TEXT, "species file written, or null"),
+        ("conformers[].relative_energy_kJ_per_mol", KJ, "electronic energy above the lowest conformer"),
+        ("conformers[].species", OBJ, "the conformer", "species_summary"),
+        ("minimised_energies_kJ_per_mol", KJ, "energy of each embedded conformer after minimisation, above "
+         "the lowest"),
+        ("duplicates_removed", ONE, "minima removed as duplicates (energy and RMSD or distances)"),
+        ("above_energy_window", ONE, "distinct minima dropped above the energy window"),
+        ("study_species_line", TEXT, "the [species] line of a study for the ensemble (null without "
+         "--output-dir)"),
+        ("from_cache", FLAG, "whether the result came from the cache"),
+    ]),
     _cmd("compute saddle", "A GFN2-xTB saddle point, verified by minimising both ways.", [
         ("", "", "", "saddle"),
         ("outputs", TEXT, "files written: TS, reactant side, product side (null where not asked for)"),
@@ -1411,9 +1472,9 @@ _COMMANDS.append(_cmd("uncertainty", "Uncertainty and sensitivity of every resul
 
 DOCUMENTS: dict[str, Document] = {d.name: d for d in
                                   [_RESULTS, _INPUTS, _FITS, _FITS_CSV, _THERMO_CSV, _RATES_CSV,
-                                   _PFITS_CSV, _ISO_BETA_CSV, _ISO_KIE_CSV, _ISO_FRAC_CSV, _ISO_THETA_CSV,
-                                   _UNC_CSV, _UNC_RANK_CSV, _EVAL_FORMS, _EVAL_CSV, _REF_CSV, _MECHANISM,
-                                   *_COMMANDS]}
+                                   _PFITS_CSV, _CONFORMERS_CSV, _ISO_BETA_CSV, _ISO_KIE_CSV, _ISO_FRAC_CSV,
+                                   _ISO_THETA_CSV, _UNC_CSV, _UNC_RANK_CSV, _EVAL_FORMS, _EVAL_CSV, _REF_CSV,
+                                   _MECHANISM, *_COMMANDS]}
 
 PAGES = {
     "results-json.md": ("results.json and inputs.json", """\

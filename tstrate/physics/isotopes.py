@@ -111,6 +111,29 @@ def substituted_species(parent: Species, isotopes: dict[int, int], *, name: str 
     from tstrate.physics import symmetry as sym
     from tstrate.physics.vibrations import isotope_mass_amu, vibrational_analysis
 
+    if parent.conformers:
+        # a conformer ensemble: the same atoms substituted in every conformer. Atom numbers refer to
+        # the representative; they carry over to a conformer that lists its atoms in the same order,
+        # or, when every atom of each substituted element is substituted, element by element
+        rep = substituted_species(parent.with_changes(conformers=()), isotopes, name=name, tolerance_A=tolerance_A)
+        confs = []
+        for c in parent.conformers:
+            mapped = dict(isotopes)
+            if c.symbols != parent.symbols:
+                elements = {parent.symbols[i] for i in isotopes if 0 <= i < parent.natoms}
+                whole = all(sorted(i for i in isotopes if parent.symbols[i] == e)
+                            == [i for i, s in enumerate(parent.symbols) if s == e]
+                            and len({isotopes[i] for i in isotopes if parent.symbols[i] == e}) == 1
+                            for e in elements)
+                if not whole:
+                    raise InputError(f"conformer {c.name!r} lists its atoms in another order than "
+                                     f"{parent.name!r}; the substituted atom numbers cannot be carried over",
+                                     file=c.source, field="geometry", hint="give the conformers' atoms in one order")
+                mass_number = {parent.symbols[i]: a for i, a in isotopes.items()}
+                mapped = {i: mass_number[s] for i, s in enumerate(c.symbols) if s in mass_number}
+            confs.append(substituted_species(c, mapped, name=f"{rep.name}/{c.conformer_label}",
+                                             tolerance_A=tolerance_A))
+        return rep.with_changes(conformers=tuple(confs), symmetry_given=rep.symmetry_given)
     tol = DEFAULT_TOLERANCE_A if tolerance_A is None else tolerance_A
     where = dict(file=parent.source, field="hessian")
     if parent.hessian_J_per_m2 is None:
@@ -250,7 +273,11 @@ def trace_ln_beta(species: Species, element: str, mass_number: int, temperature_
     ``element`` (one singly substituted isotopologue per class of equivalent atoms, weighted by the
     class size). Returns (ln beta per temperature, the classes (0-based), ln f per class).
 
+    For a conformer ensemble, beta is that of its representative conformer (the conformers'
+    populations barely change with one heavy atom; their own beta factors are not averaged in).
     """
+    if species.conformers:
+        species = species.with_changes(conformers=())
     T = np.atleast_1d(temperatures_K(temperature_K))
     classes = equivalent_atom_classes(species, element)
     if not classes:
@@ -321,7 +348,7 @@ def capital_delta_permil(delta_2_permil, delta_3_permil, theta_ref: float) -> np
 
 #: the factors of ln KIE, in the order the tables list them
 KIE_FACTORS = ("translational", "rotational", "symmetry", "vibrational_zpe", "vibrational_excited",
-               "tunnelling")
+               "conformers", "tunnelling")
 
 
 @dataclass(frozen=True)
@@ -335,6 +362,8 @@ class KIEFactors:
     vibrational_zpe: exp(-(dE0_light - dE0_heavy)/RT), the zero-point part of the barrier.
     vibrational_excited: ratio of the harmonic partition functions from the zero-point levels
         (the excited-state part); imaginary modes left out.
+    conformers: the ratio of the conformer-ensemble terms q_ens/q_representative, TS over reactants,
+        light over heavy (1 without ensembles; the other factors are the representatives').
     tunnelling: kappa_light / kappa_heavy.
     kie, kie_no_tunnelling: k_light/k_heavy with and without tunnelling (the product of the factors).
     imaginary_frequency_ratio: nu_light / nu_heavy of the imaginary mode (the classical limit of
@@ -362,6 +391,15 @@ def _ln_parts(sp: Species, T):
     return trans, rot, vib
 
 
+def _ln_conformers(sp: Species, T) -> np.ndarray:
+    """ln(q_ens / q_representative) of a conformer ensemble (0 for one structure)."""
+    if not sp.conformers:
+        return np.zeros_like(T)
+    from tstrate.physics.thermo import thermochemistry
+
+    return thermochemistry(sp, T).ln_q["conformers"]
+
+
 def kie_factors(light_rates, heavy_rates, light_species: dict, heavy_species: dict, channel) -> KIEFactors:
     """Split k_light/k_heavy of ``channel`` (the ChannelRates of the two isotopologue systems and
     their species maps) into the factors of :class:`KIEFactors`; their product equals the ratio of
@@ -380,11 +418,12 @@ def kie_factors(light_rates, heavy_rates, light_species: dict, heavy_species: di
             translational=ts_p[0] - sum(p[0] for p in r_p),
             rotational=ts_p[1] - sum(p[1] for p in r_p),
             vibrational_excited=ts_p[2] - sum(p[2] for p in r_p),
+            conformers=_ln_conformers(ts, T) - sum(_ln_conformers(s, T) for s in reac),
             e0=zpe_level_J_per_mol(ts) - sum(zpe_level_J_per_mol(s) for s in reac),
             ln_deg=math.log(symmetry_degeneracy(reac, ts) if channel.degeneracy is None else channel.degeneracy),
             imag=ts.imaginary_frequency_cm1)
     L, Hv = parts["light"], parts["heavy"]
-    ln = {k: L[k] - Hv[k] for k in ("translational", "rotational", "vibrational_excited")}
+    ln = {k: L[k] - Hv[k] for k in ("translational", "rotational", "vibrational_excited", "conformers")}
     ln["symmetry"] = np.full_like(T, L["ln_deg"] - Hv["ln_deg"])
     ln["vibrational_zpe"] = -(L["e0"] - Hv["e0"]) / (R * T)
     ln["tunnelling"] = np.log(light_rates.kappa) - np.log(heavy_rates.kappa)

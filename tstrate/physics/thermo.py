@@ -239,7 +239,8 @@ class Thermo:
     ln_q: dict of ln partition functions by part ("translational", "rotational",
         "vibrational", "internal_rotation", "electronic"), the vibrational one from the
         zero-point level; "internal_rotation" is the free and hindered rotors' (zero without any),
-        the hindered ones from their ground levels.
+        the hindered ones from their ground levels; a conformer ensemble adds "conformers",
+        ln(q_ens / q_representative).
     """
 
     species: str
@@ -327,7 +328,14 @@ def thermochemistry(species: Species, temperature_K, *, low_modes: LowModes = HA
     temperature_K: scalar or array of temperatures [K].
     low_modes: quasi-harmonic treatment of low real modes.
     pressure_Pa: standard pressure of the translational part [Pa], 1 bar by default.
+
+    A species with ``conformers`` is a conformer ensemble: its thermochemistry is the
+    Boltzmann-weighted one of :func:`tstrate.physics.ensembles.ensemble_thermochemistry`.
     """
+    if species.conformers:
+        from tstrate.physics.ensembles import ensemble_thermochemistry
+
+        return ensemble_thermochemistry(species, temperature_K, low_modes=low_modes, pressure_Pa=pressure_Pa)
     T = _temperatures(temperature_K)
     parts = {
         "translational": translational(species.mass_kg, T, pressure_Pa),

@@ -112,6 +112,12 @@ class ChannelRates:
     kappa_other_floor, other_energy_floor_J_per_mol: the tunnelling factor and floor with the
         other choice, for channels through a complex whose model has a floor (Skodje-Truhlar,
         Eckart); None otherwise. k scales with kappa, so k_other = k kappa_other_floor / kappa.
+    ts_conformer_shares: TS conformer label -> (T,) share k_j / k of the rate through it, for a
+        transition-state ensemble (multi-conformer TST); None for one TS structure.
+    tunnelling_well_conformer: the conformer of the reactant-side well (the complex, or the one
+        reactant) that V1 and the energy floor are measured from, when that well is an ensemble and the
+        (representative) TS connects to one of its conformers (:func:`connected_conformer_shift`);
+        None: from the well's lowest conformer.
     delta_H/S/G: activation enthalpy [J/mol], entropy [J/(mol K)], Gibbs energy [J/mol]
         at the standard pressure.
     standard_pressure_Pa: the standard state of ln_kp and the activation quantities [Pa].
@@ -150,6 +156,8 @@ class ChannelRates:
     kappa_other_floor: np.ndarray | None = None
     other_energy_floor_J_per_mol: float | None = None
     standard_pressure_Pa: float = P_STANDARD
+    ts_conformer_shares: dict | None = None
+    tunnelling_well_conformer: str | None = None
 
 
 def channel_rates(channel: Channel, species: dict, temperature_K, *,
@@ -158,7 +166,51 @@ def channel_rates(channel: Channel, species: dict, temperature_K, *,
     """Canonical TST k(T) of one channel, with tunnelling, reverse rate and activation quantities.
 
     ``standard_pressure_Pa`` [Pa] is the standard state of Kp and of the activation quantities
-    (1 bar by default; 1 atm is the other choice); the rate constants do not depend on it."""
+    (1 bar by default; 1 atm is the other choice); the rate constants do not depend on it.
+
+    Any species of the channel may be a conformer ensemble (:mod:`tstrate.physics.ensembles`):
+    reactants, complexes and products enter through their ensemble partition functions, measured
+    from their representatives' zero-point levels (the lowest conformer as the study reader builds
+    them). A transition-state ensemble gives multi-conformer TST: k = sum_j k_j, where k_j is the
+    rate through TS conformer j alone, with its own partition function, barrier E0_j - E0_ref(reactants),
+    imaginary frequency and tunnelling factor; ``kappa`` is then the effective sum_j k_j / sum_j
+    k_classical_j and ``ts_conformer_shares`` gives k_j / k. Barriers, Eckart heights and the
+    imaginary frequency reported are those of the representative TS conformer.
+
+    The tunnelling model's reactant-side well (the complex, or the one reactant) is, for an ensemble,
+    the conformer the TS connects to (its [provenance] ``reactant_side_geometry``, compared by sorted
+    interatomic distances): V1 = E0_TS - E0_connected and the energy floor are measured from it, since
+    the 1-D barrier along the reaction path rises from that well. The equilibrium pool of conformers
+    feeds it; the rate is not otherwise changed (in equilibrium, k does not depend on which conformer
+    is counted as the reactant). Without a recorded connection, the lowest conformer.
+    """
+    ts = species[channel.transition_state]
+    whole = _one_ts_rates(channel, species, temperature_K, low_modes=low_modes,
+                           standard_pressure_Pa=standard_pressure_Pa)
+    if not ts.conformers:
+        return whole
+    from dataclasses import replace
+
+    from tstrate.physics.ensembles import conformer_labels, conformer_members
+
+    parts = [_one_ts_rates(channel, {**species, channel.transition_state: m}, temperature_K,
+                           low_modes=low_modes, standard_pressure_Pa=standard_pressure_Pa)
+             for m in conformer_members(ts)]
+    k = sum(p.k for p in parts)
+    k_cl = sum(p.k_classical for p in parts)
+    kappa_other = None
+    if whole.kappa_other_floor is not None:
+        kappa_other = sum(p.k_classical * p.kappa_other_floor for p in parts) / k_cl
+    ln_k = np.log(k)
+    return replace(whole, k=k, k_classical=k_cl, kappa=k / k_cl, k_reverse=np.exp(ln_k - whole.ln_kc),
+                   kappa_other_floor=kappa_other,
+                   ts_conformer_shares={lb: p.k / k for lb, p in zip(conformer_labels(ts), parts)})
+
+
+def _one_ts_rates(channel: Channel, species: dict, temperature_K, *,
+                  low_modes: LowModes = HARMONIC,
+                  standard_pressure_Pa: float = P_STANDARD) -> ChannelRates:
+    """:func:`channel_rates` with the tunnelling factor of the (representative) TS only."""
     T = np.atleast_1d(temperatures_K(temperature_K))
     reac = [species[n] for n in channel.reactants]
     prod = [species[n] for n in channel.products]
@@ -178,18 +230,23 @@ def channel_rates(channel: Channel, species: dict, temperature_K, *,
 
     # tunnelling barrier heights, measured from the lower well on each side
     pcx = species[channel.product_complex] if channel.product_complex else None
+    # the reactant-side well of the tunnelling model: the complex, or the one reactant; of an
+    # ensemble, the conformer the TS connects to when its provenance records it, else the lowest
+    well = cx if cx is not None else (reac[0] if len(reac) == 1 else None)
+    shift, connected = connected_conformer_shift(ts, well)
     if cx is not None:
         e0_c = zpe_level_J_per_mol(cx)
-        v1 = e0_ts - e0_c
+        e0_well = e0_c + shift
+        v1 = e0_ts - e0_well
 
         def floor_of(choice):
             # never above the barrier top: a submerged TS keeps its over-the-barrier flux
-            return min(max(0.0, e0_r - e0_c), v1) if choice == "reactants" else 0.0
+            return min(max(0.0, e0_r - e0_well), v1) if choice == "reactants" else 0.0
 
         floor = floor_of(channel.tunnelling_floor)
-        b_cx_zpe, b_cx_cl = v1, ts.energy_J_per_mol - cx.energy_J_per_mol
+        b_cx_zpe, b_cx_cl = e0_ts - e0_c, ts.energy_J_per_mol - cx.energy_J_per_mol
     else:
-        v1 = barrier_zpe
+        v1 = barrier_zpe - shift
         floor = 0.0
         b_cx_zpe = b_cx_cl = None
     v2 = e0_ts - (e0_p if pcx is None else zpe_level_J_per_mol(pcx))
@@ -265,7 +322,34 @@ def channel_rates(channel: Channel, species: dict, temperature_K, *,
         kappa_other_floor=kappa_other,
         other_energy_floor_J_per_mol=None if other_floor is None else float(other_floor),
         standard_pressure_Pa=float(standard_pressure_Pa),
+        tunnelling_well_conformer=connected,
     )
+
+
+def connected_conformer_shift(ts: Species, well: Species | None) -> tuple[float, str | None]:
+    """(E0_i - E0_ref [J/mol], label) of the conformer i of the ensemble ``well`` that the TS
+    connects to, by the minimum its [provenance] ``reactant_side_geometry`` records (sorted
+    interatomic distances within :data:`tstrate.physics.conformers.SAME_STRUCTURE_TOLERANCE_A`,
+    the closest if several); (0, None) when ``well`` is no ensemble, or the TS records no such
+    minimum, or none of the conformers is it."""
+    if well is None or not well.conformers:
+        return 0.0, None
+    from tstrate.physics.conformers import SAME_STRUCTURE_TOLERANCE_A, parse_xyz_lines, structure_difference_A
+    from tstrate.physics.ensembles import conformer_labels, conformer_members, relative_zpe_levels_J_per_mol
+
+    text = ts.provenance.get("reactant_side_geometry")
+    if not text:
+        return 0.0, None
+    try:
+        symbols, positions = parse_xyz_lines(text)
+    except ValueError:
+        return 0.0, None
+    diffs = [structure_difference_A(symbols, positions, m.symbols, m.positions_A) for m in conformer_members(well)]
+    found = [(d, i) for i, d in enumerate(diffs) if d is not None and d <= SAME_STRUCTURE_TOLERANCE_A]
+    if not found:
+        return 0.0, None
+    i = min(found)[1]
+    return float(relative_zpe_levels_J_per_mol(well)[i]), conformer_labels(well)[i]
 
 
 def ln_eyring_factor(T) -> np.ndarray:

@@ -190,6 +190,48 @@ def _counts(species: Species, freqs: np.ndarray, e_max: float, grain_cm1: float,
     return StateCounts(sc.grain_J_per_mol, convolve_counts(sc.counts, elec))
 
 
+def _ensemble_counts(reac: Species, freqs: np.ndarray, e_max: float, grain_cm1: float,
+                     rotors: tuple[Rotor, ...]) -> StateCounts:
+    """State counts of a reactant or transition state; for a conformer ensemble the sum of its
+    conformers' counts, each shifted up by its E0_i - E0_ref (split between the two nearest grains) and weighted by its optical isomers over its
+    symmetry number relative to the representative's (whose symmetry enters the path degeneracy):
+
+        rho_ens(E) = sum_i (n_i / sigma_i) / (n_ref / sigma_ref) rho_i(E - (E0_i - E0_ref)).
+
+    Each conformer counts its own harmonic modes, free rotors and electronic levels; the external
+    rotation (K-rotor, and the 2-D rotor when it is active) is the representative's for all.
+    Its Boltzmann sum is the ensemble partition function of canonical TST, so k_inf from k(E)
+    follows the ensemble's TST rate (for a TS ensemble without tunnelling; with Eckart tunnelling
+    every TS conformer's states get the representative's transmission)."""
+    sc = _counts(reac, freqs, e_max, grain_cm1, rotors)
+    if not reac.conformers:
+        return sc
+    from tstrate.physics.ensembles import conformer_members, relative_zpe_levels_J_per_mol
+
+    own = free_rotor_states(reac)
+    external = tuple(r for r in rotors if r not in own)  # the rotors of the overall rotation
+    total = np.array(sc.counts)
+    g = sc.grain_J_per_mol
+    ref_weight = reac.optical_isomers / reac.symmetry_number
+    for m, d in zip(conformer_members(reac)[1:], relative_zpe_levels_J_per_mol(reac)[1:]):
+        # the shift E0_i - E0_ref split between the two grains around it (linear in the fraction), so
+        # that the weight is kept and the Boltzmann factor errs at second order in grain / kT only
+        if d < 0:
+            raise ValueError(f"conformer {m.name!r} lies {-d:.6g} J/mol below the representative of "
+                             f"{reac.name!r}; the representative must be the lowest conformer")
+        low = int(math.floor(d / g))
+        frac = d / g - low
+        if low >= total.size:
+            continue
+        c = _counts(m, m.harmonic_frequencies_cm1, e_max - low * g, grain_cm1, external + free_rotor_states(m))
+        w = (m.optical_isomers / m.symmetry_number) / ref_weight * c.counts
+        for shift, part in ((low, 1.0 - frac), (low + 1, frac)):
+            n = min(total.size - shift, w.size)
+            if n > 0 and part > 0:
+                total[shift:shift + n] += part * w[:n]
+    return StateCounts(g, total)
+
+
 def unimolecular_model(channel: Channel, species: Mapping[str, Species], settings: FalloffSettings, *,
                        max_temperature_K: float, min_top_energy_J_per_mol: float = 0.0) -> UnimolecularModel:
     """Build k(E) for a channel with one reactant (see the module docstring for every choice).
@@ -209,6 +251,10 @@ def unimolecular_model(channel: Channel, species: Mapping[str, Species], setting
     if len(ts.imaginary_frequencies_cm1) != 1:
         raise InputError(f"transition state {ts.name!r} has {len(ts.imaginary_frequencies_cm1)} imaginary "
                          "frequencies; exactly one is needed", file=ts.source, field="frequencies_cm1")
+    if ts.conformers and channel.tunnelling == "eckart":
+        warnings.append(f"channel {channel.name!r}: k(E) sums the states of every conformer of the transition "
+                        f"state {ts.name!r} but gives them all the Eckart transmission of its representative "
+                        f"{ts.conformer_label!r} (canonical TST gives each conformer its own)")
     if channel.complex:
         warnings.append(f"channel {channel.name!r}: the complex {channel.complex!r} is not used by the falloff "
                         f"treatment; the energised molecule is the reactant {reac.name!r}")
@@ -263,7 +309,10 @@ def unimolecular_model(channel: Channel, species: Mapping[str, Species], setting
     transmission = None
     v1 = v2 = None
     if channel.tunnelling == "eckart":
-        v1 = e0
+        # as in canonical TST: V1 from the conformer of an ensemble reactant that the TS connects to
+        from tstrate.physics.tst import connected_conformer_shift
+
+        v1 = e0 - connected_conformer_shift(ts, reac)[0]
         # the reverse barrier from the product complex when the channel names one, as in canonical TST
         product_side = ([zpe_level_J_per_mol(species[channel.product_complex])] if channel.product_complex
                         else [zpe_level_J_per_mol(species[p]) for p in channel.products])
@@ -284,8 +333,8 @@ def unimolecular_model(channel: Channel, species: Mapping[str, Species], setting
                             "form here; k(E) and the falloff curves are without tunnelling (use \"eckart\")")
 
     def build(r_rotors, t_rotors, factor):
-        r_counts = _counts(reac, rf, e_top, grain, r_rotors)
-        k_of_e = microcanonical_rate(r_counts, _counts(ts, tf, e_top, grain, t_rotors), e0,
+        r_counts = _ensemble_counts(reac, rf, e_top, grain, r_rotors)
+        k_of_e = microcanonical_rate(r_counts, _ensemble_counts(ts, tf, e_top, grain, t_rotors), e0,
                                      path_degeneracy=degeneracy, centrifugal_factor=factor,
                                      transmission=transmission)
         # grains without a reactant state above the barrier, up to where the thermal population ends

@@ -23,6 +23,35 @@ def study_rates(study, *, low_modes: LowModes = HARMONIC, temperature_K=None) ->
     return out
 
 
+def study_conformers(study, *, low_modes: LowModes = HARMONIC, temperature_K=None) -> dict:
+    """Species name -> :class:`~tstrate.physics.ensembles.EnsembleParts` of each conformer ensemble
+    of the study (members, energies relative to the representative, populations against T)."""
+    from tstrate.physics.ensembles import ensemble_parts
+
+    T = temperatures_K(study.conditions.temperature_K if temperature_K is None else temperature_K, ndim=1)
+    return {name: ensemble_parts(sp, T, low_modes=low_modes) for name, sp in study.species.items()
+            if sp.conformers}
+
+
+def conformer_effects(study, rates, *, low_modes: LowModes = HARMONIC) -> list[dict]:
+    """How much the conformer ensembles change each channel that uses one: per channel,
+    k(ensembles) / k(each ensemble's representative conformer alone) and the same for Kc, on the
+    rates' temperatures. Channels without an ensemble are left out."""
+    from tstrate.physics.tst import channel_rates
+
+    alone = {n: sp.with_changes(conformers=()) for n, sp in study.species.items() if sp.conformers}
+    out = []
+    for ch, cr in zip(study.channels, rates):
+        names = {*ch.reactants, *ch.products, ch.transition_state, ch.complex, ch.product_complex}
+        used = sorted(n for n in names if n in alone)
+        if not used:
+            continue
+        one = channel_rates(ch, {**study.species, **alone}, cr.temperature_K, low_modes=low_modes)
+        out.append({"channel": ch.name, "ensembles": used, "temperature_K": cr.temperature_K,
+                    "k_ratio": cr.k / one.k, "Kc_ratio": np.exp(cr.ln_kc - one.ln_kc)})
+    return out
+
+
 def capture_limits(study, rates) -> tuple[tuple, list[str]]:
     """The capture ceiling of every bimolecular channel (:mod:`tstrate.physics.capture`) against its
     TST rate constant, and a warning for each channel whose k_TST exceeds it somewhere."""
@@ -51,7 +80,8 @@ def connection_warnings(study) -> list[str]:
     downhill from it (``reactant_side_geometry`` / ``product_side_geometry`` in its [provenance]),
     connects to another structure (e.g. another conformer) than the channel's own reactant-side
     species (its complex, or its one reactant) or product complex. Channels whose TS records no
-    connected minima, or whose species have other atoms than the connected minimum, are not checked.
+    connected minima, or whose species have other atoms than the connected minimum, are not checked;
+    a conformer ensemble passes when one of its conformers is the connected minimum.
     """
     from tstrate.physics.conformers import SAME_STRUCTURE_TOLERANCE_A, parse_xyz_lines, structure_difference_A
 
@@ -72,12 +102,15 @@ def connection_warnings(study) -> list[str]:
                            "'Symbol x y z' lines; the connection was not checked")
                 continue
             sp = study.species[target]
-            diff = structure_difference_A(symbols, positions, sp.symbols, sp.positions_A)
+            # a conformer ensemble is connected when any of its conformers is the connected minimum
+            diffs = [structure_difference_A(symbols, positions, m.symbols, m.positions_A)
+                     for m in (sp, *sp.conformers)]
+            diff = None if any(d is None for d in diffs) else min(diffs)
             if diff is not None and diff > SAME_STRUCTURE_TOLERANCE_A:
                 side = "reactant" if key.startswith("reactant") else "product"
                 out.append(f"channel {ch.name}: the transition state {ts.name} connects on its {side} side to "
                            f"another structure than {target} (interatomic distances differ by up to "
                            f"{diff:.2f} Angstrom: another conformer?); the rate constant is then that of "
-                           f"the conformer it connects to - check the channel's species, or add the "
-                           "conformers' equilibrium")
+                           f"the conformer it connects to - check the channel's species, or make the species a "
+                           "conformer ensemble with the connected conformer")
     return out

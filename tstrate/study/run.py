@@ -53,6 +53,10 @@ class StudyResult:
     evaluation_forms: study.evaluation_forms.StudyEvaluationForms (A and E/R per channel, the NASA/JPL
         and IUPAC falloff forms per falloff channel), or None.
     references: study.references.ReferenceComparison per [[reference_rate]] (empty without).
+    conformers: species name -> :class:`~tstrate.physics.ensembles.EnsembleParts` (members, relative
+        energies, populations against the study temperatures) of each conformer ensemble.
+    conformer_effects: per channel that uses an ensemble, k and Kc with the ensembles over k and Kc
+        with their representative conformers alone (:func:`tstrate.study.rates.conformer_effects`).
     """
 
     study: Study
@@ -70,6 +74,8 @@ class StudyResult:
     uncertainty: object | None = None
     evaluation_forms: object | None = None
     references: tuple = ()
+    conformers: dict = field(default_factory=dict)
+    conformer_effects: tuple = ()
 
 
 def steps(study: Study) -> list[str]:
@@ -99,7 +105,8 @@ def compute_study(study: Study, *, low_modes: LowModes = HARMONIC,
                   uncertainty_progress: Callable[[str, int, int], None] | None = None) -> StudyResult:
     """Compute everything ``study`` asks for. ``progress(step)`` is called before each step;
     ``uncertainty_progress(stage, done, total)`` within the uncertainty step."""
-    from tstrate.study.rates import capture_limits, connection_warnings, study_rates
+    from tstrate.study.rates import (capture_limits, conformer_effects, connection_warnings, study_conformers,
+                                     study_rates)
 
     def step(name):
         log.info("%s", name)
@@ -115,9 +122,13 @@ def compute_study(study: Study, *, low_modes: LowModes = HARMONIC,
                                    pressure_Pa=study.conditions.standard_pressure_Pa)
                    for sp in study.species.values())
     warnings += [w for w in (electronic_level_warning(sp) for sp in study.species.values()) if w]
+    conformers = study_conformers(study, low_modes=low_modes)
+    warnings += [f"species {name}: {w}" for name, sp in study.species.items() for c in sp.conformers
+                 for w in c.warnings]
 
     step("rate constants")
     rates = tuple(study_rates(study, low_modes=low_modes))
+    effects = tuple(conformer_effects(study, rates, low_modes=low_modes)) if conformers else ()
     capture, w = capture_limits(study, rates)
     warnings += w + connection_warnings(study)
 
@@ -202,7 +213,8 @@ def compute_study(study: Study, *, low_modes: LowModes = HARMONIC,
     result = StudyResult(study=study, low_modes=low_modes, thermo=thermo, rates=rates,
                          comparisons=comparisons, falloff=falloff, excitations=excitations, fits=fits,
                          pressure_fits=pressure_fits, warnings=tuple(dict.fromkeys(warnings)), capture=capture,
-                         isotopes=isotopes, evaluation_forms=evaluation_forms, references=references)
+                         isotopes=isotopes, evaluation_forms=evaluation_forms, references=references,
+                         conformers=conformers, conformer_effects=effects)
     if wants_uncertainty(study):
         step("uncertainty")
         from dataclasses import replace

@@ -229,6 +229,8 @@ class _Species:
     def delta(self, T: np.ndarray) -> np.ndarray:
         """(S, T) change of ln q/V - E0/RT."""
         key = T.tobytes()
+        if key not in self._cache and self.sp.conformers:
+            self._cache[key] = self._ensemble_delta(T)
         if key not in self._cache:
             if np.all(self.scale == 1.0) or self.freqs.size == 0:
                 dq = 0.0
@@ -237,6 +239,35 @@ class _Species:
                       - pu.vibrational_ln_q_scaled(self.freqs, T, [1.0], self.low_modes))
             self._cache[key] = dq - self.dE0[:, None] / (R * T[None, :])
         return self._cache[key]
+
+
+    def _ensemble_delta(self, T: np.ndarray) -> np.ndarray:
+        """delta for a conformer ensemble: ln q_ens/V - E0_ref/RT = ln sum_i q_i/V exp(-E0_i/RT), each
+        conformer's modes scaled alike and its ZPE with them, every energy moved by the same shift."""
+        from tstrate.physics.ensembles import conformer_members
+        from tstrate.physics.thermo import ln_partition_function_per_volume
+
+        def ln_terms(scale):
+            out = []
+            for m in conformer_members(self.sp):
+                f = m.harmonic_frequencies_cm1
+                dq = (pu.vibrational_ln_q_scaled(f, T, scale, self.low_modes)
+                      - pu.vibrational_ln_q_scaled(f, T, [1.0], self.low_modes)) if f.size else 0.0
+                e0 = zpe_level_J_per_mol(m) + zero_point_energy_J_per_mol(m) * (np.asarray(scale) - 1.0)
+                out.append(ln_partition_function_per_volume(m, T, low_modes=self.low_modes)[None, :] + dq
+                           - np.atleast_1d(e0)[:, None] / (R * T[None, :]))
+            return np.logaddexp.reduce(np.broadcast_arrays(*out), axis=0)
+
+        ie_shift = self.dE0 - zero_point_energy_J_per_mol(self.sp) * (self.scale - 1.0)  # the energy input
+        return ln_terms(self.scale) - ln_terms([1.0]) - ie_shift[:, None] / (R * T[None, :])
+
+    def conformer_shift(self, label) -> np.ndarray:
+        """(S,) change of E0_label - E0_ref with the samples' frequency scale [J/mol] (0 for the reference)."""
+        from tstrate.physics.ensembles import conformer_labels, conformer_members
+
+        members = dict(zip(conformer_labels(self.sp), conformer_members(self.sp)))
+        dz = zero_point_energy_J_per_mol(members[label]) - zero_point_energy_J_per_mol(self.sp.with_changes(conformers=()))
+        return dz * (self.scale - 1.0)
 
 
 def _channel_ln_k(ch, rates, sp: dict) -> tuple[np.ndarray, np.ndarray]:
@@ -250,16 +281,39 @@ def _channel_ln_k(ch, rates, sp: dict) -> tuple[np.ndarray, np.ndarray]:
     e0_ts = ts.E0
     prod = sp[ch.product_complex] if ch.product_complex else None
     e0_p = prod.E0 if prod is not None else sum(sp[n].E0 for n in ch.products)
-    if ch.complex:
-        e0_c = sp[ch.complex].E0
-        v1 = e0_ts - e0_c
-        floor = np.minimum(np.maximum(0.0, e0_r - e0_c), v1) if ch.tunnelling_floor == "reactants" else 0.0 * v1
-    else:
-        v1 = e0_ts - e0_r
-        floor = 0.0 * v1
-    v2 = e0_ts - e0_p
+
+    def tunnelling_inputs(e0_ts, e0_r, e0_c, e0_p, shift):
+        # the reactant-side well as the deterministic rate has it: for an ensemble, the conformer the
+        # TS connects to (its shift above the lowest conformer kept fixed)
+        if ch.complex:
+            e0_c = e0_c + shift
+            v1 = e0_ts - e0_c
+            floor = np.minimum(np.maximum(0.0, e0_r - e0_c), v1) if ch.tunnelling_floor == "reactants" else 0.0 * v1
+        else:
+            v1 = e0_ts - e0_r - shift
+            floor = 0.0 * v1
+        return v1, e0_ts - e0_p, floor
+
+    nominal = (zpe_level_J_per_mol(ts.sp), sum(zpe_level_J_per_mol(r.sp) for r in reac),
+               zpe_level_J_per_mol(sp[ch.complex].sp) if ch.complex else 0.0,
+               zpe_level_J_per_mol(prod.sp) if prod is not None else sum(zpe_level_J_per_mol(sp[n].sp)
+                                                                          for n in ch.products))
+    shift0 = tunnelling_inputs(*nominal, 0.0)[0] - rates.eckart_V1_J_per_mol
+    shift = shift0
+    label = getattr(rates, "tunnelling_well_conformer", None)
+    if label is not None:  # the connected conformer's shift moves with the samples' frequency scale
+        well = sp[ch.complex] if ch.complex else reac[0]
+        shift = shift0 + well.conformer_shift(label)
+    v1, v2, floor = tunnelling_inputs(e0_ts, e0_r, sp[ch.complex].E0 if ch.complex else 0.0 * e0_r, e0_p, shift)
     nu = ts.sp.imaginary_frequency_cm1 * ts.imag_factor
     ln_kap = pu.log_kappa_samples(ch.tunnelling, T, nu, v1, v2, floor)
+    # the same formula at the nominal inputs (the deterministic kappa of one TS structure; for a TS
+    # ensemble, that of its representative): samples move k by their change of kappa
+    if ts.sp.conformers:
+        v1n, v2n, floor_n = tunnelling_inputs(*nominal, shift0)
+        ln_kap0 = pu.log_kappa_samples(ch.tunnelling, T, [ts.sp.imaginary_frequency_cm1], v1n, v2n,
+                                       np.atleast_1d(floor_n))
+        ln_kap = ln_kap - ln_kap0 + np.log(rates.kappa)[None, :]
     ln_kap0 = np.log(rates.kappa)[None, :]
     ln_k = np.log(rates.k)[None, :] + delta + (ln_kap - ln_kap0)
     return ln_k, ln_kap
@@ -516,17 +570,28 @@ def perturbed_study(study, inp: UncertainInput, delta: float):
     and for the first-order steps."""
     species = dict(study.species)
     sections = dict(study.sections)
-    if inp.kind == "energy":
-        sp = species[inp.target]
-        species[inp.target] = sp.with_changes(energy_J_per_mol=sp.energy_J_per_mol + delta)
-    elif inp.kind == "frequency_scale":
-        sp = species[inp.target]
-        species[inp.target] = sp.with_changes(frequency_scale=sp.frequency_scale * math.exp(delta))
-    elif inp.kind == "imaginary_frequency":
-        sp = species[inp.target]
+
+    def each_conformer(sp, change):
+        # a conformer ensemble moves as a whole: every conformer by the same delta (their relative
+        # energies, and so which one is the lowest, are kept)
+        if not sp.conformers:
+            return change(sp)
+        return change(sp.with_changes(conformers=())).with_changes(
+            conformers=tuple(change(c) for c in sp.conformers))
+
+    def imaginary_scaled(sp):
         f = np.array(sp.frequencies_cm1, dtype=float)
         f[f < 0] *= math.exp(delta)
-        species[inp.target] = sp.with_changes(frequencies_cm1=f)
+        return sp.with_changes(frequencies_cm1=f)
+
+    if inp.kind == "energy":
+        species[inp.target] = each_conformer(
+            species[inp.target], lambda sp: sp.with_changes(energy_J_per_mol=sp.energy_J_per_mol + delta))
+    elif inp.kind == "frequency_scale":
+        species[inp.target] = each_conformer(
+            species[inp.target], lambda sp: sp.with_changes(frequency_scale=sp.frequency_scale * math.exp(delta)))
+    elif inp.kind == "imaginary_frequency":
+        species[inp.target] = each_conformer(species[inp.target], imaginary_scaled)
     elif inp.kind == "delta_E_down":
         fac = math.exp(delta)
 
