@@ -125,12 +125,21 @@ def substituted_species(parent: Species, isotopes: dict[int, int], *, name: str 
                             == [i for i, s in enumerate(parent.symbols) if s == e]
                             and len({isotopes[i] for i in isotopes if parent.symbols[i] == e}) == 1
                             for e in elements)
-                if not whole:
-                    raise InputError(f"conformer {c.name!r} lists its atoms in another order than "
-                                     f"{parent.name!r}; the substituted atom numbers cannot be carried over",
-                                     file=c.source, field="geometry", hint="give the conformers' atoms in one order")
-                mass_number = {parent.symbols[i]: a for i, a in isotopes.items()}
-                mapped = {i: mass_number[s] for i, s in enumerate(c.symbols) if s in mass_number}
+                if whole:
+                    mass_number = {parent.symbols[i]: a for i, a in isotopes.items()}
+                    mapped = {i: mass_number[s] for i, s in enumerate(c.symbols) if s in mass_number}
+                else:
+                    # the same molecule in another atom order: the atoms are matched by their bonds
+                    from tstrate.physics.atom_map import corresponding_atoms
+
+                    try:
+                        to_c = corresponding_atoms([(parent.symbols, parent.positions_A)], c.symbols,
+                                                   c.positions_A)
+                    except ValueError as exc:
+                        raise InputError(f"conformer {c.name!r} lists its atoms in another order than "
+                                         f"{parent.name!r}, and they cannot be matched ({exc})", file=c.source,
+                                         field="geometry", hint="give the conformers' atoms in one order") from None
+                    mapped = {to_c[i]: a for i, a in isotopes.items()}
             confs.append(substituted_species(c, mapped, name=f"{rep.name}/{c.conformer_label}",
                                              tolerance_A=tolerance_A))
         return rep.with_changes(conformers=tuple(confs), symmetry_given=rep.symmetry_given)

@@ -234,6 +234,40 @@ def _correspondence(study, names, ts) -> list[tuple[str, int]]:
     return back
 
 
+def class_isotopologue(sp, atoms, mass_number: int, name: str):
+    """The isotopologue of ``sp`` with one heavy atom at one of the equivalent ``atoms`` (0-based).
+
+    For a conformer ensemble this is itself an ensemble: in each conformer, every distinct position
+    the class's atoms take (atoms equivalent in the representative may not be in another
+    conformer: the two OH oxygens of cis-cis H2CO3 are a cis and a trans one in cis-trans H2CO3)
+    is a member of its own, so that the heavy ensemble counts every isotopomer the light one
+    interconverts with."""
+    from tstrate.physics.atom_map import corresponding_atoms
+    from tstrate.physics.ensembles import build_ensemble, conformer_members
+
+    if not sp.conformers:
+        return iso.substituted_species(sp, {atoms[0]: mass_number}, name=name)
+    members = []
+    element = sp.symbols[atoms[0]]
+    for c in conformer_members(sp):
+        if c.symbols == sp.symbols and np.allclose(c.positions_A, sp.positions_A):
+            images = list(atoms)
+        else:
+            to_c = corresponding_atoms([(sp.symbols, sp.positions_A)], c.symbols, c.positions_A)
+            images = [to_c[a] for a in atoms]
+        classes = iso.equivalent_atom_classes(c, element)
+        seen = set()
+        for img in images:
+            cls = next(i for i, k in enumerate(classes) if img in k)
+            if cls in seen:
+                continue
+            seen.add(cls)
+            label = (c.conformer_label or c.name) + ("" if len(set(images)) == 1 else f" (atom {img + 1})")
+            members.append((label, iso.substituted_species(c.with_changes(conformers=()), {img: mass_number},
+                                                           name=name)))
+    return build_ensemble(name, members)
+
+
 def position_kies(study, sub: Substitution, T, light_rates: dict, low_modes: LowModes = HARMONIC
                   ) -> list[PositionKIE]:
     """The KIE of a single substitution at each set of equivalent positions of each reactant
@@ -278,7 +312,8 @@ def position_kies(study, sub: Substitution, T, light_rates: dict, low_modes: Low
                     heavy = dict(study.species)
                     for n, idx in atoms.items():
                         _refuse_without_hessian(study, n)
-                        heavy[n] = iso.substituted_species(study.species[n], {idx[0]: sub.mass_number}, name=n)
+                        heavy[n] = (class_isotopologue(study.species[n], cls, sub.mass_number, n) if n == name
+                                    else iso.substituted_species(study.species[n], {idx[0]: sub.mass_number}, name=n))
                     if ch.name not in light_rates:
                         light_rates[ch.name] = channel_rates(ch, study.species, T, low_modes=low_modes)
                     hr = channel_rates(ch, heavy, T, low_modes=low_modes)
