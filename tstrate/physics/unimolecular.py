@@ -74,7 +74,7 @@ from tstrate.physics import collisions as coll
 from tstrate.physics.falloff import strong_collision_falloff, thermal_distribution
 from tstrate.physics.rrkm import ExternalRotation, MicrocanonicalRate, microcanonical_rate
 from tstrate.physics.states import (CM1_J_PER_MOL, GRAIN_FRACTION_OF_LOWEST, Rotor, StateCounts,
-                                    convolve_counts, count_states)
+                                    count_states)
 from tstrate.units import C, H, K_B, R
 from tstrate.units import number_density_m3 as ideal_gas_number_density_m3
 
@@ -170,22 +170,12 @@ class UnimolecularModel:
     external_rotation: str = "adiabatic"
 
 
-def _electronic_counts(species: Species, n: int, grain_J_per_mol: float) -> np.ndarray:
-    out = np.zeros(n)
-    for level in species.levels:
-        i = int(round(level.energy_cm1 * CM1_J_PER_MOL / grain_J_per_mol))
-        if i < n:
-            out[i] += level.degeneracy
-    return out
-
-
 def _counts(species: Species, freqs: np.ndarray, e_max: float, grain_cm1: float,
             rotors: tuple[Rotor, ...]) -> StateCounts:
-    sc = count_states(freqs, e_max, grain_cm1=grain_cm1, rotors=rotors, refine=False)
-    elec = _electronic_counts(species, sc.n_grains, sc.grain_J_per_mol)
-    if elec[0] == 1.0 and not np.any(elec[1:]):
-        return sc
-    return StateCounts(sc.grain_J_per_mol, convolve_counts(sc.counts, elec))
+    """Vibrational, rotor and electronic-level counts of ``species`` on the grain (the levels as
+    shifted copies in the starting array of the Beyer-Swinehart pass)."""
+    levels = [(level.energy_cm1 * CM1_J_PER_MOL, level.degeneracy) for level in species.levels]
+    return count_states(freqs, e_max, grain_cm1=grain_cm1, rotors=rotors, levels=levels, refine=False)
 
 
 def unimolecular_model(channel: Channel, species: Mapping[str, Species], settings: FalloffSettings, *,
