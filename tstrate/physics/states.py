@@ -271,6 +271,14 @@ def add_shifted_copies(counts: np.ndarray, levels) -> np.ndarray:
     return out
 
 
+def _fft_convolve(a: np.ndarray, b: np.ndarray) -> np.ndarray:
+    """Convolution of two non-negative arrays of length n by real FFT, truncated to n (>= 0)."""
+    n = a.size
+    size = 1 << int(2 * n - 1).bit_length()
+    out = np.fft.irfft(np.fft.rfft(a, size) * np.fft.rfft(b, size), size)[:n]
+    return np.maximum(out, 0.0)
+
+
 def _rotor_start(rotors: Sequence[Rotor], n: int, grain: float) -> np.ndarray:
     """Counts of all ``rotors`` together (length n): the starting array of the oscillator pass.
 
@@ -281,8 +289,6 @@ def _rotor_start(rotors: Sequence[Rotor], n: int, grain: float) -> np.ndarray:
     about 1e-15 of the largest count), unlike the oscillator counts that the Beyer-Swinehart
     pass adds afterwards.
     """
-    from scipy.signal import fftconvolve
-
     start = None
     quantum = []
     for rotor in rotors:
@@ -292,7 +298,7 @@ def _rotor_start(rotors: Sequence[Rotor], n: int, grain: float) -> np.ndarray:
             quantum.append(rotor)
             continue
         c = rotor.counts(n, grain)
-        start = c if start is None else np.maximum(fftconvolve(start, c)[:n], 0.0)
+        start = c if start is None else _fft_convolve(start, c)
     if start is None:
         start = np.zeros(n)
         start[0] = 1.0
