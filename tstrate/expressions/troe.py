@@ -392,6 +392,8 @@ def fit_troe(temperature_K, number_density_m3, rate, k0, k_inf, *, fit_T2: bool 
 #: ln k_0).
 TROE_VP_FTOL = 1e-10
 TROE_VP_XTOL = 1e-9
+#: most Levenberg-Marquardt steps of one start of :func:`fit_troe_effective_k0`
+TROE_LM_MAX_STEPS = 400
 #: how many of the ranked starts :func:`fit_troe_effective_k0` refines
 TROE_EFFECTIVE_K0_STARTS = 3
 _LN10 = math.log(10.0)
@@ -432,7 +434,8 @@ def _arrow_levenberg_marquardt(fun_jac, theta0, x0, lo, hi, x_lo, x_hi):
     r, jt, jx = fun_jac(theta, x)
     cost = 0.5 * float(np.sum(r * r))
     lam = 1e-3
-    for _ in range(1000):
+    history = [cost]
+    for _ in range(TROE_LM_MAX_STEPS):
         g_t = np.einsum("tmp,tm->p", jt, r)
         g_x = np.einsum("tm,tm->t", jx, r)
         a_tt = np.einsum("tmp,tmq->pq", jt, jt)
@@ -463,19 +466,22 @@ def _arrow_levenberg_marquardt(fun_jac, theta0, x0, lo, hi, x_lo, x_hi):
             x_new = x.copy()
             x_new[free_x] += d_x
             x_new = np.clip(x_new, x_lo, x_hi)
-            r_n, jt_n, jx_n = fun_jac(t_new, x_new)
+            r_n = fun_jac(t_new, x_new, jacobian=False)[0]       # the Jacobian only for accepted steps
             c_n = 0.5 * float(np.sum(r_n * r_n))
             if np.isfinite(c_n) and c_n <= cost:
                 small = (np.all(np.abs(t_new - theta) <= TROE_VP_XTOL * (1.0 + np.abs(theta)))
                          and np.all(np.abs(x_new - x) <= TROE_VP_XTOL * (1.0 + np.abs(x))))
                 drop = cost - c_n
                 # a heavily damped step is short and gains little without being at the minimum:
-                # stop only on steps close to Gauss-Newton ones
+                # stop on such steps only when the last 20 of them together gained nothing
                 near_gn = lam <= 1e-2
-                theta, x, r, jt, jx, cost = t_new, x_new, r_n, jt_n, jx_n, c_n
+                theta, x, cost = t_new, x_new, c_n
+                r, jt, jx = fun_jac(theta, x)
+                history.append(cost)
                 accepted = True
                 lam = max(lam / 3.0, 1e-12)
-                if near_gn and (small or drop <= TROE_VP_FTOL * max(cost, 1e-300)):
+                stalled = len(history) > 20 and history[-21] - cost <= 20 * TROE_VP_FTOL * max(cost, 1e-300)
+                if stalled or (near_gn and (small or drop <= TROE_VP_FTOL * max(cost, 1e-300))):
                     return theta, x, cost
                 break
             lam *= 4.0
@@ -533,11 +539,13 @@ def fit_troe_effective_k0(temperature_K, number_density_m3, rate, k0, k_inf, *,
     def unpack(p):
         return p[0], math.exp(p[1]), math.exp(p[2]), math.exp(p[3]) if fit_T2 else None
 
-    def fun_jac(theta, x):
+    def fun_jac(theta, x, jacobian=True):
         xc = x[:, None]
         ln_k, d = _troe_log_rate(xc, log_kinf, log_m, tt, *unpack(theta))
         r = ln_k - log_k
         bad = ~np.isfinite(r)
+        if not jacobian:
+            return np.where(bad, 1e3, r), None, np.where(bad, 0.0, d)
         cols = []
         for j in range(n_p):                      # d r / d theta_j, central differences
             h = 1e-6 * max(1.0, abs(theta[j]))
@@ -568,11 +576,11 @@ def fit_troe_effective_k0(temperature_K, number_density_m3, rate, k0, k_inf, *,
     for i, c in enumerate(candidates):
         x = x0.copy()
         for _ in range(4):
-            r, _, d = fun_jac(c, x)
+            r, _, d = fun_jac(c, x, jacobian=False)
             hess = np.sum(d * d, axis=1)
             x = np.clip(x - np.clip(np.sum(r * d, axis=1) / np.where(hess > 0, hess, 1.0), -3.0, 3.0),
                         x0 - 40.0, x0 + 40.0)
-        r = fun_jac(c, x)[0]
+        r = fun_jac(c, x, jacobian=False)[0]
         ranked.append((0.5 * float(np.sum(r * r)), i, x))
     ranked.sort(key=lambda item: (item[0], item[1]))
     best = None
