@@ -26,6 +26,9 @@ FIGURE_STEMS = {
 }
 #: the formats a figure can be written in
 FIGURE_FORMATS = ("png", "svg")
+#: resolution of PNG figures [dots per inch]: about 1100 x 500 pixels for a two-panel figure, enough
+#: for a screen and the report (common practice), and half the drawing time of 150 dpi
+FIGURE_DPI = 100
 #: the formats written when none are asked for (the report embeds the PNG)
 DEFAULT_FIGURE_FORMATS = ("png",)
 #: at most this many channels (lines and legend entries) in one figure, and at most this many
@@ -198,7 +201,7 @@ def figure_bytes(fig, formats) -> dict[str, bytes]:
     out = {}
     for fmt in formats:
         buf = io.BytesIO()
-        fig.savefig(buf, format=fmt, dpi=150)
+        fig.savefig(buf, format=fmt, dpi=FIGURE_DPI)
         out[fmt] = buf.getvalue()
     _plt().close(fig)
     return out
