@@ -9,7 +9,7 @@ uncertainty: those sections cost per unimolecular channel or per sample, and the
 case is about rates, fits, tables and figures.
 Reference (named): the same run asked to draw every figure in both formats with no cap on the
 channels per figure (`--plot-formats png,svg --plot-max-channels 100000`), as tstrate did before.
-Each runs twice, interleaved (wall time). Targets (issue 19): default run under 20 s on 2 cores.
+Each runs twice, interleaved (CPU time of this process; the cores are shared). Targets (issue 19): default run under 20 s on 2 cores.
 
 Run: python benchmarks/bench_study200.py [--channels N]
 """
@@ -93,7 +93,7 @@ def main(argv=None) -> int:
         size = (tmp / "d0" / "report.html").stat().st_size
     med = {k: statistics.median(r[k] for r in fast) for k in fast[0]}
     medr = {k: statistics.median(r[k] for r in ref) for k in ref[0]}
-    print(f"{args.channels}-channel study, {args.reps} paired repetitions (median wall s)")
+    print(f"{args.channels}-channel study, {args.reps} paired repetitions (median CPU s)")
     for k in med:
         print(f"{k:>18} {med[k]:9.3f} {medr[k]:9.3f}")
     print(f"default run {med['total']:.1f} s (target < 20 s: {'met' if med['total'] < 20 else 'NOT met'}); "

@@ -240,7 +240,9 @@ def draw_figures(jobs, folder, formats=DEFAULT_FIGURE_FORMATS, workers: int = 1)
         import multiprocessing as mp
         from concurrent.futures import ProcessPoolExecutor
 
-        method = "fork" if "fork" in mp.get_all_start_methods() else None
+        # a fork server, not a plain fork: the caller may hold threads (BLAS, JAX) that a forked
+        # child would inherit half-way; the workers import the figure functions themselves
+        method = "forkserver" if "forkserver" in mp.get_all_start_methods() else "spawn"
         with ProcessPoolExecutor(min(workers, len(jobs)), mp_context=mp.get_context(method)) as pool:
             rendered = list(pool.map(_draw_job, jobs, [formats] * len(jobs)))
     else:
