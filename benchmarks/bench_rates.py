@@ -13,7 +13,8 @@ thermal average by scipy.integrate.quad at each temperature, with the transmissi
 written out from Eckart's potential (C. Eckart, Phys. Rev. 35, 1303 (1930)) and the barrier
 heights and energy floor chosen as the tst.py docstring says. Only k(T) is computed there.
 
-Targets: reference/fast >= 20x, largest relative difference in k <= 1e-6, fast path < 100 ms.
+Both run 3 times, interleaved (CPU time); the ratio is the median of the paired ratios with its
+spread. Targets: reference/fast >= 20x, largest relative difference in k <= 1e-6, fast path < 100 ms.
 
 Run: python benchmarks/bench_rates.py
 """
@@ -161,19 +162,18 @@ def main() -> None:
     study = read_study(STUDY)                    # file reading: not timed
     assert len(study.channels) == 4 and all(c.tunnelling == "eckart" for c in study.channels)
     study_rates(study, temperature_K=TEMPERATURES_K)          # warm-up (imports, caches)
-    # CPU time of this process (time.process_time), best of 15: the machine is shared, and CPU
-    # time leaves out the time other processes hold the cores; wall time is printed beside it
-    fast_s = fast_wall = math.inf
-    for _ in range(15):
-        w0, c0 = time.perf_counter(), time.process_time()
-        fast = study_rates(study, temperature_K=TEMPERATURES_K)
-        fast_s = min(fast_s, time.process_time() - c0)
-        fast_wall = min(fast_wall, time.perf_counter() - w0)
+    # the same number of repetitions of both, interleaved, CPU time of this process (the machine's
+    # cores are shared); the ratio is the median of the paired ratios, with its spread
+    import sys
 
-    w0, c0 = time.perf_counter(), time.process_time()
-    ref = reference_rates(study, TEMPERATURES_K)
-    ref_s, ref_wall = time.process_time() - c0, time.perf_counter() - w0
+    sys.path.insert(0, str(Path(__file__).resolve().parent))
+    from _paired import paired
 
+    out = {}
+    res = paired(lambda: out.__setitem__("fast", study_rates(study, temperature_K=TEMPERATURES_K)),
+                 lambda: out.__setitem__("ref", reference_rates(study, TEMPERATURES_K)), repetitions=3)
+    fast, ref = out["fast"], out["ref"]
+    fast_s = float(np.median(res.fast_s))
     worst = 0.0
     print(f"{len(study.channels)} channels x {TEMPERATURES_K.size} temperatures "
           f"({TEMPERATURES_K[0]:.0f}-{TEMPERATURES_K[-1]:.0f} K), Eckart tunnelling; "
@@ -183,12 +183,11 @@ def main() -> None:
         dev = float(np.max(np.abs(cr.k / k_ref - 1.0)))
         worst = max(worst, dev)
         print(f"{cr.channel:>12} {cr.order:>5} {cr.kappa.min():>10.3g} .. {cr.kappa.max():<9.3g} {dev:>13.1e}")
-    ratio = ref_s / fast_s
-    print(f"fast path (study_rates, whole study): {1e3 * fast_s:.1f} ms CPU, {1e3 * fast_wall:.1f} ms wall "
-          f"(target < 100 ms: {'met' if fast_s < 0.1 else 'NOT met'})")
-    print(f"reference per-temperature loop (quad + scalar partition functions): {ref_s:.2f} s CPU, "
-          f"{ref_wall:.2f} s wall")
-    print(f"speed ratio reference/fast = {ratio:.0f}x (target >= 20x: {'met' if ratio >= 20 else 'NOT met'})")
+    ratio = float(np.median(res.ratios))
+    print(res.line("fast path (study_rates, whole study)", "reference per-temperature loop (quad, epsrel "
+                   "1e-11, + scalar partition functions)"))
+    print(f"fast path median {1e3 * fast_s:.1f} ms CPU (target < 100 ms: {'met' if fast_s < 0.1 else 'NOT met'}); "
+          f"ratio target >= 20x: {'met' if ratio >= 20 else 'NOT met'}")
     print(f"largest relative difference in k = {worst:.1e} (target <= 1e-6: "
           f"{'met' if worst <= 1e-6 else 'NOT met'})")
 

@@ -99,7 +99,7 @@ def test_text_output(capsys):
 def test_plots_written_atomically(tmp_path, capsys):
     path = _study_with(tmp_path, "[[comparison]]" + STUDY.read_text().split("[[comparison]]")[2])
     outdir = tmp_path / "figs"
-    assert main(["compare", str(path), "--plot", str(outdir)]) == 0
+    assert main(["compare", str(path), "--plot", str(outdir), "--plot-formats", "svg,png"]) == 0
     files = sorted(p.name for p in outdir.iterdir())  # no temporary ".part" files left behind
     kinds = ["energy_profile", "ratio_vs_abundance", "ratio_vs_temperature"]
     # the names tstrate run gives them in plots/ (they had no compare_ prefix before)
@@ -128,7 +128,7 @@ def test_figures_have_axes_with_units(library_results):
 
     res = library_results[0]
     ax = energy_profile_figure(res).axes[0]
-    assert "kJ mol" in ax.get_ylabel()
+    assert "kJ/mol" in ax.get_ylabel()
     assert [t.get_text() for t in ax.get_xticklabels()][2] == "transition\nstate"
     ax = ratio_temperature_figure(res).axes[0]
     assert ax.get_xlabel() == "T  [K]" and ax.get_yscale() == "log"

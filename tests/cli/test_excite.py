@@ -46,7 +46,8 @@ def test_study_excitations_json(capsys):
 
 def test_command_line_excitation_text_and_plots(capsys, tmp_path):
     code, out, err = run(capsys, "excite", STUDY, "--wavenumber", "15500", "--channel", "bare", "-T", "220",
-                         "--altitude", "0", "40", "--altitude-step", "10", "--plot", tmp_path)
+                         "--altitude", "0", "40", "--altitude-step", "10", "--plot", tmp_path,
+                         "--plot-formats", "png,svg")
     assert code == 0, err
     assert "wavenumber 15500 cm-1" in out and "along U.S. Standard Atmosphere, 1976" in out
     assert "OH overtone" not in out                       # the study's excitations are replaced

@@ -72,7 +72,8 @@ def test_falloff_json_keys(falloff_json):
 
 
 def test_falloff_text_and_plots(capsys, tmp_path):
-    code, out, err = run(capsys, "falloff", DATA / "study.toml", "--plot", tmp_path / "plots")
+    code, out, err = run(capsys, "falloff", DATA / "study.toml", "--plot", tmp_path / "plots",
+                         "--plot-formats", "png,svg")
     assert code == 0
     assert "back (order 2): falloff is not computed" in out
     assert "Troe fit error: max" in out and "k_inf/TST" in out

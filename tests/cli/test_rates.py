@@ -100,10 +100,10 @@ def test_temperature_option_and_study_units(capsys):
 
 
 def test_plot_dir_holds_the_arrhenius_plot_under_the_name_run_uses(capsys, tmp_path):
-    # --plot takes a folder (it used to take a file): arrhenius.png and .svg, the names of
-    # tstrate run's plots/ folder (tests/cli/test_run.py checks the same names there)
+    # --plot takes a folder (it used to take a file): arrhenius.png (and .svg when asked for), the
+    # names of tstrate run's plots/ folder (tests/cli/test_run.py checks the same names there)
     folder = tmp_path / "figures"
-    code, out, err = _run(capsys, STUDY, "--plot", folder)
+    code, out, err = _run(capsys, STUDY, "--plot", folder, "--plot-formats", "png,svg")
     assert code == 0 and err == ""
     assert sorted(p.name for p in folder.iterdir()) == ["arrhenius.png", "arrhenius.svg"]
     assert (folder / "arrhenius.png").read_bytes().startswith(PNG_MAGIC)
@@ -116,7 +116,7 @@ def test_plot_with_json_keeps_stdout_json(capsys, tmp_path):
     code, out, _ = _run(capsys, STUDY, "--json", "--plot", tmp_path)
     assert code == 0
     doc = json.loads(out)
-    assert doc["plots"] == [str(tmp_path / "arrhenius.png"), str(tmp_path / "arrhenius.svg")]
+    assert doc["plots"] == [str(tmp_path / "arrhenius.png")]  # PNG only by default
     assert doc["low_modes"] == {"method": "harmonic", "cutoff_cm1": 100.0}
     assert (tmp_path / "arrhenius.png").read_bytes().startswith(PNG_MAGIC)
 

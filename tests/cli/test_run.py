@@ -44,7 +44,7 @@ def test_run_writes_every_output_and_leaves_inputs_alone(study, tmp_path, capsys
     out = tmp_path / "out"
     assert main(["run", str(study), "--output", str(out), "--quiet"]) == 0
     for name in ("mechanism.yaml", "fits.json", "fits.csv", "results.json", "inputs.json", "report.md",
-                 "report.html", "tables/thermochemistry.csv", "plots/arrhenius.png", "plots/arrhenius.svg"):
+                 "report.html", "tables/thermochemistry.csv", "plots/arrhenius.png"):
         assert (out / name).is_file(), name
     assert list((out / "tables").glob("rates_*.csv"))
     assert _hashes(study.parent) == before
@@ -150,3 +150,26 @@ def test_fits_at_each_pressure_reproduce_the_falloff_table(study, tmp_path):
         dev = np.max(np.abs(model / k[:, j] - 1))
         assert dev == pytest.approx(f["max_deviation_percent"] / 100, rel=1e-6, abs=1e-9)
     assert (out / "tables" / "fits_at_each_pressure.csv").is_file()
+
+
+def test_no_plots_and_both_formats_drawn_in_a_pool(study, tmp_path, capsys):
+    """--no-plots writes no figure (the report still builds); --plot-formats png,svg writes each
+    figure in both formats (drawn once, here in two worker processes), and the report embeds the PNG."""
+    bare = tmp_path / "bare"
+    assert main(["run", str(study), "-o", str(bare), "-q", "--no-plots"]) == 0
+    assert not (bare / "plots").exists() and (bare / "report.html").is_file()
+    assert "<img" not in (bare / "report.html").read_text()
+    both = tmp_path / "both"
+    assert main(["run", str(study), "-o", str(both), "-q", "--plot-formats", "png,svg", "--plot-workers", "2"]) == 0
+    names = {p.name for p in (both / "plots").iterdir()}
+    stems = {n.rsplit(".", 1)[0] for n in names}
+    assert names == {f"{s}.{x}" for s in stems for x in ("png", "svg")} and "arrhenius" in stems
+    assert b"<svg" in (both / "plots" / "arrhenius.svg").read_bytes()[:2000]
+    png = base64.b64encode((both / "plots" / "arrhenius.png").read_bytes()).decode()
+    assert png in (both / "report.html").read_text()
+
+
+def test_unknown_plot_format_is_a_one_line_error(study, tmp_path, capsys):
+    assert main(["run", str(study), "-o", str(tmp_path / "x"), "-q", "--plot-formats", "png,tiff"]) == 2
+    err = capsys.readouterr().err.strip()
+    assert err.count("\n") == 0 and "tiff" in err and "--plot-formats" in err

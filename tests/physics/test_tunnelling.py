@@ -600,3 +600,53 @@ def test_skodje_truhlar_floor_above_barrier_rejected():
 def test_unknown_model_rejected():
     with pytest.raises(InputError, match=r"unknown tunnelling model 'bell'"):
         tn.kappa("bell", 300.0, 1500.0, 50 * KJ, 60 * KJ)
+
+
+# ---------------------------------------------------------------------------
+# the accuracy the Eckart quadratures are tuned to
+# ---------------------------------------------------------------------------
+
+def _barriers(count: int, seed: int):
+    """Barriers drawn over the range met in practice (made up, fixed seed): 200-3000 cm-1,
+    V1 2-250 kJ/mol, V2/V1 0.05-3, a third of them with an energy floor between 0 and 1.2 V1."""
+    rng = np.random.default_rng(seed)
+    out = []
+    for _ in range(count):
+        nu, V1 = rng.uniform(200, 3000), rng.uniform(2e3, 250e3)
+        V2 = V1 * rng.uniform(0.05, 3)
+        out.append((nu, V1, V2, None if rng.random() < 0.7 else rng.uniform(0, 1.2 * V1)))
+    return out
+
+
+@pytest.mark.parametrize("nu, V1, V2, floor", _barriers(12, seed=11))
+def test_eckart_quadratures_meet_1e8_against_adaptive_quadrature(nu, V1, V2, floor):
+    # reference: eckart_reference_quad above (scipy.integrate.quad, epsrel 1e-12); tuned target 1e-8
+    T = np.array([100.0, 150.0, 220.0, 300.0, 450.0, 700.0, 1000.0, 2000.0])
+    ref = eckart_reference_quad(T, nu, V1, V2, floor)
+    shared = np.exp(tn.eckart_log(T, nu, V1, V2, floor))              # one grid for all T
+    E0 = tn._floor(floor, V1, V2)
+    rows = np.exp(tn.log_thermal_quadrature(                          # per-row windows
+        lambda s: _row_integrand(s, 1.0 / (R * T), nu, V1, V2, E0), 1.0 / (R * T), max(V1, E0), V1, E0))
+    np.testing.assert_allclose(shared, ref, rtol=1e-8)
+    np.testing.assert_allclose(rows, ref, rtol=1e-8)
+
+
+def _row_integrand(s, beta, nu, V1, V2, E0):
+    b = beta[:, None]
+    E = E0 + s * s
+    log_p = tn.eckart_log_transmission(E, nu, V1, V2)
+    with np.errstate(divide="ignore"):
+        return log_p + np.log(b) - b * (E - V1) + np.log(2.0 * s)
+
+
+def test_shared_grid_computes_p_once_for_all_temperatures(monkeypatch):
+    calls = []
+    real = tn._eckart_log_p
+
+    def counting(E, *args):
+        calls.append(np.size(E))
+        return real(E, *args)
+
+    monkeypatch.setattr(tn, "_eckart_log_p", counting)
+    tn.eckart_log(np.linspace(150.0, 1000.0, 200), 1500.0, 90e3, 85e3)
+    assert len(calls) == 1 and calls[0] < 1000      # one evaluation of P on one grid of a few hundred nodes

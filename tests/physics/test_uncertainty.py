@@ -71,7 +71,9 @@ def test_eckart_rows_equal_the_deterministic_function():
     got = pu.log_kappa_samples("eckart", T, nu, v1, v2, floor, chunk_rows=37)
     ref = np.array([tun.eckart_log(T, nu[i], v1[i], v2[i], max(floor[i], max(0.0, v1[i] - v2[i])))
                     for i in range(S)])
-    assert np.max(np.abs(got - ref)) <= 1e-12 * np.max(np.abs(ref))
+    # two quadratures (per-row windows here, a shared grid in eckart_log), each tuned to 1e-8
+    # against adaptive quadrature (tests/physics/test_tunnelling.py): kappa agrees to 2e-8
+    assert np.max(np.abs(got - ref)) <= 2e-8
     # a refused barrier gives a NaN row, the others are unaffected
     v2[3] = -1.0
     got = pu.log_kappa_samples("eckart", T, nu, v1, v2, floor)

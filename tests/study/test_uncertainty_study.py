@@ -67,7 +67,9 @@ def _brute_force_settings():
 
 def test_eckart_percentiles_equal_a_loop_of_deterministic_runs(demo):
     """The vectorised samples of an Eckart channel (with a product complex) against channel_rates on
-    each sample's perturbed species, one at a time: percentiles agree to 1e-10."""
+    each sample's perturbed species, one at a time: percentiles agree to 2e-8. The samples' Eckart
+    factors come from the per-row quadrature, channel_rates' from the shared-grid one; each is
+    tuned to 1e-8 against adaptive quadrature (tests/physics/test_tunnelling.py)."""
     T = [150.0, 200.0, 250.0, 300.0]
     study = _rates_only(demo, "bare", T)
     result = compute_study(study)
@@ -76,8 +78,8 @@ def test_eckart_percentiles_equal_a_loop_of_deterministic_runs(demo):
     space, U = sample_deviations(study, settings)
     loop = np.array([np.log(channel_rates(study.channel("bare"), study_at(study, space, u).species, T).k)
                      for u in U])
-    assert np.max(np.abs(ln_k - loop) / np.abs(loop)) < 1e-10
-    assert np.allclose(percentiles(np.exp(ln_k)), percentiles(np.exp(loop)), rtol=1e-10, atol=0)
+    assert np.max(np.abs(ln_k - loop)) < 2e-8          # k to 2e-8 relative
+    assert np.allclose(percentiles(np.exp(ln_k)), percentiles(np.exp(loop)), rtol=2e-8, atol=0)
 
 
 def test_sensitivities_against_finite_differences_of_deterministic_runs(demo):

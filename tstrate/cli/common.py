@@ -168,12 +168,27 @@ def progress_wrapper(args, desc: str):
     return lambda it: tqdm(it, desc=desc, file=sys.stderr, leave=False)
 
 
+def add_plot_formats_option(parser) -> None:
+    """--plot-formats png,svg: the formats each figure is written in (default PNG only)."""
+    parser.add_argument(
+        "--plot-formats", metavar="LIST", default="png",
+        help="comma-separated formats of each figure, from png and svg (default png; "
+             "png,svg writes both, each figure drawn once)")
+
+
+def plot_formats_from_args(args) -> tuple[str, ...]:
+    from tstrate.output.plots import parse_formats
+
+    return parse_formats(getattr(args, "plot_formats", "png") or "png")
+
+
 def add_plot_option(parser, figures: str) -> None:
-    """--plot DIR for every command that draws figures."""
+    """--plot DIR (and --plot-formats) for every command that draws figures."""
     parser.add_argument(
         "--plot", metavar="DIR",
-        help=f"write {figures} into the folder DIR (made when missing), each as PNG and SVG, under "
-             "the file names tstrate run gives them in its plots/ folder")
+        help=f"write {figures} into the folder DIR (made when missing), as PNG (see --plot-formats), "
+             "under the file names tstrate run gives them in its plots/ folder")
+    add_plot_formats_option(parser)
 
 
 def check_plot_dir(path):
@@ -187,18 +202,20 @@ def check_plot_dir(path):
     return p
 
 
-def write_figure(fig, folder, stem: str, inputs=()) -> list:
-    """Save ``fig`` as folder/stem in each figure format (atomic), refusing to overwrite an input file.
+def write_figure(fig, folder, stem: str, inputs=(), formats=("png",)) -> list:
+    """Save ``fig`` as folder/stem in each of ``formats`` (atomic; drawn once), refusing to
+    overwrite an input file.
 
     ``stem`` comes from :func:`tstrate.output.plots.figure_stem`. Returns the paths written.
     """
     from tstrate.errors import InputError
-    from tstrate.output.plots import FIGURE_FORMATS, save_figure
+    from tstrate.output.plots import save_figure
 
     base = Path(folder) / stem
     resolved = {Path(p).resolve() for p in inputs if p}
-    for fmt in FIGURE_FORMATS:
+    formats = tuple(formats)
+    for fmt in formats:
         target = base.with_suffix("." + fmt)  # as save_figure names it
         if target.resolve() in resolved:
             raise InputError("would overwrite an input file", file=str(target), field="--plot")
-    return save_figure(fig, base, formats=list(FIGURE_FORMATS))
+    return save_figure(fig, base, formats=list(formats))

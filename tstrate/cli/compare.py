@@ -65,8 +65,8 @@ def compute(study_path, low_modes="harmonic"):
     return study, study_comparisons(study, low_modes=low_modes)
 
 
-def write_plots(results, directory, inputs=(), progress=None) -> list:
-    """Write the figures of every comparison into ``directory`` (PNG and SVG); returns the paths.
+def write_plots(results, directory, inputs=(), progress=None, formats=("png",)) -> list:
+    """Write the figures of every comparison into ``directory`` (in each of ``formats``); returns the paths.
 
     ``inputs`` are never overwritten; ``progress`` wraps the loop over the comparisons.
     """
@@ -77,7 +77,8 @@ def write_plots(results, directory, inputs=(), progress=None) -> list:
     written = []
     for res in (progress or (lambda it: it))(results):
         for panel, fig in comparison_figures(res).items():
-            written += write_figure(fig, directory, figure_stem("comparison", res.comparison.name, panel), inputs)
+            written += write_figure(fig, directory, figure_stem("comparison", res.comparison.name, panel), inputs,
+                                    formats)
     return written
 
 
@@ -156,6 +157,9 @@ def run(args) -> int:
     from tstrate.cli.common import (check_plot_dir, low_modes_from_args, print_json,
                                     progress_wrapper)
 
+    from tstrate.cli.common import plot_formats_from_args
+
+    formats = plot_formats_from_args(args)
     folder = check_plot_dir(args.plot) if args.plot else None
     low_modes = low_modes_from_args(args)
     study, results = compute(args.study, low_modes)
@@ -167,7 +171,8 @@ def run(args) -> int:
 
     records = comparison_records(results, study.conditions.rate_units)
     written = [] if folder is None else write_plots(
-        results, folder, [study.file, *study.species_files.values()], progress_wrapper(args, "compare plots"))
+        results, folder, [study.file, *study.species_files.values()], progress_wrapper(args, "compare plots"),
+        formats)
     if args.json:
         from tstrate.output.compare_records import comparison_document
 

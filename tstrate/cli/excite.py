@@ -205,6 +205,9 @@ def run(args) -> int:
     from tstrate.output.pressure_records import excitation_record
     from tstrate.study.excitations import study_excitations
 
+    from tstrate.cli.common import plot_formats_from_args
+
+    formats = plot_formats_from_args(args)
     folder = check_plot_dir(args.plot) if args.plot else None
     study = read_study(args.study)
     spec = _cli_spec(args, study)
@@ -234,12 +237,12 @@ def run(args) -> int:
             name = res.spec.name
             if res.pressure is not None:
                 written += write_figure(yield_pressure_figure(res), folder,
-                                        figure_stem("excitation", name, "pressure"), inputs)
+                                        figure_stem("excitation", name, "pressure"), inputs, formats)
             if res.profile is not None:
                 written += write_figure(yield_altitude_figure(res), folder,
-                                        figure_stem("excitation", name, "altitude"), inputs)
+                                        figure_stem("excitation", name, "altitude"), inputs, formats)
             written += write_figure(rate_energy_figure(res), folder, figure_stem("excitation", name, "k_of_E"),
-                                    inputs)
+                                    inputs, formats)
     records = [excitation_record(r, study.conditions.rate_units) for r in results]
     if args.json:
         from tstrate.output.pressure_records import excitation_document

@@ -84,6 +84,9 @@ def run(args) -> int:
     from tstrate.output.pressure_records import study_falloff_record
     from tstrate.study.falloff import study_falloff
 
+    from tstrate.cli.common import plot_formats_from_args
+
+    formats = plot_formats_from_args(args)
     folder = check_plot_dir(args.plot) if args.plot else None
     study = read_study(args.study)
     result = study_falloff(study, progress=progress_wrapper(args, "falloff"))
@@ -96,7 +99,8 @@ def run(args) -> int:
 
         inputs = [study.file, *study.species_files.values()]
         for cf in result.channels:
-            written += write_figure(falloff_figure(cf), folder, figure_stem("falloff", cf.name), inputs)
+            written += write_figure(falloff_figure(cf), folder, figure_stem("falloff", cf.name), inputs,
+                                    formats)
     record = study_falloff_record(result, study.conditions.rate_units)
     if args.json:
         record["plots"] = [str(p) for p in written]

@@ -89,6 +89,9 @@ def run(args) -> int:
     from tstrate.output.isotope_records import isotopes_record
     from tstrate.physics.isotopes import KIE_FACTORS, MASS_DEPENDENCE_STATEMENT
 
+    from tstrate.cli.common import plot_formats_from_args
+
+    formats = plot_formats_from_args(args)
     folder = check_plot_dir(args.plot) if args.plot else None
     low_modes = low_modes_from_args(args)
     study, res = compute(args.study, args.isotope, args.temperature, args.pair, low_modes)
@@ -99,7 +102,7 @@ def run(args) -> int:
         from tstrate.output.plots import figure_stem
 
         written = write_figure(kie_figure(record, study.title), folder, figure_stem("isotopes"),
-                               [study.file, *study.species_files.values()])
+                               [study.file, *study.species_files.values()], formats)
     if args.json:
         print_json({"study": study.file, "title": study.title,
                     "low_modes": {"method": low_modes.method, "cutoff_cm1": low_modes.cutoff_cm1},

@@ -70,6 +70,9 @@ def run(args) -> int:
                                     print_json, write_figure)
 
     written = []
+    from tstrate.cli.common import plot_formats_from_args
+
+    formats = plot_formats_from_args(args)
     folder = check_plot_dir(args.plot) if args.plot else None  # fails before any work
     low_modes = low_modes_from_args(args)
     study, records = compute(args.study, args.temperature, low_modes, args)
@@ -77,7 +80,7 @@ def run(args) -> int:
         from tstrate.output.plots import arrhenius_figure, figure_stem
 
         written = write_figure(arrhenius_figure(records, study.title), folder, figure_stem("arrhenius"),
-                               [study.file, *study.species_files.values()])
+                               [study.file, *study.species_files.values()], formats)
     if args.json:
         from tstrate.output.records import rates_document
 

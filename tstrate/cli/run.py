@@ -8,8 +8,14 @@ Reads a study, computes thermochemistry, rate constants (with tunnelling),
 catalysed-route comparisons, falloff and energised-molecule yields where the
 study asks for them, fits Arrhenius/Troe/NASA parameters, and writes an output
 folder with mechanism.yaml (Cantera format), fits.json, fits.csv, results.json,
-inputs.json (input files with SHA-256 hashes), tables/*.csv, plots/*.png|svg,
-report.md and report.html (self-contained).
+inputs.json (input files with SHA-256 hashes), tables/*.csv, plots/*.png
+(and .svg with --plot-formats png,svg; none with --no-plots), report.md and
+report.html (self-contained, PNG figures embedded).
+
+Figures carry at most --plot-max-channels channels each (the fastest by rate
+constant; the Arrhenius plot per molecularity, comparisons by their largest
+ratio to the bare route), and falloff figures are drawn for that many channels
+at most (the fastest by k_inf); every channel is in the tables.
 
 Without --output the folder is tstrate-output/<study name>, or a new
 <name>-2, -3, ... when that exists. An explicit --output that exists is
@@ -28,8 +34,19 @@ def add_arguments(parser) -> None:
     parser.add_argument("--output", "-o", metavar="DIR",
                         help="output folder (default tstrate-output/<study name>, never reused)")
     parser.add_argument("--force", action="store_true", help="replace an existing --output folder")
+    from tstrate.cli.common import add_plot_formats_option
+    from tstrate.output.plots import MAX_CHANNELS_PER_FIGURE
+
     add_low_mode_options(parser)
     add_standard_pressure_option(parser)
+    add_plot_formats_option(parser)
+    parser.add_argument("--no-plots", action="store_true",
+                        help="draw no figures (tables, fits and the report are written as usual)")
+    parser.add_argument("--plot-workers", type=int, default=1, metavar="N",
+                        help="draw the figures in N processes (default 1: in this process)")
+    parser.add_argument("--plot-max-channels", type=int, default=MAX_CHANNELS_PER_FIGURE, metavar="N",
+                        help=f"at most N channels per figure and N falloff figures, the fastest "
+                             f"(default {MAX_CHANNELS_PER_FIGURE})")
     add_quiet_option(parser)
     parser.add_argument("--json", action="store_true", help="machine-readable summary on stdout")
 
@@ -43,7 +60,12 @@ def run(args) -> int:
     from tstrate.output.folder import default_output_dir, write_outputs
     from tstrate.study.run import compute_study, steps
 
+    from tstrate.cli.common import plot_formats_from_args
+    from tstrate.output.plots import PlotSettings
+
     low_modes = low_modes_from_args(args)
+    plots = PlotSettings(formats=plot_formats_from_args(args), draw=not args.no_plots,
+                         workers=args.plot_workers, max_channels=args.plot_max_channels)
     study = standard_pressure_from_args(args, read_study(args.study))
     out = Path(args.output) if args.output else default_output_dir(study)
     if out.exists() and not args.force:
@@ -70,7 +92,7 @@ def run(args) -> int:
     try:
         result = compute_study(study, low_modes=low_modes, progress=progress,
                                uncertainty_progress=uncertainty_progress)
-        files = write_outputs(result, out, force=args.force, progress=progress)
+        files = write_outputs(result, out, force=args.force, progress=progress, plots=plots)
     finally:
         if bar is not None:
             bar.close()

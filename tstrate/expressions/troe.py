@@ -386,6 +386,112 @@ def fit_troe(temperature_K, number_density_m3, rate, k0, k_inf, *, fit_T2: bool 
                            lambda a, t3, t1, t2: model(a, t3, t1, t2) / k - 1.0, t)
 
 
+#: Convergence of :func:`fit_troe_effective_k0`: its deviations are reported to three figures and
+#: its parameters to four, so the fit stops when a step changes the sum of squares by less than
+#: this fraction, or every parameter by less than :data:`TROE_VP_XTOL` (relative, in a, ln T and
+#: ln k_0).
+TROE_VP_FTOL = 1e-10
+TROE_VP_XTOL = 1e-9
+#: most Levenberg-Marquardt steps of one start of :func:`fit_troe_effective_k0`
+TROE_LM_MAX_STEPS = 400
+#: how many of the ranked starts :func:`fit_troe_effective_k0` refines
+TROE_EFFECTIVE_K0_STARTS = 3
+_LN10 = math.log(10.0)
+
+
+def _troe_log_rate(x, log_kinf, log_m, t, a, t3, t1, t2):
+    """ln k of Troe's form and d ln k / d ln k_0, for ln k_0 = ``x`` (n_T, 1) against ln [M]
+    (1, n_M); the same expression as :func:`tstrate.physics.falloff.troe_rate`, in logarithms."""
+    fc = troe_center_broadening(t, a, t3, t1, t2)
+    with np.errstate(all="ignore"):
+        log10_fc = np.log10(fc)
+        ln_pr = np.maximum(x + log_m - log_kinf, math.log(1e-300))
+        c = -0.4 - 0.67 * log10_fc
+        n = 0.75 - 1.27 * log10_fc
+        u = ln_pr / _LN10 + c
+        den = n - 0.14 * u
+        f1 = u / den
+        q = 1.0 + f1 * f1
+        log10_f = log10_fc / q
+        ln_k = log_kinf + ln_pr - np.logaddexp(0.0, ln_pr) + _LN10 * log10_f
+        # d ln k / d ln k0 = 1/(1 + P_r) + d log10 F / d log10 P_r
+        dln = 1.0 / (1.0 + np.exp(ln_pr)) - log10_fc * 2.0 * f1 / (q * q) * n / (den * den)
+    return ln_k, dln
+
+
+def _arrow_levenberg_marquardt(fun_jac, theta0, x0, lo, hi, x_lo, x_hi):
+    """Minimise 0.5 |r|^2 over the Troe parameters ``theta`` (in the box [lo, hi]) and one ln k_0
+    per temperature ``x`` (in [x_lo, x_hi]), where each ln k_0 touches only the residuals of its
+    own temperature: Levenberg-Marquardt on the normal equations, whose matrix is an arrowhead
+    (a dense block for theta, a diagonal for x), solved through the Schur complement of the
+    diagonal. ``fun_jac(theta, x)`` returns r (n_T, n_M), dr/dtheta (n_T, n_M, p) and dr/dx
+    (n_T, n_M). All sums are elementwise numpy reductions (np.einsum without BLAS) and the one
+    linear system has p <= 4 unknowns, so the path is the same for any number of BLAS threads.
+    Parameters held at a bound while the gradient pushes them out are frozen for the step.
+    Returns (theta, x, cost)."""
+    theta = np.clip(np.asarray(theta0, dtype=float), lo, hi)
+    x = np.clip(np.asarray(x0, dtype=float), x_lo, x_hi)
+    r, jt, jx = fun_jac(theta, x)
+    cost = 0.5 * float(np.sum(r * r))
+    lam = 1e-3
+    history = [cost]
+    for _ in range(TROE_LM_MAX_STEPS):
+        g_t = np.einsum("tmp,tm->p", jt, r)
+        g_x = np.einsum("tm,tm->t", jx, r)
+        a_tt = np.einsum("tmp,tmq->pq", jt, jt)
+        b = np.einsum("tmp,tm->pt", jt, jx)
+        a_xx = np.einsum("tm,tm->t", jx, jx)
+        free_t = ~(((theta <= lo) & (g_t > 0)) | ((theta >= hi) & (g_t < 0)))
+        free_x = ~(((x <= x_lo) & (g_x > 0)) | ((x >= x_hi) & (g_x < 0))) & (a_xx > 0)
+        accepted = False
+        for _ in range(60):
+            d_xx = np.where(free_x, a_xx * (1.0 + lam), 1.0)
+            idx = np.flatnonzero(free_t)
+            bx = b[idx][:, free_x] if idx.size else np.zeros((0, int(free_x.sum())))
+            gx = g_x[free_x]
+            dx_diag = d_xx[free_x]
+            sub = a_tt[np.ix_(idx, idx)]
+            s_mat = sub + lam * np.diag(np.maximum(np.diag(sub), 1e-30)) - np.einsum("pt,qt,t->pq", bx, bx,
+                                                                                     1.0 / dx_diag)
+            rhs = -g_t[idx] + np.einsum("pt,t->p", bx, gx / dx_diag)
+            try:
+                d_t = np.linalg.solve(s_mat, rhs) if idx.size else np.zeros(0)
+            except np.linalg.LinAlgError:
+                lam *= 10.0
+                continue
+            d_x = (-gx - np.einsum("pt,p->t", bx, d_t)) / dx_diag
+            t_new = theta.copy()
+            t_new[idx] += d_t
+            t_new = np.clip(t_new, lo, hi)
+            x_new = x.copy()
+            x_new[free_x] += d_x
+            x_new = np.clip(x_new, x_lo, x_hi)
+            r_n = fun_jac(t_new, x_new, jacobian=False)[0]       # the Jacobian only for accepted steps
+            c_n = 0.5 * float(np.sum(r_n * r_n))
+            if np.isfinite(c_n) and c_n <= cost:
+                small = (np.all(np.abs(t_new - theta) <= TROE_VP_XTOL * (1.0 + np.abs(theta)))
+                         and np.all(np.abs(x_new - x) <= TROE_VP_XTOL * (1.0 + np.abs(x))))
+                drop = cost - c_n
+                # a heavily damped step is short and gains little without being at the minimum:
+                # stop on such steps only when the last 20 of them together gained nothing
+                near_gn = lam <= 1e-2
+                theta, x, cost = t_new, x_new, c_n
+                r, jt, jx = fun_jac(theta, x)
+                history.append(cost)
+                accepted = True
+                lam = max(lam / 3.0, 1e-12)
+                stalled = len(history) > 20 and history[-21] - cost <= 20 * TROE_VP_FTOL * max(cost, 1e-300)
+                if stalled or (near_gn and (small or drop <= TROE_VP_FTOL * max(cost, 1e-300))):
+                    return theta, x, cost
+                break
+            lam *= 4.0
+            if lam > 1e16:
+                break
+        if not accepted:
+            break
+    return theta, x, cost
+
+
 def fit_troe_effective_k0(temperature_K, number_density_m3, rate, k0, k_inf, *,
                           fit_T2: bool = False) -> tuple[TroeFit, np.ndarray]:
     """Troe fit with k_inf fixed and k_0(T) fitted as well, one value per temperature.
@@ -397,48 +503,99 @@ def fit_troe_effective_k0(temperature_K, number_density_m3, rate, k0, k_inf, *,
     then does not describe the curve, so an effective k_0(T) is fitted together with
     a, T***, T* (and T**) on log k (least squares), the usual practice when a limit is not
     reached in the fitted range. Starts from :func:`fit_troe` with
-    k_0 = max(k_0 classical, k([M]_min)/[M]_min). The Troe parameters have the bounds of
-    ``fit_troe`` and come back as its canonical twin (:func:`canonical_troe`),
-    with the parameters at a bound named in ``at_bound`` (k_0 does not take part in the swap).
-    Returns (fit, k_0 effective [m^3 s^-1]).
-    """
-    from scipy.optimize import least_squares
+    k_0 = max(k_0 classical, k([M]_min)/[M]_min) and from fit_troe's grid of starts, ranked after
+    a few Gauss-Newton steps in k_0 alone; the best :data:`TROE_EFFECTIVE_K0_STARTS` are refined.
+    It returns fit_troe's fit (with that k_0) when the joint fit does not improve on it.
 
+    Each k_0(T) touches the rates of its own temperature only, so the Jacobian is sparse: the
+    k_0 columns are analytic and block-diagonal, the Troe columns central differences, and the
+    Levenberg-Marquardt step is solved through the Schur complement of that structure
+    (:func:`_arrow_levenberg_marquardt`). Every operation is elementwise numpy or a linear
+    system of at most four unknowns, so the result is the same for any number of BLAS threads
+    (as far as :func:`fit_troe`'s is). It stops at :data:`TROE_VP_FTOL` / :data:`TROE_VP_XTOL`,
+    tolerances set by what is reported. The Troe parameters have the bounds of ``fit_troe``
+    (k_0 within a factor e^40 of the start) and come back as its canonical twin
+    (:func:`canonical_troe`), with the parameters at a bound named in ``at_bound`` (k_0 does not
+    take part in the swap). Returns (fit, k_0 effective [m^3 s^-1]).
+    """
     t = np.atleast_1d(np.asarray(temperature_K, dtype=float))
     m = np.atleast_1d(np.asarray(number_density_m3, dtype=float))
     k = np.asarray(rate, dtype=float)
     kinf = np.asarray(k_inf, dtype=float)
+    if k.shape != (t.size, m.size):
+        raise InputError(f"rate grid must have shape ({t.size}, {m.size}), got {k.shape}", field="rate")
+    if np.any(~np.isfinite(k)) or np.any(k <= 0):
+        raise InputError("rate constants to fit must be positive numbers", field="rate")
     i_min = int(np.argmin(m))
     guess = np.maximum(np.asarray(k0, dtype=float), k[:, i_min] / m[i_min])
     first = fit_troe(t, m, k, guess, kinf, fit_T2=fit_T2)
-    log_k = np.log(k)
     n_p = 4 if fit_T2 else 3
+    tt = t[:, None]
+    log_k = np.log(k)
+    log_kinf = np.log(kinf)[:, None]
+    log_m = np.log(m)[None, :]
+    x0 = np.log(guess)
 
     def unpack(p):
-        return (p[0], math.exp(p[1]), math.exp(p[2]), math.exp(p[3]) if fit_T2 else None,
-                np.exp(p[n_p:]))
+        return p[0], math.exp(p[1]), math.exp(p[2]), math.exp(p[3]) if fit_T2 else None
 
-    def residual(p):
-        a, t3, t1, t2, k0e = unpack(p)
-        with np.errstate(all="ignore"):
-            r = np.log(troe_rate(k0e[:, None], kinf[:, None], m[None, :], t[:, None], a, t3, t1, t2)) - log_k
-        return np.where(np.isfinite(r), r, 1e3).ravel()
+    def fun_jac(theta, x, jacobian=True):
+        xc = x[:, None]
+        ln_k, d = _troe_log_rate(xc, log_kinf, log_m, tt, *unpack(theta))
+        r = ln_k - log_k
+        bad = ~np.isfinite(r)
+        if not jacobian:
+            return np.where(bad, 1e3, r), None, np.where(bad, 0.0, d)
+        cols = []
+        for j in range(n_p):                      # d r / d theta_j, central differences
+            h = 1e-6 * max(1.0, abs(theta[j]))
+            up, dn = theta.copy(), theta.copy()
+            up[j] += h
+            dn[j] -= h
+            r_up = _troe_log_rate(xc, log_kinf, log_m, tt, *unpack(up))[0]
+            r_dn = _troe_log_rate(xc, log_kinf, log_m, tt, *unpack(dn))[0]
+            ok = np.isfinite(r_up) & np.isfinite(r_dn) & ~bad
+            cols.append(np.where(ok, (r_up - r_dn) / (2 * h), 0.0))
+        return np.where(bad, 1e3, r), np.stack(cols, axis=2), np.where(bad, 0.0, d)
 
-    x0 = [first.a, math.log(first.T3_K), math.log(first.T1_K)] + \
-        ([math.log(first.T2_K)] if fit_T2 else []) + list(np.log(guess))
     ln_lo, ln_hi = math.log(TROE_T_BOUNDS_K[0]), math.log(TROE_T_BOUNDS_K[1])
-    lo = [TROE_A_BOUNDS[0]] + [ln_lo] * (n_p - 1) + list(np.log(guess) - 40.0)
-    hi = [TROE_A_BOUNDS[1]] + [ln_hi] * (n_p - 1) + list(np.log(guess) + 40.0)
-    x0 = np.clip(x0, lo, hi)
-    sol = least_squares(residual, x0, bounds=(lo, hi), x_scale="jac", xtol=1e-12, ftol=1e-12, gtol=1e-12,
-                        max_nfev=4000)
-    if 0.5 * np.sum(residual(x0) ** 2) <= sol.cost:
+    lo = np.array([TROE_A_BOUNDS[0]] + [ln_lo] * (n_p - 1))
+    hi = np.array([TROE_A_BOUNDS[1]] + [ln_hi] * (n_p - 1))
+    theta0 = np.clip([first.a, math.log(first.T3_K), math.log(first.T1_K)]
+                     + ([math.log(first.T2_K)] if fit_T2 else []), lo, hi)
+    r0 = fun_jac(theta0, x0)[0]
+    cost0 = 0.5 * float(np.sum(r0 * r0))
+    # starts: fit_troe's result and its grid of starts, each with k_0(T) moved by a few
+    # Gauss-Newton steps of its own; the best few by sum of squares are refined (ties within 1e-9
+    # go to the earlier start, so the choice does not hang on the last bits of the arithmetic)
+    grid = [(a0, t30, t10) + ((t20,) if fit_T2 else ())
+            for a0 in (0.2, 0.5, 0.8) for t30 in (100.0, 1000.0) for t10 in (1000.0, 1e5)
+            for t20 in ((1000.0, 1e4) if fit_T2 else (None,))]
+    candidates = [theta0] + [np.clip([g[0]] + [math.log(v) for v in g[1:]], lo, hi) for g in grid]
+    ranked = []
+    for i, c in enumerate(candidates):
+        x = x0.copy()
+        for _ in range(4):
+            r, _, d = fun_jac(c, x, jacobian=False)
+            hess = np.sum(d * d, axis=1)
+            x = np.clip(x - np.clip(np.sum(r * d, axis=1) / np.where(hess > 0, hess, 1.0), -3.0, 3.0),
+                        x0 - 40.0, x0 + 40.0)
+        r = fun_jac(c, x, jacobian=False)[0]
+        ranked.append((0.5 * float(np.sum(r * r)), i, x))
+    ranked.sort(key=lambda item: (item[0], item[1]))
+    best = None
+    for _, i, x_start in ranked[:TROE_EFFECTIVE_K0_STARTS]:
+        theta, x, cost = _arrow_levenberg_marquardt(fun_jac, candidates[i], x_start, lo, hi, x0 - 40.0, x0 + 40.0)
+        tie = 1e-9 * (best[2] if best else 0.0) + 1e-30
+        if best is None or cost < best[2] - tie or (cost <= best[2] + tie and i < best[3]):
+            best = (theta, x, cost, i)
+    theta, x, cost = best[:3]
+    if cost0 <= cost:
         return first, guess
-    a, t3, t1, t2, k0e = unpack(sol.x)
+    k0e = np.exp(x)
+    a, t3, t1, t2 = unpack(theta)
 
     def deviation(a, t3, t1, t2):
-        return troe_rate(k0e[:, None], kinf[:, None], m[None, :], t[:, None], a, t3, t1, t2) / k - 1.0
+        return troe_rate(k0e[:, None], kinf[:, None], m[None, :], tt, a, t3, t1, t2) / k - 1.0
 
     return troe_fit_result(a, t3, t1, t2, deviation, t), k0e
-
-

@@ -26,7 +26,7 @@ _LINESTYLES = ["-", "--", ":", "-."]
 def route_label(route, catalyst: str) -> str:
     """Legend text of a route, e.g. ``one_water (+1 H2O)``."""
     extra = {"bare": "", "one_catalyst": f" (+1 {catalyst})", "two_catalysts": f" (+2 {catalyst})",
-             "dimer": f" (+({catalyst})$_2$)"}[route.kind]
+             "dimer": f" (+({catalyst})₂)"}[route.kind]
     return f"{route.channel}{extra}"
 
 
@@ -84,7 +84,7 @@ def energy_profile_figure(result, title: str | None = None):
     ax.set_xlim(-0.6, 3.6)
     ax.set_ylim(lo - 0.1 * span, hi + 0.1 * span)
     ax.axhline(0.0, color="0.75", lw=0.6, zorder=0)
-    ax.set_ylabel("E$_0$ (ZPE-corrected)  [kJ mol$^{-1}$]")
+    ax.set_ylabel("E0 (ZPE-corrected)  [kJ/mol]")
     ax.set_title((title or f"{comp.name}: stationary points")
                  + f"\nzero: {comp.substrate} + {comp.catalyst} molecules at infinity", fontsize=10)
     ax.grid(axis="y", alpha=0.25)
@@ -197,7 +197,7 @@ def ratio_abundance_figure(result, temperatures_K=None, title: str | None = None
                     ax.plot([n * 1e-6], [route.ratio_to_bare[a, j]], ls="none", marker=style["marker"],
                             color=style["color"], ms=5, mec="black", mew=0.5)
     ax.axhline(1.0, color="0.3", ls=":", lw=1.0)
-    ax.set_xlabel(f"[{cat}]  [molecule cm$^{{-3}}$]")
+    ax.set_xlabel(f"[{cat}]  [molecule cm⁻³]")
     ax.set_ylabel("k'(route) / k'(bare)")
     ax.set_title(title or f"{result.comparison.name}: dependence on the {cat} abundance\n"
                  "(markers: the comparison's abundances)", fontsize=10)

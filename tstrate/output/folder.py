@@ -37,13 +37,14 @@ def default_output_dir(study: Study, base: str | Path = "tstrate-output") -> Pat
 
 
 def write_outputs(result: StudyResult, output_dir, *, force: bool = False,
-                  progress: Callable[[str], None] | None = None) -> list[Path]:
+                  progress: Callable[[str], None] | None = None, plots=None) -> list[Path]:
     """Write every output of ``result`` into ``output_dir`` atomically.
 
     Everything is written into a temporary folder beside ``output_dir`` and
     renamed into place at the end, so an interrupted run leaves nothing
     half-written. An existing ``output_dir`` is replaced only with ``force``;
-    a folder holding an input file is never replaced.
+    a folder holding an input file is never replaced. ``plots``: which figures and formats
+    (:class:`tstrate.output.plots.PlotSettings`; default PNG only).
     """
     from tstrate.io.files import current_umask
     from tstrate.output.run_files import write_all
@@ -66,7 +67,7 @@ def write_outputs(result: StudyResult, output_dir, *, force: bool = False,
         raise InputError(f"cannot write the output folder: {exc.strerror}", file=str(out)) from None
     try:
         os.chmod(tmp, 0o777 & ~current_umask())
-        written = write_all(result, tmp, progress=progress)
+        written = write_all(result, tmp, progress=progress, plots=plots)
         if out.exists():
             old = out.with_name(f".{out.name}.old")
             if old.exists():

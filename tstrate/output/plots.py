@@ -6,6 +6,7 @@ backend) so that importing tstrate stays fast.
 
 from __future__ import annotations
 
+from dataclasses import dataclass
 from pathlib import Path
 
 import numpy as np
@@ -25,8 +26,67 @@ FIGURE_STEMS = {
     # {name}: species, {panel}: the rotor's bond (C1-O3)
     "rotor": "rotor_{name}_{panel}",
 }
-#: the formats each figure is written in
+#: the formats a figure can be written in
 FIGURE_FORMATS = ("png", "svg")
+#: resolution of PNG figures [dots per inch]: about 1100 x 500 pixels for a two-panel figure, enough
+#: for a screen and the report (common practice), and half the drawing time of 150 dpi
+FIGURE_DPI = 100
+#: the formats written when none are asked for (the report embeds the PNG)
+DEFAULT_FIGURE_FORMATS = ("png",)
+#: at most this many channels (lines and legend entries) in one figure, and at most this many
+#: falloff figures in a run: the fastest by rate constant; the full data are in the tables
+#: (common practice for legibility: more lines than colours in the default cycle blur together)
+MAX_CHANNELS_PER_FIGURE = 10
+
+
+@dataclass(frozen=True)
+class PlotSettings:
+    """What ``tstrate run`` draws.
+
+    formats: file formats, a non-empty subset of :data:`FIGURE_FORMATS` (PNG is always written
+    for the report). draw: False writes no figure at all. workers: processes that draw
+    (1: draw in this process). max_channels: the cap of :data:`MAX_CHANNELS_PER_FIGURE`.
+    """
+
+    formats: tuple[str, ...] = DEFAULT_FIGURE_FORMATS
+    draw: bool = True
+    workers: int = 1
+    max_channels: int = MAX_CHANNELS_PER_FIGURE
+
+    def __post_init__(self):
+        from tstrate.errors import InputError
+
+        fmts = tuple(dict.fromkeys(str(f).lower().lstrip(".") for f in self.formats))
+        bad = [f for f in fmts if f not in FIGURE_FORMATS]
+        if bad or not fmts:
+            raise InputError(f"unknown plot format(s) {', '.join(bad) or '(none)'}", field="--plot-formats",
+                             hint="use a comma-separated list of " + ", ".join(FIGURE_FORMATS))
+        object.__setattr__(self, "formats", fmts)
+        if int(self.workers) != self.workers or self.workers < 1:
+            raise InputError(f"plot workers must be a positive whole number, got {self.workers!r}",
+                             field="--plot-workers")
+        if int(self.max_channels) != self.max_channels or self.max_channels < 1:
+            raise InputError(f"the cap on channels per figure must be a positive whole number, got "
+                             f"{self.max_channels!r}", field="--plot-max-channels")
+
+
+def parse_formats(text: str) -> tuple[str, ...]:
+    """``"png,svg"`` -> ("png", "svg"), checked against :data:`FIGURE_FORMATS` (InputError)."""
+    return PlotSettings(formats=tuple(f.strip() for f in str(text).split(",") if f.strip())).formats
+
+
+def top_by_rate(names, rates, most: int) -> list:
+    """The ``most`` names with the largest rates (in their given order), and all when fewer.
+
+    ``rates`` is one representative rate constant per name (e.g. k at the middle temperature of
+    the grid); NaN counts as the slowest.
+    """
+    names = list(names)
+    if len(names) <= most:
+        return names
+    r = np.nan_to_num(np.asarray(rates, dtype=float), nan=-np.inf)
+    keep = set(np.argsort(-r, kind="stable")[:most].tolist())
+    return [n for i, n in enumerate(names) if i in keep]
 
 
 def figure_stem(figure: str, name: str = "", panel: str = "") -> str:
@@ -53,13 +113,25 @@ def _plt():
 _ORDER_WORDS = {1: "unimolecular", 2: "bimolecular", 3: "termolecular"}
 
 
+def fastest_channels(records: list[dict], most: int = MAX_CHANNELS_PER_FIGURE) -> list[str]:
+    """Names of the channel records drawn in the Arrhenius plot: for each molecularity the
+    ``most`` fastest by k at the middle temperature of the grid (:func:`top_by_rate`)."""
+    kept: list[str] = []
+    for order in sorted({r["order"] for r in records}):
+        group = [r for r in records if r["order"] == order]
+        mid = [float(np.asarray(r["rate_constant"])[len(r["rate_constant"]) // 2]) for r in group]
+        kept += top_by_rate([r["name"] for r in group], mid, most)
+    return kept
+
+
 def arrhenius_figure(records: list[dict], title: str | None = None, bands: dict | None = None,
-                     references: dict | None = None):
+                     references: dict | None = None, max_channels: int = MAX_CHANNELS_PER_FIGURE):
     """log10 k against 1000/T, one colour per channel; dashed without tunnelling.
 
     ``records`` are channel records from :func:`tstrate.output.records.channel_rates_record`.
     Channels of different molecularity get separate panels (their units differ), at most two
-    side by side, each titled with its molecularity and unit, its legend below it.
+    side by side, each titled with its molecularity and unit, its legend below it; each panel
+    carries at most ``max_channels`` channels, the fastest (:func:`fastest_channels`).
     ``bands``: channel -> (4, T) k at 2.5, 16, 84 and 97.5 % in the record's unit, drawn as
     shaded 95 % and 68 % bands (:mod:`tstrate.output.uncertainty_records`).
     ``references``: channel -> [(label, T [K], k in the record's unit)], drawn dash-dotted with
@@ -67,6 +139,8 @@ def arrhenius_figure(records: list[dict], title: str | None = None, bands: dict 
     (:func:`tstrate.output.evaluation_records.arrhenius_overlays`).
     """
     plt = _plt()
+    keep = set(fastest_channels(records, max_channels))
+    records = [r for r in records if r["name"] in keep]
     orders = sorted({r["order"] for r in records})
     ncols = min(2, len(orders))
     nrows = -(-len(orders) // ncols)
@@ -77,7 +151,7 @@ def arrhenius_figure(records: list[dict], title: str | None = None, bands: dict 
         for ax, order in zip(axes.ravel(), orders):
             unit = None
             for i, r in enumerate(x for x in records if x["order"] == order):
-                colour = f"C{i}"
+                colour = f"C{i % 10}"
                 inv_t = 1000.0 / np.asarray(r["temperature_K"])
                 ax.plot(inv_t, np.log10(r["rate_constant"]), "-", color=colour, lw=1.8,
                         label=f"{r['name']} ({r['tunnelling']})")
@@ -97,8 +171,8 @@ def arrhenius_figure(records: list[dict], title: str | None = None, bands: dict 
                 unit = r["rate_constant_unit"]
             word = _ORDER_WORDS.get(order, f"order {order}")
             ax.set_title(f"{word} channels, k in {unit}", y=1.16)
-            ax.set_xlabel("1000 / T  [K$^{-1}$]")
-            ax.set_ylabel(f"log$_{{10}}$ (k / {unit})")
+            ax.set_xlabel("1000 / T  [1/K]")
+            ax.set_ylabel(f"log10 (k / {unit})")
             ax.grid(alpha=0.3)
             handles, _ = ax.get_legend_handles_labels()
             ax.legend(loc="upper center", bbox_to_anchor=(0.5, -0.14), ncol=2 if len(handles) > 3 else 1,
@@ -145,13 +219,75 @@ def plot_format(path) -> str:
     return fmt
 
 
+def figure_bytes(fig, formats) -> dict[str, bytes]:
+    """``fig`` rendered once per format (format -> file contents), then closed."""
+    import io
+
+    out = {}
+    for fmt in formats:
+        buf = io.BytesIO()
+        fig.savefig(buf, format=fmt, dpi=FIGURE_DPI)
+        out[fmt] = buf.getvalue()
+    _plt().close(fig)
+    return out
+
+
+@dataclass(frozen=True)
+class FigureJob:
+    """A figure to draw: ``builder(*args, **kwargs)`` returns it (a module-level function, so that
+    the job can be sent to a worker process), saved as ``stem`` plus each format's suffix."""
+
+    stem: str
+    builder: object
+    args: tuple = ()
+    kwargs: tuple = ()      # (name, value) pairs
+
+    def draw(self, formats) -> dict[str, bytes]:
+        return figure_bytes(self.builder(*self.args, **dict(self.kwargs)), formats)
+
+
+def _draw_job(job: FigureJob, formats) -> dict[str, bytes]:
+    return job.draw(formats)
+
+
+def draw_figures(jobs, folder, formats=DEFAULT_FIGURE_FORMATS, workers: int = 1) -> list[list[Path]]:
+    """Draw each :class:`FigureJob` once, write it in every one of ``formats`` into ``folder``
+    (atomically), and return the paths written per job, in the order of ``formats``.
+
+    With ``workers > 1`` the figures are drawn in a pool of that many processes (the files are
+    written here, so the result is the same as a serial run).
+    """
+    from tstrate.io.files import atomic_write_bytes
+
+    jobs = list(jobs)
+    formats = tuple(formats)
+    if workers > 1 and len(jobs) > 1:
+        import multiprocessing as mp
+        from concurrent.futures import ProcessPoolExecutor
+
+        # a fork server, not a plain fork: the caller may hold threads (BLAS, JAX) that a forked
+        # child would inherit half-way; the workers import the figure functions themselves
+        method = "forkserver" if "forkserver" in mp.get_all_start_methods() else "spawn"
+        with ProcessPoolExecutor(min(workers, len(jobs)), mp_context=mp.get_context(method)) as pool:
+            rendered = list(pool.map(_draw_job, jobs, [formats] * len(jobs)))
+    else:
+        rendered = [job.draw(formats) for job in jobs]
+    out = []
+    for job, data in zip(jobs, rendered):
+        paths = []
+        for fmt in formats:
+            target = Path(folder) / f"{job.stem}.{fmt}"
+            atomic_write_bytes(target, data[fmt])
+            paths.append(target)
+        out.append(paths)
+    return out
+
+
 def save_figure(fig, path, formats=None) -> list[Path]:
     """Save ``fig`` atomically to ``path`` (its suffix) or to each of ``formats`` beside it.
 
     Returns the paths written (a path without a suffix gets ``.png``).
     """
-    import io
-
     from tstrate.io.files import atomic_write_bytes
 
     path = Path(path)
@@ -159,13 +295,11 @@ def save_figure(fig, path, formats=None) -> list[Path]:
         targets = [(fmt, path.with_suffix("." + fmt)) for fmt in formats]
     else:  # the name as given (a name without a suffix gets .png)
         targets = [(plot_format(path), path if path.suffix else path.with_suffix(".png"))]
+    data = figure_bytes(fig, [fmt for fmt, _ in targets])
     written = []
     for fmt, target in targets:
-        buf = io.BytesIO()
-        fig.savefig(buf, format=fmt, dpi=150)
-        atomic_write_bytes(target, buf.getvalue())
+        atomic_write_bytes(target, data[fmt])
         written.append(target)
-    _plt().close(fig)
     return written
 
 

@@ -91,23 +91,23 @@ def falloff_figure(cf, title: str | None = None, max_curves: int = 5, bands=None
                           marker=_REF_MARKERS[r_i % len(_REF_MARKERS)], mfc="none", ms=5,
                           markevery=max(1, int(inside.sum()) // 6))
         handles.append(Line2D([], [], color=colour, lw=1.8, label=f"{t:g} K"))
-    xlabel = "log$_{10}$ (p / bar)" if by_pressure else "log$_{10}$ ([M] / molecule cm$^{-3}$)"
+    xlabel = "log10 (p / bar)" if by_pressure else "log10 ([M] / molecule cm⁻³)"
     for axis in (ax, axr):
         axis.set_xlabel(xlabel)
         axis.grid(alpha=0.3)
-    ax.set_ylabel("log$_{10}$ (k / s$^{-1}$)")
-    axr.set_ylabel("log$_{10}$ (k / k$_\\infty$)")
+    ax.set_ylabel("log10 (k / s⁻¹)")
+    axr.set_ylabel("log10 (k / k∞)")
     lo = min(np.log10(np.min(cf.curve_rate_per_s[i] / cf.k_high_pressure_per_s[i])) for i in rows)
     bottom = max(lo, -8.0) - 0.3
     axr.set_ylim(bottom, -0.08 * bottom)
     k_lo = min(np.log10(np.min(cf.curve_rate_per_s[i])) for i in rows)
     k_hi = max(np.log10(cf.k_high_pressure_per_s[i]) for i in rows)
     ax.set_ylim(k_lo - 1.0, k_hi + 1.0)
-    styles = [Line2D([], [], color="0.3", lw=1.8, label=f"strong collision, $\\beta_c$-scaled, in {cf.bath.name}"),
+    styles = [Line2D([], [], color="0.3", lw=1.8, label=f"strong collision, βc-scaled, in {cf.bath.name}"),
               Line2D([], [], color="0.3", ls="", marker="o", ms=4, label="study grid"),
-              Line2D([], [], color="0.3", ls="--", lw=1.0, label="$k_\\infty$"),
+              Line2D([], [], color="0.3", ls="--", lw=1.0, label="k∞"),
               Line2D([], [], color="0.3", ls=lind_style, lw=1.0,
-                     label="Lindemann-Hinshelwood" + (" (effective $k_0$)" if cf.model.tunnelling == "eckart"
+                     label="Lindemann-Hinshelwood" + (" (effective k0)" if cf.model.tunnelling == "eckart"
                                                       else "")),
               Line2D([], [], color="k", ls=":", lw=1.3,
                      label=f"Troe fit (max dev. {100 * cf.troe.max_rel_deviation:.2g} %)")]
@@ -163,15 +163,15 @@ def yield_pressure_figure(res, max_curves: int = 5):
             ax.plot(xc, c.stepwise[i], "--", color=colour, lw=1.2)
             axq.plot(xc, _log_quenched(c.stepwise[i]), "--", color=colour, lw=1.2)
         handles.append(Line2D([], [], color=colour, lw=1.6, label=f"{g.temperature_K[i]:g} K"))
-    xlabel = "log$_{10}$ (p / bar)" if by_pressure else "log$_{10}$ ([M] / molecule cm$^{-3}$)"
+    xlabel = "log10 (p / bar)" if by_pressure else "log10 ([M] / molecule cm⁻³)"
     ax.set_ylim(-0.03, 1.03)
     ax.set_ylabel("fraction reacting before deactivation")
-    axq.set_ylabel("log$_{10}$ (fraction deactivated)")
+    axq.set_ylabel("log10 (fraction deactivated)")
     for axis in (ax, axq):
         axis.set_xlabel(xlabel)
         axis.grid(alpha=0.3)
-    styles = [Line2D([], [], color="0.3", lw=1.6, label="Stern-Volmer, $\\beta_c Z$[M]"),
-              Line2D([], [], color="0.3", ls="--", lw=1.2, label="stepwise <$\\Delta E$>$_{down}$"),
+    styles = [Line2D([], [], color="0.3", lw=1.6, label="Stern-Volmer, βc Z[M]"),
+              Line2D([], [], color="0.3", ls="--", lw=1.2, label="stepwise <ΔE>down"),
               Line2D([], [], color="0.3", ls="", marker="o", ms=4, label="study pressures")]
     fig.legend(handles=handles + styles, loc="lower center", ncol=len(handles) + len(styles), fontsize=8,
                frameon=False)
@@ -204,19 +204,19 @@ def yield_altitude_figure(res, bands: dict | None = None):
                        Patch(color=colour, alpha=0.10, lw=0, label=f"{name}, central 95 %")]
     ax.plot(g.stern_volmer, z_km, "-o", ms=3, color="C0")
     axq.plot(_log_quenched(g.stern_volmer), z_km, "-o", ms=3, color="C0")
-    curves = [Line2D([], [], color="C0", marker="o", ms=3, label="Stern-Volmer, $\\beta_c Z$[M]")]
+    curves = [Line2D([], [], color="C0", marker="o", ms=3, label="Stern-Volmer, beta_c Z[M]")]
     if g.stepwise is not None:
         ax.plot(g.stepwise, z_km, "--s", ms=3, color="C3")
         axq.plot(_log_quenched(g.stepwise), z_km, "--s", ms=3, color="C3")
-        curves.append(Line2D([], [], color="C3", ls="--", marker="s", ms=3, label="stepwise <$\\Delta E$>$_{down}$"))
+        curves.append(Line2D([], [], color="C3", ls="--", marker="s", ms=3, label="stepwise <dE>down"))
     ax.set_xlim(-0.03, 1.03)
     ax.set_xlabel("fraction reacting before deactivation")
-    axq.set_xlabel("log$_{10}$ (fraction deactivated)")
+    axq.set_xlabel("log10 (fraction deactivated)")
     ax.set_ylabel("altitude  [km]")
     for axis in (ax, axq, axp):
         axis.grid(alpha=0.3)
     line_p, = axp.plot(np.log10(g.pressure_Pa / _BAR), z_km, "-", color="0.3", label="pressure")
-    axp.set_xlabel("log$_{10}$ (p / bar)")
+    axp.set_xlabel("log10 (p / bar)")
     twin = axp.twiny()
     line_t, = twin.plot(g.temperature_K, z_km, "-", color="C1", label="temperature")
     twin.set_xlabel("T  [K]", color="C1")
@@ -247,19 +247,19 @@ def rate_energy_figure(res):
     first = float(e_cm1[pos].min()) if pos.any() else float(e_cm1.max())
     if first > float(e_cm1.min()):
         ax.axvspan(float(e_cm1.min()), first, color="0.85", alpha=0.6, lw=0,
-                   label=f"k(E) = 0 below {first:.0f} cm$^{{-1}}$")
+                   label=f"k(E) = 0 below {first:.0f} cm-1")
     gaps = ~pos & (e_cm1 > first)
     if gaps.any():
         ax.plot(e_cm1[gaps], np.full(int(gaps.sum()), bottom + 0.3), "|", color="C0", ms=7, alpha=0.7,
                 label=f"k(E) = 0 ({int(gaps.sum())} grains above it)")
     ax.set_ylim(bottom, top + 1.0)
-    ax.axvline(rate.barrier_J_per_mol / CM1_J_PER_MOL, color="0.4", ls="--", lw=1.0, label="barrier E$_0$")
+    ax.axvline(rate.barrier_J_per_mol / CM1_J_PER_MOL, color="0.4", ls="--", lw=1.0, label="barrier E0")
     energies = [g.energy_J_per_mol for g in (res.pressure, res.profile) if g is not None]
     if energies:
         e = np.concatenate([np.atleast_1d(x) for x in energies]) / CM1_J_PER_MOL
         ax.axvspan(e.min() - 20, e.max() + 20, color="C3", alpha=0.25, label="energised molecule")
-    ax.set_xlabel("E above the reactant zero-point level  [cm$^{-1}$]")
-    ax.set_ylabel("log$_{10}$ (k(E) / s$^{-1}$)")
+    ax.set_xlabel("E above the reactant zero-point level  [cm⁻¹]")
+    ax.set_ylabel("log10 (k(E) / s⁻¹)")
     ax.grid(alpha=0.3)
     ax.legend(fontsize=8, loc="lower right")
     how = "with Eckart tunnelling" if res.model.tunnelling == "eckart" else "no tunnelling"

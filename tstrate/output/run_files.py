@@ -8,7 +8,7 @@ Layout::
     results.json                every computed number, units in the keys
     inputs.json                 the input files with their SHA-256 hashes
     tables/*.csv                thermochemistry, rate constants, comparisons, falloff
-    plots/*.png, plots/*.svg    figures
+    plots/*.png, plots/*.svg    figures (PNG always; SVG when asked for; none with --no-plots)
 
 The caller (:func:`tstrate.output.folder.write_outputs`) gives a fresh temporary
 folder and renames it into place, so this module writes plainly.
@@ -65,12 +65,6 @@ def low_modes_method_text(low_modes) -> str:
         text += (f" The quasi-harmonic alternatives are {LOW_MODES_ROTOR_ENTROPY_BLEND} (Grimme 2012) and "
                  f"{LOW_MODES_FREQUENCY_FLOOR} (Ribeiro, Marenich, Cramer and Truhlar 2011), option --low-modes.")
     return text
-
-
-def _save(fig, folder: Path, stem: str) -> list[Path]:
-    from tstrate.output.plots import FIGURE_FORMATS, save_figure
-
-    return save_figure(fig, folder / stem, formats=list(FIGURE_FORMATS))
 
 
 def _results_json(result) -> dict:
@@ -190,11 +184,17 @@ def pressure_fit_rows(result):
     return header, rows
 
 
-def write_all(result, folder: Path, *, progress: Callable[[str], None] | None = None) -> list[Path]:
-    """Write every output file into ``folder``; returns the paths written."""
+def write_all(result, folder: Path, *, progress: Callable[[str], None] | None = None,
+              plots=None) -> list[Path]:
+    """Write every output file into ``folder``; returns the paths written.
+
+    ``plots``: a :class:`tstrate.output.plots.PlotSettings` (default: PNG only, in this process).
+    """
+    from tstrate.output.plots import PlotSettings
+
+    plots = PlotSettings() if plots is None else plots
     from tstrate.io.files import atomic_write_text
     from tstrate.output.mechanism import write_mechanism
-    from tstrate.output.plots import arrhenius_figure, figure_stem
     from tstrate.output.tables import (csv_text, json_text, write_fits_csv, write_json, write_rate_tables,
                                        write_thermo_csv)
     from tstrate.io.files import file_sha256
@@ -206,11 +206,13 @@ def write_all(result, folder: Path, *, progress: Callable[[str], None] | None = 
 
     folder = Path(folder)
     (folder / "tables").mkdir()
-    (folder / "plots").mkdir()
+    if plots.draw:
+        (folder / "plots").mkdir()
     study = result.study
     units = study.conditions.rate_units
     written: list[Path] = []
     figures: list[tuple[str, Path, str]] = []  # (section, png, caption)
+    unc = getattr(result, "uncertainty", None)
 
     step("tables")
     written.append(write_mechanism(result.fits, folder / "mechanism.yaml"))
@@ -271,67 +273,10 @@ def write_all(result, folder: Path, *, progress: Callable[[str], None] | None = 
     written.append(folder / "inputs.json")
 
     step("plots")
-    bands = ur.arrhenius_bands(unc, doc["channels"]) if unc is not None else None
-    paths = _save(arrhenius_figure(doc["channels"], study.title, bands=bands,
-                                   references=er.arrhenius_overlays(result) or None), folder / "plots",
-                  figure_stem("arrhenius"))
-    written += paths
-    figures.append(("rates", paths[0], "Arrhenius plot: log10 k against 1000/T; dashed lines "
-                    "without tunnelling." + (" " + ur.BANDS_MEAN if unc is not None else "")))
-    if result.comparisons is not None:
-        from tstrate.output.compare_plots import comparison_figures
-
-        for cr in result.comparisons:
-            rb = ur.ratio_bands(unc, cr.comparison.name) if unc is not None else None
-            for key, fig in comparison_figures(cr, ratio_bands=rb).items():
-                paths = _save(fig, folder / "plots", figure_stem("comparison", cr.comparison.name, key))
-                written += paths
-                figures.append(("compare", paths[0],
-                                f"{cr.comparison.name}: {key.replace('_', ' ')}"))
-    if result.falloff is not None:
-        from tstrate.output.pressure_plots import falloff_figure
-
-        for cf in result.falloff.channels:
-            fb = ur.falloff_bands(unc, cf.name) if unc is not None else None
-            paths = _save(falloff_figure(cf, bands=fb, references=er.falloff_overlays(result, cf.name) or None),
-                          folder / "plots", figure_stem("falloff", cf.name))
-            written += paths
-            figures.append(("falloff", paths[0], f"Falloff of channel {cf.name}: log10 k against "
-                            "log10 p at several temperatures."))
-    if result.excitations is not None:
-        from tstrate.output import pressure_plots as pp
-
-        for ex in result.excitations:
-            if ex.pressure is not None:
-                paths = _save(pp.yield_pressure_figure(ex), folder / "plots",
-                              figure_stem("excitation", ex.spec.name, "pressure"))
-                written += paths
-                figures.append(("excitation", paths[0], f"{ex.spec.name}: fraction reacting "
-                                "before deactivation against pressure."))
-            if ex.profile is not None:
-                ab = ur.altitude_bands(unc, ex.spec.name) if unc is not None else None
-                paths = _save(pp.yield_altitude_figure(ex, bands=ab), folder / "plots",
-                              figure_stem("excitation", ex.spec.name, "altitude"))
-                written += paths
-                figures.append(("excitation", paths[0], f"{ex.spec.name}: fraction reacting "
-                                "before deactivation against altitude."))
-
-    from tstrate.output.plots import rotor_figure
-
-    for th in doc["thermochemistry"]:
-        for rec in th.get("hindered_rotors", []):
-            paths = _save(rotor_figure(rec, th["name"]), folder / "plots", figure_stem("rotor", th["name"], rec["bond"]))
-            written += paths
-            figures.append(("rotors", paths[0], f"{th['name']}: potential of the hindered rotor {rec['bond']} "
-                            "(Fourier series and the points it was fitted to) with its levels."))
-
-    if result.isotopes is not None and any(s.kie for s in result.isotopes.substitutions):
-        from tstrate.output.isotope_plots import kie_figure
-
-        paths = _save(kie_figure(doc["isotopes"]), folder / "plots", figure_stem("isotopes"))
-        written += paths
-        figures.append(("isotopes", paths[0], "Kinetic isotope effects k_light / k_heavy against T; dashed "
-                        "lines without tunnelling."))
+    if plots.draw:
+        figures = _draw_all(result, doc, folder / "plots", plots)
+        written += [p for _, paths, _ in figures for p in paths]
+        figures = [(section, paths[0], caption) for section, paths, caption in figures]
 
     step("report")
     blocks = build_report(result, doc, inputs, [(s, p.relative_to(folder), c) for s, p, c in figures],
@@ -340,6 +285,110 @@ def write_all(result, folder: Path, *, progress: Callable[[str], None] | None = 
     atomic_write_text(folder / "report.html", rp.to_html(blocks, folder, study.title))
     written += [folder / "report.md", folder / "report.html"]
     return written
+
+
+def _capped_comparison(cr, most: int):
+    """``cr`` with at most ``most`` assisted routes, the fastest against the bare one (largest
+    ratio anywhere on the grid), and a note of how many were left out (None when none)."""
+    from dataclasses import replace
+
+    from tstrate.output.plots import top_by_rate
+
+    assisted = list(range(1, len(cr.routes)))
+    if len(assisted) <= most:
+        return cr, None
+    peak = [float(np.nanmax(cr.routes[i].ratio_to_bare)) for i in assisted]
+    keep = [0] + top_by_rate(assisted, peak, most)
+    pick = lambda seq: tuple(seq[i] for i in keep) if len(seq) == len(cr.routes) else seq  # noqa: E731
+    note = (f" The {most} fastest of {len(assisted)} assisted routes (largest ratio to the bare route); "
+            "every route is in tables/ and results.json.")
+    return replace(cr, routes=pick(cr.routes), barriers=pick(cr.barriers), profiles=pick(cr.profiles)), note
+
+
+def _draw_all(result, doc: dict, folder: Path, plots) -> list[tuple[str, list[Path], str]]:
+    """Every figure of the run, each drawn once and written in each of ``plots.formats``
+    (PNG first, for the report): (report section, paths, caption) per figure."""
+    from tstrate.output.plots import FigureJob, arrhenius_figure, draw_figures, fastest_channels, figure_stem
+
+    study = result.study
+    unc = getattr(result, "uncertainty", None)
+    most = plots.max_channels
+    if unc is not None:
+        from tstrate.output import uncertainty_records as ur
+    jobs: list[tuple[str, FigureJob, str]] = []
+    bands = ur.arrhenius_bands(unc, doc["channels"]) if unc is not None else None
+    drawn = fastest_channels(doc["channels"], most)
+    caption = ("Arrhenius plot: log10 k against 1000/T; dashed lines without tunnelling."
+               + (" " + ur.BANDS_MEAN if unc is not None else ""))
+    if len(drawn) < len(doc["channels"]):
+        caption += (f" The {len(drawn)} fastest of {len(doc['channels'])} channels (k at the middle "
+                    "temperature, per molecularity); every channel is in tables/ and results.json.")
+    from tstrate.output import evaluation_records as er
+
+    jobs.append(("rates", FigureJob(figure_stem("arrhenius"), arrhenius_figure, (doc["channels"], study.title),
+                                    (("bands", bands), ("references", er.arrhenius_overlays(result) or None),
+                                     ("max_channels", most))), caption))
+    if result.comparisons is not None:
+        from tstrate.output import compare_plots as cp
+
+        for cr in result.comparisons:
+            rb = ur.ratio_bands(unc, cr.comparison.name) if unc is not None else None
+            shown, note = _capped_comparison(cr, most)
+            for key, builder, kwargs in (("energy_profile", cp.energy_profile_figure, ()),
+                                         ("ratio_vs_temperature", cp.ratio_temperature_figure,
+                                          (("bands", rb),)),
+                                         ("ratio_vs_abundance", cp.ratio_abundance_figure, ())):
+                jobs.append(("compare", FigureJob(figure_stem("comparison", cr.comparison.name, key), builder,
+                                                  (shown,), kwargs),
+                             f"{cr.comparison.name}: {key.replace('_', ' ')}" + ("." + note if note else "")))
+    if result.falloff is not None:
+        from tstrate.output.plots import top_by_rate
+        from tstrate.output.pressure_plots import falloff_figure
+
+        channels = list(result.falloff.channels)
+        k_mid = [float(cf.k_high_pressure_per_s[cf.temperature_K.size // 2]) for cf in channels]
+        keep = set(top_by_rate([cf.name for cf in channels], k_mid, most))
+        note = ""
+        if len(keep) < len(channels):
+            note = (f" One of the {len(keep)} fastest of {len(channels)} falloff channels (k_inf at the middle "
+                    "temperature); every channel's falloff is in tables/ and results.json.")
+        for cf in channels:
+            if cf.name not in keep:
+                continue
+            fb = ur.falloff_bands(unc, cf.name) if unc is not None else None
+            jobs.append(("falloff", FigureJob(figure_stem("falloff", cf.name), falloff_figure, (cf,),
+                                              (("bands", fb),
+                                               ("references", er.falloff_overlays(result, cf.name) or None))),
+                         f"Falloff of channel {cf.name}: log10 k against log10 p at several temperatures." + note))
+    if result.excitations is not None:
+        from tstrate.output import pressure_plots as pp
+
+        for ex in result.excitations:
+            if ex.pressure is not None:
+                jobs.append(("excitation", FigureJob(figure_stem("excitation", ex.spec.name, "pressure"),
+                                                     pp.yield_pressure_figure, (ex,)),
+                             f"{ex.spec.name}: fraction reacting before deactivation against pressure."))
+            if ex.profile is not None:
+                ab = ur.altitude_bands(unc, ex.spec.name) if unc is not None else None
+                jobs.append(("excitation", FigureJob(figure_stem("excitation", ex.spec.name, "altitude"),
+                                                     pp.yield_altitude_figure, (ex,), (("bands", ab),)),
+                             f"{ex.spec.name}: fraction reacting before deactivation against altitude."))
+    from tstrate.output.plots import rotor_figure
+
+    for th in doc["thermochemistry"]:
+        for rec in th.get("hindered_rotors", []):
+            jobs.append(("rotors", FigureJob(figure_stem("rotor", th["name"], rec["bond"]), rotor_figure,
+                                             (rec, th["name"])),
+                         f"{th['name']}: potential of the hindered rotor {rec['bond']} (Fourier series and the "
+                         "points it was fitted to) with its levels."))
+    if result.isotopes is not None and any(s.kie for s in result.isotopes.substitutions):
+        from tstrate.output.isotope_plots import kie_figure
+
+        jobs.append(("isotopes", FigureJob(figure_stem("isotopes"), kie_figure, (doc["isotopes"],)),
+                     "Kinetic isotope effects k_light / k_heavy against T; dashed lines without tunnelling."))
+    formats = ("png",) + tuple(f for f in plots.formats if f != "png")
+    paths = draw_figures([j for _, j, _ in jobs], folder, formats, workers=plots.workers)
+    return [(section, p, caption) for (section, _, caption), p in zip(jobs, paths)]
 
 
 def limits(result) -> list[str]:
@@ -627,7 +676,7 @@ def build_report(result, doc: dict, inputs: list[dict], figures, evaluation: dic
     B.append(rp.Heading("Files"))
     B.append(rp.Bullets(("mechanism.yaml: Cantera-format mechanism", "fits.json, fits.csv: fitted "
                          "parameters", "results.json: every number computed", "tables/: CSV tables",
-                         "plots/: PNG and SVG figures", "inputs.json: input files and hashes",
+                         "plots/: figures (PNG, and SVG when asked for)", "inputs.json: input files and hashes",
                          "evaluation_forms.json, tables/evaluation_forms.csv: the rates in the forms of data "
                          "evaluations")))
     B.append(rp.Paragraph(CAUTION))

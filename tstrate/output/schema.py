@@ -1804,7 +1804,7 @@ def readme_text() -> str:
              "tstrate/output/schema.py; do not edit by hand -->", "",
              "`tstrate run` writes one folder: `report.md` and `report.html` (the report, for "
              "reading), `mechanism.yaml`, `fits.json`, `fits.csv`, `results.json`, `inputs.json`, "
-             "`tables/*.csv` and `plots/*.png|svg`. Every command also prints its results as JSON "
+             "`tables/*.csv` and `plots/*.png` (and `*.svg` when asked for). Every command also prints its results as JSON "
              "with `--json`. The pages here list every key of every such file with its unit and "
              "meaning:", ""]
     for page, (title, _) in PAGES.items():

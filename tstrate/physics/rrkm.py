@@ -179,6 +179,11 @@ def tunnelling_sum_of_states(ts: StateCounts, barrier_index: int, n_grains: int,
     level, hence the sum runs over j <= i. The transmission is evaluated at
     the grain centres, so a step function with P(0) = 1/2 (1 above, 0 below)
     returns the grain-averaged classical sum of states.
+
+    P is evaluated once, on the grid of offsets. The sum is a convolution with P; it is done
+    directly only over the window of offsets where 0 < P < 1: below it P is 0, and above it
+    P is exactly 1, where the sum is the TS sum of states (a cumulative sum). The cost is that
+    of the window, not of the whole grid.
     """
     offsets = (np.arange(n_grains) - barrier_index) * ts.grain_J_per_mol
     p = np.asarray(transmission(offsets), dtype=float)
@@ -188,7 +193,19 @@ def tunnelling_sum_of_states(ts: StateCounts, barrier_index: int, n_grains: int,
     c = np.zeros(n_grains)
     m = min(n_grains, ts.n_grains)
     c[:m] = ts.counts[:m]
-    return np.convolve(c, p)[:n_grains]
+    out = np.zeros(n_grains)
+    live = np.flatnonzero(p != 0.0)
+    if live.size == 0:
+        return out
+    lo = int(live[0])
+    not_one = np.flatnonzero(p != 1.0)
+    top = int(not_one[-1]) + 1 if not_one.size else 0       # p[top:] == 1 exactly
+    top = max(top, lo)
+    if top > lo:
+        out[lo:] += np.convolve(c, p[lo:top])[: n_grains - lo]
+    if top < n_grains:
+        out[top:] += np.cumsum(c)[: n_grains - top]
+    return out
 
 
 def microcanonical_rate(reactant: StateCounts, ts: StateCounts, barrier_J_per_mol: float, *,

@@ -3,7 +3,8 @@
 Direct count of harmonic-oscillator states by the Beyer-Swinehart algorithm
 (T. Beyer and D. F. Swinehart, Commun. ACM 16, 379 (1973)) in the form of
 S. E. Stein and B. S. Rabinovitch, J. Chem. Phys. 58, 2438 (1973), with free
-rotors convolved in, and the Whitten-Rabinovitch approximation
+rotors and electronic levels in the starting array of the recursion (the same
+as convolving them in, at a cost linear in the number of grains), and the Whitten-Rabinovitch approximation
 (G. Z. Whitten and B. S. Rabinovitch, J. Chem. Phys. 38, 2466 (1963)) for
 checking.
 
@@ -273,16 +274,77 @@ def add_oscillators(counts: np.ndarray, frequencies_cm1, grain_cm1: float) -> np
 def convolve_counts(a: np.ndarray, b: np.ndarray) -> np.ndarray:
     """Discrete convolution of two per-grain counts, truncated to the length of ``a``.
 
-    Direct (not FFT) convolution, so counts spanning many orders of magnitude
-    keep their relative precision.
+    Direct (not FFT) convolution, so counts spanning many orders of magnitude keep their
+    relative precision. Quadratic in the number of grains: :func:`count_states` does not use it
+    (rotors are its starting array, levels shifted copies); it is kept as the independent check.
     """
     a = np.asarray(a, dtype=float)
     return np.convolve(a, np.asarray(b, dtype=float))[: a.size]
 
 
+def add_shifted_copies(counts: np.ndarray, levels) -> np.ndarray:
+    """``counts`` convolved with a few discrete levels, as a sum of shifted copies.
+
+    ``levels`` are (grain index, degeneracy) pairs; the result, truncated to the length of
+    ``counts``, is ``sum_l g_l counts[i - i_l]``: the direct convolution with the sparse array
+    of the levels, at a cost of one pass over the grid per level instead of one per grain.
+    """
+    c = np.asarray(counts, dtype=float)
+    out = np.zeros_like(c)
+    for index, degeneracy in levels:
+        i = int(index)
+        if i < 0:
+            raise InputError(f"level grain index must be >= 0, got {i}", field="levels")
+        if i < c.size:
+            out[i:] += float(degeneracy) * c[: c.size - i]
+    return out
+
+
+def _fft_convolve(a: np.ndarray, b: np.ndarray) -> np.ndarray:
+    """Convolution of two non-negative arrays of length n by real FFT, truncated to n (>= 0)."""
+    n = a.size
+    size = 1 << int(2 * n - 1).bit_length()
+    out = np.fft.irfft(np.fft.rfft(a, size) * np.fft.rfft(b, size), size)[:n]
+    return np.maximum(out, 0.0)
+
+
+def _rotor_start(rotors: Sequence[Rotor], n: int, grain: float) -> np.ndarray:
+    """Counts of all ``rotors`` together (length n): the starting array of the oscillator pass.
+
+    Quantum rotors (a few discrete levels) enter as shifted copies (:func:`add_shifted_copies`);
+    the first classical rotor's counts are the starting array itself, and each further classical
+    rotor is convolved in by FFT. Classical rotor counts are smooth power laws in E (no zeros,
+    a range of a few decades), so the FFT keeps their relative precision (its round-off is
+    about 1e-15 of the largest count), unlike the oscillator counts that the Beyer-Swinehart
+    pass adds afterwards.
+    """
+    start = None
+    quantum = []
+    for rotor in rotors:
+        if not isinstance(rotor, Rotor):
+            if not callable(getattr(rotor, "counts", None)):
+                raise InputError(f"rotors must be Rotor objects or other degrees of freedom with counts(), got "
+                                 f"{type(rotor).__name__}", field="rotors")
+            quantum.append(rotor)  # discrete levels (a hindered rotor's): shifted copies
+            continue
+        if rotor.quantum:
+            quantum.append(rotor)
+            continue
+        c = rotor.counts(n, grain)
+        start = c if start is None else _fft_convolve(start, c)
+    if start is None:
+        start = np.zeros(n)
+        start[0] = 1.0
+    for rotor in quantum:
+        c = rotor.counts(n, grain)
+        nz = np.flatnonzero(c)
+        start = add_shifted_copies(start, zip(nz, c[nz]))
+    return start
+
+
 def count_states(frequencies_cm1, max_energy_J_per_mol: float, *, grain_cm1: float | None = None,
                  grain_J_per_mol: float | None = None, rotors: Sequence[Rotor] | Iterable[Rotor] = (),
-                 refine: bool = True) -> StateCounts:
+                 levels: Iterable[tuple[float, float]] = (), refine: bool = True) -> StateCounts:
     """Count states of harmonic oscillators plus free rotors up to ``max_energy_J_per_mol``.
 
     Parameters
@@ -295,10 +357,13 @@ def count_states(frequencies_cm1, max_energy_J_per_mol: float, *, grain_cm1: flo
         Grain width, one of the two. Checked against the lowest wavenumber
         (see :func:`check_grain`).
     rotors:
-        :class:`Rotor` objects convolved in (internal free rotors, K-rotor,
-        2-D external rotor) before the oscillators are added; any degree of freedom with
-        ``counts(n_grains, grain_J_per_mol)`` (:mod:`tstrate.physics.modes`), such as a
-        hindered rotor's exact levels, is convolved the same way.
+        :class:`Rotor` objects (internal free rotors, K-rotor, 2-D external rotor). Their
+        counts together are the starting array of the Beyer-Swinehart pass (see
+        :func:`_rotor_start`), which is the same as convolving them in.
+    levels:
+        (energy [J/mol], degeneracy) of electronic levels, the ground level included; they
+        enter as shifted copies of the starting array (energies rounded to the grain; levels
+        above the grid are left out). Empty: a single non-degenerate level.
     refine:
         Refine a grain that is too coarse instead of only warning.
     """
@@ -314,13 +379,10 @@ def count_states(frequencies_cm1, max_energy_J_per_mol: float, *, grain_cm1: flo
     e_max = positive(max_energy_J_per_mol, "max_energy_J_per_mol")
     grain = grain_cm1 * CM1_J_PER_MOL
     n = int(math.ceil(e_max / grain)) + 1
-    counts = np.zeros(n)
-    counts[0] = 1.0
-    for rotor in rotors:
-        if not callable(getattr(rotor, "counts", None)):
-            raise InputError(f"rotors must be Rotor objects or other degrees of freedom with counts(), got "
-                             f"{type(rotor).__name__}", field="rotors")
-        counts = convolve_counts(counts, rotor.counts(n, grain))
+    counts = _rotor_start(rotors, n, grain)
+    levels = [(int(round(float(e) / grain)), float(g)) for e, g in levels]
+    if levels and levels != [(0, 1.0)]:
+        counts = add_shifted_copies(counts, levels)
     if freqs.size:
         counts = add_oscillators(counts, freqs, grain_cm1)
     return StateCounts(grain, counts)

@@ -75,15 +75,18 @@ in our scans of the Eckart form kappa stayed >= 1 whenever both
 default floor kappa is the same for the forward and the reverse direction
 (microscopic reversibility: ``P`` is the same from both sides).
 
-The integral is evaluated for all temperatures at once, in numpy: the
-substitution ``E = E0 + s^2`` removes the square-root behaviour at threshold;
-two levels of uniform search grids find the window where the log-integrand is
-within ``exp(-50)`` of its peak and a third locates the peak; the window is
-split at the peak and at the barrier top, and each piece gets composite
-Gauss-Legendre panels that halve in width towards both of its ends (so that
-the sharp rise of ``P`` at the top of a broad barrier is resolved); the sum is
-taken with log-sum-exp. The result agrees with adaptive quadrature
-(``scipy.integrate.quad``) to better than 1e-9 relative (see
+The integral is evaluated for all temperatures at once, in numpy, after the
+substitution ``E = E0 + s^2`` that removes the square-root behaviour at threshold.
+:func:`eckart_log` computes P(E) once per barrier, on one grid of Gauss-Legendre
+panels shared by all the temperatures of the call (panels no wider than a few of
+the smallest RT and, near the top, than h c nu / 2 pi; wider above the top where
+only hotter temperatures count); each temperature is then a weighted log-sum-exp
+over that grid. :func:`log_thermal_quadrature` (for rows that each have their own
+barrier, as the uncertainty samples do) finds each row's window with two levels
+of uniform search grids and a third for the peak, splits it at the peak and at the
+barrier top, and gives each piece composite Gauss-Legendre panels that halve in
+width towards both ends. Both are tuned to agree with adaptive quadrature
+(``scipy.integrate.quad``) to 1e-8 relative, the accuracy the tests pin (see
 tests/physics/test_tunnelling.py and benchmarks/bench_tunnelling.py).
 """
 
@@ -104,12 +107,14 @@ from tstrate.units import CM1_J, N_A, R
 MODELS: tuple[str, ...] = TUNNELLING_MODELS
 
 # Quadrature layout of the Eckart thermal average (see module docstring).
-_SEARCH_POINTS = 65      # points per search level
+# Tuned to about 5e-9 against adaptive quadrature (worst of 60 random barriers, 100-2000 K) for a
+# 1e-8 target (tests/physics/test_tunnelling.py); it was 6e-12 with 675 evaluations per temperature.
+_SEARCH_POINTS = 33      # points per search level
 _SEARCH_LEVELS = 2       # refinements of the window
 _WINDOW_LOG_DROP = 50.0  # window = where log-integrand > peak - this
 _UPPER_RT = 60.0         # integrate up to max(V1, E0) + this * RT
-_GRADING_LEVELS = 10     # panels halve this many times towards each end of a sub-interval
-_GL_NODES = 8            # Gauss-Legendre nodes per panel
+_GRADING_LEVELS = 7      # panels halve this many times towards each end of a sub-interval
+_GL_NODES = 6            # Gauss-Legendre nodes per panel
 
 
 # --------------------------------------------------------------------------
@@ -593,15 +598,99 @@ def log_thermal_quadrature(log_integrand, beta: np.ndarray, top, V1, E0) -> np.n
     return logsumexp(log_integrand(s) + log_w, axis=1)
 
 
+#: Shared energy grid of :func:`eckart_log` (see :func:`_shared_grid`): Gauss-Legendre nodes per
+#: panel, and the widest panel in units of the smallest k_B T of the call and of h c nu / 2 pi.
+_SHARED_GL_NODES = 6
+_SHARED_PANEL_RT = 5.0
+_SHARED_PANEL_TOP = 2.0
+#: threshold panels graded towards E0 (the sqrt(E - E0) rise of P at a threshold)
+_SHARED_THRESHOLD_LEVELS = 4
+#: above the top a temperature counts while E - V1 is within this many of its RT
+_SHARED_TAIL_RT = 25.0
+
+
+@functools.lru_cache(maxsize=None)
+def _gauss_legendre(n: int) -> tuple[np.ndarray, np.ndarray]:
+    return np.polynomial.legendre.leggauss(n)
+
+
+def _panel_edges(a: float, b: float, width) -> list[float]:
+    """Edges from ``a`` to ``b`` with panels no wider than ``width(E)`` at their lower edge."""
+    edges = [a]
+    e = a
+    while e < b:
+        e = min(b, e + max(width(e), 1e-12 * max(abs(b), 1.0)))
+        edges.append(e)
+    return edges
+
+
+def _shared_grid(beta: np.ndarray, barrier_energy: float, V1: float, E0: float):
+    """Energies [J/mol] (measured from the reactants), s = sqrt(E - E0) and log weights (in s) of one
+    Gauss-Legendre grid that serves every temperature of ``beta`` [mol/J].
+
+    Panels in E run from the floor ``E0`` to ``max(V1, E0) + 60 RT_max``: no wider than
+    ``_SHARED_PANEL_RT`` times the smallest RT below the top and near it also no wider than
+    ``_SHARED_PANEL_TOP`` h c nu / 2 pi (the scale on which P rises at the top); above the top
+    they widen with E - V1, since a temperature counts there only while E - V1 is within about
+    40 of its RT. The first panel at the floor is split in halves towards it. The nodes are placed
+    in s, where the integrand 2 s P(E0 + s^2) exp(-beta E) is smooth at a threshold.
+    """
+    rt_min = 1.0 / float(np.max(beta))
+    rt_max = 1.0 / float(np.min(beta))
+    top = max(V1, E0)
+    hi = top + _UPPER_RT * rt_max
+    d = barrier_energy / (2.0 * math.pi)
+    w_low = _SHARED_PANEL_RT * rt_min
+
+    def width(e):
+        w = w_low
+        near = abs(e - V1) < 20.0 * d
+        if near:
+            w = min(w, _SHARED_PANEL_TOP * d * max(1.0, abs(e - V1) / (4.0 * d)))
+        if e > V1 + 20.0 * d:
+            w = max(w, _SHARED_PANEL_RT * (e - V1) / _SHARED_TAIL_RT)
+        return w
+
+    edges = _panel_edges(E0, hi, width)
+    if len(edges) >= 2 and _SHARED_THRESHOLD_LEVELS:      # grade the first panel towards the floor
+        first = edges[1] - edges[0]
+        grade = [E0 + first * 0.5 ** k for k in range(_SHARED_THRESHOLD_LEVELS, 0, -1)]
+        edges = [E0] + grade + edges[1:]
+    s_edges = np.sqrt(np.maximum(np.asarray(edges) - E0, 0.0))
+    x, w = _gauss_legendre(_SHARED_GL_NODES)
+    h = 0.5 * np.diff(s_edges)
+    mid = 0.5 * (s_edges[:-1] + s_edges[1:])
+    s = (mid[:, None] + h[:, None] * x[None, :]).ravel()
+    wt = (h[:, None] * w[None, :]).ravel()
+    return E0 + s * s, s, np.log(wt)
+
+
 def eckart_log(temperature_K, imag_freq_cm1, V1, V2, energy_floor_J_per_mol=None) -> np.ndarray:
-    """Natural log of :func:`eckart` (never overflows)."""
+    """Natural log of :func:`eckart` (never overflows).
+
+    P(E) is computed once, on one energy grid shared by all the temperatures of the call
+    (:func:`_shared_grid`); each temperature is then one weighted log-sum over that grid. The
+    result agrees with adaptive quadrature (``scipy.integrate.quad``) to about 1e-9 relative
+    (tests/physics/test_tunnelling.py pins 1e-8).
+    """
     T = _temperatures(temperature_K)
     nu = _imag_freq(imag_freq_cm1)
     V1 = _barrier(V1, "forward_barrier", strictly_positive=True)
     V2 = _barrier(V2, "reverse_barrier", strictly_positive=True)
     E0 = _floor(energy_floor_J_per_mol, V1, V2)
     beta = 1.0 / (R * T.ravel())
-    return _eckart_log_kappa(beta, _barrier_energy(nu), V1, V2, E0).reshape(T.shape)
+    be = _barrier_energy(nu)
+    E, s, log_w = _shared_grid(beta, be, V1, E0)
+    A = V1 - V2
+    log_p = _eckart_log_p(E, (E0 - A) + s * s, V1, V2, be)
+    with np.errstate(divide="ignore"):
+        base = log_p + np.log(2.0 * s) + log_w                 # P(E) 2 s w, once per channel
+    live = np.isfinite(base)
+    base, E = base[live], E[live]
+    g = base[None, :] - beta[:, None] * (E[None, :] - V1)
+    top = np.max(g, axis=1, keepdims=True)
+    out = top[:, 0] + np.log(np.sum(np.exp(g - top), axis=1)) + np.log(beta)
+    return out.reshape(T.shape)
 
 
 def eckart(temperature_K, imag_freq_cm1, V1, V2, energy_floor_J_per_mol=None) -> np.ndarray:

@@ -75,7 +75,7 @@ from tstrate.physics.falloff import strong_collision_falloff, thermal_distributi
 from tstrate.physics.rotors import rotor_model
 from tstrate.physics.rrkm import ExternalRotation, MicrocanonicalRate, microcanonical_rate
 from tstrate.physics.states import (CM1_J_PER_MOL, GRAIN_FRACTION_OF_LOWEST, Rotor, StateCounts,
-                                    convolve_counts, count_states)
+                                    count_states)
 from tstrate.units import C, H, K_B, R
 from tstrate.units import number_density_m3 as ideal_gas_number_density_m3
 
@@ -172,22 +172,12 @@ class UnimolecularModel:
     external_rotation: str = "adiabatic"
 
 
-def _electronic_counts(species: Species, n: int, grain_J_per_mol: float) -> np.ndarray:
-    out = np.zeros(n)
-    for level in species.levels:
-        i = int(round(level.energy_cm1 * CM1_J_PER_MOL / grain_J_per_mol))
-        if i < n:
-            out[i] += level.degeneracy
-    return out
-
-
 def _counts(species: Species, freqs: np.ndarray, e_max: float, grain_cm1: float,
             rotors: tuple[Rotor, ...]) -> StateCounts:
-    sc = count_states(freqs, e_max, grain_cm1=grain_cm1, rotors=rotors, refine=False)
-    elec = _electronic_counts(species, sc.n_grains, sc.grain_J_per_mol)
-    if elec[0] == 1.0 and not np.any(elec[1:]):
-        return sc
-    return StateCounts(sc.grain_J_per_mol, convolve_counts(sc.counts, elec))
+    """Vibrational, rotor and electronic-level counts of ``species`` on the grain (the levels as
+    shifted copies in the starting array of the Beyer-Swinehart pass)."""
+    levels = [(level.energy_cm1 * CM1_J_PER_MOL, level.degeneracy) for level in species.levels]
+    return count_states(freqs, e_max, grain_cm1=grain_cm1, rotors=rotors, levels=levels, refine=False)
 
 
 def _ensemble_counts(reac: Species, freqs: np.ndarray, e_max: float, grain_cm1: float,
@@ -515,15 +505,8 @@ def falloff_on_grid(model: UnimolecularModel, settings: FalloffSettings, bath: c
 
     # overall rotation the same way in both limits: J-resolved thresholds of the adiabatic 2-D rotor
     shift = 1.0 - 1.0 / model.rate.centrifugal_factor
-    fo = strong_collision_falloff(model.rate, t, m, collision_rate_m3_s=z, collision_efficiency=eff.beta,
-                                        threshold_shift=shift)
-    k_inf, k0 = fo.high_pressure_per_s, fo.low_pressure_m3_s
-
     # a common [M] grid spanning the study's number densities, for the Troe fit
     m_fit = _log_grid(float(m.min()), float(m.max()), 4, 9)
-    fo_fit = strong_collision_falloff(model.rate, t, m_fit, collision_rate_m3_s=z, collision_efficiency=eff.beta,
-                                        threshold_shift=shift)
-
     # dense curve for plots, two decades beyond the study's range on each side
     if pressures is not None:
         p_curve = _log_grid(float(pressures.min()) / 100, float(pressures.max()) * 100, 8, 33)
@@ -532,15 +515,22 @@ def falloff_on_grid(model: UnimolecularModel, settings: FalloffSettings, bath: c
         m_line = _log_grid(float(m.min()) / 100, float(m.max()) * 100, 8, 33)
         p_curve = np.full(m_line.size, np.nan)
         m_curve = np.broadcast_to(m_line, (t.size, m_line.size)).copy()
-    fo_curve = strong_collision_falloff(model.rate, t, m_curve, collision_rate_m3_s=z,
-                                        collision_efficiency=eff.beta,
-                                        threshold_shift=shift)
+    # one falloff sum for the study's grid, the fit grid and the curve (k(E, E_r) built once)
+    m_all = np.concatenate([np.broadcast_to(m, (t.size, m.shape[-1])),
+                            np.broadcast_to(m_fit, (t.size, m_fit.size)), m_curve], axis=1)
+    fo = strong_collision_falloff(model.rate, t, m_all, collision_rate_m3_s=z, collision_efficiency=eff.beta,
+                                  threshold_shift=shift)
+    k_inf, k0 = fo.high_pressure_per_s, fo.low_pressure_m3_s
+    n_s, n_f = m.shape[-1], m_fit.size
+    rate_study = fo.rate_per_s[:, :n_s]
+    rate_fit = fo.rate_per_s[:, n_s:n_s + n_f]
+    rate_curve = fo.rate_per_s[:, n_s + n_f:]
 
     return ChannelFalloffCurves(
         model=model, settings=settings, bath=bath, temperature_K=t, pressure_Pa=pressures,
-        number_density_m3=m, rate_constant_per_s=fo.rate_per_s, k_high_pressure_per_s=k_inf,
-        k_low_pressure_m3_per_s=k0, troe_fit_number_density_m3=m_fit, troe_fit_rate_per_s=fo_fit.rate_per_s,
+        number_density_m3=m, rate_constant_per_s=rate_study, k_high_pressure_per_s=k_inf,
+        k_low_pressure_m3_per_s=k0, troe_fit_number_density_m3=m_fit, troe_fit_rate_per_s=rate_fit,
         canonical_tst_per_s=(np.full(t.shape, np.nan) if canonical_tst_per_s is None
                              else np.asarray(canonical_tst_per_s, dtype=float)),
         collision_rate_m3_per_s=z, efficiency=eff, curve_pressure_Pa=p_curve, curve_number_density_m3=m_curve,
-        curve_rate_per_s=fo_curve.rate_per_s, warnings=tuple(warnings))
+        curve_rate_per_s=rate_curve, warnings=tuple(warnings))
