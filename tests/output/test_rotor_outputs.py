@@ -40,7 +40,7 @@ def test_run_writes_rotor_records_report_and_plots(tmp_path):
     assert rotors[1]["fit_rms_kJ_per_mol"] < 1e-6 and len(rotors[1]["points_deg"]) == 12
     assert rotors[0]["levels_cm1"][0] == 0.0 and rotors[0]["zpe_cm1"] > 0
     names = {p.name for p in (out / "plots").iterdir()}
-    assert {"rotor_H2CO3_C1-O3.png", "rotor_H2CO3_C1-O4.svg"} <= names
+    assert {"rotor_H2CO3_C1-O3.png", "rotor_H2CO3_C1-O4.png"} <= names
     assert (out / "plots" / "rotor_H2CO3_C1-O3.png").read_bytes().startswith(PNG_MAGIC)
     report = (out / "report.md").read_text()
     assert "Hindered rotors" in report and "rotor_H2CO3_C1-O4.png" in report

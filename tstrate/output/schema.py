@@ -700,6 +700,7 @@ _record("isotopes", "Isotopologues of a study", [
     ("positions[].paths[].factors.vibrational_zpe", ONE, "zero-point term"),
     ("positions[].paths[].factors.vibrational_excited", ONE, "excited-state vibrational term"),
     ("positions[].paths[].factors.tunnelling", ONE, "tunnelling term"),
+    ("positions[].paths[].factors.conformers", ONE, "conformer-ensemble term (1 without ensembles)"),
     ("positions[].paths[].imaginary_frequency_ratio", ONE, "nu_light / nu_heavy of the imaginary mode"),
     ("fractionation", LIST, "equilibrium fractionation of the study's species pairs"),
     ("fractionation[].isotope", TEXT, "substitution label"),
