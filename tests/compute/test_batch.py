@@ -175,23 +175,45 @@ def test_uncertainty_in_sample_blocks_equals_the_serial_run(client, tmp_path, ca
     assert code == 0
     assert (folder / "fo.json").read_text() == serial
     doc = json.loads((folder / "summary.json").read_text())
-    assert doc["tasks"][0]["summary"]["samples"] == 600
+    assert doc["tasks"][0]["summary"]["n_samples"] == 600
     assert doc["tasks"][0]["summary"]["channels"][0]["f298"] > 1.0   # a real band, not a line
 
 
-def test_refine_batch_equals_serial_refine(client, tmp_path):
+def test_mixed_batch_refine_equals_serial_and_files_follow_the_output_schema(client, tmp_path):
+    """One batch of every kind: a study run, an uncertainty run, a refinement (HF/STO-3G of
+    water, against a serial `tstrate compute refine`) and a failing study; the summary and
+    the task records hold only keys of the output schema, and between them every key of it."""
     pytest.importorskip("pyscf")
+    import csv
+
+    from tstrate.io.species import read_species
+    from tstrate.output import schema
+
     src = tmp_path / "h2o.toml"
     shutil.copy(DATA / "toy" / "h2o.toml", src)
     serial = tmp_path / "serial.toml"
     assert main(["compute", "refine", str(src), "--level", "HF/sto-3g", "--no-cache", "-o", str(serial),
                  "--quiet"]) == 0
+    shutil.copytree(DATA / "falloff", tmp_path / "fo")
+    study = tmp_path / "fo" / "study.toml"
+    study.write_text(study.read_text() + UNCERTAIN.replace("samples = 600", "samples = 250"))
     folder = tmp_path / "many"
-    tasks = batch.refine_tasks([src], folder, level="HF/sto-3g", options={"use_cache": False})
-    (rec,) = batch.run_batch(tasks, client, folder)
-    assert rec.status == "done", rec.error
-    from tstrate.io.species import read_species
+    tasks = (batch.study_tasks([DATA / "toy" / "study.toml", tmp_path / "none.toml"], folder)
+             + batch.study_tasks([study], folder, kind="uncertainty")
+             + batch.refine_tasks([src], folder, level="HF/sto-3g", options={"use_cache": False}))
+    records = batch.run_batch(tasks, client, folder)
+    assert [r.status for r in records] == ["done", "failed", "done", "done"], [r.error for r in records]
+    assert read_species(folder / "h2o.toml").energy_J_per_mol == read_species(serial).energy_J_per_mol
+    assert records[3].summary["energy_kJ_per_mol"] == read_species(serial).energy_J_per_mol / 1e3
+    batch.write_summary(records, folder)
 
-    a, b = read_species(serial), read_species(folder / "h2o.toml")
-    assert a.energy_J_per_mol == b.energy_J_per_mol
-    assert rec.summary["energy_hartree"] == pytest.approx(a.energy_J_per_mol / 2625499.639479, rel=1e-9)
+    seen: set = set()
+    problems = schema.check_json(schema.DOCUMENTS["tstrate many: summary.json"],
+                                 json.loads((folder / "summary.json").read_text()), seen)
+    for path in (folder / "tasks").glob("*.json"):
+        problems += schema.check_json(schema.DOCUMENTS["tstrate many: tasks/<name>.json"],
+                                      json.loads(path.read_text()), seen)
+    with open(folder / "summary.csv", newline="") as f:
+        problems += schema.check_csv(schema.DOCUMENTS["tstrate many: summary.csv"], next(csv.reader(f)), seen)
+    assert problems == []
+    assert sorted(schema.entries_of(schema.BATCH_DOCUMENTS) - seen) == []

@@ -47,7 +47,7 @@ import os
 import time
 import traceback
 from contextlib import contextmanager
-from dataclasses import asdict, dataclass, field
+from dataclasses import dataclass, field
 from pathlib import Path
 from typing import Callable, Iterable
 
@@ -104,7 +104,15 @@ class TaskRecord:
     summary: dict = field(default_factory=dict)
 
     def to_json(self) -> dict:
-        return asdict(self)
+        """The record as tasks/<name>.json and summary.json hold it (units in the keys)."""
+        return {"name": self.name, "kind": self.kind, "status": self.status, "source": self.source,
+                "output": self.output, "input_key_sha256": self.key, "time_s": self.seconds, "error": self.error,
+                "summary": self.summary}
+
+    @classmethod
+    def from_json(cls, doc: dict) -> "TaskRecord":
+        return cls(doc["name"], doc["kind"], doc["source"], doc["status"], doc["input_key_sha256"], doc["output"],
+                   doc.get("time_s"), doc.get("error"), doc.get("summary") or {})
 
 
 def package_versions() -> dict[str, str]:
@@ -312,7 +320,7 @@ def study_summary(result) -> dict:
                          "T_min_K": float(T[0]), "T_max_K": float(T[-1]),
                          "rate_constant_at_T_min": float(k[0]), "rate_constant_at_T_max": float(k[-1]),
                          "rate_constant_unit": unit})
-    return {"title": result.study.title, "channels": channels, "warnings": len(result.warnings)}
+    return {"title": result.study.title, "channels": channels, "n_warnings": len(result.warnings)}
 
 
 def _do_run(task: Task) -> dict:
@@ -322,7 +330,7 @@ def _do_run(task: Task) -> dict:
 
     result = compute_study(read_study(task.source), low_modes=_low_modes(task.options))
     files = write_outputs(result, task.output, force=True)
-    return study_summary(result) | {"files": len(files)}
+    return study_summary(result) | {"n_files": len(files)}
 
 
 def _do_refine(task: Task) -> dict:
@@ -336,8 +344,8 @@ def _do_refine(task: Task) -> dict:
                          command="tstrate many refine", threads=1)
     write_species(res.species, task.output, overwrite=True)
     text = level.label + (f" // {glevel.label}" if glevel else (f" // {level.label}" if options.optimise else ""))
-    return {"species": res.species.name, "level": text, "energy_hartree": float(res.energy_hartree),
-            "from_cache": bool(res.from_cache)}
+    return {"species": res.species.name, "level": text,
+            "energy_kJ_per_mol": float(res.species.energy_J_per_mol) / 1e3, "from_cache": bool(res.from_cache)}
 
 
 def execute_task(task: Task) -> TaskRecord:
@@ -445,7 +453,7 @@ def _unc_finish(result, task: Task, settings, started: float, *blocks) -> TaskRe
         doc = {"study": result.study.file, "title": result.study.title,
                **uncertainty_record(unc, result.study.conditions.rate_units)}
         atomic_write_text(task.output, json.dumps(to_jsonable(doc), indent=2) + "\n")
-        summary = {"title": result.study.title, "samples": int(unc.samples),
+        summary = {"title": result.study.title, "n_samples": int(unc.samples),
                    "channels": [{"name": c.name, "f298": float(c.f298), "g_K": float(c.g_K),
                                  "matters_most": c.k.ranking[0].factor if c.k.ranking else None}
                                 for c in unc.channels]}
@@ -527,11 +535,14 @@ def finished_record(task: Task, folder) -> TaskRecord | None:
         return None
     out = Path(task.output)
     present = out.is_dir() if task.kind == "run" else out.is_file()
-    if doc.get("status") != "done" or doc.get("key") != task.key or not present:
+    if doc.get("status") != "done" or doc.get("input_key_sha256") != task.key or not present:
         return None
-    fields = {k: doc.get(k) for k in TaskRecord.__dataclass_fields__}
-    fields["summary"] = fields["summary"] or {}
-    return TaskRecord(**(fields | {"status": "skipped"}))
+    try:
+        old = TaskRecord.from_json(doc)
+    except (KeyError, TypeError):
+        return None
+    return TaskRecord(old.name, old.kind, old.source, "skipped", old.key, old.output, old.seconds, old.error,
+                      old.summary)
 
 
 def _write_record(rec: TaskRecord, folder) -> None:
@@ -593,7 +604,7 @@ def run_batch(tasks, client, folder, *, resume: bool = True,
 # ---------------------------------------------------------------- the summary
 SUMMARY_COLUMNS = ("task", "kind", "status", "source", "output", "time [s]", "error", "title", "channel",
                    "mechanism form", "T min [K]", "T max [K]", "k at T min", "k at T max", "k unit",
-                   "f298 [1]", "g [K]", "matters most", "species", "level", "energy [hartree]")
+                   "f298 [1]", "g [K]", "matters most", "species", "level", "energy [kJ mol-1]")
 
 
 def summary_rows(records: Iterable[TaskRecord]) -> list[list]:
@@ -605,7 +616,7 @@ def summary_rows(records: Iterable[TaskRecord]) -> list[list]:
         s = r.summary or {}
         blank = [""] * (len(SUMMARY_COLUMNS) - len(base))
         if r.kind == "refine" and s:
-            rows.append(base + blank[:-3] + [s.get("species"), s.get("level"), s.get("energy_hartree")])
+            rows.append(base + blank[:-3] + [s.get("species"), s.get("level"), s.get("energy_kJ_per_mol")])
             continue
         chans = s.get("channels") or []
         if not chans:
@@ -627,9 +638,7 @@ def summary_document(records: list[TaskRecord]) -> dict:
     """summary.json: counts and every task record (units in the keys)."""
     counts = {s: sum(1 for r in records if r.status == s) for s in ("done", "skipped", "failed")}
     return {"tasks_total": len(records), **{f"tasks_{k}": v for k, v in counts.items()},
-            "tasks": [{"name": r.name, "kind": r.kind, "status": r.status, "source": r.source,
-                       "output": r.output, "input_key_sha256": r.key, "time_s": r.seconds, "error": r.error,
-                       "summary": r.summary} for r in records]}
+            "tasks": [r.to_json() for r in records]}
 
 
 def write_summary(records: list[TaskRecord], folder) -> list[Path]:
