@@ -144,6 +144,8 @@ def test_task_key_covers_options_and_every_input_file(studies):
     assert b.key != a.key
     assert batch.unique_names(["x/a/study.toml", "y/a/study.toml", "z/b.toml", "w/a.toml"]) == \
         ["a", "a-2", "b", "a-3"]
+    # the batch folder's own entries are never task names
+    assert batch.unique_names(["tasks.toml", "x/summary/study.toml"]) == ["tasks-2", "summary-2"]
 
 
 UNCERTAIN = """
@@ -170,8 +172,9 @@ def test_uncertainty_in_sample_blocks_equals_the_serial_run(client, tmp_path, ca
     # blocks of 250, 250 and 100 samples, each its own task
     settings, ranges = batch._uncertainty_plan(batch.study_tasks([study], folder, kind="uncertainty")[0])
     assert ranges == [(0, 250), (250, 500), (500, 600)] and settings.samples == 600
+    client.write_scheduler_file(str(tmp_path / "scheduler.json"))   # this time through a scheduler file
     code = main(["many", "uncertainty", str(study), "-o", str(folder), "--samples-per-task", "1",
-                 "--scheduler", client.scheduler.address, "--quiet"])
+                 "--scheduler-file", str(tmp_path / "scheduler.json"), "--quiet"])
     assert code == 0
     assert (folder / "fo.json").read_text() == serial
     doc = json.loads((folder / "summary.json").read_text())

@@ -40,6 +40,8 @@ def _common(p) -> None:
                    help="folder of the outputs, task records and summary (default %(default)s)")
     p.add_argument("--scheduler", metavar="ADDRESS",
                    help="address of a running Dask scheduler (tcp://host:8786) instead of a local cluster")
+    p.add_argument("--scheduler-file", metavar="FILE",
+                   help="the JSON file a running scheduler wrote (dask scheduler --scheduler-file FILE)")
     p.add_argument("--workers", type=int, metavar="N",
                    help="worker processes of the local cluster (default: the number of cores)")
     p.add_argument("--redo", action="store_true", help="run every task, also those found finished")
@@ -144,6 +146,8 @@ def run(args) -> int:
     folder = Path(args.output_dir)
     if folder.exists() and not folder.is_dir():
         raise InputError("exists and is not a folder", file=str(folder), field="--output-dir")
+    if args.scheduler and args.scheduler_file:
+        raise InputError("give --scheduler or --scheduler-file, not both", field="--scheduler")
     if args.workers is not None and args.workers < 1:
         raise InputError(f"{args.workers} workers; give at least 1", field="--workers")
     tasks = _tasks(args)
@@ -172,7 +176,7 @@ def run(args) -> int:
         for name in ("distributed", "dask"):
             logging.getLogger(name).setLevel(logging.ERROR)
     try:
-        with batch.dask_client(args.scheduler, workers=args.workers) as client:
+        with batch.dask_client(args.scheduler, workers=args.workers, scheduler_file=args.scheduler_file) as client:
             records = batch.run_batch(tasks, client, folder, resume=not args.redo, on_done=done)
     finally:
         if bar is not None:

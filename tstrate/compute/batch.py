@@ -63,6 +63,8 @@ WORKER_ENV = {"OMP_NUM_THREADS": "1", "MKL_NUM_THREADS": "1", "OPENBLAS_NUM_THRE
 DEFAULT_SAMPLES_PER_TASK = 250
 #: the folder of the task records inside a batch folder
 RECORDS = "tasks"
+#: names no task takes (the batch folder's own entries: tasks/, summary.json, summary.csv)
+RESERVED_NAMES = (RECORDS, "summary")
 
 
 # ---------------------------------------------------------------- tasks and their keys
@@ -148,8 +150,9 @@ def task_key(kind: str, inputs: Iterable[str], options: dict) -> str:
 
 def unique_names(paths: Iterable[str | os.PathLike]) -> list[str]:
     """A name per path, in order: the file stem (a ``study.toml``'s folder name), with ``-2``,
-    ``-3``, ... after names already taken (as ``tstrate run`` names its default folders)."""
-    out, taken = [], set()
+    ``-3``, ... after names already taken (as ``tstrate run`` names its default folders) and
+    after :data:`RESERVED_NAMES`, the batch folder's own entries."""
+    out, taken = [], set(RESERVED_NAMES)
     for p in paths:
         p = Path(p)
         stem = p.stem
@@ -286,14 +289,18 @@ def one_line(exc: BaseException) -> str:
     return text
 
 
-def _limit_threads():
-    """One BLAS/OpenMP thread in this worker (a LocalCluster sets the environment already; this
-    also covers workers started elsewhere, when threadpoolctl is installed)."""
+@contextmanager
+def _one_thread():
+    """One BLAS/OpenMP thread in this worker while a task runs. A LocalCluster sets the
+    environment already; this also covers workers started elsewhere, when threadpoolctl is
+    installed (without it, start such workers with OMP_NUM_THREADS=1)."""
     try:
         from threadpoolctl import threadpool_limits
-    except ImportError:  # pragma: no cover - optional
-        return None
-    return threadpool_limits(1)
+    except ImportError:
+        yield
+        return
+    with threadpool_limits(1):
+        yield
 
 
 def _low_modes(options):
@@ -351,20 +358,17 @@ def _do_refine(task: Task) -> dict:
 def execute_task(task: Task) -> TaskRecord:
     """Run one task here (on a worker, or in this process) and return its record; a failure is
     caught and recorded as one line. The output is written atomically, then the record."""
-    limits = _limit_threads()
     start = time.perf_counter()
     try:
-        if task.kind == "run":
-            summary = _do_run(task)
-        elif task.kind == "refine":
-            summary = _do_refine(task)
-        else:
-            raise ValueError(f"execute_task runs 'run' and 'refine' tasks, not {task.kind!r}")
+        with _one_thread():
+            if task.kind == "run":
+                summary = _do_run(task)
+            elif task.kind == "refine":
+                summary = _do_refine(task)
+            else:
+                raise ValueError(f"execute_task runs 'run' and 'refine' tasks, not {task.kind!r}")
     except Exception as exc:  # one failing task must not lose the others
         return _record(task, "failed", time.perf_counter() - start, error=one_line(exc))
-    finally:
-        if limits is not None:
-            limits.unregister() if hasattr(limits, "unregister") else None
     return _record(task, "done", time.perf_counter() - start, summary=summary)
 
 
@@ -405,14 +409,11 @@ def deterministic_for_uncertainty(study_path, options: dict):
 
 
 def _unc_deterministic(task: Task):
-    limits = _limit_threads()
     try:
-        return deterministic_for_uncertainty(task.source, task.options)
+        with _one_thread():
+            return deterministic_for_uncertainty(task.source, task.options)
     except Exception as exc:
         return _Failure(one_line(exc))
-    finally:
-        if limits is not None and hasattr(limits, "unregister"):
-            limits.unregister()
 
 
 @dataclass(frozen=True)
@@ -426,15 +427,12 @@ def _unc_block(result, settings, start: int, stop: int):
         return result
     from tstrate.study.uncertainty import evaluate_sample_block, uncertainty_setup
 
-    limits = _limit_threads()
     try:
-        _, space, U = uncertainty_setup(result.study, settings)
-        return evaluate_sample_block(result, space, U[start:stop])
+        with _one_thread():
+            _, space, U = uncertainty_setup(result.study, settings)
+            return evaluate_sample_block(result, space, U[start:stop])
     except Exception as exc:
         return _Failure(one_line(exc))
-    finally:
-        if limits is not None and hasattr(limits, "unregister"):
-            limits.unregister()
 
 
 def _unc_finish(result, task: Task, settings, started: float, *blocks) -> TaskRecord:
@@ -447,21 +445,18 @@ def _unc_finish(result, task: Task, settings, started: float, *blocks) -> TaskRe
     from tstrate.output.uncertainty_records import uncertainty_record
     from tstrate.study.uncertainty import combine_sample_blocks, study_uncertainty
 
-    limits = _limit_threads()
     try:
-        unc = study_uncertainty(result, settings, sampled=combine_sample_blocks(blocks))
-        doc = {"study": result.study.file, "title": result.study.title,
-               **uncertainty_record(unc, result.study.conditions.rate_units)}
-        atomic_write_text(task.output, json.dumps(to_jsonable(doc), indent=2) + "\n")
-        summary = {"title": result.study.title, "n_samples": int(unc.samples),
-                   "channels": [{"name": c.name, "f298": float(c.f298), "g_K": float(c.g_K),
-                                 "matters_most": c.k.ranking[0].factor if c.k.ranking else None}
-                                for c in unc.channels]}
+        with _one_thread():
+            unc = study_uncertainty(result, settings, sampled=combine_sample_blocks(blocks))
+            doc = {"study": result.study.file, "title": result.study.title,
+                   **uncertainty_record(unc, result.study.conditions.rate_units)}
+            atomic_write_text(task.output, json.dumps(to_jsonable(doc), indent=2) + "\n")
+            summary = {"title": result.study.title, "n_samples": int(unc.samples),
+                       "channels": [{"name": c.name, "f298": float(c.f298), "g_K": float(c.g_K),
+                                     "matters_most": c.k.ranking[0].factor if c.k.ranking else None}
+                                    for c in unc.channels]}
     except Exception as exc:
         return _record(task, "failed", time.time() - started, error=one_line(exc))
-    finally:
-        if limits is not None and hasattr(limits, "unregister"):
-            limits.unregister()
     return _record(task, "done", time.time() - started, summary=summary)
 
 
@@ -492,21 +487,35 @@ def _submit(client, task: Task):
 
 # ---------------------------------------------------------------- the cluster
 @contextmanager
-def dask_client(scheduler_address: str | None = None, *, workers: int | None = None):
-    """A ``dask.distributed.Client``: connected to ``scheduler_address`` (``tcp://host:8786``)
-    when given, else to a new ``LocalCluster`` of ``workers`` processes (default: the cores),
-    one thread each, one BLAS/OpenMP thread each (:data:`WORKER_ENV`). Both are closed on exit."""
+def dask_client(scheduler_address: str | None = None, *, workers: int | None = None,
+                scheduler_file: str | None = None, cluster=None):
+    """A ``dask.distributed.Client``: connected to ``scheduler_address`` (``tcp://host:8786``),
+    to the scheduler described by ``scheduler_file`` (``dask scheduler --scheduler-file``), or
+    to ``cluster`` (e.g. a ``dask_jobqueue.SLURMCluster``) when given; else to a new
+    ``LocalCluster`` of ``workers`` processes (default: the cores), one thread each, one
+    BLAS/OpenMP thread each (:data:`WORKER_ENV`). The client (and a LocalCluster it started)
+    are closed on exit; a given cluster is left running."""
     try:
         from dask.distributed import Client, LocalCluster
     except ImportError:
         raise InputError("the batch engine needs dask.distributed", field="--scheduler",
                          hint="pip install 'tstrate[cluster]' (or dask[distributed])") from None
-    if scheduler_address:
+    if scheduler_address or scheduler_file or cluster is not None:
+        field_name = "--scheduler" if scheduler_address else "--scheduler-file" if scheduler_file else "cluster"
+        where = scheduler_address or scheduler_file or cluster
+        if scheduler_file and not Path(scheduler_file).is_file():  # Client would wait for it forever
+            raise InputError("scheduler file does not exist", file=str(scheduler_file), field="--scheduler-file",
+                             hint="start the scheduler with dask scheduler --scheduler-file FILE first")
         try:
-            client = Client(scheduler_address, timeout="30s")
-        except (OSError, TimeoutError) as exc:
-            raise InputError(f"cannot reach the scheduler {scheduler_address}: {exc}",
-                             field="--scheduler") from None
+            if cluster is not None:
+                client = Client(cluster)
+            elif scheduler_file:
+                client = Client(scheduler_file=str(scheduler_file), timeout="30s")
+            else:
+                client = Client(scheduler_address, timeout="30s")
+        except (OSError, TimeoutError, ValueError) as exc:
+            raise InputError(f"cannot reach the scheduler {where}: {' '.join(str(exc).split())}",
+                             field=field_name) from None
         try:
             yield client
         finally:
@@ -573,6 +582,12 @@ def run_batch(tasks, client, folder, *, resume: bool = True,
         if on_done:
             on_done(rec)
 
+    tasks = list(tasks)
+    names = [t.name for t in tasks]
+    twice = sorted({n for n in names if names.count(n) > 1})
+    if twice:
+        raise InputError(f"two tasks are named {twice[0]!r}; their records would overwrite each other",
+                         file=str(folder), hint="give each task its own name (or run them in separate folders)")
     futures = {}
     for task in tasks:
         if isinstance(task, Unstartable):

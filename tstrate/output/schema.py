@@ -1157,7 +1157,8 @@ _record("batch_task", "One task of a batch (tstrate many)", [
     ("output", TEXT, "the folder (run) or file (refine, uncertainty) written"),
     ("input_key_sha256", TEXT, "SHA-256 of the kind, the options, the package versions and the name and "
                                "SHA-256 of every input file (empty when the inputs could not be read)"),
-    ("time_s", "s", "wall time of the task on its worker (of the run that made it, for a skipped task)"),
+    ("time_s", "s", "wall time of the task on its worker (uncertainty: from its submission to the end of its "
+                    "last step; a skipped task: that of the run that made it)"),
     ("error", TEXT, "one line saying why the task failed, else null"),
     ("summary", OBJ, "per kind; empty for a failed task", "batch_task_summary"),
 ])
