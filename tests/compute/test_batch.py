@@ -161,7 +161,7 @@ frequency_scale_percent = 2
 """
 
 
-def test_uncertainty_in_sample_blocks_equals_the_serial_run(client, tmp_path, capsys):
+def test_uncertainty_in_sample_blocks_equals_the_serial_run(client, tmp_path, capsys, monkeypatch):
     shutil.copytree(DATA / "falloff", tmp_path / "fo")
     study = tmp_path / "fo" / "study.toml"
     study.write_text(study.read_text() + UNCERTAIN)
@@ -173,9 +173,14 @@ def test_uncertainty_in_sample_blocks_equals_the_serial_run(client, tmp_path, ca
     settings, ranges = batch._uncertainty_plan(batch.study_tasks([study], folder, kind="uncertainty")[0])
     assert ranges == [(0, 250), (250, 500), (500, 600)] and settings.samples == 600
     client.write_scheduler_file(str(tmp_path / "scheduler.json"))   # this time through a scheduler file
+    import tstrate.cli.common
+
+    monkeypatch.setattr(tstrate.cli.common, "show_progress", lambda args: True)   # as on a terminal
     code = main(["many", "uncertainty", str(study), "-o", str(folder), "--samples-per-task", "1",
-                 "--scheduler-file", str(tmp_path / "scheduler.json"), "--quiet"])
+                 "--scheduler-file", str(tmp_path / "scheduler.json")])
     assert code == 0
+    err = capsys.readouterr().err
+    assert "tstrate many uncertainty" in err and "1/1" in err   # the bar, one step per study
     assert (folder / "fo.json").read_text() == serial
     doc = json.loads((folder / "summary.json").read_text())
     assert doc["tasks"][0]["summary"]["n_samples"] == 600

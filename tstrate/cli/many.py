@@ -173,8 +173,13 @@ def run(args) -> int:
     if not getattr(args, "verbose", False):  # Dask's own start and stop messages are for --verbose
         import logging
 
-        for name in ("distributed", "dask"):
+        try:
+            import distributed  # noqa: F401  (it sets its loggers' levels when imported)
+        except ImportError:
+            pass
+        for name in [n for n in logging.root.manager.loggerDict if n.split(".")[0] in ("distributed", "dask")]:
             logging.getLogger(name).setLevel(logging.ERROR)
+        logging.getLogger("distributed").setLevel(logging.ERROR)
     try:
         with batch.dask_client(args.scheduler, workers=args.workers, scheduler_file=args.scheduler_file) as client:
             records = batch.run_batch(tasks, client, folder, resume=not args.redo, on_done=done)
