@@ -9,7 +9,11 @@ modules are imported before the clock starts (so it pays no start-up, which favo
 batch is `tstrate many run` through the library - start a LocalCluster of 2 single-threaded
 worker processes, run the N tasks, stop the cluster - and its time includes starting and
 stopping the cluster and the imports in the workers. The ratio printed is reference time over
-batch time, measured in the same run; with --repeats R > 1 both are repeated alternately and
+batch time, measured in the same run. On a machine shared with other work the two cores may
+not both be free: the benchmark also measures the parallel capacity it is given, before and
+after, as 2 x (time of a pure-Python loop alone) / (its time when two processes run it at
+once) - 2.0 on two free cores, 1.0 when the two processes share one core's worth - and
+prints the speed-up beside it; with --repeats R > 1 both are repeated alternately and
 the median ratio is printed with its range. The batch's results.json files are checked to
 equal the serial ones.
 
@@ -37,6 +41,26 @@ def _copies(base: Path, n: int) -> list[Path]:
         shutil.copytree(DEMO, folder, ignore=shutil.ignore_patterns("inputs", "*.sh", "*.md"))
         out.append(folder / "study.toml")
     return out
+
+
+def _spin(n: int = 4_000_000) -> float:
+    """Wall time [s] of a pure-Python loop (no numpy: no BLAS threads involved)."""
+    t0 = time.perf_counter()
+    s = 0
+    for i in range(n):
+        s += i * i
+    return time.perf_counter() - t0
+
+
+def parallel_capacity() -> float:
+    """2 x (loop alone) / (mean of the loop in two processes at once): the cores this run gets."""
+    import multiprocessing as mp
+
+    with mp.get_context("spawn").Pool(2) as pool:
+        pool.map(_spin, [10_000] * 2)                      # start both processes first
+        alone = min(pool.apply(_spin) for _ in range(3))
+        together = statistics.mean(pool.map(_spin, [4_000_000] * 2))
+    return 2.0 * alone / together
 
 
 def _serial(studies, out: Path) -> float:
@@ -81,6 +105,7 @@ def main(argv=None) -> int:
         tmp = Path(tmp)
         studies = _copies(tmp, args.copies)
         ratios, serial_t, batch_t, tasks_t = [], [], [], []
+        capacity = [parallel_capacity()]
         for rep in range(args.repeats):
             ts = _serial(studies, tmp / "serial")
             tb, tt, records = _batch(studies, tmp / "batch", args.workers)
@@ -92,7 +117,9 @@ def main(argv=None) -> int:
             batch_t.append(tb)
             tasks_t.append(tt)
             ratios.append(ts / tb)
-            print(f"repeat {rep + 1}: serial {ts:.1f} s, batch {tb:.1f} s ({tt:.1f} s of tasks), ratio {ts / tb:.2f}")
+            capacity.append(parallel_capacity())
+            print(f"repeat {rep + 1}: serial {ts:.1f} s, batch {tb:.1f} s ({tt:.1f} s of tasks), ratio {ts / tb:.2f}; "
+                  f"parallel capacity {capacity[-2]:.2f} before, {capacity[-1]:.2f} after")
         same = all(json.loads((tmp / "serial" / s.parent.name / "results.json").read_text())
                    == json.loads((tmp / "batch" / s.parent.name / "results.json").read_text()) for s in studies)
     med = statistics.median(ratios)
@@ -101,6 +128,8 @@ def main(argv=None) -> int:
           f"({statistics.median(tasks_t):.1f} s of tasks)")
     print(f"speed-up {med:.2f}x (range {min(ratios):.2f}-{max(ratios):.2f} over {args.repeats} repeats; "
           f"target {TARGET_RATIO:g}x); batch results.json equal to serial: {'yes' if same else 'NO'}")
+    print(f"parallel capacity given to this run: {min(capacity):.2f}-{max(capacity):.2f} of 2 (2.0: two free "
+          f"cores); speed-up per unit of capacity {med / statistics.median(capacity):.2f} (1.0: no overhead)")
     return 0
 
 
