@@ -29,6 +29,7 @@ SUBCOMMANDS: dict[str, str] = {
     "tunnel": "tstrate.cli.tunnel",
     "isotopes": "tstrate.cli.isotopes",
     "uncertainty": "tstrate.cli.uncertainty",
+    "many": "tstrate.cli.many",
 }
 
 

@@ -97,7 +97,7 @@ happens in one place, `tstrate/output/`.
 - **Units in the names.** Every numeric key carries its unit at the end of its name:
   `_K`, `_kJ_per_mol`, `_J_per_mol_K`, `_cm1` (wavenumbers), `_bar`, `_percent`, `_per_s`,
   `_per_cm3` (number densities, molecule cm-3), `_per_bar`, `_km`, `_A` (angstrom),
-  `_amu_A2`. Where the unit follows the reaction order or the study's `rate_units` (rate
+  `_amu_A2`, `_s` (seconds of wall time). Where the unit follows the reaction order or the study's `rate_units` (rate
   constants, pre-exponential factors, equilibrium constants, Chebyshev coefficients), the
   unit is written in a sibling key ending in `_unit` (`rate_constant` with
   `rate_constant_unit`, `A` with `A_unit`, `Kc` with `Kc_unit`); a few keys share one such
@@ -1471,11 +1471,87 @@ _COMMANDS.append(_cmd("uncertainty", "Uncertainty and sensitivity of every resul
                               ("", OBJ, "the uncertainty record", "uncertainty_results"),
                           ]))
 
+# ---- the batch engine (tstrate many): its summary and task records
+_record("batch_task", "One task of a batch (tstrate many)", [
+    ("name", TEXT, "the task's name: the file stem (a study.toml's folder name), -2, -3 ... when taken"),
+    ("kind", TEXT, "run, refine or uncertainty"),
+    ("status", TEXT, "done, skipped (found finished with the same input key) or failed"),
+    ("source", TEXT, "the study or species file the task starts from"),
+    ("output", TEXT, "the folder (run) or file (refine, uncertainty) written"),
+    ("input_key_sha256", TEXT, "SHA-256 of the kind, the options, the package versions and the name and "
+                               "SHA-256 of every input file (empty when the inputs could not be read)"),
+    ("time_s", "s", "wall time of the task on its worker (uncertainty: from its submission to the end of its "
+                    "last step; a skipped task: that of the run that made it)"),
+    ("error", TEXT, "one line saying why the task failed, else null"),
+    ("summary", OBJ, "per kind; empty for a failed task", "batch_task_summary"),
+])
+_record("batch_task_summary", "The numbers of one task", [
+    ("title", TEXT, "the study's title (run, uncertainty)"),
+    ("channels", LIST, "one entry per channel (run, uncertainty)"),
+    ("channels[].name", TEXT, "the channel"),
+    ("channels[].order", ONE, "reaction order (run)"),
+    ("channels[].mechanism_kind", TEXT, "the form written to mechanism.yaml (run)"),
+    ("channels[].T_min_K", K, "lowest temperature of the channel's grid (run)"),
+    ("channels[].T_max_K", K, "highest temperature (run)"),
+    ("channels[].rate_constant_at_T_min", "@rate_constant_unit", "k at T_min_K, with tunnelling (run)"),
+    ("channels[].rate_constant_at_T_max", "@rate_constant_unit", "k at T_max_K (run)"),
+    ("channels[].rate_constant_unit", TEXT, "unit of the two rate constants"),
+    ("channels[].f298", ONE, "f(298 K) of the evaluation form fitted to f(T) (uncertainty)"),
+    ("channels[].g_K", K, "g of the evaluation form (uncertainty)"),
+    ("channels[].matters_most", TEXT, "the uncertain factor with the largest share (uncertainty)"),
+    ("n_warnings", ONE, "warnings of the run (run)"),
+    ("n_files", ONE, "files written (run)"),
+    ("n_samples", ONE, "samples (uncertainty)"),
+    ("species", TEXT, "the species refined (refine)"),
+    ("level", TEXT, "the level, energy // geometry (refine)"),
+    ("energy_kJ_per_mol", KJ, "the refined electronic energy (refine)"),
+    ("from_cache", FLAG, "the refinement came from the cache (refine)"),
+])
+_BATCH_JSON = Document("tstrate many: summary.json", "batch.md", """Every task of a batch, written to its folder (and printed by `tstrate many ... --json`).""", _keys(
+    ("tasks_total", ONE, "tasks in the batch"),
+    ("tasks_done", ONE, "tasks run now"),
+    ("tasks_skipped", ONE, "tasks found finished with the same input key"),
+    ("tasks_failed", ONE, "tasks that failed"),
+    ("tasks", LIST, "one entry per task, in the order given"),
+    ("tasks[]", OBJ, "one task", "batch_task"),
+))
+_BATCH_TASK = Document("tstrate many: tasks/<name>.json", "batch.md", """The record of one task, written when it ends; a later batch skips a task whose record is done
+with the same input key and whose output is still there.""", _keys(
+    ("", OBJ, "the task", "batch_task"),
+))
+_BATCH_CSV = Document("tstrate many: summary.csv", "batch.md", """Every task of a batch: one row per channel of a study (run, uncertainty), one per species
+(refine), one for a task without numbers (failed).""", _keys(
+    ("task", TEXT, "the task's name"),
+    ("kind", TEXT, "run, refine or uncertainty"),
+    ("status", TEXT, "done, skipped or failed"),
+    ("source", TEXT, "the study or species file"),
+    ("output", TEXT, "the folder or file written"),
+    ("time", "s", "wall time of the task"),
+    ("error", TEXT, "why it failed"),
+    ("title", TEXT, "the study's title"),
+    ("channel", TEXT, "the channel"),
+    ("mechanism form", TEXT, "the form written to mechanism.yaml (run)"),
+    ("T min", K, "lowest temperature of the channel's grid (run)"),
+    ("T max", K, "highest temperature (run)"),
+    ("k at T min", "@k unit", "k at T min, with tunnelling (run)"),
+    ("k at T max", "@k unit", "k at T max (run)"),
+    ("k unit", TEXT, "unit of the k columns of the row"),
+    ("f298", ONE, "f(298 K) of the evaluation form (uncertainty)"),
+    ("g", K, "g of the evaluation form (uncertainty)"),
+    ("matters most", TEXT, "the uncertain factor with the largest share (uncertainty)"),
+    ("species", TEXT, "the species refined (refine)"),
+    ("level", TEXT, "the level (refine)"),
+    ("energy", KJ, "the refined electronic energy (refine)"),
+), "csv")
+
 DOCUMENTS: dict[str, Document] = {d.name: d for d in
                                   [_RESULTS, _INPUTS, _FITS, _FITS_CSV, _THERMO_CSV, _RATES_CSV,
                                    _PFITS_CSV, _CONFORMERS_CSV, _ISO_BETA_CSV, _ISO_KIE_CSV, _ISO_FRAC_CSV,
                                    _ISO_THETA_CSV, _UNC_CSV, _UNC_RANK_CSV, _EVAL_FORMS, _EVAL_CSV, _REF_CSV,
-                                   _MECHANISM, *_COMMANDS]}
+                                   _MECHANISM, *_COMMANDS, _BATCH_JSON, _BATCH_TASK, _BATCH_CSV]}
+
+#: the batch engine's documents, checked against real outputs in tests/compute/test_batch.py
+BATCH_DOCUMENTS = (_BATCH_JSON.name, _BATCH_TASK.name, _BATCH_CSV.name)
 
 PAGES = {
     "results-json.md": ("results.json and inputs.json", """\
@@ -1491,6 +1567,10 @@ The mechanism file of a `tstrate run`."""),
     "command-json.md": ("--json output of the commands", """\
 What each command prints on stdout with `--json`. Records shared with the files of a run
 are the same as in results.json and fits.json."""),
+    "batch.md": ("tstrate many: summary and task records", """\
+What `tstrate many` writes into its folder besides the outputs of its tasks (which are those
+of `tstrate run`, `tstrate compute refine` and `tstrate uncertainty --json`); see
+docs/batch.md."""),
 }
 
 
@@ -1588,7 +1668,7 @@ def _leaf_kinds(v) -> set:
 SUFFIX_UNITS = (
     ("_J_per_mol_K", JK), ("_kJ_per_mol", KJ), ("_amu_A2", "amu Å2"), ("_per_cm3", PER_CM3),
     ("_per_bar", "bar-1"), ("_per_s", PER_S), ("_percent", PCT), ("_cm1", CM1), ("_bar", BAR),
-    ("_km", "km"), ("_K", K), ("_A", "Å"), ("_permil", "permil"), ("_amu", "u"), ("_deg", "degree"),
+    ("_km", "km"), ("_K", K), ("_A", "Å"), ("_permil", "permil"), ("_amu", "u"), ("_deg", "degree"), ("_s", "s"),
 )
 #: unit spellings that break the convention wherever they end a key name
 FORBIDDEN_SUFFIXES = ("_J_per_mol", "_Pa", "_m3", "_hartree", "_relative_deviation", "_fraction_percent")

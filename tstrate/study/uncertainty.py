@@ -676,41 +676,97 @@ def count_runs(result, space: InputSpace) -> int:
     return n
 
 
+#: samples evaluated together (bounded memory, a progress tick each); sample blocks run elsewhere
+#: (:func:`sample_block_ranges`) are whole multiples of it, so that they evaluate the same rows
+#: together as the serial run and give the same numbers
+SAMPLE_BLOCK = 250
+
+
+def uncertainty_setup(study, settings: UncertaintySettings | None = None) -> tuple[UncertaintySettings,
+                                                                                    InputSpace, np.ndarray]:
+    """(settings in force, input space, U (S, n_u) deviations of every sample) of ``study``: what
+    :func:`study_uncertainty` samples. Needs only the study, not its deterministic result."""
+    settings = settings or study.sections.get("uncertainty") or UncertaintySettings()
+    try:
+        space = input_space(study, settings)
+    except InputError as exc:
+        raise exc.within(file=study.file, prefix=None) from None
+    S = settings.samples
+    if space.inputs:
+        Z = pu.standard_normal_samples(S, len(space.factors), seed=settings.seed, method=settings.sampling)
+        U = Z @ space.L.T
+    else:
+        U = np.zeros((S, 0))
+    return settings, space, U
+
+
+def sample_block_ranges(samples: int, per_block: int) -> list[tuple[int, int]]:
+    """[(start, stop), ...] covering ``samples`` rows in blocks of about ``per_block`` samples,
+    rounded up to a whole multiple of :data:`SAMPLE_BLOCK` (the last block takes the rest)."""
+    if samples < 0 or per_block < 1:
+        raise ValueError(f"samples must be >= 0 and per_block >= 1, got {samples} and {per_block}")
+    size = SAMPLE_BLOCK * max(1, math.ceil(per_block / SAMPLE_BLOCK))
+    return [(a, min(samples, a + size)) for a in range(0, samples, size)]
+
+
+def evaluate_sample_block(result, space: InputSpace, U_block: np.ndarray, *,
+                          progress: Callable[[int], None] | None = None) -> dict:
+    """The sampled results (key -> (rows, *grid) ln values) of the rows ``U_block`` of the
+    deviations, evaluated :data:`SAMPLE_BLOCK` rows at a time as :func:`study_uncertainty` does.
+    A block that starts at a multiple of SAMPLE_BLOCK gives exactly the serial run's rows.
+    ``progress(rows_done)`` after each group of rows."""
+    evaluate = _Evaluator(result, space)
+    parts: dict = {}
+    S = U_block.shape[0]
+    for start in range(0, S, SAMPLE_BLOCK):
+        vals = evaluate(U_block[start:start + SAMPLE_BLOCK])
+        for k, v in vals.items():
+            parts.setdefault(k, []).append(v)
+        if progress:
+            progress(min(S, start + SAMPLE_BLOCK))
+    return {k: np.concatenate(v, axis=0) for k, v in parts.items()}
+
+
+def combine_sample_blocks(blocks) -> dict:
+    """The sampled results of consecutive blocks (from :func:`evaluate_sample_block`, in order)."""
+    blocks = list(blocks)
+    if not blocks:
+        return {}
+    return {k: np.concatenate([b[k] for b in blocks], axis=0) for k in blocks[0]}
+
+
 def study_uncertainty(result, settings: UncertaintySettings | None = None, *,
-                      progress: Callable[[str, int, int], None] | None = None) -> StudyUncertainty:
+                      progress: Callable[[str, int, int], None] | None = None,
+                      sampled: dict | None = None) -> StudyUncertainty:
     """Uncertainty and sensitivity of every result in ``result`` (a
     :class:`~tstrate.study.run.StudyResult`) under ``settings`` (default: the study's
     ``[uncertainty]`` section, else :class:`UncertaintySettings` defaults).
 
     ``progress(stage, done, total)`` is called as work proceeds (stages "samples", "falloff",
     "energised molecules").
+
+    ``sampled``: the sampled results of every sample when they were evaluated elsewhere, e.g.
+    in blocks on a cluster (:func:`uncertainty_setup`, :func:`sample_block_ranges`,
+    :func:`evaluate_sample_block`, :func:`combine_sample_blocks`); the result is then the same
+    as the serial one.
     """
     study = result.study
-    settings = settings or study.sections.get("uncertainty") or UncertaintySettings()
-    try:
-        space = input_space(study, settings)
-    except InputError as exc:
-        raise exc.within(file=study.file, prefix=None) from None
+    settings, space, U = uncertainty_setup(study, settings)
     warnings: list[str] = list(space.notes)
     n_u = len(space.inputs)
     S = settings.samples
-    if n_u:
-        Z = pu.standard_normal_samples(S, len(space.factors), seed=settings.seed, method=settings.sampling)
-        U = Z @ space.L.T
-    else:
-        U = np.zeros((S, 0))
+    if not n_u:
         warnings.append("no input has an uncertainty: every band is a line")
     evaluate = _Evaluator(result, space)
-    # samples in blocks, for the progress bar and bounded memory
-    block = 250
-    parts: dict = {}
-    for start in range(0, S, block):
-        vals = evaluate(U[start:start + block])
-        for k, v in vals.items():
-            parts.setdefault(k, []).append(v)
+    if sampled is None:
+        sampled = evaluate_sample_block(result, space, U,
+                                        progress=(lambda n: progress("samples", n, S)) if progress else None)
+    else:
+        bad = [k for k, v in sampled.items() if np.shape(v)[0] != S]
+        if bad:
+            raise ValueError(f"sampled: {bad[0]} has {np.shape(sampled[bad[0]])[0]} rows, not the {S} samples")
         if progress:
-            progress("samples", min(S, start + block), S)
-    sampled = {k: np.concatenate(v, axis=0) for k, v in parts.items()}
+            progress("samples", S, S)
     sens = _sensitivities(evaluate, space, settings.sensitivity_step)
     nominal = _nominal_ln(result)
     opts = study.sections.get("fits")
@@ -907,7 +963,8 @@ def sample_deviations(study, settings: UncertaintySettings) -> tuple[InputSpace,
 __all__ = ["INPUT_KINDS", "UncertainInput", "InputSpace", "input_space", "Band", "RankedFactor",
            "ChannelUncertainty", "RouteUncertainty", "ComparisonUncertainty", "FalloffUncertainty",
            "ExcitationUncertainty", "StudyUncertainty", "study_uncertainty", "perturbed_study",
-           "sampled_channel_ln_k", "sample_deviations", "count_runs", "study_at"]
+           "sampled_channel_ln_k", "sample_deviations", "count_runs", "study_at", "SAMPLE_BLOCK",
+           "uncertainty_setup", "sample_block_ranges", "evaluate_sample_block", "combine_sample_blocks"]
 
 
 def study_at(study, space: InputSpace, u_row) -> object:
