@@ -15,6 +15,11 @@ Methods for k_diss(T, [M]):
   (:func:`tstrate.physics.falloff.strong_collision_falloff`), beta_c from <Delta E>down and F_E
   (:func:`tstrate.physics.collisions.collision_efficiency`). A stepping stone: it has both limits
   right but not the shape between them.
+* "master-equation": the energy-grained master equation of the adduct (one well, the
+  dissociation as its loss; exponential-down collisions with <Delta E>down;
+  :mod:`tstrate.physics.master_equation`), k_diss(T, [M]) its chemically significant eigenvalue
+  (Bartis and Widom 1974). k0 is read off at a number density low enough for the linear regime
+  (:data:`LOW_PRESSURE_NUMBER_DENSITY_M3`), where the precise (non-subtracting) solver keeps it.
 
 Units: K, m^-3, m^3 s^-1 (k_assoc, k_inf), m^6 s^-1 (k0), s^-1 (k_diss), J/mol.
 """
@@ -32,7 +37,11 @@ from tstrate.physics.falloff import strong_collision_falloff
 from tstrate.physics.inverse_laplace import AssociationModel
 
 #: pressure methods for a barrierless association
-ASSOCIATION_METHODS = ("strong-collision",)
+ASSOCIATION_METHODS = ("strong-collision", "master-equation")
+
+#: [M] [m^-3] at which the master equation's k_diss / [M] is taken as the low-pressure limit
+#: (about 4e-6 bar at 300 K; k_diss is linear in [M] there to well under 1 % for a 5-atom adduct)
+LOW_PRESSURE_NUMBER_DENSITY_M3 = 1e20
 
 
 @dataclass(frozen=True)
@@ -99,6 +108,11 @@ def association_falloff(model: AssociationModel, temperature_K, number_density_m
     z = per_temperature(collision_rate_m3_s, t, "collision_rate_m3_s")
     if delta_E_down_J_per_mol is not None and collision_efficiency is not None:
         raise InputError("give <Delta E>down or a collision efficiency, not both", field="delta_E_down")
+    if method == "master-equation":
+        if delta_E_down_J_per_mol is None:
+            raise InputError("the master equation needs <Delta E>down", field="delta_E_down")
+        return _master_equation_falloff(model, t, number_density_m3, z,
+                                        per_temperature(delta_E_down_J_per_mol, t, "delta_E_down_J_per_mol"))
     if delta_E_down_J_per_mol is not None:
         beta, fe = weak_collision_efficiency(model, t, delta_E_down_J_per_mol)
     else:
@@ -112,3 +126,38 @@ def association_falloff(model: AssociationModel, temperature_K, number_density_m
     return AssociationFalloff(model, t, fo.number_density_m3, kc[:, None] * fo.rate_per_s,
                               kc * fo.high_pressure_per_s, kc * fo.low_pressure_m3_s, z, beta, fe, ln_kc,
                               method)
+
+
+def master_equation_dissociation(model: AssociationModel, temperature_K: float, number_density_m3,
+                                 collision_rate_m3_s: float, delta_E_down_J_per_mol: float) -> np.ndarray:
+    """k_diss(T, [M]) [s^-1] of the adduct from the master equation, one value per [M] [m^-3]."""
+    from tstrate.physics import master_equation as me
+
+    counts = model.rate.reactant.counts
+    out = []
+    for m in np.atleast_1d(np.asarray(number_density_m3, dtype=float)):
+        well = me.Well(model.adduct.name, counts, collision_frequency_per_s=float(collision_rate_m3_s * m),
+                       delta_E_down_J_per_mol=float(delta_E_down_J_per_mol))
+        loss = me.Reaction(f"{model.adduct.name} -> {model.fragments[0].name} + {model.fragments[1].name}",
+                           model.adduct.name, None, np.asarray(model.rate.rate_per_s))
+        system = me.MasterEquation(model.rate.grain_J_per_mol, (well,), (loss,))
+        out.append(float(me.rate_coefficients(system, float(temperature_K)).product_per_s[0, 0]))
+    return np.array(out)
+
+
+def _master_equation_falloff(model: AssociationModel, t: np.ndarray, number_density_m3, z: np.ndarray,
+                             de: np.ndarray) -> AssociationFalloff:
+    m = np.atleast_1d(np.asarray(number_density_m3, dtype=float))
+    if m.ndim == 1:
+        m = np.broadcast_to(m, (t.size, m.size))
+    ln_kc = model.ln_equilibrium_constant_m3(t)
+    kc = np.exp(ln_kc)
+    k_inf = kc * model.high_pressure_dissociation_per_s(t)
+    rate = np.empty(m.shape)
+    k0 = np.empty(t.size)
+    for i, ti in enumerate(t):
+        rate[i] = kc[i] * master_equation_dissociation(model, ti, m[i], z[i], de[i])
+        low = LOW_PRESSURE_NUMBER_DENSITY_M3
+        k0[i] = kc[i] * master_equation_dissociation(model, ti, [low], z[i], de[i])[0] / low
+    return AssociationFalloff(model, t, np.array(m), rate, k_inf, k0, z, np.full(t.size, np.nan),
+                              np.full(t.size, np.nan), ln_kc, "master-equation")
