@@ -245,8 +245,8 @@ def _smoothed(counts: np.ndarray, width: int) -> np.ndarray:
 class CollisionMatrix:
     """P[i, j] = probability that a collision takes a molecule from grain j to grain i (columns sum
     to one); populated grains only (``grains``, indices on the grid); f the Boltzmann distribution
-    over them (sums to one); max_column_sum: the largest off-diagonal column sum before clipping
-    (above one: the plain kernel could not be normalised there)."""
+    over them (sums to one); max_column_sum: the largest off-diagonal column sum (above one: the
+    plain kernel could not be normalised there, and the diagonal is negative)."""
 
     grains: np.ndarray
     matrix: np.ndarray = field(repr=False)
@@ -302,11 +302,9 @@ def collision_matrix(counts, grain_J_per_mol: float, temperature_K: float, delta
             p[j, :j] = p[:j, j] * f[j] / f[:j]
     np.fill_diagonal(p, 0.0)
     col = p.sum(axis=0)
-    if col.max() > 1.0:
-        # the plain kernel could not be normalised (sparse low grains without the remedy): scale all
-        # off-diagonal probabilities by one factor, which keeps detailed balance and conservation
-        # (it is a lower effective collision frequency); max_column_sum reports it
-        p /= col.max()
+    # a column over one (the plain kernel on sparse low grains, without the remedy) is left as it
+    # is: the rate matrix still conserves molecules and obeys detailed balance, but such a grain
+    # makes more than one transition per collision; max_column_sum reports it
     np.fill_diagonal(p, 1.0 - p.sum(axis=0))
     return CollisionMatrix(grains, p, f, max_sum)
 
