@@ -245,8 +245,8 @@ def _smoothed(counts: np.ndarray, width: int) -> np.ndarray:
 class CollisionMatrix:
     """P[i, j] = probability that a collision takes a molecule from grain j to grain i (columns sum
     to one); populated grains only (``grains``, indices on the grid); f the Boltzmann distribution
-    over them (sums to one); max_column_sum: the largest off-diagonal column sum before clipping
-    (above one: the plain kernel could not be normalised there)."""
+    over them (sums to one); max_column_sum: the largest off-diagonal column sum (above one: the
+    plain kernel could not be normalised there, and the diagonal is negative)."""
 
     grains: np.ndarray
     matrix: np.ndarray = field(repr=False)
@@ -302,11 +302,9 @@ def collision_matrix(counts, grain_J_per_mol: float, temperature_K: float, delta
             p[j, :j] = p[:j, j] * f[j] / f[:j]
     np.fill_diagonal(p, 0.0)
     col = p.sum(axis=0)
-    if col.max() > 1.0:
-        # the plain kernel could not be normalised (sparse low grains without the remedy): scale all
-        # off-diagonal probabilities by one factor, which keeps detailed balance and conservation
-        # (it is a lower effective collision frequency); max_column_sum reports it
-        p /= col.max()
+    # a column over one (the plain kernel on sparse low grains, without the remedy) is left as it
+    # is: the rate matrix still conserves molecules and obeys detailed balance, but such a grain
+    # makes more than one transition per collision; max_column_sum reports it
     np.fill_diagonal(p, 1.0 - p.sum(axis=0))
     return CollisionMatrix(grains, p, f, max_sum)
 
@@ -424,12 +422,14 @@ class NonSubtractingLU:
         return solve_triangular(self.upper, y, lower=False, check_finite=False)
 
 
-def factor_without_subtraction(rm: RateMatrix) -> NonSubtractingLU:
-    """Gaussian elimination of -M in the Grassmann-Taksar-Heyman form (Alfa, Xue and Ye 2002):
-    off-diagonal magnitudes and losses are updated by additions only, and each pivot is the sum of
-    its column's remaining off-diagonal magnitudes plus its (updated) loss."""
-    b = rm.offdiag.copy()
-    s = rm.leak.copy()
+#: below this many states the elimination runs pivot by pivot; above, in blocks (BLAS)
+_BLOCK = 96
+
+
+def _factor_unblocked(b: np.ndarray, s: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """(lower magnitudes, upper magnitudes, pivots) of D - B, pivot by pivot (GTH)."""
+    b = b.copy()
+    s = s.copy()
     n = s.size
     d = np.empty(n)
     for p in range(n):
@@ -441,14 +441,50 @@ def factor_without_subtraction(rm: RateMatrix) -> NonSubtractingLU:
         if p == n - 1:
             break
         row = b[p, p + 1:]
-        mult = col / d[p]
         sub = b[p + 1:, p + 1:]
-        sub += np.outer(mult, row)
+        sub += np.outer(col / d[p], row)
         s[p + 1:] += row * (s[p] / d[p])
         np.fill_diagonal(sub, 0.0)
-    lower = -np.tril(b, -1) / d[None, :]
+    return np.tril(b, -1) / d[None, :], np.triu(b, 1), d
+
+
+def _factor(b: np.ndarray, s: np.ndarray) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Recursive blocked form of :func:`_factor_unblocked`. With A = [A11 A12; A21 A22] = D - B:
+    A11 is factored with its flows into the second block counted as loss; then
+    |U12| = L11^-1 B12, |L21| = B21 U11^-1, B22 += |L21| |U12| and s2 += (s1 U11^-1) |U12|: every
+    product and sum is of non-negative numbers."""
+    from scipy.linalg import solve_triangular
+
+    n = s.size
+    if n <= _BLOCK:
+        return _factor_unblocked(b, s)
+    k = n // 2
+    b11, b12, b21, b22 = b[:k, :k], b[:k, k:], b[k:, :k], b[k:, k:]
+    l11, u11, d1 = _factor(b11, s[:k] + b21.sum(axis=0))
+    lo = np.eye(k) - l11
+    up = np.diag(d1) - u11
+    u12 = solve_triangular(lo, b12, lower=True, unit_diagonal=True, check_finite=False)
+    l21 = solve_triangular(up, b21.T, trans="T", lower=False, check_finite=False).T
+    s1u = solve_triangular(up, s[:k], trans="T", lower=False, check_finite=False)
+    schur = b22 + l21 @ u12
+    np.fill_diagonal(schur, 0.0)
+    l22, u22, d2 = _factor(schur, s[k:] + s1u @ u12)
+    lower = np.zeros((n, n))
+    upper = np.zeros((n, n))
+    lower[:k, :k], lower[k:, :k], lower[k:, k:] = l11, l21, l22
+    upper[:k, :k], upper[:k, k:], upper[k:, k:] = u11, u12, u22
+    return lower, upper, np.concatenate([d1, d2])
+
+
+def factor_without_subtraction(rm: RateMatrix) -> NonSubtractingLU:
+    """Gaussian elimination of -M in the Grassmann-Taksar-Heyman form (Alfa, Xue and Ye 2002):
+    off-diagonal magnitudes and losses are updated by additions only, and each pivot is the sum of
+    its column's remaining off-diagonal magnitudes plus its (updated) loss. Blocked (recursive
+    halves, BLAS products of non-negative matrices) above a few dozen states."""
+    lower_mag, upper_mag, d = _factor(rm.offdiag, rm.leak)
+    lower = -lower_mag
     np.fill_diagonal(lower, 1.0)
-    upper = -np.triu(b, 1)
+    upper = -upper_mag
     np.fill_diagonal(upper, d)
     return NonSubtractingLU(lower, upper, d)
 
