@@ -22,6 +22,7 @@ FIGURE_STEMS = {
     # panels: pressure, altitude, k_of_E
     "excitation": "excitation_{name}_{panel}",
     "isotopes": "isotopes_kie",
+    "association": "association_{name}",
 }
 #: the formats each figure is written in
 FIGURE_FORMATS = ("png", "svg")

@@ -188,6 +188,14 @@ def write_all(result, folder: Path, *, progress: Callable[[str], None] | None = 
         for name, rows in CSV_TABLES.items():
             atomic_write_text(folder / "tables" / name, csv_text(*rows(result.isotopes)))
             written.append(folder / "tables" / name)
+    if getattr(result, "associations", None):
+        from tstrate.output.association_records import HEADER, association_rows
+        from tstrate.output.tables import safe_file_stem
+
+        for ar in result.associations:
+            path = folder / "tables" / f"association_{safe_file_stem(ar.name)}.csv"
+            atomic_write_text(path, csv_text(HEADER, association_rows(ar)))
+            written.append(path)
     unc = getattr(result, "uncertainty", None)
     if unc is not None:
         from tstrate.output import uncertainty_records as ur
@@ -204,12 +212,21 @@ def write_all(result, folder: Path, *, progress: Callable[[str], None] | None = 
     written.append(folder / "inputs.json")
 
     step("plots")
-    bands = ur.arrhenius_bands(unc, doc["channels"]) if unc is not None else None
-    paths = _save(arrhenius_figure(doc["channels"], study.title, bands=bands), folder / "plots",
-                  figure_stem("arrhenius"))
-    written += paths
-    figures.append(("rates", paths[0], "Arrhenius plot: log10 k against 1000/T; dashed lines "
-                    "without tunnelling." + (" " + ur.BANDS_MEAN if unc is not None else "")))
+    if doc["channels"]:
+        bands = ur.arrhenius_bands(unc, doc["channels"]) if unc is not None else None
+        paths = _save(arrhenius_figure(doc["channels"], study.title, bands=bands), folder / "plots",
+                      figure_stem("arrhenius"))
+        written += paths
+        figures.append(("rates", paths[0], "Arrhenius plot: log10 k against 1000/T; dashed lines "
+                        "without tunnelling." + (" " + ur.BANDS_MEAN if unc is not None else "")))
+    if getattr(result, "associations", None):
+        from tstrate.output.association_records import association_figure
+
+        for ar in result.associations:
+            paths = _save(association_figure(ar), folder / "plots", figure_stem("association", ar.name))
+            written += paths
+            figures.append(("association", paths[0], f"{ar.name}: k(T, p) of the barrierless association "
+                            "against pressure."))
     if result.comparisons is not None:
         from tstrate.output.compare_plots import comparison_figures
 
@@ -394,6 +411,19 @@ def build_report(result, doc: dict, inputs: list[dict], figures) -> list:
         B.append(rp.Table(head, tuple(tuple(row) for row in rows), note))
     B += [rp.Figure(p, c) for s, p, c in figures if s == "rates"]
 
+    if getattr(result, "associations", None):
+        from tstrate.output.association_records import association_summary
+
+        B.append(rp.Heading("Barrierless associations"))
+        for ar in result.associations:
+            B.append(rp.Bullets(tuple(association_summary(ar))))
+        B.append(rp.Paragraph("k(E) of each adduct is the inverse Laplace transform of the given k_inf(T) "
+                              "(Davies, Green and Pilling 1986): no angular momentum, valid only as far as "
+                              "k_inf(T) and its temperature exponent are; an active adduct rotation gives the "
+                              "upper, a spectator one the lower bound of the low-pressure limit. Full tables: "
+                              "tables/association_<name>.csv."))
+        B += [rp.Figure(p, c) for s, p, c in figures if s == "association"]
+
     if result.comparisons is not None:
         from tstrate.output.compare_records import comparison_report_blocks
 
@@ -454,11 +484,12 @@ def build_report(result, doc: dict, inputs: list[dict], figures) -> list:
             rows.append((cf.name, label, f"{fit.A_in(unit):.4g}", unit, f"{fit.n:.3g}",
                          f"{fit.Ea_J_per_mol / 1e3:.3f}", f"{fit.Tmin_K:g}-{fit.Tmax_K:g}",
                          f"{100 * fit.max_rel_deviation:.2f}", f"{100 * fit.rms_rel_deviation:.2f}"))
-    B.append(rp.Table(("channel", "form", "A", "A unit", "n", "Ea / kJ mol-1", "range / K",
-                       "max deviation / %", "rms deviation / %"), tuple(rows),
-                      f"k = A (T/T0)^n exp(-Ea/RT), T0 = {result.fits.channels[0].modified.T0_K:g} K "
-                      "for the modified form; the mechanism file uses the "
-                      f"{result.fits.channels[0].mechanism_form} form."))
+    if result.fits.channels:
+        B.append(rp.Table(("channel", "form", "A", "A unit", "n", "Ea / kJ mol-1", "range / K",
+                           "max deviation / %", "rms deviation / %"), tuple(rows),
+                          f"k = A (T/T0)^n exp(-Ea/RT), T0 = {result.fits.channels[0].modified.T0_K:g} K "
+                          "for the modified form; the mechanism file uses the "
+                          f"{result.fits.channels[0].mechanism_form} form."))
     rows = []
     for cf in result.fits.channels:
         for label, fit in (("Chebyshev k(T)", cf.chebyshev), ("Chebyshev k(T, p)", cf.chebyshev_falloff)):
@@ -472,8 +503,12 @@ def build_report(result, doc: dict, inputs: list[dict], figures) -> list:
         B.append(rp.Table(("channel", "form", "terms (T x p)", "range / K", "range / bar",
                            "max deviation / %", "rms deviation / %"), tuple(rows),
                           "Chebyshev expansions of log10 k in 1/T and log p (coefficients in fits.json)."))
-    B.append(rp.Paragraph("The mechanism file holds, per channel: " + "; ".join(
-        f"{cf.name}: {cf.mechanism_kind.replace('_', ' ')}" for cf in result.fits.channels) + "."))
+    if result.fits.channels:
+        B.append(rp.Paragraph("The mechanism file holds, per channel: " + "; ".join(
+            f"{cf.name}: {cf.mechanism_kind.replace('_', ' ')}" for cf in result.fits.channels) + "."))
+    else:
+        B.append(rp.Paragraph("The mechanism file holds the species only (barrierless associations are not "
+                              "exported as reactions yet; their k(T, p) is in tables/association_<name>.csv)."))
     rows = [(s.name, f"{s.nasa7.Tmin_K:g}-{s.nasa7.Tmid_K:g}-{s.nasa7.Tmax_K:g}",
              f"{100 * s.nasa7.max_rel_error_cp:.3f}", f"{100 * s.nasa7.max_rel_error_h:.3f}",
              f"{100 * s.nasa7.max_rel_error_s:.3f}") for s in result.fits.species]

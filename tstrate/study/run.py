@@ -50,6 +50,7 @@ class StudyResult:
     capture: physics.capture.CaptureLimit per bimolecular channel (TST against the capture ceiling).
     isotopes: study.isotopes.IsotopeResult when the study has an [isotopes] section, else None.
     uncertainty: study.uncertainty.StudyUncertainty when the study's [uncertainty] asks for it, else None.
+    associations: study.associations.AssociationResult per [[association]] (barrierless), or None.
     """
 
     study: Study
@@ -65,14 +66,17 @@ class StudyResult:
     capture: tuple = field(default=())
     isotopes: object | None = None
     uncertainty: object | None = None
+    associations: tuple | None = None
 
 
 def steps(study: Study) -> list[str]:
     steps = ["thermochemistry", "rate constants"]
     if study.sections.get("comparison"):
         steps.append("catalysed routes")
-    if study.conditions.pressure_Pa.size or study.conditions.number_density_m3.size:
+    if (study.conditions.pressure_Pa.size or study.conditions.number_density_m3.size) and study.channels:
         steps.append("falloff")
+    if study.sections.get("association"):
+        steps.append("barrierless associations")
     if study.sections.get("excitation"):
         steps.append("energised molecules")
     if study.sections.get("isotopes"):
@@ -127,7 +131,7 @@ def compute_study(study: Study, *, low_modes: LowModes = HARMONIC,
     troe = {}
     grid = {}
     pressure_fits = {}
-    if study.conditions.pressure_Pa.size or study.conditions.number_density_m3.size:
+    if (study.conditions.pressure_Pa.size or study.conditions.number_density_m3.size) and study.channels:
         step("falloff")
         from tstrate.study.falloff import study_falloff
 
@@ -149,6 +153,15 @@ def compute_study(study: Study, *, low_modes: LowModes = HARMONIC,
                 grid[cf.name] = (cf.pressure_Pa, cf.rate_constant_per_s)
             pressure_fits[cf.name], w = fits_at_each_pressure(cf)
             warnings += w
+
+    associations = None
+    if study.sections.get("association"):
+        step("barrierless associations")
+        from tstrate.study.associations import study_associations
+
+        associations = study_associations(study)
+        for a in associations:
+            warnings += list(a.warnings)
 
     excitations = None
     if study.sections.get("excitation"):
@@ -182,7 +195,7 @@ def compute_study(study: Study, *, low_modes: LowModes = HARMONIC,
     result = StudyResult(study=study, low_modes=low_modes, thermo=thermo, rates=rates,
                          comparisons=comparisons, falloff=falloff, excitations=excitations, fits=fits,
                          pressure_fits=pressure_fits, warnings=tuple(dict.fromkeys(warnings)), capture=capture,
-                         isotopes=isotopes)
+                         isotopes=isotopes, associations=associations)
     if wants_uncertainty(study):
         step("uncertainty")
         from dataclasses import replace
