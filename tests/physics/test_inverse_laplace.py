@@ -127,7 +127,7 @@ def test_atom_pair_against_the_closed_form():
     assert np.allclose(flux, expected, rtol=2e-3)
 
 
-@pytest.mark.parametrize("rotation", ["active", "spectator"])
+@pytest.mark.parametrize("rotation", ["active", "k-active", "spectator"])
 def test_association_obeys_detailed_balance_with_canonical_kc(rotation):
     adduct = read_species(OH_SO2 / "hoso2.toml")
     oh, so2 = read_species(OH_SO2 / "oh.toml"), read_species(OH_SO2 / "so2.toml")

@@ -224,7 +224,7 @@ class ExcitationSpec:
 ASSOCIATION_PRESSURE_METHODS = ("master-equation", "strong-collision")
 #: how the adduct's overall rotation enters its density of states (see
 #: :mod:`tstrate.physics.inverse_laplace`)
-ADDUCT_ROTATIONS = ("active", "spectator")
+ADDUCT_ROTATIONS = ("active", "k-active", "spectator")
 
 
 @dataclass(frozen=True)

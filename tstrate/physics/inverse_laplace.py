@@ -32,12 +32,13 @@ order in grain / RT and the offset D0 + Ea need not be a whole number of grains.
 
 Limitations (documented, not hidden)
 ------------------------------------
-* No angular momentum: k(E) is an average over J. The adduct's overall rotation is either
-  counted as active (convolved into rho_AB: all its rotational energy is available for
-  dissociation, which overstates the rotational factor of the low-pressure limit) or left as a
-  spectator (its partition function divides out: no rotational energy is available, which
-  understates it). The truth lies between; the centrifugal barriers of a barrierless channel
-  are not modelled.
+* No angular momentum: k(E) is an average over J. The adduct's overall rotation is counted as
+  active (convolved into rho_AB: all its rotational energy is available for dissociation, which
+  overstates the rotational factor of the low-pressure limit), left as a spectator (its partition
+  function divides out: no rotational energy is available, which understates it), or, in between,
+  "k-active": the K-rotor about the unique axis active and the 2-D rotor a spectator (the usual
+  choice of RRKM with J conserved). The centrifugal barriers of a barrierless channel are not
+  modelled.
 * k(E) is only as good as k_inf(T): its shape near threshold follows the temperature exponent n,
   and an n fitted over a narrow range of T is extrapolated to all E. It is sensitive to n: a
   change of n by 0.5 changes k(E) near threshold by a factor of order (E - D0)/RT0 ** 0.5.
@@ -72,7 +73,7 @@ from tstrate.units import C, H, K_B, N_A, R
 log = logging.getLogger(__name__)
 
 #: how the adduct's overall rotation enters its density of states
-ROTATION_TREATMENTS = ("active", "spectator")
+ROTATION_TREATMENTS = ("active", "k-active", "spectator")
 
 
 # ---------------------------------------------------------------- the rate form
@@ -356,7 +357,8 @@ def association_ilt(adduct: Species, fragments: tuple[Species, Species], k_inf: 
     max_temperature_K, energy_above_threshold_cm1:
         The grid reaches D0 plus max(20000 cm^-1, 80 k_B T_max) unless the span is given.
     rotation:
-        "active" (the adduct's external rotor convolved into its density) or "spectator".
+        "active" (the adduct's external rotor convolved into its density), "k-active" (only its
+        K-rotor) or "spectator".
     """
     from tstrate.physics.tst import zpe_level_J_per_mol
 
@@ -390,6 +392,15 @@ def association_ilt(adduct: Species, fragments: tuple[Species, Species], k_inf: 
     if rotation == "active":
         ad = StateCounts(g, convolve_counts(ad.counts, rotor_counts(d_ad, ln_c_ad, ad.n_grains, g)))
         d_spect, ln_spect = 0.0, 0.0
+    elif rotation == "k-active" and not adduct.linear and not adduct.is_atom:
+        # the K-rotor (unique axis, classical 1-D, constant A or C) active, the 2-D rotor a spectator:
+        # Q_K = sqrt(pi RT / B_K), and Q_3D / Q_K is the spectator part (exact for classical rotors)
+        from tstrate.physics.unimolecular import split_rotation
+
+        b_k = split_rotation(adduct).K_cm1 * CM1_J_PER_MOL
+        ln_c_k = 0.5 * math.log(math.pi / b_k)
+        ad = StateCounts(g, convolve_counts(ad.counts, rotor_counts(1.0, ln_c_k, ad.n_grains, g)))
+        d_spect, ln_spect = d_ad - 1.0, ln_c_ad - ln_c_k
     else:
         d_spect, ln_spect = d_ad, ln_c_ad
 

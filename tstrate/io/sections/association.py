@@ -61,8 +61,9 @@ KEYS = Keys(("association", "[]"), "[[association]]",
                     "of the adduct, or strong collisions scaled by Troe's weak-collision efficiency",
                     default=_default("pressure_method"), choices=ASSOCIATION_PRESSURE_METHODS),
                 Key("adduct_rotation", "string", "the adduct's overall rotation in its density of states: "
-                    "active (all rotational energy available to dissociation) or spectator (none); the "
-                    "truth lies between, and the two bracket the low-pressure limit",
+                    "active (all rotational energy available to dissociation), k-active (the K-rotor about "
+                    "the unique axis only) or spectator (none); active and spectator bracket the "
+                    "low-pressure limit",
                     default=_default("adduct_rotation"), choices=ADDUCT_ROTATIONS),
                 Key("delta_E_down_cm1", "number", "<dE>down at 300 K, the mean energy removed in downward "
                     "collisions", required="with the master equation", default_text="strong collisions "
