@@ -89,3 +89,67 @@ def test_master_equation_rises_to_k_inf_at_high_pressure(species):
     k = fo.rate_m3_per_s
     assert np.all(np.diff(k, axis=1) > 0)
     assert np.allclose(k[:, 2] / fo.k_inf_m3_per_s, 1.0, rtol=1e-4)
+
+
+def test_chemical_activation_stabilisation_is_the_falloff_ratio(species):
+    # without product channels, the stabilised share of hot adducts formed from A + B is
+    # k_assoc(T, [M]) / k_inf(T) (detailed balance between the chemically activated entry and
+    # thermal dissociation; e.g. Holbrook, Pilling and Robertson 1996, ch. 9): the prompt/stabilised
+    # split of the entry distribution against the thermal rate coefficient
+    from tstrate.physics.association import chemical_activation
+
+    adduct, oh, so2 = species
+    model = association_ilt(adduct, (oh, so2), JPL_KINF, grain_cm1=20.0, rotation="k-active",
+                            energy_above_threshold_cm1=8000.0)
+    t = 250.0
+    z = float(coll.pair_collision_rate_m3_s([t], reactant_parameters(adduct), "N2")[0])
+    for m in (3e23, 3e25):
+        ca = chemical_activation(model, t, m, collision_rate_m3_s=z, delta_E_down_J_per_mol=DELTA_E_DOWN)
+        fo = association_falloff(model, [t], [m], collision_rate_m3_s=z, delta_E_down_J_per_mol=DELTA_E_DOWN,
+                                 method="master-equation")
+        assert ca.prompt_fraction.sum() + ca.stabilised_fraction == pytest.approx(1.0, abs=1e-9)
+        # measured: equal to 1e-12; the split was also checked by BDF time integration (0.0579 at 3e23)
+        assert ca.stabilised_fraction == pytest.approx(fo.rate_m3_per_s[0, 0] / fo.k_inf_m3_per_s[0], rel=1e-6)
+
+
+def test_chemical_activation_with_a_product_channel_shares_the_prompt_flux(species):
+    from tstrate.physics.association import chemical_activation
+
+    adduct, oh, so2 = species
+    model = association_ilt(adduct, (oh, so2), JPL_KINF, grain_cm1=20.0, rotation="k-active",
+                            energy_above_threshold_cm1=8000.0)
+    e = model.rate.energies_J_per_mol
+    k_prod = np.where(e > 0.9 * model.well_depth_J_per_mol, 1e9, 0.0)    # a model exit below D0
+    z = float(coll.pair_collision_rate_m3_s([250.0], reactant_parameters(adduct), "N2")[0])
+    ca = chemical_activation(model, 250.0, 3e24, collision_rate_m3_s=z, delta_E_down_J_per_mol=DELTA_E_DOWN,
+                             product_rates_per_s={"HOSO2 -> P": k_prod})
+    assert ca.channels[1] == "HOSO2 -> P"
+    assert ca.prompt_fraction[1] > 0
+    assert ca.prompt_fraction.sum() + ca.stabilised_fraction == pytest.approx(1.0, abs=1e-9)
+
+
+def test_chemical_activation_split_against_time_integration(species):
+    # independent of the eigen-decomposition: integrate dn/dt = M n from the entry distribution with
+    # scipy's stiff BDF solver; after relaxation (t = 200 collisions, long before thermal dissociation)
+    # what is left in the well is the stabilised fraction
+    from scipy.integrate import solve_ivp
+
+    from tstrate.physics import master_equation as me
+    from tstrate.physics.association import chemical_activation
+
+    adduct, oh, so2 = species
+    model = association_ilt(adduct, (oh, so2), JPL_KINF, grain_cm1=20.0, rotation="k-active",
+                            energy_above_threshold_cm1=8000.0)
+    t, m = 250.0, 3e24
+    z = float(coll.pair_collision_rate_m3_s([t], reactant_parameters(adduct), "N2")[0])
+    ca = chemical_activation(model, t, m, collision_rate_m3_s=z, delta_E_down_J_per_mol=DELTA_E_DOWN)
+    well = me.Well("HOSO2", model.rate.reactant.counts, collision_frequency_per_s=z * m,
+                   delta_E_down_J_per_mol=DELTA_E_DOWN)
+    system = me.MasterEquation(model.rate.grain_J_per_mol, (well,),
+                               (me.Reaction("back", "HOSO2", None, np.asarray(model.rate.rate_per_s)),))
+    rm = me.rate_matrix(system, t)
+    a = rm.dense()
+    a = a if a.sum(axis=0).mean() < 0 else -a          # the generator M (columns sum to minus the loss)
+    n0 = me.initial_vector(system, rm, "HOSO2", ca.entry)
+    sol = solve_ivp(lambda _, y: a @ y, (0.0, 200.0 / (z * m)), n0, method="BDF", jac=a, rtol=1e-10, atol=1e-14)
+    assert sol.y[:, -1].sum() == pytest.approx(ca.stabilised_fraction, rel=1e-4)

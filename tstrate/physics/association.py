@@ -161,3 +161,55 @@ def _master_equation_falloff(model: AssociationModel, t: np.ndarray, number_dens
         k0[i] = kc[i] * master_equation_dissociation(model, ti, [low], z[i], de[i])[0] / low
     return AssociationFalloff(model, t, np.array(m), rate, k_inf, k0, z, np.full(t.size, np.nan),
                               np.full(t.size, np.nan), ln_kc, "master-equation")
+
+
+@dataclass(frozen=True)
+class ChemicalActivation:
+    """What becomes of adducts formed hot from A + B at one (T, [M]).
+
+    temperature_K, number_density_m3; channels: names of the loss channels (the way back to A + B
+    first, then any product channels); prompt_fraction (n_channels,): share of the entry flux
+    that leaves by each channel before the adduct is thermalised; stabilised_fraction: the share
+    left in the thermalised adduct (they sum to one); entry (n_grains,): the entry distribution.
+    """
+
+    temperature_K: float
+    number_density_m3: float
+    channels: tuple[str, ...]
+    prompt_fraction: np.ndarray
+    stabilised_fraction: float
+    entry: np.ndarray = field(repr=False)
+
+
+def chemical_activation(model: AssociationModel, temperature_K: float, number_density_m3: float, *,
+                        collision_rate_m3_s: float, delta_E_down_J_per_mol: float,
+                        product_rates_per_s: dict | None = None) -> ChemicalActivation:
+    """Chemically activated entry A + B -> AB* through the master equation, then AB* -> A + B (back),
+    -> products (``product_rates_per_s``: name -> k(E) [s^-1] on the adduct's grid) or stabilised.
+
+    The entry distribution is k_diss(E) rho(E) exp(-E/RT) (:meth:`AssociationModel.activation_distribution`);
+    the split into prompt reaction and stabilisation is the Bartis-Widom one of
+    :func:`tstrate.physics.master_equation.prompt_yields`. Without product channels the stabilised
+    fraction is k_assoc(T, [M]) / k_inf(T).
+    """
+    from tstrate.physics import master_equation as me
+
+    counts = model.rate.reactant.counts
+    name = model.adduct.name
+    well = me.Well(name, counts, collision_frequency_per_s=float(collision_rate_m3_s * number_density_m3),
+                   delta_E_down_J_per_mol=float(delta_E_down_J_per_mol))
+    back = f"{name} -> {model.fragments[0].name} + {model.fragments[1].name}"
+    reactions = [me.Reaction(back, name, None, np.asarray(model.rate.rate_per_s))]
+    for pname, k in (product_rates_per_s or {}).items():
+        k = np.asarray(k, dtype=float)
+        if k.shape != counts.shape:
+            raise InputError(f"product channel {pname!r}: k(E) needs one value per grain of the adduct "
+                             f"({counts.size}), got shape {k.shape}", field="product_rates_per_s")
+        reactions.append(me.Reaction(pname, name, None, k))
+    system = me.MasterEquation(model.rate.grain_J_per_mol, (well,), tuple(reactions))
+    rm = me.rate_matrix(system, float(temperature_K))
+    entry = model.activation_distribution([temperature_K])[0]
+    initial = me.initial_vector(system, rm, name, entry)
+    prompt, stabilised = me.prompt_yields(system, rm, initial)
+    return ChemicalActivation(float(temperature_K), float(number_density_m3), tuple(r.name for r in reactions),
+                              np.asarray(prompt), float(np.sum(stabilised)), entry)
