@@ -138,8 +138,8 @@ def test_chemical_activation_split_against_time_integration(species):
     from tstrate.physics.association import chemical_activation
 
     adduct, oh, so2 = species
-    model = association_ilt(adduct, (oh, so2), JPL_KINF, grain_cm1=20.0, rotation="k-active",
-                            energy_above_threshold_cm1=8000.0)
+    model = association_ilt(adduct, (oh, so2), JPL_KINF, grain_cm1=50.0, rotation="k-active",
+                            energy_above_threshold_cm1=5000.0)        # a small grid: the dense BDF is O(n^3)
     t, m = 250.0, 3e24
     z = float(coll.pair_collision_rate_m3_s([t], reactant_parameters(adduct), "N2")[0])
     ca = chemical_activation(model, t, m, collision_rate_m3_s=z, delta_E_down_J_per_mol=DELTA_E_DOWN)
