@@ -900,6 +900,22 @@ with falloff; the same fits as fits.json fits_at_each_pressure).""", _keys(
     ("rms deviation", PCT, "rms deviation"),
 ), "csv")
 
+_ASSOC_CSV = Document("tables/association_<name>.csv", "csv-tables.md", """\
+One table per barrierless association (only with [[association]]), one row per temperature and
+pressure. Rate constants per molecule in fixed units (not `rate_units`).""", _keys(
+    ("association", TEXT, "association name"),
+    ("T", K, "temperature"),
+    ("pressure", BAR, "pressure (empty for number densities)"),
+    ("[M]", PER_CM3, "bath-gas number density"),
+    ("k", "cm3 molecule-1 s-1", "k(T, p) of A + B -> AB"),
+    ("k_inf", "cm3 molecule-1 s-1", "high-pressure limit from the inverse-Laplace k(E) on the grain"),
+    ("k0", "cm6 molecule-2 s-1", "low-pressure limit"),
+    ("k0_reference", "cm6 molecule-2 s-1", "the evaluated k0 the study gives (empty without one)"),
+    ("k0 / k0_reference", ONE, "computed over evaluated k0"),
+    ("pressure_method", TEXT, "master-equation or strong-collision"),
+    ("adduct_rotation", TEXT, "active, k-active or spectator"),
+), "csv")
+
 _ISO_BETA_CSV = Document("tables/isotopes_beta.csv", "csv-tables.md", """\
 Beta factors (only with [isotopes]): one row per isotope, species and temperature.""", _keys(
     ("isotope", TEXT, "substitution label"),
@@ -1150,7 +1166,7 @@ _COMMANDS.append(_cmd("uncertainty", "Uncertainty and sensitivity of every resul
 
 DOCUMENTS: dict[str, Document] = {d.name: d for d in
                                   [_RESULTS, _INPUTS, _FITS, _FITS_CSV, _THERMO_CSV, _RATES_CSV,
-                                   _PFITS_CSV, _ISO_BETA_CSV, _ISO_KIE_CSV, _ISO_FRAC_CSV, _ISO_THETA_CSV,
+                                   _PFITS_CSV, _ASSOC_CSV, _ISO_BETA_CSV, _ISO_KIE_CSV, _ISO_FRAC_CSV, _ISO_THETA_CSV,
                                    _UNC_CSV, _UNC_RANK_CSV, _MECHANISM, *_COMMANDS]}
 
 PAGES = {
