@@ -40,8 +40,9 @@ Limitations (documented, not hidden)
   choice of RRKM with J conserved). The centrifugal barriers of a barrierless channel are not
   modelled.
 * k(E) is only as good as k_inf(T): its shape near threshold follows the temperature exponent n,
-  and an n fitted over a narrow range of T is extrapolated to all E. It is sensitive to n: a
-  change of n by 0.5 changes k(E) near threshold by a factor of order (E - D0)/RT0 ** 0.5.
+  and an n fitted over a narrow range of T is extrapolated to all E. It is sensitive to n: near
+  threshold k rho grows as (E - D0 - Ea)^(p-1), so a change of n by dn scales k(E) there by about
+  ((E - D0 - Ea) / R T0)^dn (times a ratio of Gamma functions).
 * The modified Arrhenius form must hold at all T for the transform to exist; in practice the
   result is meant for the temperatures k_inf was fitted over.
 * Unimolecular k_inf with n < 0 needs a fractional derivative (-1 < n < 0 only); it can be
