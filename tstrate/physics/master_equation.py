@@ -25,9 +25,10 @@ omega_w = Z_LJ [M] the collision frequency [s^-1] of well w and P_w its collisio
 
 Collisions (:func:`collision_matrix`)
 -------------------------------------
-* Exponential-down: P(E <- E') for E < E' proportional to exp(-(E' - E) / alpha(E')), with
-  alpha = <Delta E>down [J/mol], which may depend on T and on the starting energy E' (give one
-  number or one per grain).
+* Exponential-down: P(E <- E') for E < E' proportional to exp(-(E' - E) / a(E')), with a set so
+  that the grained kernel's mean downward step is alpha = <Delta E>down [J/mol] exactly,
+  a = -grain / ln(1 - grain / alpha) (the plain choice a = alpha adds grain/2 to the step). alpha
+  may depend on T and on the starting energy E' (give one number or one per grain).
 * Upward transitions from detailed balance, P(E' <- E) f(E) = P(E <- E') f(E'), f the
   Boltzmann distribution of the well; columns normalised from the top grain down so that each
   column holds probability one (Gilbert and Smith, *Theory of Unimolecular and Recombination
@@ -114,7 +115,8 @@ class Well:
     collision_frequency_per_s: omega = Z_LJ [M] [s^-1]; delta_E_down_J_per_mol: alpha of the
     exponential-down model [J/mol], a number or one per starting grain (n,); kernel
     "exponential" or "strong"; smoothing_grains: width of the smoothed density of the sparse-grain
-    remedy (1 turns it off).
+    remedy (0 automatic, 1 off); energies_J_per_mol (n,): the energy of each grain's states
+    (state-weighted grain energies, e.g. from :func:`merge_grains`; None: the grid energies).
     """
 
     name: str
@@ -123,8 +125,15 @@ class Well:
     delta_E_down_J_per_mol: float | np.ndarray = 0.0
     kernel: str = "exponential"
     smoothing_grains: int = 0
+    energies_J_per_mol: np.ndarray | None = field(default=None, repr=False)
 
     def __post_init__(self):
+        if self.energies_J_per_mol is not None:
+            e = np.array(self.energies_J_per_mol, dtype=float)
+            if e.shape != np.shape(self.counts) or np.any(~np.isfinite(e)):
+                raise InputError(f"well {self.name!r}: one grain energy per grain", field="energies_J_per_mol")
+            e.setflags(write=False)
+            object.__setattr__(self, "energies_J_per_mol", e)
         c = np.array(self.counts, dtype=float)
         if c.ndim != 1 or np.any(~np.isfinite(c)) or np.any(c < 0) or not np.any(c > 0):
             raise InputError(f"well {self.name!r}: counts must be non-negative numbers, some positive",
@@ -151,7 +160,7 @@ class Well:
         """A copy at another collision frequency (and <Delta E>down)."""
         a = self.delta_E_down_J_per_mol if delta_E_down_J_per_mol is None else delta_E_down_J_per_mol
         return Well(self.name, self.counts, float(collision_frequency_per_s), a, self.kernel,
-                    self.smoothing_grains)
+                    self.smoothing_grains, self.energies_J_per_mol)
 
 
 @dataclass(frozen=True)
@@ -255,17 +264,20 @@ class CollisionMatrix:
 
 
 def collision_matrix(counts, grain_J_per_mol: float, temperature_K: float, delta_E_down_J_per_mol=None, *,
-                     kernel: str = "exponential", smoothing_grains: int = 0) -> CollisionMatrix:
+                     kernel: str = "exponential", smoothing_grains: int = 0,
+                     energies_J_per_mol=None) -> CollisionMatrix:
     """The collision matrix of one well (see the module docstring).
 
     counts (n,) states per grain; delta_E_down_J_per_mol alpha [J/mol], a number or (n,) over the
     starting grain; smoothing_grains: width of the smoothed density the downward kernel accepts by
     (0: automatic, the smallest odd width that leaves no empty grain among the populated range
-    above the first state; 1: off).
+    above the first state; 1: off); energies_J_per_mol (n,) the grain energies (None: i * grain).
     """
     c = np.asarray(counts, dtype=float)
     grains = np.flatnonzero(c > 0)
-    e = grains * float(grain_J_per_mol)
+    e_all = (np.arange(c.size) * float(grain_J_per_mol) if energies_J_per_mol is None
+             else np.asarray(energies_J_per_mol, dtype=float))
+    e = e_all[grains]
     log_f = np.log(c[grains]) - e / (R * float(temperature_K))
     f = np.exp(log_f - log_f.max())
     f /= f.sum()
@@ -274,6 +286,14 @@ def collision_matrix(counts, grain_J_per_mol: float, temperature_K: float, delta
         p = np.repeat(f[:, None], m, axis=1)
         return CollisionMatrix(grains, p, f, 1.0)
     alpha = np.broadcast_to(np.asarray(delta_E_down_J_per_mol, dtype=float), c.shape)[grains]
+    # the grained kernel exp(-j grain / a), j = 1, 2, ... has the mean downward step
+    # grain / (1 - exp(-grain / a)); choosing a = -grain / ln(1 - grain / alpha) makes it alpha
+    # exactly (on an unbounded grid), so coarser grains do not raise the energy transfer by grain/2
+    dg = float(grain_J_per_mol)
+    if np.any(alpha <= dg):
+        raise InputError(f"<Delta E>down ({alpha.min():.4g} J/mol) must exceed the grain ({dg:.4g} J/mol)",
+                         field="delta_E_down_J_per_mol", hint="use a finer grain")
+    alpha = -dg / np.log1p(-dg / alpha)
     width = int(smoothing_grains)
     if width == 0:
         gaps = np.diff(grains)
@@ -352,11 +372,12 @@ def rate_matrix(system: MasterEquation, temperature_K: float) -> RateMatrix:
     start = 0
     for w in system.wells:
         cm = collision_matrix(w.counts, g, t, w.delta_E_down_J_per_mol, kernel=w.kernel,
-                              smoothing_grains=w.smoothing_grains)
+                              smoothing_grains=w.smoothing_grains, energies_J_per_mol=w.energies_J_per_mol)
         blocks.append(cm)
         offsets.append(start)
         start += cm.grains.size
-        log_w.append(boltzmann_weights(w.counts[cm.grains], e_grid[cm.grains], t))
+        e_w = e_grid if w.energies_J_per_mol is None else w.energies_J_per_mol
+        log_w.append(boltzmann_weights(w.counts[cm.grains], e_w[cm.grains], t))
         max_sums.append(cm.max_column_sum)
     n = start
     lw = np.concatenate(log_w)
@@ -586,6 +607,8 @@ def precise_eigen(rm: RateMatrix, n_chemical: int, *, tol: float = 1e-13, max_it
         q[:, 1:n_chemical] -= np.outer(g0, g0 @ q[:, 1:n_chemical])
         q[:, 1:n_chemical], _ = np.linalg.qr(q[:, 1:n_chemical])
     relax = float(mu[n_chemical]) if mu.size > n_chemical else math.nan
+    if not relax > mu[n_chemical - 1]:      # the guard vectors did not settle: unknown
+        relax = math.nan
     return EigenPairs(mu[:n_chemical], q[:, :n_chemical], relax)
 
 
@@ -732,3 +755,111 @@ def chemical_activation_distribution(counts, rate_per_s, grain_J_per_mol: float,
         raise InputError("the entrance channel has k(E) = 0 everywhere", field="rate_per_s")
     w = np.exp(lw - lw[np.isfinite(lw)].max())
     return w / w.sum()
+
+
+# ---------------------------------------------------------------- one well: falloff on a grid
+def merge_grains(counts, rate_per_s, grain_J_per_mol: float, factor: int, temperature_K: float,
+                 n_grains: int | None = None, boundary: int = 0) -> tuple[np.ndarray, np.ndarray, np.ndarray]:
+    """Merge ``factor`` fine grains into one: (counts (m,), grain energies (m,) [J/mol], k (m,) [s^-1]).
+
+    The merged grain's energy is E = -RT ln(sum c e^{-E/RT} / sum c) and its k the Boltzmann
+    average of the fine k(E), so the thermal distribution and the high-pressure rate sum_E f k of the
+    fine grid are kept exactly at ``temperature_K`` (state-weighted grain energies; a state-centred
+    grid would shift the ground state and bias k_inf by 1-2.5 % at 200 K). A merged grain starts at
+    the fine grain ``boundary`` (give the barrier's, so that no merged grain straddles the
+    threshold); ``n_grains`` cuts the fine grid first (the energy ceiling).
+    """
+    c = np.asarray(counts, dtype=float)
+    k = np.asarray(rate_per_s, dtype=float)
+    n = c.size if n_grains is None else min(int(n_grains), c.size)
+    c, k = c[:n], k[:n]
+    e = np.arange(n) * float(grain_J_per_mol)
+    r = max(1, int(factor))
+    shift = (r - int(boundary) % r) % r
+    label = (np.arange(n) + shift) // r
+    label -= label[0]
+    m = int(label[-1]) + 1
+    starts = np.searchsorted(label, np.arange(m))
+    rt = R * float(temperature_K)
+    e_ref = e[starts][label]
+    w = c * np.exp(-(e - e_ref) / rt)                      # relative to the merged grain's bottom
+    ws = np.bincount(label, w, m)
+    cs = np.bincount(label, c, m)
+    wk = np.bincount(label, w * k, m)
+    with np.errstate(divide="ignore", invalid="ignore"):
+        energies = np.where(cs > 0, e[starts] - rt * np.log(ws / np.where(cs > 0, cs, 1.0)), e[starts])
+        k_m = np.where(ws > 0, wk / np.where(ws > 0, ws, 1.0), 0.0)
+    return cs, energies, k_m
+
+
+@dataclass(frozen=True)
+class FalloffME:
+    """k(T, [M]) of one well reacting to products, from its master equation.
+
+    rate_per_s (n_T, n_M) [s^-1]; high_pressure_per_s (n_T) [s^-1] = sum_E f k; low_pressure_m3_s
+    (n_T) [m^3 s^-1]: -lambda / [M] at omega = :data:`LOW_PRESSURE_OMEGA_FRACTION` k(E0);
+    separation (n_T, n_M): slowest relaxation / chemical eigenvalue; grain_J_per_mol and
+    top_J_per_mol: the merged grain and the energy ceiling used; n_grains.
+    """
+
+    rate_per_s: np.ndarray = field(repr=False)
+    high_pressure_per_s: np.ndarray = field(repr=False)
+    low_pressure_m3_s: np.ndarray = field(repr=False)
+    separation: np.ndarray = field(repr=False)
+    grain_J_per_mol: float
+    top_J_per_mol: float
+    n_grains: int
+
+
+#: the low-pressure limit is taken at this fraction of k(E) at the barrier's grain as collision frequency
+LOW_PRESSURE_OMEGA_FRACTION = 1e-6
+
+
+def _single_well_rate(p_off: np.ndarray, leak: np.ndarray, f: np.ndarray, omega: float) -> tuple[float, float]:
+    """(-lambda_1, slowest relaxation estimate) of one well at collision frequency omega."""
+    n = leak.size
+    rm = RateMatrix(omega * p_off, leak, f, np.zeros(n, dtype=int), np.arange(n), leak[None, :], ())
+    eig = precise_eigen(rm, 1)
+    return float(eig.rates_per_s[0]), float(eig.relaxation_per_s)
+
+
+def single_well_falloff(counts, rate_per_s, grain_J_per_mol: float, barrier_index: int, temperature_K,
+                        number_density_m3, collision_rate_m3_s, delta_E_down_J_per_mol=None, *,
+                        merge: int = 1, top_J_per_mol: float | None = None) -> FalloffME:
+    """k(T, [M]) [s^-1] of a well with one loss k(E) (``rate_per_s`` on the fine grid of
+    ``counts``), by the master equation with the non-subtracting solver.
+
+    temperature_K (n_T,); number_density_m3 (n_T, n_M) [m^-3]; collision_rate_m3_s Z_LJ (n_T,)
+    [m^3 s^-1]; delta_E_down_J_per_mol (n_T,) [J/mol] (None: strong collisions);
+    merge: fine grains per master-equation grain (:func:`merge_grains`); top_J_per_mol: the energy
+    ceiling (None: the whole grid).
+    """
+    t = np.atleast_1d(np.asarray(temperature_K, dtype=float))
+    m = np.asarray(number_density_m3, dtype=float)
+    z = np.broadcast_to(np.asarray(collision_rate_m3_s, dtype=float), t.shape)
+    strong = delta_E_down_J_per_mol is None
+    alpha = None if strong else np.broadcast_to(np.asarray(delta_E_down_J_per_mol, dtype=float), t.shape)
+    n_fine = np.asarray(counts).size
+    n_cut = n_fine if top_J_per_mol is None else min(n_fine, int(top_J_per_mol / grain_J_per_mol) + 1)
+    out = np.zeros(m.shape)
+    sep = np.zeros(m.shape)
+    k_inf = np.zeros(t.size)
+    k0 = np.zeros(t.size)
+    n_used = 0
+    for i, ti in enumerate(t):
+        c, e, k = merge_grains(counts, rate_per_s, grain_J_per_mol, merge, ti, n_cut, barrier_index)
+        cm = collision_matrix(c, grain_J_per_mol * merge, ti, None if strong else alpha[i],
+                              kernel="strong" if strong else "exponential", energies_J_per_mol=e)
+        p = cm.matrix.copy()
+        np.fill_diagonal(p, 0.0)
+        leak = k[cm.grains]
+        f = cm.distribution
+        n_used = cm.grains.size
+        k_inf[i] = float(f @ leak)
+        for j, mj in enumerate(m[i]):
+            out[i, j], relax = _single_well_rate(p, leak, f, z[i] * mj)
+            sep[i, j] = relax / out[i, j] if out[i, j] > 0 else math.nan
+        kb = float(k[min(int(np.searchsorted(e, barrier_index * grain_J_per_mol - 1e-9)), k.size - 1)])
+        omega0 = LOW_PRESSURE_OMEGA_FRACTION * kb if kb > 0 else 1e-6
+        k0[i] = _single_well_rate(p, leak, f, omega0)[0] / (omega0 / z[i])
+    return FalloffME(out, k_inf, k0, sep, grain_J_per_mol * merge, (n_cut - 1) * grain_J_per_mol, n_used)
