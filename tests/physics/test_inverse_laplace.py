@@ -154,3 +154,20 @@ def test_activation_distribution_starts_at_the_threshold():
     # mean energy above D0: of order (p + 1) RT for a flux growing like (E - D0)^p ... times Boltzmann
     mean = (f * (e - model.well_depth_J_per_mol)).sum()
     assert 2 * R * 250 < mean < 8 * R * 250
+
+
+@pytest.mark.parametrize("rotation", ["active", "k-active", "spectator"])
+def test_free_internal_rotor_of_the_adduct_stays_active(tmp_path, rotation):
+    # the OH torsion of HOSO2 as a free rotor (moment of OH about the S-O axis, about 0.85 u A^2,
+    # assumed): detailed balance must still hold, whatever the overall rotation does
+    path = tmp_path / "hoso2_rotor.toml"
+    path.write_text((OH_SO2 / "hoso2.toml").read_text()
+                    + "\n[[free_rotors]]\nreplaces_cm1 = 262.0\nsymmetry_number = 1\nreduced_moment_amu_A2 = 0.85\n")
+    adduct = read_species(path)
+    oh, so2 = read_species(OH_SO2 / "oh.toml"), read_species(OH_SO2 / "so2.toml")
+    k_inf = ModifiedArrhenius(1.7e-18, 0.2, 0.0, 300.0)
+    model = association_ilt(adduct, (oh, so2), k_inf, grain_cm1=2.0, rotation=rotation,
+                            energy_above_threshold_cm1=6000.0)
+    t = np.array([200.0, 300.0])
+    kc = np.exp(model.ln_equilibrium_constant_m3(t))
+    assert np.allclose(model.high_pressure_dissociation_per_s(t) * kc / k_inf.rate(t), 1.0, rtol=2e-3)

@@ -265,6 +265,16 @@ def classical_rotor_part(species: Species) -> tuple[float, float]:
     return dim, ln_q - 0.5 * dim * math.log(R * 1000.0)
 
 
+def internal_rotor_part(species: Species) -> tuple[float, float]:
+    """(dimension, ln C) of the declared free internal rotors alone (see :func:`classical_rotor_part`)."""
+    from tstrate.physics.thermo import internal_free_rotor
+
+    t = np.array([1000.0])
+    dim = float(len(species.free_rotors))
+    ln_q = sum(float(internal_free_rotor(r.moment_kg_m2, r.symmetry_number, t)[0][0]) for r in species.free_rotors)
+    return dim, ln_q - 0.5 * dim * math.log(R * 1000.0)
+
+
 def relative_translation_part(first: Species, second: Species) -> float:
     """ln C of the relative translation per volume, (2 pi mu kT / h^2)^(3/2) = C (RT)^(3/2) [m^-3]."""
     mu = first.mass_kg * second.mass_kg / (first.mass_kg + second.mass_kg)
@@ -390,9 +400,9 @@ def association_ilt(adduct: Species, fragments: tuple[Species, Species], k_inf: 
     # adduct: vibrations and electronic levels, with its rotors when active
     ad = vibronic_counts(adduct, e_top, g)
     d_ad, ln_c_ad = classical_rotor_part(adduct)
+    d_int, ln_c_int = internal_rotor_part(adduct)          # free internal rotors: always active
     if rotation == "active":
-        ad = StateCounts(g, convolve_counts(ad.counts, rotor_counts(d_ad, ln_c_ad, ad.n_grains, g)))
-        d_spect, ln_spect = 0.0, 0.0
+        d_act, ln_act = d_ad, ln_c_ad
     elif rotation == "k-active" and not adduct.linear and not adduct.is_atom:
         # the K-rotor (unique axis, classical 1-D, constant A or C) active, the 2-D rotor a spectator:
         # Q_K = sqrt(pi RT / B_K), and Q_3D / Q_K is the spectator part (exact for classical rotors)
@@ -400,10 +410,14 @@ def association_ilt(adduct: Species, fragments: tuple[Species, Species], k_inf: 
 
         b_k = split_rotation(adduct).K_cm1 * CM1_J_PER_MOL
         ln_c_k = 0.5 * math.log(math.pi / b_k)
-        ad = StateCounts(g, convolve_counts(ad.counts, rotor_counts(1.0, ln_c_k, ad.n_grains, g)))
-        d_spect, ln_spect = d_ad - 1.0, ln_c_ad - ln_c_k
+        d_act, ln_act = d_int + 1.0, ln_c_int + ln_c_k
     else:
-        d_spect, ln_spect = d_ad, ln_c_ad
+        d_act, ln_act = d_int, ln_c_int
+    if d_act > 0:
+        ad = StateCounts(g, convolve_counts(ad.counts, rotor_counts(d_act, ln_act, ad.n_grains, g)))
+    elif ln_act != 0.0:
+        ad = StateCounts(g, ad.counts * math.exp(ln_act))
+    d_spect, ln_spect = d_ad - d_act, ln_c_ad - ln_act
 
     # fragments: vibrations and electronic levels convolved; rotors and translation in the power
     span = e_top - d0 + g

@@ -82,7 +82,13 @@ def association_result(study: Study, spec: AssociationSpec, bath: coll.LennardJo
                                 energy_above_threshold_cm1=spec.energy_above_threshold_cm1,
                                 rotation=spec.adduct_rotation)
     except InputError as exc:
-        raise exc.within(file=study.file, prefix="association") from None
+        if exc.file is not None:          # a species file's value (e.g. an adduct above its fragments)
+            raise
+        index = list(study.sections.get("association") or ()).index(spec)
+        key = {"temperature_exponent": "k_inf_temperature_exponent", "rotation": "adduct_rotation"}.get(
+            exc.field or "", exc.field)
+        raise InputError(f"{where}: {exc.problem}", file=study.file,
+                         field=f"association[{index}]" + (f".{key}" if key else ""), hint=exc.hint) from None
     if cond.pressure_Pa.size:
         pressures = np.asarray(cond.pressure_Pa, dtype=float)
         m = number_density_m3(pressures[None, :], t[:, None])
