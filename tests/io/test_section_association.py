@@ -81,3 +81,27 @@ def test_run_writes_the_association_table_and_matches_the_physics(tmp_path, caps
                        rtol=1e-9)
     ratio = float(rows[0]["k0 / k0_reference [1]"])
     assert 1 / 3 < ratio < 3          # JPL 19-5 k0 at 250 K (the physics test gives 1.06)
+
+
+def test_strong_collision_method_through_the_study(tmp_path):
+    # the quick estimate: strong collisions scaled by Troe's beta_c (Troe 1977) from the same <dE>down
+    from tstrate.study.associations import study_associations
+
+    path = _copy(tmp_path, {'pressure_method = "master-equation"': 'pressure_method = "strong-collision"'})
+    (ar,) = study_associations(read_study(path))
+    assert ar.falloff.method == "strong-collision"
+    assert 0.0 < ar.falloff.efficiency[0] < 1.0
+    assert 1 / 3 < ar.k0_ratio[0] < 3
+    assert np.all(np.diff(ar.falloff.rate_m3_per_s[0]) > 0)
+
+
+def test_an_adduct_above_its_fragments_is_refused_naming_its_file(tmp_path):
+    path = _copy(tmp_path)
+    hoso2 = path.parent / "hoso2.toml"
+    text = hoso2.read_text()
+    hoso2.write_text(text.replace("energy = { value = -166.8740", "energy = { value = 66.8740"))
+    from tstrate.study.associations import study_associations
+
+    with pytest.raises(InputError, match="a barrierless association needs a bound adduct") as info:
+        study_associations(read_study(path))
+    assert str(hoso2) in str(info.value) and "[energy]" in str(info.value)
