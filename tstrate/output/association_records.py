@@ -11,7 +11,6 @@ from __future__ import annotations
 
 import numpy as np
 
-from tstrate.units import K_B
 
 _BAR = 1e5
 
