@@ -88,7 +88,7 @@ def run(args) -> int:
                 f"to {ar.falloff.k0_m6_per_s[-1] * 1e12:.3g} cm6 molecule-2 s-1 over {t[0]:g}-{t[-1]:g} K")
         if ratio is not None:
             line += f", {ratio.min():.2f}-{ratio.max():.2f} x the evaluated k0"
-        print(line + f" (tables/association_*.csv)")
+        print(line + " (tables/association_*.csv)")
     for cf in result.fits.channels:
         kind = cf.mechanism_kind
         if kind.startswith("chebyshev"):

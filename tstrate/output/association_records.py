@@ -11,7 +11,6 @@ from __future__ import annotations
 
 import numpy as np
 
-
 _BAR = 1e5
 
 #: the header of tables/association_<name>.csv
