@@ -16,7 +16,7 @@ _BAR = 1e5
 #: the header of tables/association_<name>.csv
 HEADER = ["association", "T [K]", "pressure [bar]", "[M] [molecule cm-3]", "k [cm3 molecule-1 s-1]",
           "k_inf [cm3 molecule-1 s-1]", "k0 [cm6 molecule-2 s-1]", "k0_reference [cm6 molecule-2 s-1]",
-          "k0 / k0_reference [1]", "pressure_method [text]", "adduct_rotation [text]"]
+          "k0 / k0_reference [1]", "pressure_method", "adduct_rotation"]
 
 
 def association_rows(ar) -> list[list]:
