@@ -150,7 +150,7 @@ def study_data() -> dict:
     data["association"] = [
         {"name": "OH + SO2", "reactants": ["OH", "SO2"], "adduct": "HOSO2", "k_inf_cm3_per_molecule_s": 1.7e-12,
          "k_inf_temperature_exponent": 0.2, "k_inf_reference_temperature_K": 300.0,
-         "k_inf_activation_energy_kJ_per_mol": 0.5, "pressure_method": "strong-collision",
+         "k_inf_activation_energy_kJ_per_mol": 0.5, "pressure_method": "strong_collision",
          "adduct_rotation": "spectator", "delta_E_down_cm1": 300.0, "delta_E_temperature_exponent": -0.5,
          "grain_cm1": 25.0, "energy_above_threshold_cm1": 6000.0, "temperature_K": [220.0, 260.0],
          "reference_k0_cm6_per_molecule2_s": 2.9e-31, "reference_k0_temperature_exponent": -4.1,
@@ -311,7 +311,7 @@ def test_study_files_with_every_key_are_read(tmp_path):
     (assoc,) = st.sections["association"]
     assert (assoc.k_inf_A_m3_per_s, assoc.k_inf_activation_energy_J_per_mol, assoc.reference_k0_m6_per_s) == (
         pytest.approx(1.7e-18), pytest.approx(500.0), pytest.approx(2.9e-43))
-    assert (assoc.adduct_rotation, assoc.pressure_method, assoc.temperature_K) == ("spectator", "strong-collision",
+    assert (assoc.adduct_rotation, assoc.pressure_method, assoc.temperature_K) == ("spectator", "strong_collision",
                                                                                   (220.0, 260.0))
 
 

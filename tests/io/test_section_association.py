@@ -40,7 +40,7 @@ def test_example_is_read_in_SI(tmp_path):
     assert spec.reactants == ("OH", "SO2") and spec.adduct == "HOSO2"
     assert spec.k_inf_A_m3_per_s == pytest.approx(1.7e-18)
     assert spec.reference_k0_m6_per_s == pytest.approx(2.9e-43)
-    assert spec.pressure_method == "master-equation" and spec.adduct_rotation == "k-active"
+    assert spec.pressure_method == "master_equation" and spec.adduct_rotation == "k_active"
     assert spec.delta_E_down_J_per_mol([300.0])[0] == pytest.approx(250 * 11.9627, rel=1e-4)
 
 
@@ -48,7 +48,7 @@ def test_example_is_read_in_SI(tmp_path):
     ('k_inf_temperature_exponent = 0.2 ', 'k_inf_temperature_exponent = -3.0 ',
      "association[0].k_inf_temperature_exponent", "outside"),
     ('adduct = "HOSO2"', 'adduct = "H2SO4"', "association[0].adduct", "unknown species"),
-    ('pressure_method = "master-equation"', 'pressure_method = "lindemann"', "association[0].pressure_method",
+    ('pressure_method = "master_equation"', 'pressure_method = "lindemann"', "association[0].pressure_method",
      "unknown pressure method"),
     ('k_inf_cm3_per_molecule_s = 1.7e-12 ', 'k_inf_cm3_per_molecule_s = -1.7e-12 ',
      "association[0].k_inf_cm3_per_molecule_s", "positive"),
@@ -68,7 +68,7 @@ def test_run_writes_the_association_table_and_matches_the_physics(tmp_path, caps
     out = tmp_path / "out"
     assert main(["run", str(path), "-o", str(out)]) == 0
     printed = capsys.readouterr().out
-    assert "OH + SO2 (barrierless, master-equation)" in printed and "x the evaluated k0" in printed
+    assert "OH + SO2 (barrierless, master_equation)" in printed and "x the evaluated k0" in printed
     rows = list(csv.DictReader((out / "tables" / "association_OH___SO2.csv").open()))
     assert [float(r["pressure [bar]"]) for r in rows] == [1e-3, 1.0]
     assert (out / "plots" / "association_OH___SO2.png").is_file()
@@ -87,9 +87,9 @@ def test_strong_collision_method_through_the_study(tmp_path):
     # the quick estimate: strong collisions scaled by Troe's beta_c (Troe 1977) from the same <dE>down
     from tstrate.study.associations import study_associations
 
-    path = _copy(tmp_path, {'pressure_method = "master-equation"': 'pressure_method = "strong-collision"'})
+    path = _copy(tmp_path, {'pressure_method = "master_equation"': 'pressure_method = "strong_collision"'})
     (ar,) = study_associations(read_study(path))
-    assert ar.falloff.method == "strong-collision"
+    assert ar.falloff.method == "strong_collision"
     assert 0.0 < ar.falloff.efficiency[0] < 1.0
     assert 1 / 3 < ar.k0_ratio[0] < 3
     assert np.all(np.diff(ar.falloff.rate_m3_per_s[0]) > 0)

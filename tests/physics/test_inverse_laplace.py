@@ -127,7 +127,7 @@ def test_atom_pair_against_the_closed_form():
     assert np.allclose(flux, expected, rtol=2e-3)
 
 
-@pytest.mark.parametrize("rotation", ["active", "k-active", "spectator"])
+@pytest.mark.parametrize("rotation", ["active", "k_active", "spectator"])
 def test_association_obeys_detailed_balance_with_canonical_kc(rotation):
     adduct = read_species(OH_SO2 / "hoso2.toml")
     oh, so2 = read_species(OH_SO2 / "oh.toml"), read_species(OH_SO2 / "so2.toml")
@@ -156,7 +156,7 @@ def test_activation_distribution_starts_at_the_threshold():
     assert 2 * R * 250 < mean < 8 * R * 250
 
 
-@pytest.mark.parametrize("rotation", ["active", "k-active", "spectator"])
+@pytest.mark.parametrize("rotation", ["active", "k_active", "spectator"])
 def test_free_internal_rotor_of_the_adduct_stays_active(tmp_path, rotation):
     # the OH torsion of HOSO2 as a free rotor (moment of OH about the S-O axis, about 0.85 u A^2,
     # assumed): detailed balance must still hold, whatever the overall rotation does

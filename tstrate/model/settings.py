@@ -221,10 +221,10 @@ class ExcitationSpec:
 
 
 #: how a barrierless association's k(T, [M]) is found (see :mod:`tstrate.physics.association`)
-ASSOCIATION_PRESSURE_METHODS = ("master-equation", "strong-collision")
+ASSOCIATION_PRESSURE_METHODS = ("master_equation", "strong_collision")
 #: how the adduct's overall rotation enters its density of states (see
 #: :mod:`tstrate.physics.inverse_laplace`)
-ADDUCT_ROTATIONS = ("active", "k-active", "spectator")
+ADDUCT_ROTATIONS = ("active", "k_active", "spectator")
 
 
 @dataclass(frozen=True)
@@ -251,7 +251,7 @@ class AssociationSpec:
     k_inf_temperature_exponent: float = 0.0
     k_inf_reference_temperature_K: float = 300.0
     k_inf_activation_energy_J_per_mol: float = 0.0
-    pressure_method: str = "master-equation"
+    pressure_method: str = "master_equation"
     adduct_rotation: str = "active"
     delta_E_down_cm1: float | None = None
     delta_E_temperature_exponent: float = 0.0
@@ -296,9 +296,9 @@ class AssociationSpec:
         if self.delta_E_down_cm1 is not None and not (math.isfinite(self.delta_E_down_cm1)
                                                        and self.delta_E_down_cm1 > 0):
             raise bad("delta_E_down_cm1", f"<dE>down must be positive, got {self.delta_E_down_cm1!r}")
-        if self.delta_E_down_cm1 is None and self.pressure_method == "master-equation":
+        if self.delta_E_down_cm1 is None and self.pressure_method == "master_equation":
             raise bad("delta_E_down_cm1", "the master equation needs <dE>down",
-                      hint="give delta_E_down_cm1 or pressure_method = \"strong-collision\"")
+                      hint="give delta_E_down_cm1 or pressure_method = \"strong_collision\"")
         if not math.isfinite(self.delta_E_temperature_exponent):
             raise bad("delta_E_temperature_exponent", "must be a number")
         if self.temperature_K is not None:

@@ -912,8 +912,8 @@ pressure. Rate constants per molecule in fixed units (not `rate_units`).""", _ke
     ("k0", "cm6 molecule-2 s-1", "low-pressure limit"),
     ("k0_reference", "cm6 molecule-2 s-1", "the evaluated k0 the study gives (empty without one)"),
     ("k0 / k0_reference", ONE, "computed over evaluated k0"),
-    ("pressure_method", TEXT, "master-equation or strong-collision"),
-    ("adduct_rotation", TEXT, "active, k-active or spectator"),
+    ("pressure_method", TEXT, "master_equation or strong_collision"),
+    ("adduct_rotation", TEXT, "active, k_active or spectator"),
 ), "csv")
 
 _ISO_BETA_CSV = Document("tables/isotopes_beta.csv", "csv-tables.md", """\

@@ -11,11 +11,11 @@ so k_assoc -> k_inf(T) (the input) at high pressure, and k_assoc -> k0 [M] at lo
 k0 = Kc k0_diss [m^6 molecule^-2 s^-1].
 
 Methods for k_diss(T, [M]):
-* "strong-collision": the strong-collision sum scaled by Troe's weak-collision efficiency beta_c
+* "strong_collision": the strong-collision sum scaled by Troe's weak-collision efficiency beta_c
   (:func:`tstrate.physics.falloff.strong_collision_falloff`), beta_c from <Delta E>down and F_E
   (:func:`tstrate.physics.collisions.collision_efficiency`). A stepping stone: it has both limits
   right but not the shape between them.
-* "master-equation": the energy-grained master equation of the adduct (one well, the
+* "master_equation": the energy-grained master equation of the adduct (one well, the
   dissociation as its loss; exponential-down collisions with <Delta E>down;
   :mod:`tstrate.physics.master_equation`), k_diss(T, [M]) its chemically significant eigenvalue
   (Bartis and Widom 1974). k0 is read off at a number density low enough for the linear regime
@@ -37,7 +37,7 @@ from tstrate.physics.falloff import strong_collision_falloff
 from tstrate.physics.inverse_laplace import AssociationModel
 
 #: pressure methods for a barrierless association
-ASSOCIATION_METHODS = ("strong-collision", "master-equation")
+ASSOCIATION_METHODS = ("strong_collision", "master_equation")
 
 #: [M] [m^-3] at which the master equation's k_diss / [M] is taken as the low-pressure limit
 #: (about 4e-6 bar at 300 K; k_diss is linear in [M] there to well under 1 % for a 5-atom adduct)
@@ -65,7 +65,7 @@ class AssociationFalloff:
     efficiency: np.ndarray = field(repr=False)
     energy_factor: np.ndarray = field(repr=False)
     ln_kc_m3: np.ndarray = field(repr=False)
-    method: str = "strong-collision"
+    method: str = "strong_collision"
 
 
 def _smoothed_density(model: AssociationModel) -> np.ndarray:
@@ -89,7 +89,7 @@ def weak_collision_efficiency(model: AssociationModel, temperature_K, delta_E_do
 
 def association_falloff(model: AssociationModel, temperature_K, number_density_m3, *,
                         collision_rate_m3_s, delta_E_down_J_per_mol=None, collision_efficiency=None,
-                        method: str = "strong-collision") -> AssociationFalloff:
+                        method: str = "strong_collision") -> AssociationFalloff:
     """k_assoc(T, [M]) [m^3 s^-1] on a T x [M] grid.
 
     Parameters
@@ -108,7 +108,7 @@ def association_falloff(model: AssociationModel, temperature_K, number_density_m
     z = per_temperature(collision_rate_m3_s, t, "collision_rate_m3_s")
     if delta_E_down_J_per_mol is not None and collision_efficiency is not None:
         raise InputError("give <Delta E>down or a collision efficiency, not both", field="delta_E_down")
-    if method == "master-equation":
+    if method == "master_equation":
         if delta_E_down_J_per_mol is None:
             raise InputError("the master equation needs <Delta E>down", field="delta_E_down")
         return _master_equation_falloff(model, t, number_density_m3, z,
@@ -160,7 +160,7 @@ def _master_equation_falloff(model: AssociationModel, t: np.ndarray, number_dens
         low = LOW_PRESSURE_NUMBER_DENSITY_M3
         k0[i] = kc[i] * master_equation_dissociation(model, ti, [low], z[i], de[i])[0] / low
     return AssociationFalloff(model, t, np.array(m), rate, k_inf, k0, z, np.full(t.size, np.nan),
-                              np.full(t.size, np.nan), ln_kc, "master-equation")
+                              np.full(t.size, np.nan), ln_kc, "master_equation")
 
 
 @dataclass(frozen=True)

@@ -36,7 +36,7 @@ Limitations (documented, not hidden)
   active (convolved into rho_AB: all its rotational energy is available for dissociation, which
   overstates the rotational factor of the low-pressure limit), left as a spectator (its partition
   function divides out: no rotational energy is available, which understates it), or, in between,
-  "k-active": the K-rotor about the unique axis active and the 2-D rotor a spectator (the usual
+  "k_active": the K-rotor about the unique axis active and the 2-D rotor a spectator (the usual
   choice of RRKM with J conserved). The centrifugal barriers of a barrierless channel are not
   modelled.
 * k(E) is only as good as k_inf(T): its shape near threshold follows the temperature exponent n,
@@ -74,7 +74,7 @@ from tstrate.units import C, H, K_B, N_A, R
 log = logging.getLogger(__name__)
 
 #: how the adduct's overall rotation enters its density of states
-ROTATION_TREATMENTS = ("active", "k-active", "spectator")
+ROTATION_TREATMENTS = ("active", "k_active", "spectator")
 
 
 # ---------------------------------------------------------------- the rate form
@@ -368,7 +368,7 @@ def association_ilt(adduct: Species, fragments: tuple[Species, Species], k_inf: 
     max_temperature_K, energy_above_threshold_cm1:
         The grid reaches D0 plus max(20000 cm^-1, 80 k_B T_max) unless the span is given.
     rotation:
-        "active" (the adduct's external rotor convolved into its density), "k-active" (only its
+        "active" (the adduct's external rotor convolved into its density), "k_active" (only its
         K-rotor) or "spectator".
     """
     from tstrate.physics.tst import zpe_level_J_per_mol
@@ -403,7 +403,7 @@ def association_ilt(adduct: Species, fragments: tuple[Species, Species], k_inf: 
     d_int, ln_c_int = internal_rotor_part(adduct)          # free internal rotors: always active
     if rotation == "active":
         d_act, ln_act = d_ad, ln_c_ad
-    elif rotation == "k-active" and not adduct.linear and not adduct.is_atom:
+    elif rotation == "k_active" and not adduct.linear and not adduct.is_atom:
         # the K-rotor (unique axis, classical 1-D, constant A or C) active, the 2-D rotor a spectator:
         # Q_K = sqrt(pi RT / B_K), and Q_3D / Q_K is the spectator part (exact for classical rotors)
         from tstrate.physics.unimolecular import split_rotation

@@ -15,7 +15,7 @@ adduct's species file needs ``lennard_jones``::
     k_inf_temperature_exponent = 0.2          # n
     k_inf_reference_temperature_K = 300       # T0
     k_inf_activation_energy_kJ_per_mol = 0    # Ea
-    pressure_method = "master-equation"       # or "strong-collision"
+    pressure_method = "master_equation"       # or "strong_collision"
     adduct_rotation = "active"                # or "spectator"
     delta_E_down_cm1 = 250
     reference_k0_cm6_per_molecule2_s = 2.9e-31    # an evaluated k0 (T / 300 K)^m to compare with
@@ -61,7 +61,7 @@ KEYS = Keys(("association", "[]"), "[[association]]",
                     "of the adduct, or strong collisions scaled by Troe's weak-collision efficiency",
                     default=_default("pressure_method"), choices=ASSOCIATION_PRESSURE_METHODS),
                 Key("adduct_rotation", "string", "the adduct's overall rotation in its density of states: "
-                    "active (all rotational energy available to dissociation), k-active (the K-rotor about "
+                    "active (all rotational energy available to dissociation), k_active (the K-rotor about "
                     "the unique axis only) or spectator (none); active and spectator bracket the "
                     "low-pressure limit",
                     default=_default("adduct_rotation"), choices=ADDUCT_ROTATIONS),
