@@ -265,13 +265,15 @@ class CollisionMatrix:
 
 def collision_matrix(counts, grain_J_per_mol: float, temperature_K: float, delta_E_down_J_per_mol=None, *,
                      kernel: str = "exponential", smoothing_grains: int = 0,
-                     energies_J_per_mol=None) -> CollisionMatrix:
+                     energies_J_per_mol=None, lowest_column: int = 0) -> CollisionMatrix:
     """The collision matrix of one well (see the module docstring).
 
     counts (n,) states per grain; delta_E_down_J_per_mol alpha [J/mol], a number or (n,) over the
     starting grain; smoothing_grains: width of the smoothed density the downward kernel accepts by
     (0: automatic, the smallest odd width that leaves no empty grain among the populated range
-    above the first state; 1: off); energies_J_per_mol (n,) the grain energies (None: i * grain).
+    above the first state; 1: off); energies_J_per_mol (n,) the grain energies (None: i * grain);
+    lowest_column: grid index below which columns are not normalised (their grains are lumped
+    into a reservoir by the caller; the columns above do not depend on them).
     """
     c = np.asarray(counts, dtype=float)
     grains = np.flatnonzero(c > 0)
@@ -310,7 +312,8 @@ def collision_matrix(counts, grain_J_per_mol: float, temperature_K: float, delta
     # ratio f_j / f_i for the upward probabilities P[j, i] = P[i, j] f_j / f_i (i < j)
     p = np.zeros((m, m))
     max_sum = 0.0
-    for j in range(m - 1, -1, -1):
+    j_stop = int(np.searchsorted(grains, int(lowest_column)))
+    for j in range(m - 1, j_stop - 1, -1):
         up = float(p[j + 1:, j].sum())          # already set by the columns above (detailed balance)
         down_norm = float(shape[:j, j].sum())
         total_wanted = 1.0
@@ -799,7 +802,8 @@ class FalloffME:
     rate_per_s (n_T, n_M) [s^-1]; high_pressure_per_s (n_T) [s^-1] = sum_E f k; low_pressure_m3_s
     (n_T) [m^3 s^-1]: -lambda / [M] at omega = :data:`LOW_PRESSURE_OMEGA_FRACTION` k(E0);
     separation (n_T, n_M): slowest relaxation / chemical eigenvalue; grain_J_per_mol and
-    top_J_per_mol: the merged grain and the energy ceiling used; n_grains.
+    top_J_per_mol: the (finest) merged grain and the energy ceiling used; n_grains: states solved at
+    the last temperature.
     """
 
     rate_per_s: np.ndarray = field(repr=False)
@@ -815,6 +819,26 @@ class FalloffME:
 LOW_PRESSURE_OMEGA_FRACTION = 1e-6
 
 
+def _reservoir_system(p: np.ndarray, leak: np.ndarray, f: np.ndarray, cut: int):
+    """(off-diagonal probabilities, loss, distribution) with the states below ``cut`` lumped into one
+    reservoir state (index 0) held in internal Boltzmann equilibrium (the reservoir-state
+    approximation, Green and Bhatti, Phys. Chem. Chem. Phys. 9, 4275 (2007)). Transfer into the
+    reservoir is the collision probability of reaching any grain below the cut; out of it, the
+    same by detailed balance; its loss the thermal average of k below the cut."""
+    if cut <= 0:
+        return p, leak, f
+    f_r = float(f[:cut].sum())
+    above = slice(cut, None)
+    to_r = p[:cut, above].sum(axis=0)
+    n = p.shape[0] - cut + 1
+    q = np.zeros((n, n))
+    q[1:, 1:] = p[above, above]
+    q[0, 1:] = to_r
+    q[1:, 0] = to_r * f[above] / f_r
+    lk = np.concatenate([[float(f[:cut] @ leak[:cut]) / f_r], leak[above]])
+    return q, lk, np.concatenate([[f_r], f[above]])
+
+
 def _single_well_rate(p_off: np.ndarray, leak: np.ndarray, f: np.ndarray, omega: float) -> tuple[float, float]:
     """(-lambda_1, slowest relaxation estimate) of one well at collision frequency omega."""
     n = leak.size
@@ -825,14 +849,20 @@ def _single_well_rate(p_off: np.ndarray, leak: np.ndarray, f: np.ndarray, omega:
 
 def single_well_falloff(counts, rate_per_s, grain_J_per_mol: float, barrier_index: int, temperature_K,
                         number_density_m3, collision_rate_m3_s, delta_E_down_J_per_mol=None, *,
-                        merge: int = 1, top_J_per_mol: float | None = None) -> FalloffME:
+                        merge: int = 1, top_J_per_mol: float | None = None,
+                        reservoir_J_per_mol: float | None = None,
+                        low_pressure_number_density_m3=None) -> FalloffME:
     """k(T, [M]) [s^-1] of a well with one loss k(E) (``rate_per_s`` on the fine grid of
     ``counts``), by the master equation with the non-subtracting solver.
 
     temperature_K (n_T,); number_density_m3 (n_T, n_M) [m^-3]; collision_rate_m3_s Z_LJ (n_T,)
     [m^3 s^-1]; delta_E_down_J_per_mol (n_T,) [J/mol] (None: strong collisions);
-    merge: fine grains per master-equation grain (:func:`merge_grains`); top_J_per_mol: the energy
-    ceiling (None: the whole grid).
+    merge: fine grains per master-equation grain (:func:`merge_grains`), one number or one per
+    temperature; top_J_per_mol: the energy
+    ceiling (None: the whole grid); reservoir_J_per_mol: grains below this energy form one
+    reservoir state in thermal equilibrium (:func:`_reservoir_system`; None: every grain is
+    solved); low_pressure_number_density_m3 (n_T,): where k0 = k / [M] is taken (None: at a
+    collision frequency :data:`LOW_PRESSURE_OMEGA_FRACTION` k(E0)).
     """
     t = np.atleast_1d(np.asarray(temperature_K, dtype=float))
     m = np.asarray(number_density_m3, dtype=float)
@@ -846,20 +876,28 @@ def single_well_falloff(counts, rate_per_s, grain_J_per_mol: float, barrier_inde
     k_inf = np.zeros(t.size)
     k0 = np.zeros(t.size)
     n_used = 0
+    merges = np.broadcast_to(np.asarray(merge, dtype=int), t.shape)
     for i, ti in enumerate(t):
-        c, e, k = merge_grains(counts, rate_per_s, grain_J_per_mol, merge, ti, n_cut, barrier_index)
-        cm = collision_matrix(c, grain_J_per_mol * merge, ti, None if strong else alpha[i],
-                              kernel="strong" if strong else "exponential", energies_J_per_mol=e)
+        c, e, k = merge_grains(counts, rate_per_s, grain_J_per_mol, int(merges[i]), ti, n_cut, barrier_index)
+        cut_grid = 0 if reservoir_J_per_mol is None else int(np.searchsorted(e, reservoir_J_per_mol))
+        cm = collision_matrix(c, grain_J_per_mol * int(merges[i]), ti, None if strong else alpha[i],
+                              kernel="strong" if strong else "exponential", energies_J_per_mol=e,
+                              lowest_column=cut_grid)
         p = cm.matrix.copy()
         np.fill_diagonal(p, 0.0)
         leak = k[cm.grains]
         f = cm.distribution
-        n_used = cm.grains.size
         k_inf[i] = float(f @ leak)
+        p, leak, f = _reservoir_system(p, leak, f, int(np.searchsorted(cm.grains, cut_grid)))
+        n_used = leak.size
         for j, mj in enumerate(m[i]):
             out[i, j], relax = _single_well_rate(p, leak, f, z[i] * mj)
             sep[i, j] = relax / out[i, j] if out[i, j] > 0 else math.nan
         kb = float(k[min(int(np.searchsorted(e, barrier_index * grain_J_per_mol - 1e-9)), k.size - 1)])
-        omega0 = LOW_PRESSURE_OMEGA_FRACTION * kb if kb > 0 else 1e-6
+        if low_pressure_number_density_m3 is not None:
+            omega0 = float(z[i] * np.broadcast_to(low_pressure_number_density_m3, t.shape)[i])
+        else:
+            omega0 = LOW_PRESSURE_OMEGA_FRACTION * kb if kb > 0 else 1e-6
         k0[i] = _single_well_rate(p, leak, f, omega0)[0] / (omega0 / z[i])
-    return FalloffME(out, k_inf, k0, sep, grain_J_per_mol * merge, (n_cut - 1) * grain_J_per_mol, n_used)
+    return FalloffME(out, k_inf, k0, sep, grain_J_per_mol * float(merges.min()), (n_cut - 1) * grain_J_per_mol,
+                     n_used)
