@@ -499,7 +499,7 @@ def master_equation_on_grid(model: UnimolecularModel, settings: FalloffSettings,
     elif alpha is not None:
         target = ME_GRAIN_FRACTION_OF_DELTA_E * alpha
     else:
-        target = np.full(t.size, 4 * g)
+        target = np.full(t.size, 2 * g)     # strong collider: two fine grains (the k average is nonlinear in k0)
     merge = np.maximum(1, np.floor(target / g + 1e-9).astype(int))
     span = ME_TOP_IN_RT * R * float(t.max()) + (0.0 if alpha is None else ME_TOP_IN_DELTA_E * float(alpha.max()))
     top = rate.barrier_J_per_mol + span
