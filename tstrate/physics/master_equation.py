@@ -901,3 +901,82 @@ def single_well_falloff(counts, rate_per_s, grain_J_per_mol: float, barrier_inde
         k0[i] = _single_well_rate(p, leak, f, omega0)[0] / (omega0 / z[i])
     return FalloffME(out, k_inf, k0, sep, grain_J_per_mol * float(merges.min()), (n_cut - 1) * grain_J_per_mol,
                      n_used)
+
+
+# ---------------------------------------------------------------- energised molecules
+@dataclass(frozen=True)
+class EnergisedYield:
+    """Fate of energised molecules of one well at one temperature, per collision frequency.
+
+    reacted (n_omega,): fraction that reacts (through k(E), tunnelling below E0 included) before
+    collisions take it below ``stabilised_below_J_per_mol``; stabilised (n_omega,) = 1 - reacted,
+    computed separately (both by the non-subtracting solver, so small fractions keep their digits);
+    initial (n_grains,): the initial distribution on the (merged) grid.
+    """
+
+    reacted: np.ndarray
+    stabilised: np.ndarray
+    stabilised_below_J_per_mol: float
+    initial: np.ndarray = field(repr=False)
+
+
+def energised_yield(counts, rate_per_s, grain_J_per_mol: float, temperature_K: float, excitation_J_per_mol: float,
+                    collision_frequencies_per_s, delta_E_down_J_per_mol=None, *, stabilised_below_J_per_mol: float,
+                    merge: int = 1, top_J_per_mol: float | None = None, boundary: int = 0) -> EnergisedYield:
+    """Fraction of molecules energised by ``excitation_J_per_mol`` [J/mol] on top of their thermal
+    distribution at ``temperature_K`` that react before collisions stabilise them.
+
+    The master equation of the well runs on the grains above ``stabilised_below_J_per_mol``
+    [J/mol] (well below the barrier: grains there are counted as stabilised, an absorbing
+    boundary); the initial distribution is the thermal one shifted up by the excitation. k(E) below
+    the barrier (e.g. Eckart-corrected) takes part, so tunnelling of molecules energised below the
+    barrier is counted. With the strong-collider kernel and a molecule excited far above the
+    thermal range this is Stern-Volmer, k / (k + omega). ``collision_frequencies_per_s`` omega =
+    Z [M] (n_omega,); <Delta E>down [J/mol] (None: strong collider); ``merge``, ``top_J_per_mol``
+    and ``boundary`` as in :func:`merge_grains`.
+    """
+    c_f = np.asarray(counts, dtype=float)
+    n_fine = c_f.size
+    n_cut = n_fine if top_J_per_mol is None else min(n_fine, int(top_J_per_mol / grain_J_per_mol) + 1)
+    # the initial distribution on the fine grid: thermal, shifted up by the excitation
+    lw = boltzmann_weights(c_f, np.arange(n_fine) * grain_J_per_mol, temperature_K)
+    f_fine = np.where(np.isfinite(lw), np.exp(lw - lw[np.isfinite(lw)].max()), 0.0)
+    shift = int(round(float(excitation_J_per_mol) / grain_J_per_mol))
+    n0_fine = np.zeros(n_fine)
+    if shift < n_fine:
+        n0_fine[shift:] = f_fine[:n_fine - shift]
+    n0_fine[:n_cut] *= c_f[:n_cut] > 0         # onto populated grains only
+    c, e, k = merge_grains(c_f, rate_per_s, grain_J_per_mol, merge, temperature_K, n_cut, boundary)
+    r = max(1, int(merge))
+    sh = (r - int(boundary) % r) % r
+    label = (np.arange(n_cut) + sh) // r
+    label -= label[0]
+    n0 = np.bincount(label, n0_fine[:n_cut], c.size)
+    if not n0.sum() > 0:
+        raise InputError("the energised distribution lies above the energy grid", field="excitation_J_per_mol",
+                         hint="extend the grid (energy_above_barrier_cm1)")
+    strong = delta_E_down_J_per_mol is None
+    cm = collision_matrix(c, grain_J_per_mol * r, temperature_K, delta_E_down_J_per_mol,
+                          kernel="strong" if strong else "exponential", energies_J_per_mol=e,
+                          lowest_column=int(np.searchsorted(e, stabilised_below_J_per_mol)))
+    p = cm.matrix.copy()
+    np.fill_diagonal(p, 0.0)
+    cut = int(np.searchsorted(e[cm.grains], stabilised_below_J_per_mol))
+    above = slice(cut, None)
+    p_above = p[above, above]
+    to_stable = p[:cut, above].sum(axis=0)
+    k_above = k[cm.grains][above]
+    start = n0[cm.grains][above]
+    if not start.sum() > 0:
+        raise InputError("the energised molecules start below the stabilisation energy", field="excitation_J_per_mol")
+    start = start / start.sum()
+    reacted, stabilised = [], []
+    for om in np.atleast_1d(np.asarray(collision_frequencies_per_s, dtype=float)):
+        leak = k_above + om * to_stable
+        n = leak.size
+        rm = RateMatrix(om * p_above, leak, cm.distribution[above] / cm.distribution[above].sum(),
+                        np.zeros(n, dtype=int), np.arange(n), np.vstack([k_above, om * to_stable]), ())
+        y = reaction_yields(rm, start)
+        reacted.append(y[0])
+        stabilised.append(y[1])
+    return EnergisedYield(np.array(reacted), np.array(stabilised), float(stabilised_below_J_per_mol), n0)
