@@ -138,6 +138,9 @@ def yield_pressure_figure(res, max_curves: int = 5):
         if c.stepwise is not None:
             ax.plot(xc, c.stepwise[i], "--", color=colour, lw=1.2)
             axq.plot(xc, _log_quenched(c.stepwise[i]), "--", color=colour, lw=1.2)
+        if c.master_equation is not None:
+            ax.plot(xc, c.master_equation[i], ":", color=colour, lw=2.0)
+            axq.plot(xc, _log_quenched(c.master_equation[i]), ":", color=colour, lw=2.0)
         handles.append(Line2D([], [], color=colour, lw=1.6, label=f"{g.temperature_K[i]:g} K"))
     xlabel = "log$_{10}$ (p / bar)" if by_pressure else "log$_{10}$ ([M] / molecule cm$^{-3}$)"
     ax.set_ylim(-0.03, 1.03)
@@ -149,6 +152,8 @@ def yield_pressure_figure(res, max_curves: int = 5):
     styles = [Line2D([], [], color="0.3", lw=1.6, label="Stern-Volmer, $\\beta_c Z$[M]"),
               Line2D([], [], color="0.3", ls="--", lw=1.2, label="stepwise <$\\Delta E$>$_{down}$"),
               Line2D([], [], color="0.3", ls="", marker="o", ms=4, label="study pressures")]
+    if c.master_equation is not None:
+        styles.insert(2, Line2D([], [], color="0.3", ls=":", lw=2.0, label="master equation"))
     fig.legend(handles=handles + styles, loc="lower center", ncol=len(handles) + len(styles), fontsize=8,
                frameon=False)
     fig.suptitle(_title(res), fontsize=10)
@@ -174,6 +179,9 @@ def yield_altitude_figure(res, bands: dict | None = None):
     if g.stepwise is not None:
         ax.plot(g.stepwise, z_km, "--s", ms=3, color="C3", label="stepwise")
         axq.plot(_log_quenched(g.stepwise), z_km, "--s", ms=3, color="C3", label="stepwise")
+    if g.master_equation is not None:
+        ax.plot(g.master_equation, z_km, ":^", ms=3, color="C2", label="master equation")
+        axq.plot(_log_quenched(g.master_equation), z_km, ":^", ms=3, color="C2", label="master equation")
     ax.set_xlim(-0.03, 1.03)
     ax.set_xlabel("fraction reacting before deactivation")
     axq.set_xlabel("log$_{10}$ (fraction deactivated)")

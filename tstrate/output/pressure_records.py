@@ -162,6 +162,7 @@ def _grid_record(g, profile: bool, rate_units: dict | None = None) -> dict:
         "collision_frequency_per_s": g.collision_frequency_per_s,
         "fraction_stern_volmer": g.stern_volmer,
         "fraction_stepwise": g.stepwise,
+        "fraction_master_equation": g.master_equation,
         "delta_E_down_cm1": _opt(de, 1 / CM1_J_PER_MOL),
     }
     if not profile:

@@ -414,6 +414,9 @@ _record("excitation_grid", "Energised molecules on a grid of conditions", [
     ("collision_frequency_per_s", PER_S, "collision frequency Z [M]"),
     ("fraction_stern_volmer", ONE, "fraction reacting before deactivation, k(E) / (k(E) + beta_c Z [M])"),
     ("fraction_stepwise", ONE, "fraction reacting with stepwise deactivation by <dE>down (null without <dE>down)"),
+    ("fraction_master_equation", ONE, "fraction reacting before stabilisation by the energy-grained master "
+                                      "equation, tunnelling below E0 included (null unless the channel's "
+                                      "pressure_method is master_equation)"),
     ("delta_E_down_cm1", CM1, "<dE>down per temperature (or null)"),
     ("half_quenching_number_density_per_cm3", PER_CM3, "number density where half react (Stern-Volmer; pressure "
                                                        "scan only)"),

@@ -928,7 +928,8 @@ def energised_yield(counts, rate_per_s, grain_J_per_mol: float, temperature_K: f
 
     The master equation of the well runs on the grains above ``stabilised_below_J_per_mol``
     [J/mol] (well below the barrier: grains there are counted as stabilised, an absorbing
-    boundary); the initial distribution is the thermal one shifted up by the excitation. k(E) below
+    boundary; molecules that start below it count as stabilised); the initial distribution is the
+    thermal one shifted up by the excitation. k(E) below
     the barrier (e.g. Eckart-corrected) takes part, so tunnelling of molecules energised below the
     barrier is counted. With the strong-collider kernel and a molecule excited far above the
     thermal range this is Stern-Volmer, k / (k + omega). ``collision_frequencies_per_s`` omega =
@@ -966,17 +967,15 @@ def energised_yield(counts, rate_per_s, grain_J_per_mol: float, temperature_K: f
     p_above = p[above, above]
     to_stable = p[:cut, above].sum(axis=0)
     k_above = k[cm.grains][above]
-    start = n0[cm.grains][above]
-    if not start.sum() > 0:
-        raise InputError("the energised molecules start below the stabilisation energy", field="excitation_J_per_mol")
-    start = start / start.sum()
+    start = n0[cm.grains][above] / n0.sum()      # molecules starting below the cut are stabilised at once
+    below_share = 1.0 - float(start.sum())
     reacted, stabilised = [], []
     for om in np.atleast_1d(np.asarray(collision_frequencies_per_s, dtype=float)):
         leak = k_above + om * to_stable
         n = leak.size
         rm = RateMatrix(om * p_above, leak, cm.distribution[above] / cm.distribution[above].sum(),
                         np.zeros(n, dtype=int), np.arange(n), np.vstack([k_above, om * to_stable]), ())
-        y = reaction_yields(rm, start)
+        y = reaction_yields(rm, start) if start.sum() > 0 else np.zeros(2)
         reacted.append(y[0])
-        stabilised.append(y[1])
+        stabilised.append(y[1] + below_share)
     return EnergisedYield(np.array(reacted), np.array(stabilised), float(stabilised_below_J_per_mol), n0)
