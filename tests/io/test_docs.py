@@ -118,7 +118,9 @@ def study_data() -> dict:
     ]
     data["falloff"] = {"grain_cm1": 20.0, "energy_above_barrier_cm1": 30000.0, "collision_efficiency": 0.3,
                        "delta_E_temperature_exponent": 0.5, "collision_integral": "troe", "fit_T2": True,
+                       "pressure_method": "strong_collision", "master_equation_grain_cm1": 30.0,
                        "channels": {"bare": {"delta_E_down_cm1": 300.0, "grain_cm1": 10.0,
+                                             "pressure_method": "master_equation", "master_equation_grain_cm1": 40.0,
                                              "energy_above_barrier_cm1": 25000.0, "fit_T2": False,
                                              "delta_E_temperature_exponent": 0.0, "collision_integral": "neufeld"},
                                     "one_water": {"delta_E_all_cm1": -50.0},
@@ -298,6 +300,8 @@ def test_study_files_with_every_key_are_read(tmp_path):
             assert getattr(falloff.default, key) == value, key
     assert falloff.for_channel("bare").delta_E_down_cm1 == 300.0
     assert falloff.for_channel("bare").collision_efficiency is None   # the override replaces the choice
+    assert falloff.for_channel("bare").pressure_method == "master_equation"
+    assert falloff.for_channel("bare").master_equation_grain_cm1 == 40.0
     assert falloff.for_channel("one_water").delta_E_all_cm1 == -50.0
     overtone, near_uv, given = st.sections["excitation"]
     assert (overtone.altitude_step_km, overtone.altitude_range_km, overtone.pressure_scan) == (4.0, (0.0, 40.0), True)

@@ -216,3 +216,45 @@ def test_chemical_activation_distribution_peaks_above_threshold(rate):
     assert d.sum() == pytest.approx(1.0)
     assert np.all(d[: rate.barrier_index] == 0.0)
     assert rate.energies_J_per_mol[np.argmax(d)] >= E0
+
+
+# ---------------------------------------------------------------- energised molecules
+def test_energised_yield_strong_collider_is_stern_volmer(rate):
+    """Excited far above the thermal range, with strong collisions every collision stabilises, so the
+    fraction reacting is Stern-Volmer, k(E)/(k(E) + omega) (Stern and Volmer 1919), within 1e-6 of the
+    thermal-distribution average of it."""
+    t = 200.0
+    excitation = E0 + 3000 * CM1_J_PER_MOL
+    omega = np.array([1e6, 1e9, 1e12])
+    y = me.energised_yield(rate.reactant.counts, rate.rate_per_s, rate.grain_J_per_mol, t, excitation, omega,
+                           stabilised_below_J_per_mol=E0 - 4000 * CM1_J_PER_MOL, boundary=rate.barrier_index)
+    # reference: the initial distribution's average of k/(k + omega)
+    n0 = y.initial / y.initial.sum()
+    k = rate.rate_per_s[: n0.size]
+    ref = np.array([(n0 * k / (k + om)).sum() for om in omega])
+    np.testing.assert_allclose(y.reacted, ref, rtol=1e-6)
+    np.testing.assert_allclose(y.reacted + y.stabilised, 1.0, atol=1e-12)
+
+
+def test_energised_yield_weak_collisions_and_tunnelling_below_threshold():
+    """Weak collisions let more react than one strong collision would (several collisions are needed to
+    deactivate); a molecule energised below the barrier reacts only through k(E) below E0 (tunnelling)."""
+    from tstrate.physics.tunnelling import eckart_transmission
+
+    v1 = E0
+    v2 = E0 + 5000 * CM1_J_PER_MOL
+    tun = rrkm_rate(H2CO3_CM1, TS_CM1, E0, grain_cm1=40.0, energy_above_barrier_J_per_mol=12000 * CM1_J_PER_MOL,
+                    refine_grain=False, transmission=lambda e: eckart_transmission(np.asarray(e) + v1, 1800.0, v1, v2))
+    cls = rrkm_rate(H2CO3_CM1, TS_CM1, E0, grain_cm1=40.0, energy_above_barrier_J_per_mol=12000 * CM1_J_PER_MOL,
+                    refine_grain=False)
+    t, omega = 200.0, np.array([1e5, 1e8])
+    below = E0 - 300 * CM1_J_PER_MOL
+    kw = dict(stabilised_below_J_per_mol=E0 - 5000 * CM1_J_PER_MOL, boundary=cls.barrier_index)
+    y_cls = me.energised_yield(cls.reactant.counts, cls.rate_per_s, cls.grain_J_per_mol, t, below, omega, ALPHA, **kw)
+    y_tun = me.energised_yield(tun.reactant.counts, tun.rate_per_s, tun.grain_J_per_mol, t, below, omega, ALPHA, **kw)
+    assert np.all(y_tun.reacted > 3 * y_cls.reacted)           # without tunnelling only the thermal tail reacts
+    above = E0 + 2000 * CM1_J_PER_MOL
+    weak = me.energised_yield(cls.reactant.counts, cls.rate_per_s, cls.grain_J_per_mol, t, above, omega, ALPHA, **kw)
+    strong = me.energised_yield(cls.reactant.counts, cls.rate_per_s, cls.grain_J_per_mol, t, above, omega, None, **kw)
+    assert np.all(weak.reacted > strong.reacted)
+    assert np.all(np.diff(weak.reacted) < 0)                   # quenched as pressure rises

@@ -18,6 +18,9 @@ from tstrate.units import CM1_J, N_A
 CM1_J_PER_MOL = CM1_J * N_A
 #: Reference temperature [K] of a temperature-dependent <dE>down = value (T / 300 K)^n.
 DELTA_E_REFERENCE_T_K = 300.0
+
+#: the ways pressure dependence is computed ([falloff] pressure_method)
+PRESSURE_METHODS = ("strong_collision", "master_equation")
 #: Name of the built-in altitude profile.
 US_STANDARD_1976 = "us-standard-1976"
 #: Default altitude range [km] of the built-in profile (its whole range).
@@ -93,6 +96,11 @@ class FalloffSettings:
     delta_E_temperature_exponent: n in <dE>(T) = <dE>(300 K) (T / 300 K)^n (default 0).
     collision_integral: "neufeld" (Neufeld, Janzen and Aziz 1972) or "troe" (Troe 1977).
     fit_T2: also fit Troe's T** (else the exp(-T**/T) term is left out).
+    pressure_method: "strong_collision" (strong collisions scaled by beta_c, closed form) or
+        "master_equation" (energy-grained master equation with exponential-down energy transfer,
+        <dE>down from delta_E_down_cm1; without any energy-transfer key, the strong-collider kernel).
+    master_equation_grain_cm1: grain of the master equation [cm^-1], a multiple of the state-count
+        grain (None: automatic, the coarsest multiple not above <dE>down / 8).
     """
 
     grain_cm1: float = 10.0
@@ -103,6 +111,8 @@ class FalloffSettings:
     delta_E_temperature_exponent: float = 0.0
     collision_integral: str = "neufeld"
     fit_T2: bool = False
+    pressure_method: str = "strong_collision"
+    master_equation_grain_cm1: float | None = None
 
     def __post_init__(self):
         def bad(key, problem, hint=None):
@@ -128,6 +138,16 @@ class FalloffSettings:
                                          f"{self.delta_E_all_cm1!r}", hint="or give delta_E_down_cm1 > 0")
         if not math.isfinite(self.delta_E_temperature_exponent):
             raise bad("delta_E_temperature_exponent", "must be a finite number")
+        if self.pressure_method not in PRESSURE_METHODS:
+            raise bad("pressure_method", f"unknown pressure method {self.pressure_method!r}",
+                      hint="use " + " or ".join(PRESSURE_METHODS))
+        if self.pressure_method == "master_equation" and self.energy_transfer in ("efficiency", "all"):
+            given = "collision_efficiency" if self.energy_transfer == "efficiency" else "delta_E_all_cm1"
+            raise bad(given, f"the master equation needs <dE>down, not {given}",
+                      hint="give delta_E_down_cm1 (or no energy-transfer key for strong collisions)")
+        g = self.master_equation_grain_cm1
+        if g is not None and not (math.isfinite(g) and g > 0):
+            raise bad("master_equation_grain_cm1", f"must be a positive wavenumber, got {g!r}")
         if self.collision_integral not in ("neufeld", "troe"):
             raise bad("collision_integral", f"unknown collision integral {self.collision_integral!r}",
                       hint="use neufeld or troe")

@@ -357,9 +357,28 @@ _record("falloff_channel", "Falloff of one unimolecular channel", [
     ("collisions.delta_E_all_cm1", CM1, "<dE> of all collisions per temperature (null unless energy_transfer is all)"),
     ("collisions.energy_factor_FE", ONE, "Troe's energy factor F_E per temperature (null without <dE>)"),
     ("collisions.collision_efficiency", ONE, "beta_c, per temperature"),
+    ("pressure_method", TEXT, "strong_collision or master_equation ([falloff] pressure_method)"),
+    ("master_equation", OBJ, "how the master equation was solved (null for strong collisions)"),
+    ("master_equation.grain_cm1", CM1, "grain of the master equation at the check temperature"),
+    ("master_equation.energy_ceiling_cm1", CM1, "highest energy solved, above the reactant's zero-point level"),
+    ("master_equation.grains_solved", ONE, "states solved (grains plus the reservoir)"),
+    ("master_equation.kernel", TEXT, "exponential (exponential-down) or strong (strong collider)"),
+    ("master_equation.reservoir_below_cm1", CM1, "grains below this energy form one thermal reservoir state "
+                                                 "(NaN: none)"),
+    ("master_equation.min_eigenvalue_separation", ONE, "smallest ratio of the slowest relaxation eigenvalue to "
+                                                       "the chemical one over the grid"),
+    ("master_equation.check", OBJ, "the answer recomputed at one point (highest T, lowest p)"),
+    ("master_equation.check.temperature_K", K, "temperature of the check"),
+    ("master_equation.check.number_density_per_cm3", PER_CM3, "number density of the check"),
+    ("master_equation.check.grain_cm1", CM1, "the other grain (half, or twice at the finest grain)"),
+    ("master_equation.check.grain_change_percent", PCT, "change of k with that grain"),
+    ("master_equation.check.ceiling_change_percent", PCT, "change of k with the ceiling raised by "
+                                                          "10 <dE>down + 10 RT"),
+    ("master_equation.check.reservoir_change_percent", PCT, "change of k with the reservoir started one "
+                                                            "reservoir depth lower"),
     ("warnings", TEXT, "warnings of this channel (list)"),
     ("", "", "", "k_of_E_model"),
-], "RRKM k(E), strong collisions scaled by beta_c, Troe fit. Arrays run over temperature_K, then pressure.")
+], "RRKM k(E), strong collisions scaled by beta_c or the energy-grained master equation, Troe fit. Arrays run over temperature_K, then pressure.")
 
 _record("falloff_study", "Falloff of a study", [
     ("study", TEXT, "the study file"),
@@ -395,6 +414,9 @@ _record("excitation_grid", "Energised molecules on a grid of conditions", [
     ("collision_frequency_per_s", PER_S, "collision frequency Z [M]"),
     ("fraction_stern_volmer", ONE, "fraction reacting before deactivation, k(E) / (k(E) + beta_c Z [M])"),
     ("fraction_stepwise", ONE, "fraction reacting with stepwise deactivation by <dE>down (null without <dE>down)"),
+    ("fraction_master_equation", ONE, "fraction reacting before stabilisation by the energy-grained master "
+                                      "equation, tunnelling below E0 included (null unless the channel's "
+                                      "pressure_method is master_equation)"),
     ("delta_E_down_cm1", CM1, "<dE>down per temperature (or null)"),
     ("half_quenching_number_density_per_cm3", PER_CM3, "number density where half react (Stern-Volmer; pressure "
                                                        "scan only)"),

@@ -265,13 +265,15 @@ class CollisionMatrix:
 
 def collision_matrix(counts, grain_J_per_mol: float, temperature_K: float, delta_E_down_J_per_mol=None, *,
                      kernel: str = "exponential", smoothing_grains: int = 0,
-                     energies_J_per_mol=None) -> CollisionMatrix:
+                     energies_J_per_mol=None, lowest_column: int = 0) -> CollisionMatrix:
     """The collision matrix of one well (see the module docstring).
 
     counts (n,) states per grain; delta_E_down_J_per_mol alpha [J/mol], a number or (n,) over the
     starting grain; smoothing_grains: width of the smoothed density the downward kernel accepts by
     (0: automatic, the smallest odd width that leaves no empty grain among the populated range
-    above the first state; 1: off); energies_J_per_mol (n,) the grain energies (None: i * grain).
+    above the first state; 1: off); energies_J_per_mol (n,) the grain energies (None: i * grain);
+    lowest_column: grid index below which columns are not normalised (their grains are lumped
+    into a reservoir by the caller; the columns above do not depend on them).
     """
     c = np.asarray(counts, dtype=float)
     grains = np.flatnonzero(c > 0)
@@ -310,7 +312,8 @@ def collision_matrix(counts, grain_J_per_mol: float, temperature_K: float, delta
     # ratio f_j / f_i for the upward probabilities P[j, i] = P[i, j] f_j / f_i (i < j)
     p = np.zeros((m, m))
     max_sum = 0.0
-    for j in range(m - 1, -1, -1):
+    j_stop = int(np.searchsorted(grains, int(lowest_column)))
+    for j in range(m - 1, j_stop - 1, -1):
         up = float(p[j + 1:, j].sum())          # already set by the columns above (detailed balance)
         down_norm = float(shape[:j, j].sum())
         total_wanted = 1.0
@@ -799,7 +802,8 @@ class FalloffME:
     rate_per_s (n_T, n_M) [s^-1]; high_pressure_per_s (n_T) [s^-1] = sum_E f k; low_pressure_m3_s
     (n_T) [m^3 s^-1]: -lambda / [M] at omega = :data:`LOW_PRESSURE_OMEGA_FRACTION` k(E0);
     separation (n_T, n_M): slowest relaxation / chemical eigenvalue; grain_J_per_mol and
-    top_J_per_mol: the merged grain and the energy ceiling used; n_grains.
+    top_J_per_mol: the (finest) merged grain and the energy ceiling used; n_grains: states solved at
+    the last temperature.
     """
 
     rate_per_s: np.ndarray = field(repr=False)
@@ -815,6 +819,26 @@ class FalloffME:
 LOW_PRESSURE_OMEGA_FRACTION = 1e-6
 
 
+def _reservoir_system(p: np.ndarray, leak: np.ndarray, f: np.ndarray, cut: int):
+    """(off-diagonal probabilities, loss, distribution) with the states below ``cut`` lumped into one
+    reservoir state (index 0) held in internal Boltzmann equilibrium (the reservoir-state
+    approximation, Green and Bhatti, Phys. Chem. Chem. Phys. 9, 4275 (2007)). Transfer into the
+    reservoir is the collision probability of reaching any grain below the cut; out of it, the
+    same by detailed balance; its loss the thermal average of k below the cut."""
+    if cut <= 0:
+        return p, leak, f
+    f_r = float(f[:cut].sum())
+    above = slice(cut, None)
+    to_r = p[:cut, above].sum(axis=0)
+    n = p.shape[0] - cut + 1
+    q = np.zeros((n, n))
+    q[1:, 1:] = p[above, above]
+    q[0, 1:] = to_r
+    q[1:, 0] = to_r * f[above] / f_r
+    lk = np.concatenate([[float(f[:cut] @ leak[:cut]) / f_r], leak[above]])
+    return q, lk, np.concatenate([[f_r], f[above]])
+
+
 def _single_well_rate(p_off: np.ndarray, leak: np.ndarray, f: np.ndarray, omega: float) -> tuple[float, float]:
     """(-lambda_1, slowest relaxation estimate) of one well at collision frequency omega."""
     n = leak.size
@@ -825,14 +849,20 @@ def _single_well_rate(p_off: np.ndarray, leak: np.ndarray, f: np.ndarray, omega:
 
 def single_well_falloff(counts, rate_per_s, grain_J_per_mol: float, barrier_index: int, temperature_K,
                         number_density_m3, collision_rate_m3_s, delta_E_down_J_per_mol=None, *,
-                        merge: int = 1, top_J_per_mol: float | None = None) -> FalloffME:
+                        merge: int = 1, top_J_per_mol: float | None = None,
+                        reservoir_J_per_mol: float | None = None,
+                        low_pressure_number_density_m3=None) -> FalloffME:
     """k(T, [M]) [s^-1] of a well with one loss k(E) (``rate_per_s`` on the fine grid of
     ``counts``), by the master equation with the non-subtracting solver.
 
     temperature_K (n_T,); number_density_m3 (n_T, n_M) [m^-3]; collision_rate_m3_s Z_LJ (n_T,)
     [m^3 s^-1]; delta_E_down_J_per_mol (n_T,) [J/mol] (None: strong collisions);
-    merge: fine grains per master-equation grain (:func:`merge_grains`); top_J_per_mol: the energy
-    ceiling (None: the whole grid).
+    merge: fine grains per master-equation grain (:func:`merge_grains`), one number or one per
+    temperature; top_J_per_mol: the energy
+    ceiling (None: the whole grid); reservoir_J_per_mol: grains below this energy form one
+    reservoir state in thermal equilibrium (:func:`_reservoir_system`; None: every grain is
+    solved); low_pressure_number_density_m3 (n_T,): where k0 = k / [M] is taken (None: at a
+    collision frequency :data:`LOW_PRESSURE_OMEGA_FRACTION` k(E0)).
     """
     t = np.atleast_1d(np.asarray(temperature_K, dtype=float))
     m = np.asarray(number_density_m3, dtype=float)
@@ -846,20 +876,106 @@ def single_well_falloff(counts, rate_per_s, grain_J_per_mol: float, barrier_inde
     k_inf = np.zeros(t.size)
     k0 = np.zeros(t.size)
     n_used = 0
+    merges = np.broadcast_to(np.asarray(merge, dtype=int), t.shape)
     for i, ti in enumerate(t):
-        c, e, k = merge_grains(counts, rate_per_s, grain_J_per_mol, merge, ti, n_cut, barrier_index)
-        cm = collision_matrix(c, grain_J_per_mol * merge, ti, None if strong else alpha[i],
-                              kernel="strong" if strong else "exponential", energies_J_per_mol=e)
+        c, e, k = merge_grains(counts, rate_per_s, grain_J_per_mol, int(merges[i]), ti, n_cut, barrier_index)
+        cut_grid = 0 if reservoir_J_per_mol is None else int(np.searchsorted(e, reservoir_J_per_mol))
+        cm = collision_matrix(c, grain_J_per_mol * int(merges[i]), ti, None if strong else alpha[i],
+                              kernel="strong" if strong else "exponential", energies_J_per_mol=e,
+                              lowest_column=cut_grid)
         p = cm.matrix.copy()
         np.fill_diagonal(p, 0.0)
         leak = k[cm.grains]
         f = cm.distribution
-        n_used = cm.grains.size
         k_inf[i] = float(f @ leak)
+        p, leak, f = _reservoir_system(p, leak, f, int(np.searchsorted(cm.grains, cut_grid)))
+        n_used = leak.size
         for j, mj in enumerate(m[i]):
             out[i, j], relax = _single_well_rate(p, leak, f, z[i] * mj)
             sep[i, j] = relax / out[i, j] if out[i, j] > 0 else math.nan
         kb = float(k[min(int(np.searchsorted(e, barrier_index * grain_J_per_mol - 1e-9)), k.size - 1)])
-        omega0 = LOW_PRESSURE_OMEGA_FRACTION * kb if kb > 0 else 1e-6
+        if low_pressure_number_density_m3 is not None:
+            omega0 = float(z[i] * np.broadcast_to(low_pressure_number_density_m3, t.shape)[i])
+        else:
+            omega0 = LOW_PRESSURE_OMEGA_FRACTION * kb if kb > 0 else 1e-6
         k0[i] = _single_well_rate(p, leak, f, omega0)[0] / (omega0 / z[i])
-    return FalloffME(out, k_inf, k0, sep, grain_J_per_mol * merge, (n_cut - 1) * grain_J_per_mol, n_used)
+    return FalloffME(out, k_inf, k0, sep, grain_J_per_mol * float(merges.min()), (n_cut - 1) * grain_J_per_mol,
+                     n_used)
+
+
+# ---------------------------------------------------------------- energised molecules
+@dataclass(frozen=True)
+class EnergisedYield:
+    """Fate of energised molecules of one well at one temperature, per collision frequency.
+
+    reacted (n_omega,): fraction that reacts (through k(E), tunnelling below E0 included) before
+    collisions take it below ``stabilised_below_J_per_mol``; stabilised (n_omega,) = 1 - reacted,
+    computed separately (both by the non-subtracting solver, so small fractions keep their digits);
+    initial (n_grains,): the initial distribution on the (merged) grid.
+    """
+
+    reacted: np.ndarray
+    stabilised: np.ndarray
+    stabilised_below_J_per_mol: float
+    initial: np.ndarray = field(repr=False)
+
+
+def energised_yield(counts, rate_per_s, grain_J_per_mol: float, temperature_K: float, excitation_J_per_mol: float,
+                    collision_frequencies_per_s, delta_E_down_J_per_mol=None, *, stabilised_below_J_per_mol: float,
+                    merge: int = 1, top_J_per_mol: float | None = None, boundary: int = 0) -> EnergisedYield:
+    """Fraction of molecules energised by ``excitation_J_per_mol`` [J/mol] on top of their thermal
+    distribution at ``temperature_K`` that react before collisions stabilise them.
+
+    The master equation of the well runs on the grains above ``stabilised_below_J_per_mol``
+    [J/mol] (well below the barrier: grains there are counted as stabilised, an absorbing
+    boundary; molecules that start below it count as stabilised); the initial distribution is the
+    thermal one shifted up by the excitation. k(E) below
+    the barrier (e.g. Eckart-corrected) takes part, so tunnelling of molecules energised below the
+    barrier is counted. With the strong-collider kernel and a molecule excited far above the
+    thermal range this is Stern-Volmer, k / (k + omega). ``collision_frequencies_per_s`` omega =
+    Z [M] (n_omega,); <Delta E>down [J/mol] (None: strong collider); ``merge``, ``top_J_per_mol``
+    and ``boundary`` as in :func:`merge_grains`.
+    """
+    c_f = np.asarray(counts, dtype=float)
+    n_fine = c_f.size
+    n_cut = n_fine if top_J_per_mol is None else min(n_fine, int(top_J_per_mol / grain_J_per_mol) + 1)
+    # the initial distribution on the fine grid: thermal, shifted up by the excitation
+    lw = boltzmann_weights(c_f, np.arange(n_fine) * grain_J_per_mol, temperature_K)
+    f_fine = np.where(np.isfinite(lw), np.exp(lw - lw[np.isfinite(lw)].max()), 0.0)
+    shift = int(round(float(excitation_J_per_mol) / grain_J_per_mol))
+    n0_fine = np.zeros(n_fine)
+    if shift < n_fine:
+        n0_fine[shift:] = f_fine[:n_fine - shift]
+    n0_fine[:n_cut] *= c_f[:n_cut] > 0         # onto populated grains only
+    c, e, k = merge_grains(c_f, rate_per_s, grain_J_per_mol, merge, temperature_K, n_cut, boundary)
+    r = max(1, int(merge))
+    sh = (r - int(boundary) % r) % r
+    label = (np.arange(n_cut) + sh) // r
+    label -= label[0]
+    n0 = np.bincount(label, n0_fine[:n_cut], c.size)
+    if not n0.sum() > 0:
+        raise InputError("the energised distribution lies above the energy grid", field="excitation_J_per_mol",
+                         hint="extend the grid (energy_above_barrier_cm1)")
+    strong = delta_E_down_J_per_mol is None
+    cm = collision_matrix(c, grain_J_per_mol * r, temperature_K, delta_E_down_J_per_mol,
+                          kernel="strong" if strong else "exponential", energies_J_per_mol=e,
+                          lowest_column=int(np.searchsorted(e, stabilised_below_J_per_mol)))
+    p = cm.matrix.copy()
+    np.fill_diagonal(p, 0.0)
+    cut = int(np.searchsorted(e[cm.grains], stabilised_below_J_per_mol))
+    above = slice(cut, None)
+    p_above = p[above, above]
+    to_stable = p[:cut, above].sum(axis=0)
+    k_above = k[cm.grains][above]
+    start = n0[cm.grains][above] / n0.sum()      # molecules starting below the cut are stabilised at once
+    below_share = 1.0 - float(start.sum())
+    reacted, stabilised = [], []
+    for om in np.atleast_1d(np.asarray(collision_frequencies_per_s, dtype=float)):
+        leak = k_above + om * to_stable
+        n = leak.size
+        rm = RateMatrix(om * p_above, leak, cm.distribution[above] / cm.distribution[above].sum(),
+                        np.zeros(n, dtype=int), np.arange(n), np.vstack([k_above, om * to_stable]), ())
+        y = reaction_yields(rm, start) if start.sum() > 0 else np.zeros(2)
+        reacted.append(y[0])
+        stabilised.append(y[1] + below_share)
+    return EnergisedYield(np.array(reacted), np.array(stabilised), float(stabilised_below_J_per_mol), n0)
