@@ -135,7 +135,9 @@ def study_data() -> dict:
     ]
     data["falloff"] = {"grain_cm1": 20.0, "energy_above_barrier_cm1": 30000.0, "collision_efficiency": 0.3,
                        "delta_E_temperature_exponent": 0.5, "collision_integral": "troe", "fit_T2": True,
+                       "pressure_method": "strong_collision", "master_equation_grain_cm1": 30.0,
                        "channels": {"bare": {"delta_E_down_cm1": 300.0, "grain_cm1": 10.0,
+                                             "pressure_method": "master_equation", "master_equation_grain_cm1": 40.0,
                                              "energy_above_barrier_cm1": 25000.0, "fit_T2": False,
                                              "delta_E_temperature_exponent": 0.0, "collision_integral": "neufeld"},
                                     "one_water": {"delta_E_all_cm1": -50.0},
@@ -170,6 +172,18 @@ def study_data() -> dict:
          "unit": "s-1", "k0_unit": "cm3 molecule-1 s-1", "pressure_range_bar": [1e-3, 1.0], "bath_gas": "N2",
          "temperature_range_K": [250.0, 300.0]},
     ]
+    # a barrierless association needs its own species (the bundled OH + SO2 example's)
+    oh_so2 = ROOT / "molecules" / "oh_so2"
+    data["species"].update(OH=str(oh_so2 / "oh.toml"), SO2=str(oh_so2 / "so2.toml"),
+                           HOSO2=str(oh_so2 / "hoso2.toml"))
+    data["association"] = [
+        {"name": "OH + SO2", "reactants": ["OH", "SO2"], "adduct": "HOSO2", "k_inf_cm3_per_molecule_s": 1.7e-12,
+         "k_inf_temperature_exponent": 0.2, "k_inf_reference_temperature_K": 300.0,
+         "k_inf_activation_energy_kJ_per_mol": 0.5, "pressure_method": "strong_collision",
+         "adduct_rotation": "spectator", "delta_E_down_cm1": 300.0, "delta_E_temperature_exponent": -0.5,
+         "grain_cm1": 25.0, "energy_above_threshold_cm1": 6000.0, "temperature_K": [220.0, 260.0],
+         "reference_k0_cm6_per_molecule2_s": 2.9e-31, "reference_k0_temperature_exponent": -4.1,
+         "reference": "JPL 19-5"}]
     return data
 
 
@@ -316,6 +330,8 @@ def test_study_files_with_every_key_are_read(tmp_path):
             assert getattr(falloff.default, key) == value, key
     assert falloff.for_channel("bare").delta_E_down_cm1 == 300.0
     assert falloff.for_channel("bare").collision_efficiency is None   # the override replaces the choice
+    assert falloff.for_channel("bare").pressure_method == "master_equation"
+    assert falloff.for_channel("bare").master_equation_grain_cm1 == 40.0
     assert falloff.for_channel("one_water").delta_E_all_cm1 == -50.0
     arr, iupac = st.sections["reference_rate"]
     assert (arr.kind, arr.label, arr.expression.n, arr.expression.T0_K) == ("measured", "measured (invented)", 1.5, 298.0)
@@ -331,6 +347,11 @@ def test_study_files_with_every_key_are_read(tmp_path):
             fits.chebyshev_pressure_terms) == (pytest.approx(0.03), 220.0, "chebyshev", 300.0, 4, 2)
     names = [c.name for c in st.sections["comparison"]]
     assert names[-4:] == ["number density", "partial pressure Pa", "partial pressure bar", "mixing ratio Pa"]
+    (assoc,) = st.sections["association"]
+    assert (assoc.k_inf_A_m3_per_s, assoc.k_inf_activation_energy_J_per_mol, assoc.reference_k0_m6_per_s) == (
+        pytest.approx(1.7e-18), pytest.approx(500.0), pytest.approx(2.9e-43))
+    assert (assoc.adduct_rotation, assoc.pressure_method, assoc.temperature_K) == ("spectator", "strong_collision",
+                                                                                  (220.0, 260.0))
 
 
 def test_documented_defaults_are_what_the_readers_use(tmp_path):

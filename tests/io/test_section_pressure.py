@@ -136,3 +136,15 @@ def test_pressure_scan_without_pressures(tmp_path):
     path.write_text((HEAD + text).replace("pressure_bar = [0.01, 1]\n", ""))
     with pytest.raises(InputError, match=r"\[excitation\[0\].pressures\]: a pressure scan needs pressures"):
         read_study(path)
+
+
+def test_master_equation_needs_delta_e_down():
+    """The master equation refuses a bare collision efficiency (it needs <dE>down)."""
+    from tstrate.errors import InputError
+    from tstrate.model.settings import FalloffSettings
+
+    with pytest.raises(InputError, match="needs <dE>down"):
+        FalloffSettings(pressure_method="master_equation", collision_efficiency=0.3)
+    with pytest.raises(InputError, match="unknown pressure method"):
+        FalloffSettings(pressure_method="lindemann")
+    assert FalloffSettings(pressure_method="master_equation", delta_E_down_cm1=200.0).energy_transfer == "down"

@@ -80,6 +80,18 @@ def outputs(demo_run, tmp_path_factory):
     for path in sorted((out / "tables").glob("*.csv")):
         name = "tables/rates_<channel>.csv" if path.name.startswith("rates_") else f"tables/{path.name}"
         got.append((name, _csv_header(path)))
+    # a barrierless association: the OH + SO2 example cut to one temperature and two pressures
+    assoc = tmp_path_factory.mktemp("assoc")
+    shutil.copytree(ROOT / "molecules" / "oh_so2", assoc / "oh_so2", ignore=shutil.ignore_patterns("inputs"))
+    spath = assoc / "oh_so2" / "study.toml"
+    text = spath.read_text()
+    text = text.replace("temperature_K = [200, 220, 240, 260, 280, 300]", "temperature_K = [250]")
+    spath.write_text(text.replace("pressure_bar = [1e-4, 1e-3, 1e-2, 0.03, 0.1, 0.3, 1.0]", "pressure_bar = [1.0]"))
+    from tstrate.cli.main import main
+
+    assert main(["run", str(spath), "-o", str(assoc / "out")]) == 0
+    for path in sorted((assoc / "out" / "tables").glob("association_*.csv")):
+        got.append(("tables/association_<name>.csv", _csv_header(path)))
     got.append(("mechanism.yaml", _yaml((out / "mechanism.yaml").read_text())))
 
     tmp = tmp_path_factory.mktemp("schema")

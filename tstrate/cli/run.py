@@ -104,6 +104,14 @@ def run(args) -> int:
     from tstrate.output.run_files import export_summary
 
     print(f"{study.title}\nwrote {len(files)} files to {out}/ (report: {out / 'report.html'})")
+    for ar in result.associations or ():
+        ratio = ar.k0_ratio
+        t = ar.temperature_K
+        line = (f"  {ar.name} (barrierless, {ar.falloff.method}): k0 = {ar.falloff.k0_m6_per_s[0] * 1e12:.3g} "
+                f"to {ar.falloff.k0_m6_per_s[-1] * 1e12:.3g} cm6 molecule-2 s-1 over {t[0]:g}-{t[-1]:g} K")
+        if ratio is not None:
+            line += f", {ratio.min():.2f}-{ratio.max():.2f} x the evaluated k0"
+        print(line + " (tables/association_*.csv)")
     for cf in result.fits.channels:
         print(f"  {cf.name}: {export_summary(cf, study.conditions.rate_units)}")
     for w in result.warnings:

@@ -20,7 +20,7 @@ from typing import Callable, Iterable
 from tstrate.errors import InputError
 from tstrate.io import species, study
 from tstrate.io.keys import Key, Keys, toml_value
-from tstrate.io.sections import comparison, fits, isotopes, pressure, references
+from tstrate.io.sections import association, comparison, fits, isotopes, pressure, references
 from tstrate.io.sections import uncertainty as uncertainty_section
 from tstrate.io.tables import Table
 from tstrate.physics.vibrations import HESSIAN_UNITS_J_PER_M2
@@ -35,7 +35,7 @@ STUDY_FILE: tuple[Keys, ...] = (
     pressure.FALLOFF_CHANNEL_KEYS, pressure.EXCITATION_KEYS, pressure.EXCITATION_ENERGY_KEYS, fits.KEYS,
     isotopes.KEYS, isotopes.SUBSTITUTION_KEYS, isotopes.ATOMS_KEYS, isotopes.POOL_KEYS, isotopes.POOL_MEMBER_KEYS,
     uncertainty_section.KEYS, uncertainty_section.SPECIES_TABLE_KEYS, uncertainty_section.SPECIES_KEYS,
-    uncertainty_section.ENERGY_KEYS, references.KEYS)
+    uncertainty_section.ENERGY_KEYS, references.KEYS, association.KEYS)
 
 #: the checkout this module sits in, and its demo
 ROOT = Path(__file__).resolve().parents[2]

@@ -33,7 +33,8 @@ SECTION_READERS: dict[str, str] = {"comparison": "tstrate.io.sections.comparison
                                   "fits": "tstrate.io.sections.fits:read_fit_options",
                                   "isotopes": "tstrate.io.sections.isotopes:read_isotopes",
                                   "uncertainty": "tstrate.io.sections.uncertainty:read_uncertainty",
-                                  "reference_rate": "tstrate.io.sections.references:read_reference_rates"}
+                                  "reference_rate": "tstrate.io.sections.references:read_reference_rates",
+                                  "association": "tstrate.io.sections.association:read_associations"}
 
 _ORDER_NAMES = {"unimolecular": 1, "bimolecular": 2, "termolecular": 3}
 #: the keys that give the pressures of [conditions] (at most one)
@@ -54,6 +55,8 @@ STUDY_KEYS = Keys((), "top level", "A study names its species files and links th
                       Key("falloff", "table", "pressure dependence of unimolecular channels "
                           "(`[falloff]` below)"),
                       Key("excitation", "array of tables", "energised molecules (`[[excitation]]` below)"),
+                      Key("association", "array of tables", "barrierless associations A + B (+ M) -> AB, "
+                          "from a given k_inf(T) (`[[association]]` below)"),
                       Key("fits", "table", "how rate constants are fitted and exported (`[fits]` below)"),
                       Key("isotopes", "table", "isotopologues: beta factors, kinetic isotope effects, "
                           "fractionation (`[isotopes]` below)"),

@@ -18,6 +18,9 @@ from tstrate.units import CM1_J, N_A
 CM1_J_PER_MOL = CM1_J * N_A
 #: Reference temperature [K] of a temperature-dependent <dE>down = value (T / 300 K)^n.
 DELTA_E_REFERENCE_T_K = 300.0
+
+#: the ways pressure dependence is computed ([falloff] pressure_method)
+PRESSURE_METHODS = ("strong_collision", "master_equation")
 #: Name of the built-in altitude profile.
 US_STANDARD_1976 = "us-standard-1976"
 #: Default altitude range [km] of the built-in profile (its whole range).
@@ -91,6 +94,11 @@ class FalloffSettings:
     delta_E_temperature_exponent: n in <dE>(T) = <dE>(300 K) (T / 300 K)^n (default 0).
     collision_integral: "neufeld" (Neufeld, Janzen and Aziz 1972) or "troe" (Troe 1977).
     fit_T2: also fit Troe's T** (else the exp(-T**/T) term is left out).
+    pressure_method: "strong_collision" (strong collisions scaled by beta_c, closed form) or
+        "master_equation" (energy-grained master equation with exponential-down energy transfer,
+        <dE>down from delta_E_down_cm1; without any energy-transfer key, the strong-collider kernel).
+    master_equation_grain_cm1: grain of the master equation [cm^-1], a multiple of the state-count
+        grain (None: automatic, the coarsest multiple not above <dE>down / 8).
     """
 
     grain_cm1: float = 10.0
@@ -101,6 +109,8 @@ class FalloffSettings:
     delta_E_temperature_exponent: float = 0.0
     collision_integral: str = "neufeld"
     fit_T2: bool = False
+    pressure_method: str = "strong_collision"
+    master_equation_grain_cm1: float | None = None
 
     def __post_init__(self):
         def bad(key, problem, hint=None):
@@ -126,6 +136,16 @@ class FalloffSettings:
                                          f"{self.delta_E_all_cm1!r}", hint="or give delta_E_down_cm1 > 0")
         if not math.isfinite(self.delta_E_temperature_exponent):
             raise bad("delta_E_temperature_exponent", "must be a finite number")
+        if self.pressure_method not in PRESSURE_METHODS:
+            raise bad("pressure_method", f"unknown pressure method {self.pressure_method!r}",
+                      hint="use " + " or ".join(PRESSURE_METHODS))
+        if self.pressure_method == "master_equation" and self.energy_transfer in ("efficiency", "all"):
+            given = "collision_efficiency" if self.energy_transfer == "efficiency" else "delta_E_all_cm1"
+            raise bad(given, f"the master equation needs <dE>down, not {given}",
+                      hint="give delta_E_down_cm1 (or no energy-transfer key for strong collisions)")
+        g = self.master_equation_grain_cm1
+        if g is not None and not (math.isfinite(g) and g > 0):
+            raise bad("master_equation_grain_cm1", f"must be a positive wavenumber, got {g!r}")
         if self.collision_integral not in ("neufeld", "troe"):
             raise bad("collision_integral", f"unknown collision integral {self.collision_integral!r}",
                       hint="use neufeld or troe")
@@ -216,3 +236,112 @@ class ExcitationSpec:
                 raise bad("altitude_km", f"the 1976 standard atmosphere ends at {US_STANDARD_RANGE_KM[1]:g} km")
         if not (math.isfinite(self.altitude_step_km) and self.altitude_step_km > 0):
             raise bad("altitude_step_km", f"altitude step must be positive, got {self.altitude_step_km!r}")
+
+
+#: how a barrierless association's k(T, [M]) is found (see :mod:`tstrate.physics.association`)
+ASSOCIATION_PRESSURE_METHODS = ("master_equation", "strong_collision")
+#: how the adduct's overall rotation enters its density of states (see
+#: :mod:`tstrate.physics.inverse_laplace`)
+ADDUCT_ROTATIONS = ("active", "k_active", "spectator")
+
+
+@dataclass(frozen=True)
+class AssociationSpec:
+    """One barrierless association A + B (+ M) -> AB (+ M) with its high-pressure k_inf(T).
+
+    name; reactants: the two fragments (species names); adduct: the well (species name).
+    k_inf_A_m3_per_s: A of k_inf = A (T/T0)^n exp(-Ea/RT) [m^3 molecule^-1 s^-1];
+    k_inf_temperature_exponent: n (dimensionless, above -2.5); k_inf_reference_temperature_K: T0 [K];
+    k_inf_activation_energy_J_per_mol: Ea [J/mol] (>= 0).
+    pressure_method: one of :data:`ASSOCIATION_PRESSURE_METHODS`; adduct_rotation: one of
+    :data:`ADDUCT_ROTATIONS`. delta_E_down_cm1: <Delta E>down at 300 K [cm^-1] (> 0), or None for
+    strong collisions (strong-collision method only); delta_E_temperature_exponent: n of
+    <Delta E>down (T / 300 K)^n. grain_cm1 [cm^-1] (> 0); energy_above_threshold_cm1: grid above D0
+    [cm^-1] (> 0). temperature_K: temperatures [K] or None (the study's).
+    reference_k0_m6_per_s, reference_k0_temperature_exponent: an evaluated k0 = k0_ref (T/300 K)^m
+    [m^6 molecule^-2 s^-1] to compare with (both or neither); reference: its source in words.
+    """
+
+    name: str
+    reactants: tuple[str, str]
+    adduct: str
+    k_inf_A_m3_per_s: float
+    k_inf_temperature_exponent: float = 0.0
+    k_inf_reference_temperature_K: float = 300.0
+    k_inf_activation_energy_J_per_mol: float = 0.0
+    pressure_method: str = "master_equation"
+    adduct_rotation: str = "active"
+    delta_E_down_cm1: float | None = None
+    delta_E_temperature_exponent: float = 0.0
+    grain_cm1: float = 20.0
+    energy_above_threshold_cm1: float = 10000.0
+    temperature_K: tuple[float, ...] | None = None
+    reference_k0_m6_per_s: float | None = None
+    reference_k0_temperature_exponent: float | None = None
+    reference: str | None = None
+
+    def __post_init__(self):
+        def bad(key, problem, hint=None):
+            return InputError(problem, field=key, hint=hint)
+
+        if not isinstance(self.name, str) or not self.name:
+            raise bad("name", "an association needs a name")
+        object.__setattr__(self, "reactants", tuple(self.reactants))
+        if len(self.reactants) != 2:
+            raise bad("reactants", f"{len(self.reactants)} reactants; a barrierless association joins two")
+        if self.adduct in self.reactants:
+            raise bad("adduct", f"the adduct {self.adduct!r} is also a reactant")
+        for key in ("k_inf_A_m3_per_s", "k_inf_reference_temperature_K", "grain_cm1",
+                    "energy_above_threshold_cm1"):
+            v = getattr(self, key)
+            if not (isinstance(v, (int, float)) and math.isfinite(v) and v > 0):
+                raise bad(key, f"{key} must be a positive number, got {v!r}")
+        n = self.k_inf_temperature_exponent
+        if not (isinstance(n, (int, float)) and math.isfinite(n) and -2.5 < n <= 10):
+            raise bad("k_inf_temperature_exponent", f"temperature exponent {n!r} is outside (-2.5, 10]",
+                      hint="the inverse Laplace transform of T^n needs n above -2.5 here")
+        ea = self.k_inf_activation_energy_J_per_mol
+        if not (isinstance(ea, (int, float)) and math.isfinite(ea) and ea >= 0):
+            raise bad("k_inf_activation_energy_J_per_mol", f"activation energy must be >= 0, got {ea!r}",
+                      hint="a negative activation energy of k_inf is written with a negative temperature "
+                           "exponent")
+        if self.pressure_method not in ASSOCIATION_PRESSURE_METHODS:
+            raise bad("pressure_method", f"unknown pressure method {self.pressure_method!r}",
+                      hint="use one of " + ", ".join(ASSOCIATION_PRESSURE_METHODS))
+        if self.adduct_rotation not in ADDUCT_ROTATIONS:
+            raise bad("adduct_rotation", f"unknown rotation treatment {self.adduct_rotation!r}",
+                      hint="use one of " + ", ".join(ADDUCT_ROTATIONS))
+        if self.delta_E_down_cm1 is not None and not (math.isfinite(self.delta_E_down_cm1)
+                                                       and self.delta_E_down_cm1 > 0):
+            raise bad("delta_E_down_cm1", f"<dE>down must be positive, got {self.delta_E_down_cm1!r}")
+        if self.delta_E_down_cm1 is None and self.pressure_method == "master_equation":
+            raise bad("delta_E_down_cm1", "the master equation needs <dE>down",
+                      hint="give delta_E_down_cm1 or pressure_method = \"strong_collision\"")
+        if not math.isfinite(self.delta_E_temperature_exponent):
+            raise bad("delta_E_temperature_exponent", "must be a number")
+        if self.temperature_K is not None:
+            t = tuple(float(x) for x in self.temperature_K)
+            if not t or any(not (math.isfinite(x) and x > 0) for x in t):
+                raise bad("temperature_K", "temperatures must be positive numbers in K")
+            object.__setattr__(self, "temperature_K", t)
+        if (self.reference_k0_m6_per_s is None) != (self.reference_k0_temperature_exponent is None):
+            raise bad("reference_k0_temperature_exponent" if self.reference_k0_m6_per_s is not None
+                      else "reference_k0_cm6_per_molecule2_s",
+                      "give the reference k0 and its temperature exponent together")
+        if self.reference_k0_m6_per_s is not None and not (math.isfinite(self.reference_k0_m6_per_s)
+                                                           and self.reference_k0_m6_per_s > 0):
+            raise bad("reference_k0_cm6_per_molecule2_s", "the reference k0 must be positive")
+
+    def delta_E_down_J_per_mol(self, temperature_K) -> np.ndarray | None:
+        """<Delta E>down(T) [J/mol] on a temperature array, or None (strong collisions)."""
+        if self.delta_E_down_cm1 is None:
+            return None
+        t = np.asarray(temperature_K, dtype=float)
+        return self.delta_E_down_cm1 * CM1_J_PER_MOL * (t / DELTA_E_REFERENCE_T_K) ** self.delta_E_temperature_exponent
+
+    def reference_k0(self, temperature_K) -> np.ndarray | None:
+        """The evaluated k0(T) [m^6 molecule^-2 s^-1], or None."""
+        if self.reference_k0_m6_per_s is None:
+            return None
+        t = np.asarray(temperature_K, dtype=float)
+        return self.reference_k0_m6_per_s * (t / 300.0) ** self.reference_k0_temperature_exponent

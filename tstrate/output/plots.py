@@ -25,6 +25,7 @@ FIGURE_STEMS = {
     "isotopes": "isotopes_kie",
     # {name}: species, {panel}: the rotor's bond (C1-O3)
     "rotor": "rotor_{name}_{panel}",
+    "association": "association_{name}",
 }
 #: the formats a figure can be written in
 FIGURE_FORMATS = ("png", "svg")

@@ -162,6 +162,9 @@ def yield_pressure_figure(res, max_curves: int = 5):
         if c.stepwise is not None:
             ax.plot(xc, c.stepwise[i], "--", color=colour, lw=1.2)
             axq.plot(xc, _log_quenched(c.stepwise[i]), "--", color=colour, lw=1.2)
+        if c.master_equation is not None:
+            ax.plot(xc, c.master_equation[i], ":", color=colour, lw=2.0)
+            axq.plot(xc, _log_quenched(c.master_equation[i]), ":", color=colour, lw=2.0)
         handles.append(Line2D([], [], color=colour, lw=1.6, label=f"{g.temperature_K[i]:g} K"))
     xlabel = "log10 (p / bar)" if by_pressure else "log10 ([M] / molecule cm⁻³)"
     ax.set_ylim(-0.03, 1.03)
@@ -173,6 +176,8 @@ def yield_pressure_figure(res, max_curves: int = 5):
     styles = [Line2D([], [], color="0.3", lw=1.6, label="Stern-Volmer, βc Z[M]"),
               Line2D([], [], color="0.3", ls="--", lw=1.2, label="stepwise <ΔE>down"),
               Line2D([], [], color="0.3", ls="", marker="o", ms=4, label="study pressures")]
+    if c.master_equation is not None:
+        styles.insert(2, Line2D([], [], color="0.3", ls=":", lw=2.0, label="master equation"))
     fig.legend(handles=handles + styles, loc="lower center", ncol=len(handles) + len(styles), fontsize=8,
                frameon=False)
     fig.suptitle(_title(res), fontsize=10)
@@ -209,6 +214,10 @@ def yield_altitude_figure(res, bands: dict | None = None):
         ax.plot(g.stepwise, z_km, "--s", ms=3, color="C3")
         axq.plot(_log_quenched(g.stepwise), z_km, "--s", ms=3, color="C3")
         curves.append(Line2D([], [], color="C3", ls="--", marker="s", ms=3, label="stepwise <dE>down"))
+    if g.master_equation is not None:
+        ax.plot(g.master_equation, z_km, ":^", ms=3, color="C2")
+        axq.plot(_log_quenched(g.master_equation), z_km, ":^", ms=3, color="C2")
+        curves.append(Line2D([], [], color="C2", ls=":", marker="^", ms=3, label="master equation"))
     ax.set_xlim(-0.03, 1.03)
     ax.set_xlabel("fraction reacting before deactivation")
     axq.set_xlabel("log10 (fraction deactivated)")
@@ -264,5 +273,60 @@ def rate_energy_figure(res):
     ax.legend(fontsize=8, loc="lower right")
     how = "with Eckart tunnelling" if res.model.tunnelling == "eckart" else "no tunnelling"
     ax.set_title(f"RRKM k(E) of channel {res.spec.channel} ({res.model.reactant.name}), {how}", fontsize=10)
+    fig.tight_layout()
+    return fig
+
+
+# ---------------------------------------------------------------- master equation
+def population_figure(populations, well_names, product_names, *, collision_frequency_per_s: float | None = None,
+                      title: str | None = None):
+    """Populations of each well and the products formed against time (log axis), from a
+    :class:`tstrate.physics.master_equation.Populations`; with ``collision_frequency_per_s`` the top
+    axis counts collisions (omega t)."""
+    plt = _plt()
+    fig, ax = plt.subplots(figsize=(7.0, 4.6))
+    t = np.asarray(populations.times_s, dtype=float)
+    for i, name in enumerate(well_names):
+        ax.plot(t, populations.well_populations[:, i], "-", lw=1.8, label=f"well {name}")
+    for p, name in enumerate(product_names):
+        ax.plot(t, populations.products[:, p], "--", lw=1.6, label=f"products {name}")
+    ax.set_xscale("log")
+    ax.set_xlabel("time  [s]")
+    ax.set_ylabel("fraction of the initial molecules")
+    ax.set_ylim(-0.02, 1.02)
+    ax.grid(alpha=0.3)
+    ax.legend(fontsize=8, frameon=False)
+    if collision_frequency_per_s:
+        om = float(collision_frequency_per_s)
+        top = ax.secondary_xaxis("top", functions=(lambda x: x * om, lambda n: n / om))
+        top.set_xlabel("collisions")
+    ax.set_title(title or "energised molecules: populations against time", fontsize=10)
+    fig.tight_layout()
+    return fig
+
+
+def branching_figure(pressure_Pa, product_per_s, product_names, *, temperature_K: float | None = None,
+                     title: str | None = None):
+    """Branching fractions k_p / sum_p k_p of the product channels of one well against pressure,
+    ``product_per_s`` (n_P, n_products) [s^-1] at ``pressure_Pa`` (n_P,) [Pa]."""
+    plt = _plt()
+    k = np.asarray(product_per_s, dtype=float)
+    p = np.asarray(pressure_Pa, dtype=float)
+    share = k / k.sum(axis=1, keepdims=True)
+    fig, (ax, axk) = plt.subplots(1, 2, figsize=(10.0, 4.4))
+    for j, name in enumerate(product_names):
+        ax.plot(p / _BAR, share[:, j], "-o", ms=3, label=name)
+        axk.plot(p / _BAR, k[:, j], "-o", ms=3, label=name)
+    for axis in (ax, axk):
+        axis.set_xscale("log")
+        axis.set_xlabel("p  [bar]")
+        axis.grid(alpha=0.3)
+    axk.set_yscale("log")
+    ax.set_ylabel("branching fraction")
+    ax.set_ylim(-0.02, 1.02)
+    axk.set_ylabel("k(T, p)  [s$^{-1}$]")
+    ax.legend(fontsize=8, frameon=False)
+    at = f" at {temperature_K:g} K" if temperature_K is not None else ""
+    fig.suptitle(title or f"branching against pressure{at}", fontsize=10)
     fig.tight_layout()
     return fig

@@ -43,6 +43,20 @@ def model_record(model) -> dict:
     }
 
 
+def _master_equation_record(info) -> dict:
+    return {
+        "grain_cm1": info.grain_cm1, "energy_ceiling_cm1": info.top_cm1, "grains_solved": info.n_grains,
+        "kernel": info.kernel, "reservoir_below_cm1": info.reservoir_cm1,
+        "min_eigenvalue_separation": info.min_separation,
+        "check": {"temperature_K": info.check_temperature_K,
+                  "number_density_per_cm3": info.check_number_density_m3 * _CM3,
+                  "grain_cm1": info.check_grain_cm1,
+                  "grain_change_percent": 100.0 * info.grain_change,
+                  "ceiling_change_percent": 100.0 * info.ceiling_change,
+                  "reservoir_change_percent": 100.0 * info.reservoir_change},
+    }
+
+
 def falloff_channel_record(cf, rate_units: dict | None = None) -> dict:
     """One channel's falloff with units in the keys (see ``tstrate falloff --help`` for the list)."""
     u1 = rate_unit(1, rate_units)
@@ -77,8 +91,10 @@ def falloff_channel_record(cf, rate_units: dict | None = None) -> dict:
             "k_low_pressure": _rate_in(cf.troe_k0_m3_per_s, 2, u2),
             "k_low_pressure_unit": u2,
             "k_low_pressure_kind": ("fitted effective k0 (Eckart tunnelling)" if cf.model.tunnelling == "eckart"
+                                    else "master-equation low-pressure limit" if cf.master_equation is not None
                                     else "strong-collision low-pressure limit"),
-            "k_high_pressure_kind": "strong-collision high-pressure limit",
+            "k_high_pressure_kind": ("master-equation high-pressure limit" if cf.master_equation is not None
+                                     else "strong-collision high-pressure limit"),
             "max_deviation_percent": 100.0 * fit.max_rel_deviation,
             "rms_deviation_percent": 100.0 * fit.rms_rel_deviation,
             "fitted_on": {"min_number_density_per_cm3": float(m_fit.min() * _CM3),
@@ -104,6 +120,8 @@ def falloff_channel_record(cf, rate_units: dict | None = None) -> dict:
             "energy_factor_FE": eff.energy_factor,
             "collision_efficiency": eff.beta,
         },
+        "pressure_method": cf.pressure_method,
+        "master_equation": None if cf.master_equation is None else _master_equation_record(cf.master_equation),
         "warnings": list(cf.warnings),
     }
     rec.update(model_record(cf.model))
@@ -144,6 +162,7 @@ def _grid_record(g, profile: bool, rate_units: dict | None = None) -> dict:
         "collision_frequency_per_s": g.collision_frequency_per_s,
         "fraction_stern_volmer": g.stern_volmer,
         "fraction_stepwise": g.stepwise,
+        "fraction_master_equation": g.master_equation,
         "delta_E_down_cm1": _opt(de, 1 / CM1_J_PER_MOL),
     }
     if not profile:

@@ -246,6 +246,14 @@ def write_all(result, folder: Path, *, progress: Callable[[str], None] | None = 
 
         atomic_write_text(folder / "tables" / "conformers.csv", csv_text(*conformer_rows(result)))
         written.append(folder / "tables" / "conformers.csv")
+    if getattr(result, "associations", None):
+        from tstrate.output.association_records import HEADER, association_rows
+        from tstrate.output.tables import safe_file_stem
+
+        for ar in result.associations:
+            path = folder / "tables" / f"association_{safe_file_stem(ar.name)}.csv"
+            atomic_write_text(path, csv_text(HEADER, association_rows(ar)))
+            written.append(path)
     unc = getattr(result, "uncertainty", None)
     if unc is not None:
         from tstrate.output import uncertainty_records as ur
@@ -325,9 +333,16 @@ def _draw_all(result, doc: dict, folder: Path, plots) -> list[tuple[str, list[Pa
                     "temperature, per molecularity); every channel is in tables/ and results.json.")
     from tstrate.output import evaluation_records as er
 
-    jobs.append(("rates", FigureJob(figure_stem("arrhenius"), arrhenius_figure, (doc["channels"], study.title),
-                                    (("bands", bands), ("references", er.arrhenius_overlays(result) or None),
-                                     ("max_channels", most))), caption))
+    if doc["channels"]:
+        jobs.append(("rates", FigureJob(figure_stem("arrhenius"), arrhenius_figure, (doc["channels"], study.title),
+                                        (("bands", bands), ("references", er.arrhenius_overlays(result) or None),
+                                         ("max_channels", most))), caption))
+    if getattr(result, "associations", None):
+        from tstrate.output.association_records import association_figure
+
+        for ar in result.associations:
+            jobs.append(("association", FigureJob(figure_stem("association", ar.name), association_figure, (ar,)),
+                         f"{ar.name}: k(T, p) of the barrierless association against pressure."))
     if result.comparisons is not None:
         from tstrate.output import compare_plots as cp
 
@@ -552,6 +567,19 @@ def build_report(result, doc: dict, inputs: list[dict], figures, evaluation: dic
         B.append(rp.Table(head, tuple(tuple(row) for row in rows), note))
     B += [rp.Figure(p, c) for s, p, c in figures if s == "rates"]
 
+    if getattr(result, "associations", None):
+        from tstrate.output.association_records import association_summary
+
+        B.append(rp.Heading("Barrierless associations"))
+        for ar in result.associations:
+            B.append(rp.Bullets(tuple(association_summary(ar))))
+        B.append(rp.Paragraph("k(E) of each adduct is the inverse Laplace transform of the given k_inf(T) "
+                              "(Davies, Green and Pilling 1986): no angular momentum, valid only as far as "
+                              "k_inf(T) and its temperature exponent are; an active adduct rotation gives the "
+                              "upper, a spectator one the lower bound of the low-pressure limit. Full tables: "
+                              "tables/association_<name>.csv."))
+        B += [rp.Figure(p, c) for s, p, c in figures if s == "association"]
+
     if result.comparisons is not None:
         from tstrate.output.compare_records import comparison_report_blocks
 
@@ -621,11 +649,12 @@ def build_report(result, doc: dict, inputs: list[dict], figures, evaluation: dic
             rows.append((cf.name, label, f"{fit.A_in(unit):.4g}", unit, f"{fit.n:.3g}",
                          f"{fit.Ea_J_per_mol / 1e3:.3f}", f"{fit.Tmin_K:g}-{fit.Tmax_K:g}",
                          f"{100 * fit.max_rel_deviation:.2f}", f"{100 * fit.rms_rel_deviation:.2f}"))
-    B.append(rp.Table(("channel", "form", "A", "A unit", "n", "Ea / kJ mol-1", "range / K",
-                       "max deviation / %", "rms deviation / %"), tuple(rows),
-                      f"k = A (T/T0)^n exp(-Ea/RT), T0 = {result.fits.channels[0].modified.T0_K:g} K "
-                      "for the modified form, fitted to the k(T) table; deviations at the table's temperatures "
-                      "(the expression exported for each channel is in the next table)."))
+    if result.fits.channels:
+        B.append(rp.Table(("channel", "form", "A", "A unit", "n", "Ea / kJ mol-1", "range / K",
+                           "max deviation / %", "rms deviation / %"), tuple(rows),
+                          f"k = A (T/T0)^n exp(-Ea/RT), T0 = {result.fits.channels[0].modified.T0_K:g} K "
+                          "for the modified form, fitted to the k(T) table; deviations at the table's temperatures "
+                          "(the expression exported for each channel is in the next table)."))
     rows = []
     for cf in result.fits.channels:
         for label, fit in (("Chebyshev k(T)", cf.chebyshev), ("Chebyshev k(T, p)", cf.chebyshev_falloff)):
@@ -640,22 +669,26 @@ def build_report(result, doc: dict, inputs: list[dict], figures, evaluation: dic
         B.append(rp.Table(("channel", "form", "terms (T x p)", "range / K", "range / bar",
                            "max deviation on grid / %", "max deviation between grid points / %"), tuple(rows),
                           "Chebyshev expansions of log10 k in 1/T and log p (coefficients in fits.json)."))
-    rows = []
-    for cf in result.fits.channels:
-        e, d = cf.export, cf.export.deviation
-        pc = (lambda x: "-" if not np.isfinite(x) else f"{100 * x:.3g}")
-        rows.append((cf.name, e.label, e.requested, cf.method, pc(d.max_rel_grid), pc(d.max_rel_between),
-                     f"{100 * e.tolerance:g}", "yes" if e.meets_tolerance else
-                     ("not measured" if not np.isfinite(d.max_rel) else "NO")))
-    B.append(rp.Table(("channel", "mechanism.yaml holds", "form asked", "rates computed by",
-                       "max deviation on grid / %", "max deviation between grid points / %", "tolerance / %",
-                       "meets tolerance"), tuple(rows),
-                      "What mechanism.yaml holds per channel, measured from the numbers written against the "
-                      "computed rates on the grid and between grid points (temperatures midway in 1/T, pressures "
-                      "midway in ln p)."))
-    notes = [f"{cf.name}: {n}" for cf in result.fits.channels for n in cf.export.notes]
-    if notes:
-        B.append(rp.Bullets(tuple(notes)))
+    if result.fits.channels:
+        rows = []
+        for cf in result.fits.channels:
+            e, d = cf.export, cf.export.deviation
+            pc = (lambda x: "-" if not np.isfinite(x) else f"{100 * x:.3g}")
+            rows.append((cf.name, e.label, e.requested, cf.method, pc(d.max_rel_grid), pc(d.max_rel_between),
+                         f"{100 * e.tolerance:g}", "yes" if e.meets_tolerance else
+                         ("not measured" if not np.isfinite(d.max_rel) else "NO")))
+        B.append(rp.Table(("channel", "mechanism.yaml holds", "form asked", "rates computed by",
+                           "max deviation on grid / %", "max deviation between grid points / %", "tolerance / %",
+                           "meets tolerance"), tuple(rows),
+                          "What mechanism.yaml holds per channel, measured from the numbers written against the "
+                          "computed rates on the grid and between grid points (temperatures midway in 1/T, pressures "
+                          "midway in ln p)."))
+        notes = [f"{cf.name}: {n}" for cf in result.fits.channels for n in cf.export.notes]
+        if notes:
+            B.append(rp.Bullets(tuple(notes)))
+    else:
+        B.append(rp.Paragraph("The mechanism file holds the species only (barrierless associations are not "
+                              "exported as reactions yet; their k(T, p) is in tables/association_<name>.csv)."))
     rows = [(s.name, f"{s.nasa7.Tmin_K:g}-{s.nasa7.Tmid_K:g}-{s.nasa7.Tmax_K:g}",
              f"{100 * s.nasa7.max_rel_error_cp:.3f}", f"{100 * s.nasa7.max_rel_error_h:.3f}",
              f"{100 * s.nasa7.max_rel_error_s:.3f}") for s in result.fits.species]

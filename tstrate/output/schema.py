@@ -421,9 +421,28 @@ _record("falloff_channel", "Falloff of one unimolecular channel", [
     ("collisions.delta_E_all_cm1", CM1, "<dE> of all collisions per temperature (null unless energy_transfer is all)"),
     ("collisions.energy_factor_FE", ONE, "Troe's energy factor F_E per temperature (null without <dE>)"),
     ("collisions.collision_efficiency", ONE, "beta_c, per temperature"),
+    ("pressure_method", TEXT, "strong_collision or master_equation ([falloff] pressure_method)"),
+    ("master_equation", OBJ, "how the master equation was solved (null for strong collisions)"),
+    ("master_equation.grain_cm1", CM1, "grain of the master equation at the check temperature"),
+    ("master_equation.energy_ceiling_cm1", CM1, "highest energy solved, above the reactant's zero-point level"),
+    ("master_equation.grains_solved", ONE, "states solved (grains plus the reservoir)"),
+    ("master_equation.kernel", TEXT, "exponential (exponential-down) or strong (strong collider)"),
+    ("master_equation.reservoir_below_cm1", CM1, "grains below this energy form one thermal reservoir state "
+                                                 "(NaN: none)"),
+    ("master_equation.min_eigenvalue_separation", ONE, "smallest ratio of the slowest relaxation eigenvalue to "
+                                                       "the chemical one over the grid"),
+    ("master_equation.check", OBJ, "the answer recomputed at one point (highest T, lowest p)"),
+    ("master_equation.check.temperature_K", K, "temperature of the check"),
+    ("master_equation.check.number_density_per_cm3", PER_CM3, "number density of the check"),
+    ("master_equation.check.grain_cm1", CM1, "the other grain (half, or twice at the finest grain)"),
+    ("master_equation.check.grain_change_percent", PCT, "change of k with that grain"),
+    ("master_equation.check.ceiling_change_percent", PCT, "change of k with the ceiling raised by "
+                                                          "10 <dE>down + 10 RT"),
+    ("master_equation.check.reservoir_change_percent", PCT, "change of k with the reservoir started one "
+                                                            "reservoir depth lower"),
     ("warnings", TEXT, "warnings of this channel (list)"),
     ("", "", "", "k_of_E_model"),
-], "RRKM k(E), strong collisions scaled by beta_c, Troe fit. Arrays run over temperature_K, then pressure.")
+], "RRKM k(E), strong collisions scaled by beta_c or the energy-grained master equation, Troe fit. Arrays run over temperature_K, then pressure.")
 
 _record("falloff_study", "Falloff of a study", [
     ("study", TEXT, "the study file"),
@@ -459,6 +478,9 @@ _record("excitation_grid", "Energised molecules on a grid of conditions", [
     ("collision_frequency_per_s", PER_S, "collision frequency Z [M]"),
     ("fraction_stern_volmer", ONE, "fraction reacting before deactivation, k(E) / (k(E) + beta_c Z [M])"),
     ("fraction_stepwise", ONE, "fraction reacting with stepwise deactivation by <dE>down (null without <dE>down)"),
+    ("fraction_master_equation", ONE, "fraction reacting before stabilisation by the energy-grained master "
+                                      "equation, tunnelling below E0 included (null unless the channel's "
+                                      "pressure_method is master_equation)"),
     ("delta_E_down_cm1", CM1, "<dE>down per temperature (or null)"),
     ("half_quenching_number_density_per_cm3", PER_CM3, "number density where half react (Stern-Volmer; pressure "
                                                        "scan only)"),
@@ -1191,6 +1213,22 @@ conformer and temperature.""", _keys(
     ("optical isomers", ONE, "the conformer's number of optical isomers"),
 ), "csv")
 
+_ASSOC_CSV = Document("tables/association_<name>.csv", "csv-tables.md", """\
+One table per barrierless association (only with [[association]]), one row per temperature and
+pressure. Rate constants per molecule in fixed units (not `rate_units`).""", _keys(
+    ("association", TEXT, "association name"),
+    ("T", K, "temperature"),
+    ("pressure", BAR, "pressure (empty for number densities)"),
+    ("[M]", PER_CM3, "bath-gas number density"),
+    ("k", "cm3 molecule-1 s-1", "k(T, p) of A + B -> AB"),
+    ("k_inf", "cm3 molecule-1 s-1", "high-pressure limit from the inverse-Laplace k(E) on the grain"),
+    ("k0", "cm6 molecule-2 s-1", "low-pressure limit"),
+    ("k0_reference", "cm6 molecule-2 s-1", "the evaluated k0 the study gives (empty without one)"),
+    ("k0 / k0_reference", ONE, "computed over evaluated k0"),
+    ("pressure_method", TEXT, "master_equation or strong_collision"),
+    ("adduct_rotation", TEXT, "active, k_active or spectator"),
+), "csv")
+
 _ISO_BETA_CSV = Document("tables/isotopes_beta.csv", "csv-tables.md", """\
 Beta factors (only with [isotopes]): one row per isotope, species and temperature.""", _keys(
     ("isotope", TEXT, "substitution label"),
@@ -1546,7 +1584,7 @@ _BATCH_CSV = Document("tstrate many: summary.csv", "batch.md", """Every task of 
 
 DOCUMENTS: dict[str, Document] = {d.name: d for d in
                                   [_RESULTS, _INPUTS, _FITS, _FITS_CSV, _THERMO_CSV, _RATES_CSV,
-                                   _PFITS_CSV, _CONFORMERS_CSV, _ISO_BETA_CSV, _ISO_KIE_CSV, _ISO_FRAC_CSV,
+                                   _PFITS_CSV, _CONFORMERS_CSV, _ASSOC_CSV, _ISO_BETA_CSV, _ISO_KIE_CSV, _ISO_FRAC_CSV,
                                    _ISO_THETA_CSV, _UNC_CSV, _UNC_RANK_CSV, _EVAL_FORMS, _EVAL_CSV, _REF_CSV,
                                    _MECHANISM, *_COMMANDS, _BATCH_JSON, _BATCH_TASK, _BATCH_CSV]}
 

@@ -159,7 +159,9 @@ class YieldGrid:
     collision_rate_m3_per_s: Z; collision_efficiency: beta_c; collision_frequency_per_s: Z [M];
     stern_volmer and stepwise (None without <dE>down): fractions reacting (dimensionless);
     half_number_density_m3: [M] where the Stern-Volmer fraction is 1/2, k(E)/(beta_c Z)
-    (NaN below threshold); delta_E_down_J_per_mol: <dE>down used per temperature, or None.
+    (NaN below threshold); delta_E_down_J_per_mol: <dE>down used per temperature, or None;
+    master_equation: fraction reacting before stabilisation by the energy-grained master equation
+    (:func:`master_equation_yield`; the channel's ``pressure_method = "master_equation"``), or None.
     """
 
     temperature_K: np.ndarray = field(repr=False)
@@ -176,6 +178,7 @@ class YieldGrid:
     stepwise: np.ndarray | None = field(repr=False)
     half_number_density_m3: np.ndarray = field(repr=False)
     delta_E_down_J_per_mol: np.ndarray | None = field(repr=False)
+    master_equation: np.ndarray | None = field(repr=False, default=None)
 
 
 @dataclass(frozen=True)
@@ -249,6 +252,37 @@ def yields_at(model: UnimolecularModel, spec: ExcitationSpec, settings: FalloffS
                                      energy_down_J_per_mol=float(de_down[i])).fraction
     with np.errstate(divide="ignore", invalid="ignore"):
         half = np.where(below, np.nan, k / (beta * z))
-    return YieldGrid(t, pressures, m, e_thermal, energy, k, below, z, beta, z[:, None] * m, sv, step, half, de_down)
+    me_frac = None
+    if settings.pressure_method == "master_equation":
+        me_frac = np.array([master_equation_yield(model, spec.energy_J_per_mol, float(t[i]), z[i] * m[i],
+                                                  None if de_down is None else float(de_down[i]))
+                            for i in range(t.size)])
+    return YieldGrid(t, pressures, m, e_thermal, energy, k, below, z, beta, z[:, None] * m, sv, step, half, de_down,
+                     me_frac)
+
+
+def master_equation_yield(model: UnimolecularModel, excitation_J_per_mol: float, temperature_K: float,
+                          collision_frequency_per_s, delta_E_down_J_per_mol: float | None) -> np.ndarray:
+    """Fraction of the channel's reactant, energised by ``excitation_J_per_mol`` on top of its thermal
+    distribution, that reacts before collisions stabilise it, by the master equation
+    (:func:`tstrate.physics.master_equation.energised_yield`): grains of a sixth of <dE>down,
+    stabilised 10 <dE>down + 10 RT below the lower of E0 and the mean starting energy, ceiling
+    30 RT + 10 <dE>down above the higher, k(E) below E0 (tunnelling) included. Replaces the
+    stepwise cascade, which stops at E0; Stern-Volmer stays the quick estimate."""
+    from tstrate.physics import master_equation as me
+
+    rate = model.rate
+    g = rate.grain_J_per_mol
+    alpha = 0.0 if delta_E_down_J_per_mol is None else float(delta_E_down_J_per_mol)
+    merge = 1 if delta_E_down_J_per_mol is None else max(1, int(alpha / 6 / g))
+    depth = 10 * R * temperature_K + 10 * alpha
+    start = excitation_J_per_mol + float(mean_active_energy_J_per_mol(model, [temperature_K])[0])
+    e0 = rate.barrier_J_per_mol
+    y = me.energised_yield(rate.reactant.counts, rate.rate_per_s, g, temperature_K, excitation_J_per_mol,
+                           np.atleast_1d(collision_frequency_per_s), delta_E_down_J_per_mol,
+                           stabilised_below_J_per_mol=max(g, min(e0, start) - depth), merge=merge,
+                           top_J_per_mol=max(e0, start) + 30 * R * temperature_K + 10 * alpha,
+                           boundary=rate.barrier_index)
+    return y.reacted
 
 

@@ -433,7 +433,9 @@ class ChannelFalloffCurves:
     on a common [M] grid spanning the study's number densities, where closed forms are fitted
     (the Troe fit of :mod:`tstrate.study.falloff`);
     curve_pressure_Pa (n_C) with curve_number_density_m3 and curve_rate_per_s (n_T, n_C):
-    a dense curve two decades beyond the study's pressures on both sides, for plots.
+    a dense curve two decades beyond the study's pressures on both sides, for plots;
+    pressure_method: "strong_collision" or "master_equation"; master_equation: how the master
+    equation was solved (:class:`MasterEquationInfo`), None for strong collisions.
     """
 
     model: UnimolecularModel = field(repr=False)
@@ -454,6 +456,8 @@ class ChannelFalloffCurves:
     curve_number_density_m3: np.ndarray = field(repr=False)
     curve_rate_per_s: np.ndarray = field(repr=False)
     warnings: tuple[str, ...] = ()
+    pressure_method: str = "strong_collision"
+    master_equation: "MasterEquationInfo | None" = None
 
     @property
     def name(self) -> str:
@@ -462,6 +466,143 @@ class ChannelFalloffCurves:
     @property
     def collision_efficiency(self) -> np.ndarray:
         return self.efficiency.beta
+
+
+@dataclass(frozen=True)
+class MasterEquationInfo:
+    """How a channel's master equation was solved, and how stable its answer is.
+
+    grain_cm1: grain of the master equation [cm^-1] at the check temperature (the grain follows
+    <dE>down(T)); top_cm1: energy ceiling above the reactant's
+    zero-point level [cm^-1]; n_grains: populated grains solved; kernel: "exponential" or "strong";
+    min_separation: smallest ratio of the slowest relaxation to the chemical eigenvalue over the
+    grid (NaN when unknown); check_temperature_K, check_number_density_m3: the point (highest
+    temperature, lowest [M]) where the
+    answer was recomputed with half the grain (or twice, at the finest grain) and a ceiling raised by
+    10 <dE>down + 10 RT; grain_change and ceiling_change: the relative changes of k there;
+    reservoir_cm1: grains below this energy [cm^-1] are one thermal reservoir state (NaN: none);
+    reservoir_change: the relative change of k when the reservoir starts one reservoir depth lower.
+    The low-pressure limit k0 is k / [M] at a hundredth of the lowest [M] solved.
+    """
+
+    grain_cm1: float
+    top_cm1: float
+    n_grains: int
+    kernel: str
+    min_separation: float
+    check_temperature_K: float
+    check_number_density_m3: float
+    check_grain_cm1: float
+    grain_change: float
+    ceiling_change: float
+    reservoir_cm1: float = math.nan
+    reservoir_change: float = 0.0
+
+
+#: the master-equation grain is at most this fraction of <dE>down (common practice: several grains
+#: per mean downward step)
+ME_GRAIN_FRACTION_OF_DELTA_E = 1.0 / 6.0
+#: the master equation's energy ceiling: this many RT (highest temperature) above the barrier ...
+ME_TOP_IN_RT = 30.0
+#: ... plus this many <dE>down
+ME_TOP_IN_DELTA_E = 5.0
+#: grains this many RT (highest temperature) ...
+ME_RESERVOIR_DEPTH_IN_RT = 10.0
+#: ... plus this many <dE>down below the barrier form the reservoir (when k(E) there is negligible)
+ME_RESERVOIR_DEPTH_IN_DELTA_E = 10.0
+
+
+def _interp_log(x_new, x, y):
+    """PCHIP interpolation of log y against log x (y > 0)."""
+    from scipy.interpolate import PchipInterpolator
+
+    order = np.argsort(x)
+    xs, ys = np.log(x[order]), np.log(np.maximum(y[order], 1e-300))
+    keep = np.concatenate([[True], np.diff(xs) > 1e-12])
+    return np.exp(PchipInterpolator(xs[keep], ys[keep], extrapolate=True)(np.log(x_new)))
+
+
+def master_equation_on_grid(model: UnimolecularModel, settings: FalloffSettings, temperature_K, z,
+                            grids: tuple[np.ndarray, ...]):
+    """k(T, [M]) of a channel's master equation on several [M] grids (each (n_T, n_i)); returns
+    (rates per grid, k_inf, k0, :class:`MasterEquationInfo`, warnings). The master equation is
+    solved at the first grid's points and on a log grid of three points per decade spanning all
+    of them; the other grids are interpolated (PCHIP in log k, log [M]) from those."""
+    from tstrate.physics import master_equation as me
+
+    t = np.atleast_1d(np.asarray(temperature_K, dtype=float))
+    rate = model.rate
+    g = rate.grain_J_per_mol
+    alpha = settings.delta_E_J_per_mol(t) if settings.energy_transfer == "down" else None
+    kernel = "strong" if alpha is None else "exponential"
+    if settings.master_equation_grain_cm1 is not None:
+        target = np.full(t.size, settings.master_equation_grain_cm1 * CM1_J_PER_MOL)
+    elif alpha is not None:
+        target = ME_GRAIN_FRACTION_OF_DELTA_E * alpha
+    else:
+        target = np.full(t.size, 2 * g)     # strong collider: two fine grains (the k average is nonlinear in k0)
+    merge = np.maximum(1, np.floor(target / g + 1e-9).astype(int))
+    span = ME_TOP_IN_RT * R * float(t.max()) + (0.0 if alpha is None else ME_TOP_IN_DELTA_E * float(alpha.max()))
+    top = rate.barrier_J_per_mol + span
+
+    all_m = np.concatenate([np.asarray(x, dtype=float).reshape(t.size, -1) for x in grids], axis=1)
+    lo, hi = math.log10(float(all_m.min())), math.log10(float(all_m.max()))
+    n_log = max(2, int(math.ceil((hi - lo) * 3)) + 1)
+    m_log = np.broadcast_to(np.logspace(lo, hi, n_log), (t.size, n_log))
+    first = np.asarray(grids[0], dtype=float).reshape(t.size, -1)
+    m_eval = np.concatenate([first, m_log], axis=1)
+    # the reservoir: grains at least 10 <dE>down + 10 RT below the barrier whose k(E) stays below
+    # 1e-3 of the lowest collision frequency of the grids are lumped into one thermal state
+    omega_min = float(np.min(z) * m_eval.min())
+    depth = ME_RESERVOIR_DEPTH_IN_RT * R * float(t.max()) + \
+        (0.0 if alpha is None else ME_RESERVOIR_DEPTH_IN_DELTA_E * float(alpha.max()))
+    e_fine = rate.energies_J_per_mol
+    fast = np.flatnonzero(rate.rate_per_s > 1e-3 * omega_min)
+    reservoir = min(rate.barrier_J_per_mol - depth, float(e_fine[fast[0]]) if fast.size else math.inf)
+    reservoir = reservoir if reservoir > 0 else None
+    m_low = np.full(t.size, float(m_eval.min()) * 1e-2)
+    i0 = int(np.argmax(t))         # the check point (below): highest temperature ...
+    kw = dict(top_J_per_mol=top, reservoir_J_per_mol=reservoir)
+
+    def solve(tt, mm, zz, aa, **over):
+        args = {**kw, "merge": merge if np.size(tt) == t.size else merge[i0], **over}
+        return me.single_well_falloff(rate.reactant.counts, rate.rate_per_s, g, rate.barrier_index, tt, mm, zz, aa,
+                                      low_pressure_number_density_m3=m_low[:np.size(tt)], **args)
+
+    res = solve(t, m_eval, z, alpha)
+    k_eval = res.rate_per_s
+    out = [k_eval[:, :first.shape[1]]]
+    for grid in grids[1:]:
+        grid = np.asarray(grid, dtype=float).reshape(t.size, -1)
+        out.append(np.array([_interp_log(grid[i], m_eval[i], k_eval[i]) for i in range(t.size)]))
+    warnings = []
+    sep = res.separation[np.isfinite(res.separation)]
+    min_sep = float(sep.min()) if sep.size else math.nan
+    if sep.size and min_sep < me.MIN_SEPARATION:
+        warnings.append(f"channel {model.channel.name!r}: the master equation's chemical eigenvalue is not well "
+                        f"separated from relaxation (ratio {min_sep:.3g} < {me.MIN_SEPARATION:g}); k(T, P) is "
+                        "not a well-defined rate constant at the highest temperatures")
+    # stability against the grain, the ceiling and the reservoir at the point of most falloff:
+    # highest temperature, lowest [M] of the study
+    j0 = int(np.argmin(first[i0]))   # ... and lowest [M] of the study
+    mc = np.array([[first[i0, j0]]])
+    check_merge = int(merge[i0]) // 2 if merge[i0] >= 2 else 2
+    a0 = None if alpha is None else alpha[i0:i0 + 1]
+    k_ref = float(k_eval[i0, j0])
+    k_grain = solve(t[i0:i0 + 1], mc, z[i0:i0 + 1], a0, merge=check_merge).rate_per_s[0, 0]
+    extra = 10 * R * float(t.max()) + (0.0 if alpha is None else 10 * float(alpha.max()))
+    k_top = solve(t[i0:i0 + 1], mc, z[i0:i0 + 1], a0, top_J_per_mol=top + extra).rate_per_s[0, 0]
+    k_res = (solve(t[i0:i0 + 1], mc, z[i0:i0 + 1], a0, reservoir_J_per_mol=max(0.0, reservoir - depth)).rate_per_s[0, 0]
+             if reservoir is not None else k_ref)
+    if top + extra > (rate.reactant.n_grains - 1) * g:
+        warnings.append(f"channel {model.channel.name!r}: the state counts end below the master equation's "
+                        "raised ceiling; the ceiling check is incomplete (raise energy_above_barrier_cm1)")
+    info = MasterEquationInfo(g * float(merge[i0]) / CM1_J_PER_MOL, res.top_J_per_mol / CM1_J_PER_MOL, res.n_grains,
+                              kernel, min_sep, float(t[i0]), float(mc[0, 0]), g * check_merge / CM1_J_PER_MOL,
+                              float(k_grain / k_ref - 1.0), float(k_top / k_ref - 1.0),
+                              math.nan if reservoir is None else reservoir / CM1_J_PER_MOL,
+                              float(k_res / k_ref - 1.0))
+    return out, res.high_pressure_per_s, res.low_pressure_m3_s, info, warnings
 
 
 # ---------------------------------------------------------------- grid and computation
@@ -515,6 +656,25 @@ def falloff_on_grid(model: UnimolecularModel, settings: FalloffSettings, bath: c
         m_line = _log_grid(float(m.min()) / 100, float(m.max()) * 100, 8, 33)
         p_curve = np.full(m_line.size, np.nan)
         m_curve = np.broadcast_to(m_line, (t.size, m_line.size)).copy()
+
+    if settings.pressure_method == "master_equation":
+        (k_grid, k_fit, k_curve), k_inf, k0, info, me_warnings = master_equation_on_grid(
+            model, settings, t, z, (m, np.broadcast_to(m_fit, (t.size, m_fit.size)), m_curve))
+        warnings.extend(me_warnings)
+        if model.rate.centrifugal_factor != 1.0:
+            warnings.append(f"channel {channel.name!r}: the master equation uses the E-resolved k(E) with the "
+                            "centrifugal factor I_TS/I_R; unlike the strong-collision sum its low-pressure limit "
+                            "has no J-resolved threshold (the rotational factor of k0)")
+        return ChannelFalloffCurves(
+            model=model, settings=settings, bath=bath, temperature_K=t, pressure_Pa=pressures,
+            number_density_m3=m, rate_constant_per_s=k_grid, k_high_pressure_per_s=k_inf,
+            k_low_pressure_m3_per_s=k0, troe_fit_number_density_m3=m_fit, troe_fit_rate_per_s=k_fit,
+            canonical_tst_per_s=(np.full(t.shape, np.nan) if canonical_tst_per_s is None
+                                 else np.asarray(canonical_tst_per_s, dtype=float)),
+            collision_rate_m3_per_s=z, efficiency=eff, curve_pressure_Pa=p_curve, curve_number_density_m3=m_curve,
+            curve_rate_per_s=k_curve, warnings=tuple(warnings), pressure_method="master_equation",
+            master_equation=info)
+
     # one falloff sum for the study's grid, the fit grid and the curve (k(E, E_r) built once)
     m_all = np.concatenate([np.broadcast_to(m, (t.size, m.shape[-1])),
                             np.broadcast_to(m_fit, (t.size, m_fit.size)), m_curve], axis=1)

@@ -789,7 +789,8 @@ def fit_study(study, *, temperature_K=None, low_modes: LowModes = HARMONIC,
                 raise InputError(f"{what} given for unknown channel {key!r}", file=study.file,
                                  field="troe" if given is troe else "falloff_grid",
                                  hint="channels: " + ", ".join(sorted(names)))
-    if not study.channels:
+    associations = study.sections.get("association") or ()
+    if not study.channels and not associations:
         raise InputError("the study has no channels to fit", file=study.file, field="channel")
 
     # ---- species: reactants/products, then complexes (study order of appearance)
@@ -800,13 +801,17 @@ def fit_study(study, *, temperature_K=None, low_modes: LowModes = HARMONIC,
     for ch in study.channels:
         if ch.complex:
             roles.setdefault(ch.complex, "complex")
+    for spec in associations:       # barrierless associations: their fragments and adduct
+        for n in (*spec.reactants, spec.adduct):
+            roles.setdefault(n, "reactant/product")
     exported = [study.species[n] for n in roles]
     for sp in exported:
         _check_energy(sp)
 
     if rates is None:
         rates = study_rates(study, low_modes=low_modes, temperature_K=temperature_K)
-    T_fit = rates[0].temperature_K
+    T_fit = (rates[0].temperature_K if rates else
+             np.asarray(study.conditions.temperature_K if temperature_K is None else temperature_K, dtype=float))
     lo, hi = nasa_range(T_fit, range_K=nasa_range_K)
     nasa_kw = dict(T_range_K=(lo, hi), T_mid_K=nasa_T_mid_K, adjust_mid=nasa_adjust_mid,
                    extra_K=T_fit, low_modes=low_modes)

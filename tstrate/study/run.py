@@ -57,6 +57,7 @@ class StudyResult:
         energies, populations against the study temperatures) of each conformer ensemble.
     conformer_effects: per channel that uses an ensemble, k and Kc with the ensembles over k and Kc
         with their representative conformers alone (:func:`tstrate.study.rates.conformer_effects`).
+    associations: study.associations.AssociationResult per [[association]] (barrierless), or None.
     """
 
     study: Study
@@ -76,14 +77,17 @@ class StudyResult:
     references: tuple = ()
     conformers: dict = field(default_factory=dict)
     conformer_effects: tuple = ()
+    associations: tuple | None = None
 
 
 def steps(study: Study) -> list[str]:
     steps = ["thermochemistry", "rate constants"]
     if study.sections.get("comparison"):
         steps.append("catalysed routes")
-    if study.conditions.pressure_Pa.size or study.conditions.number_density_m3.size:
+    if (study.conditions.pressure_Pa.size or study.conditions.number_density_m3.size) and study.channels:
         steps.append("falloff")
+    if study.sections.get("association"):
+        steps.append("barrierless associations")
     if study.sections.get("excitation"):
         steps.append("energised molecules")
     if study.sections.get("isotopes"):
@@ -145,7 +149,7 @@ def compute_study(study: Study, *, low_modes: LowModes = HARMONIC,
     troe = {}
     grid = {}
     pressure_fits = {}
-    if study.conditions.pressure_Pa.size or study.conditions.number_density_m3.size:
+    if (study.conditions.pressure_Pa.size or study.conditions.number_density_m3.size) and study.channels:
         step("falloff")
         from tstrate.study.falloff import study_falloff
 
@@ -165,6 +169,15 @@ def compute_study(study: Study, *, low_modes: LowModes = HARMONIC,
                 troe[cf.name] = cf.troe
             grid[cf.name] = export_grid(study, cf)   # k(T, P) on the grid and between its points
             pressure_fits[cf.name], w = fits_at_each_pressure(cf)
+
+    associations = None
+    if study.sections.get("association"):
+        step("barrierless associations")
+        from tstrate.study.associations import study_associations
+
+        associations = study_associations(study)
+        for a in associations:
+            warnings += list(a.warnings)
 
     excitations = None
     if study.sections.get("excitation"):
@@ -214,7 +227,7 @@ def compute_study(study: Study, *, low_modes: LowModes = HARMONIC,
                          comparisons=comparisons, falloff=falloff, excitations=excitations, fits=fits,
                          pressure_fits=pressure_fits, warnings=tuple(dict.fromkeys(warnings)), capture=capture,
                          isotopes=isotopes, evaluation_forms=evaluation_forms, references=references,
-                         conformers=conformers, conformer_effects=effects)
+                         conformers=conformers, conformer_effects=effects, associations=associations)
     if wants_uncertainty(study):
         step("uncertainty")
         from dataclasses import replace

@@ -16,6 +16,8 @@ Pressures and the bath gas come from ``[conditions]`` (``pressure_bar`` ...,
     delta_E_temperature_exponent = 0  # <dE>(T) = <dE>(300 K) (T / 300 K)^n
     collision_integral = "neufeld"    # or "troe"
     fit_T2 = false                    # also fit Troe's T**
+    pressure_method = "master_equation"  # or "strong_collision" (default)
+    master_equation_grain_cm1 = 30    # grain of the master equation [cm-1] (default: automatic)
 
     [falloff.channels.bare]           # per-channel overrides, same keys
     delta_E_down_cm1 = 300
@@ -44,15 +46,16 @@ from tstrate.io.keys import Key, Keys, field_default
 from tstrate.io.profiles import read_profile_csv, resolve_profile
 from tstrate.io.tables import Table, energy_keys
 from tstrate.model import Study
-from tstrate.model.settings import (DELTA_E_REFERENCE_T_K, US_STANDARD_1976, ExcitationSpec, FalloffSection,
-                                    FalloffSettings)
+from tstrate.model.settings import (DELTA_E_REFERENCE_T_K, PRESSURE_METHODS, US_STANDARD_1976, ExcitationSpec,
+                                    FalloffSection, FalloffSettings)
 from tstrate.physics.activation import photon_energy_J_per_mol
 from tstrate.physics.collisions import COLLISION_INTEGRALS as _COLLISION_INTEGRALS
 from tstrate.physics.unimolecular import MIN_SPAN_CM1, SPAN_IN_KT
 from tstrate.units import PRESSURE_UNITS_PA, energy_to_J_per_mol
 
 _SETTING_KEYS = ("grain_cm1", "energy_above_barrier_cm1", "collision_efficiency", "delta_E_down_cm1",
-                 "delta_E_all_cm1", "delta_E_temperature_exponent", "collision_integral", "fit_T2")
+                 "delta_E_all_cm1", "delta_E_temperature_exponent", "collision_integral", "fit_T2",
+                 "pressure_method", "master_equation_grain_cm1")
 _TRANSFER_KEYS = ("collision_efficiency", "delta_E_down_cm1", "delta_E_all_cm1")
 
 # ---- the keys of [falloff] and [[excitation]] (docs/study-file.md is generated from these)
@@ -83,10 +86,18 @@ _SETTINGS = (
         "(1972) or Troe (1977)", default=_setting("collision_integral"), choices=tuple(_COLLISION_INTEGRALS)),
     Key("fit_T2", "true or false", "also fit Troe's T** (else the exp(-T**/T) term is left out)",
         default=_setting("fit_T2")),
+    Key("pressure_method", "string", "how k(T, P) is computed: strong collisions scaled by the collision "
+        "efficiency (closed form, quick), or the energy-grained master equation (exponential-down "
+        "energy transfer with delta_E_down_cm1; strong-collider kernel without an energy-transfer key)",
+        default=_setting("pressure_method"), choices=PRESSURE_METHODS),
+    Key("master_equation_grain_cm1", "number", "grain of the master equation, rounded down to a multiple "
+        "of grain_cm1", default_text="the coarsest multiple of grain_cm1 not above <dE>down / 8",
+        unit="cm-1"),
 )
 FALLOFF_KEYS = Keys(("falloff",), "[falloff]",
-                    "Pressure dependence of the unimolecular channels: RRKM k(E), strong collisions scaled "
-                    "by a collision efficiency, Lindemann and fitted Troe parameters. Pressures and the bath "
+                    "Pressure dependence of the unimolecular channels: RRKM k(E), then strong collisions scaled "
+                    "by a collision efficiency or the energy-grained master equation (`pressure_method`), "
+                    "Lindemann and fitted Troe parameters. Pressures and the bath "
                     "gas come from `[conditions]`; the reactant's species file needs `lennard_jones`. Every "
                     "key is optional.", _SETTINGS + (
                         Key("channels", "table", "per-channel overrides (`[falloff.channels.<channel>]` below)"),
@@ -138,7 +149,7 @@ def _settings_values(t: Table) -> dict:
     out = {}
     for key in _SETTING_KEYS:
         if key in t:
-            kind = {"collision_integral": str, "fit_T2": bool}.get(key, float)
+            kind = {"collision_integral": str, "fit_T2": bool, "pressure_method": str}.get(key, float)
             out[key] = t.get(key, kind)
     return out
 
