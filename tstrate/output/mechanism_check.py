@@ -125,7 +125,7 @@ def measure_mechanism_file(fits, path) -> dict[str, Deviation]:
     import yaml
 
     doc = yaml.safe_load(Path(path).read_text())
-    reactions = doc["reactions"]
+    reactions = doc.get("reactions") or []  # a study of associations only: species, no reactions
     if len(reactions) != len(fits.channels):
         raise RuntimeError(f"{path}: {len(reactions)} reactions for {len(fits.channels)} channels (a tstrate bug)")
     out = {}
