@@ -246,6 +246,12 @@ def write_all(result, folder: Path, *, progress: Callable[[str], None] | None = 
                 written += paths
                 figures.append(("excitation", paths[0], f"{ex.spec.name}: fraction reacting "
                                 "before deactivation against altitude."))
+            fig = pp.excitation_populations_figure(ex)
+            if fig is not None:
+                paths = _save(fig, folder / "plots", figure_stem("excitation", ex.spec.name, "populations"))
+                written += paths
+                figures.append(("excitation", paths[0], f"{ex.spec.name}: energised, reacted and stabilised "
+                                "fractions against time and collisions (master equation)."))
 
     if result.isotopes is not None and any(s.kie for s in result.isotopes.substitutions):
         from tstrate.output.isotope_plots import kie_figure
