@@ -27,7 +27,8 @@ collision_frequency_per_s, fraction_stern_volmer, fraction_stepwise, ...;
 altitude_km along a profile; half_quenching_pressure_bar for the scan}, warnings.
 Every key with its unit: docs/outputs/command-json.md.
 
---plot DIR writes excitation_<name>_pressure, excitation_<name>_altitude
+--plot DIR writes excitation_<name>_pressure, excitation_<name>_altitude,
+excitation_<name>_populations (master-equation channels)
 (the names tstrate run uses in its plots/ folder) and excitation_<name>_k_of_E,
 each as PNG and SVG, into DIR. As in falloff, the state counts are harmonic:
 the low-mode options do not apply.
@@ -230,7 +231,8 @@ def run(args) -> int:
     written = []
     if folder is not None:
         from tstrate.output.plots import figure_stem
-        from tstrate.output.pressure_plots import rate_energy_figure, yield_altitude_figure, yield_pressure_figure
+        from tstrate.output.pressure_plots import (excitation_populations_figure, rate_energy_figure,
+                                                   yield_altitude_figure, yield_pressure_figure)
 
         inputs = [study.file, *study.species_files.values()]
         for res in results:
@@ -243,6 +245,10 @@ def run(args) -> int:
                                         figure_stem("excitation", name, "altitude"), inputs, formats)
             written += write_figure(rate_energy_figure(res), folder, figure_stem("excitation", name, "k_of_E"),
                                     inputs, formats)
+            fig = excitation_populations_figure(res)
+            if fig is not None:
+                written += write_figure(fig, folder, figure_stem("excitation", name, "populations"), inputs,
+                                         formats)
     records = [excitation_record(r, study.conditions.rate_units) for r in results]
     if args.json:
         from tstrate.output.pressure_records import excitation_document

@@ -20,7 +20,7 @@ FIGURE_STEMS = {
     # panels: energy_profile, ratio_vs_temperature, ratio_vs_abundance (compare_plots.comparison_figures)
     "comparison": "compare_{name}_{panel}",
     "falloff": "falloff_{name}",
-    # panels: pressure, altitude, k_of_E
+    # panels: pressure, altitude, k_of_E, populations (master equation)
     "excitation": "excitation_{name}_{panel}",
     "isotopes": "isotopes_kie",
     # {name}: species, {panel}: the rotor's bond (C1-O3)

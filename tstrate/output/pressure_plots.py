@@ -330,3 +330,14 @@ def branching_figure(pressure_Pa, product_per_s, product_names, *, temperature_K
     fig.suptitle(title or f"branching against pressure{at}", fontsize=10)
     fig.tight_layout()
     return fig
+
+
+def excitation_populations_figure(res):
+    """The master-equation populations of an excitation's energised molecule (``res.populations``)
+    against time and collisions, or None when it has none."""
+    if res.populations is None:
+        return None
+    t_pop, m_pop, om_pop, pops = res.populations
+    return population_figure(pops, ["energised"], ["reacted", "stabilised"], collision_frequency_per_s=om_pop,
+                             title=f"{res.spec.name}: master equation at {t_pop:g} K, "
+                                   f"[M] = {m_pop * 1e-6:.3g} cm-3")

@@ -388,6 +388,11 @@ def _draw_all(result, doc: dict, folder: Path, plots) -> list[tuple[str, list[Pa
                 jobs.append(("excitation", FigureJob(figure_stem("excitation", ex.spec.name, "altitude"),
                                                      pp.yield_altitude_figure, (ex,), (("bands", ab),)),
                              f"{ex.spec.name}: fraction reacting before deactivation against altitude."))
+            if ex.populations is not None:
+                jobs.append(("excitation", FigureJob(figure_stem("excitation", ex.spec.name, "populations"),
+                                                     pp.excitation_populations_figure, (ex,)),
+                             f"{ex.spec.name}: energised, reacted and stabilised fractions against time and "
+                             "collisions (master equation)."))
     from tstrate.output.plots import rotor_figure
 
     for th in doc["thermochemistry"]:

@@ -188,6 +188,8 @@ class ExcitationResult:
     altitude_m: altitudes [m] of the profile (None without one); profile_source: its name.
     pressure_curve: the pressure scan on a dense grid (8 points per decade, from 1/100 of the
     lowest study pressure to 100 times the highest, and past the half-quenching pressure), for plots.
+    populations: (temperature [K], [M] [m^-3], collision frequency [s^-1], Populations) of the
+    energised molecule by the master equation (:func:`master_equation_populations`), or None.
     """
 
     spec: ExcitationSpec
@@ -198,6 +200,7 @@ class ExcitationResult:
     profile_source: str | None = None
     pressure_curve: YieldGrid | None = field(repr=False, default=None)
     warnings: tuple[str, ...] = ()
+    populations: tuple | None = field(repr=False, default=None)
 
     @property
     def barrier_J_per_mol(self) -> float:
@@ -261,6 +264,41 @@ def yields_at(model: UnimolecularModel, spec: ExcitationSpec, settings: FalloffS
                      me_frac)
 
 
+def _energised_setup(model, excitation_J_per_mol, temperature_K, delta_E_down_J_per_mol):
+    rate = model.rate
+    g = rate.grain_J_per_mol
+    alpha = 0.0 if delta_E_down_J_per_mol is None else float(delta_E_down_J_per_mol)
+    merge = 1 if delta_E_down_J_per_mol is None else max(1, int(alpha / 6 / g))
+    depth = 10 * R * temperature_K + 10 * alpha
+    start = excitation_J_per_mol + float(mean_active_energy_J_per_mol(model, [temperature_K])[0])
+    e0 = rate.barrier_J_per_mol
+    return dict(stabilised_below_J_per_mol=max(g, min(e0, start) - depth), merge=merge,
+                top_J_per_mol=max(e0, start) + 30 * R * temperature_K + 10 * alpha, boundary=rate.barrier_index)
+
+
+def master_equation_populations(model: UnimolecularModel, excitation_J_per_mol: float, temperature_K: float,
+                                collision_frequency_per_s: float, delta_E_down_J_per_mol: float | None,
+                                times_s=None):
+    """Populations against time of the energised reactant (as in :func:`master_equation_yield`):
+    a :class:`tstrate.physics.master_equation.Populations` with one well (still energised, above
+    the stabilisation energy) and two sinks, "reacted" and "stabilised". ``times_s`` default: 60
+    points from 1e-3 to 1e3 collision times (1/omega)."""
+    from tstrate.physics import master_equation as me
+
+    rate = model.rate
+    y = me.energised_yield(rate.reactant.counts, rate.rate_per_s, rate.grain_J_per_mol, temperature_K,
+                           excitation_J_per_mol, [collision_frequency_per_s], delta_E_down_J_per_mol,
+                           keep_matrix=True, **_energised_setup(model, excitation_J_per_mol, temperature_K,
+                                                                delta_E_down_J_per_mol))
+    times = (np.logspace(-3, 3, 60) / collision_frequency_per_s) if times_s is None else np.asarray(times_s)
+    pops = me.populations(y.matrix, y.start, times)
+    # molecules that start below the stabilisation energy are stabilised from the start
+    below = 1.0 - float(y.start.sum())
+    products = pops.products.copy()
+    products[:, 1] += below
+    return me.Populations(pops.times_s, pops.states, products, pops.well_populations)
+
+
 def master_equation_yield(model: UnimolecularModel, excitation_J_per_mol: float, temperature_K: float,
                           collision_frequency_per_s, delta_E_down_J_per_mol: float | None) -> np.ndarray:
     """Fraction of the channel's reactant, energised by ``excitation_J_per_mol`` on top of its thermal
@@ -272,17 +310,9 @@ def master_equation_yield(model: UnimolecularModel, excitation_J_per_mol: float,
     from tstrate.physics import master_equation as me
 
     rate = model.rate
-    g = rate.grain_J_per_mol
-    alpha = 0.0 if delta_E_down_J_per_mol is None else float(delta_E_down_J_per_mol)
-    merge = 1 if delta_E_down_J_per_mol is None else max(1, int(alpha / 6 / g))
-    depth = 10 * R * temperature_K + 10 * alpha
-    start = excitation_J_per_mol + float(mean_active_energy_J_per_mol(model, [temperature_K])[0])
-    e0 = rate.barrier_J_per_mol
-    y = me.energised_yield(rate.reactant.counts, rate.rate_per_s, g, temperature_K, excitation_J_per_mol,
-                           np.atleast_1d(collision_frequency_per_s), delta_E_down_J_per_mol,
-                           stabilised_below_J_per_mol=max(g, min(e0, start) - depth), merge=merge,
-                           top_J_per_mol=max(e0, start) + 30 * R * temperature_K + 10 * alpha,
-                           boundary=rate.barrier_index)
+    y = me.energised_yield(rate.reactant.counts, rate.rate_per_s, rate.grain_J_per_mol, temperature_K,
+                           excitation_J_per_mol, np.atleast_1d(collision_frequency_per_s), delta_E_down_J_per_mol,
+                           **_energised_setup(model, excitation_J_per_mol, temperature_K, delta_E_down_J_per_mol))
     return y.reacted
 
 

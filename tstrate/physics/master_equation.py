@@ -911,18 +911,24 @@ class EnergisedYield:
     reacted (n_omega,): fraction that reacts (through k(E), tunnelling below E0 included) before
     collisions take it below ``stabilised_below_J_per_mol``; stabilised (n_omega,) = 1 - reacted,
     computed separately (both by the non-subtracting solver, so small fractions keep their digits);
-    initial (n_grains,): the initial distribution on the (merged) grid.
+    initial (n_grains,): the initial distribution on the (merged) grid; with ``keep_matrix``, matrix:
+    the rate matrix above the stabilisation energy at the last collision frequency (losses
+    "reacted" and "stabilised") and start: the initial vector on its states (fractions of all
+    molecules).
     """
 
     reacted: np.ndarray
     stabilised: np.ndarray
     stabilised_below_J_per_mol: float
     initial: np.ndarray = field(repr=False)
+    matrix: "RateMatrix | None" = field(repr=False, default=None)
+    start: np.ndarray | None = field(repr=False, default=None)
 
 
 def energised_yield(counts, rate_per_s, grain_J_per_mol: float, temperature_K: float, excitation_J_per_mol: float,
                     collision_frequencies_per_s, delta_E_down_J_per_mol=None, *, stabilised_below_J_per_mol: float,
-                    merge: int = 1, top_J_per_mol: float | None = None, boundary: int = 0) -> EnergisedYield:
+                    merge: int = 1, top_J_per_mol: float | None = None, boundary: int = 0,
+                    keep_matrix: bool = False) -> EnergisedYield:
     """Fraction of molecules energised by ``excitation_J_per_mol`` [J/mol] on top of their thermal
     distribution at ``temperature_K`` that react before collisions stabilise them.
 
@@ -978,4 +984,5 @@ def energised_yield(counts, rate_per_s, grain_J_per_mol: float, temperature_K: f
         y = reaction_yields(rm, start) if start.sum() > 0 else np.zeros(2)
         reacted.append(y[0])
         stabilised.append(y[1] + below_share)
-    return EnergisedYield(np.array(reacted), np.array(stabilised), float(stabilised_below_J_per_mol), n0)
+    return EnergisedYield(np.array(reacted), np.array(stabilised), float(stabilised_below_J_per_mol), n0,
+                          rm if keep_matrix else None, start if keep_matrix else None)

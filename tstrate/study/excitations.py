@@ -41,7 +41,8 @@ from tstrate.errors import InputError
 from tstrate.model import Study
 from tstrate.model.settings import US_STANDARD_1976, US_STANDARD_RANGE_KM, ExcitationSpec
 from tstrate.physics.activation import (ExcitationResult, YieldGrid, delta_e_down_J_per_mol,
-                                        mean_vibrational_energy_J_per_mol, yields_at)
+                                        master_equation_populations, mean_vibrational_energy_J_per_mol,
+                                        yields_at)
 from tstrate.physics.atmosphere import AtmosphereProfile, us_standard_atmosphere_1976
 from tstrate.study.falloff import bath_parameters, channel_model, falloff_section, study_number_densities
 from tstrate.units import K_B, R
@@ -154,8 +155,16 @@ def excitation_yield(study: Study, spec: ExcitationSpec) -> ExcitationResult:
     if spec.collision_efficiency is None and settings.energy_transfer == "strong":
         warnings.append(f"excitation {spec.name!r}: no collision efficiency in [falloff]; Stern-Volmer uses "
                         "beta_c = 1 (every collision deactivates)")
+    populations = None
+    if grid is not None and grid.master_equation is not None:
+        # the energised molecule at the first temperature and the middle study pressure
+        j = grid.number_density_m3.shape[1] // 2
+        de = None if grid.delta_E_down_J_per_mol is None else float(grid.delta_E_down_J_per_mol[0])
+        omega = float(grid.collision_frequency_per_s[0, j])
+        populations = (float(t_scan[0]), float(grid.number_density_m3[0, j]), omega,
+                       master_equation_populations(model, spec.energy_J_per_mol, float(t_scan[0]), omega, de))
     return ExcitationResult(spec, model, grid, along, None if prof is None else prof.altitude_m,
-                            None if prof is None else prof.source, curve, tuple(warnings))
+                            None if prof is None else prof.source, curve, tuple(warnings), populations)
 
 
 def study_excitations(study: Study, specs=None, *, progress=None) -> list[ExcitationResult]:
