@@ -138,6 +138,10 @@ def outputs(demo_run, tmp_path_factory):
         got.append((f"tstrate {command} --json", run_cli_json([command, str(study), "--json"])))
     got.append(("tstrate rates --json", run_cli_json(["rates", str(study), "--standard-pressure", "atm",
                                                       "--json"])))
+    # the master-equation keys: the demo's bare channel through the master equation
+    me_study = DEMO / "study_master_equation.toml"
+    for command in ("falloff", "excite"):
+        got.append((f"tstrate {command} --json", run_cli_json([command, str(me_study), "--json"])))
     got.append(("tstrate uncertainty --json", run_cli_json(["uncertainty", str(study), "--samples", "64",
                                                             "--quiet", "--json"])))
     tunnel = ["tunnel", "--imaginary-cm1", "1500", "--forward-barrier", "150", "--reverse-barrier", "170",

@@ -214,7 +214,7 @@ def yield_altitude_figure(res, bands: dict | None = None):
         ax.plot(g.stepwise, z_km, "--s", ms=3, color="C3")
         axq.plot(_log_quenched(g.stepwise), z_km, "--s", ms=3, color="C3")
         curves.append(Line2D([], [], color="C3", ls="--", marker="s", ms=3, label="stepwise <dE>down"))
-    if g.master_equation is not None:
+    if getattr(g, "master_equation", None) is not None:
         ax.plot(g.master_equation, z_km, ":^", ms=3, color="C2")
         axq.plot(_log_quenched(g.master_equation), z_km, ":^", ms=3, color="C2")
         curves.append(Line2D([], [], color="C2", ls=":", marker="^", ms=3, label="master equation"))
